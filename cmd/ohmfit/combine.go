@@ -1,0 +1,157 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"strconv"
+	"strings"
+
+	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/synth"
+	"github.com/spf13/cobra"
+)
+
+// combineOptions are the inputs of `ohmfit combine`.
+type combineOptions struct {
+	Value    string
+	Series   string
+	Min, Max string
+	MaxParts int
+	Top      int
+	Format   string
+
+	Out, ErrOut io.Writer
+}
+
+// newCombineCmd builds `ohmfit combine`.
+func newCombineCmd(out, errOut io.Writer) *cobra.Command {
+	o := &combineOptions{Out: out, ErrOut: errOut}
+	cmd := &cobra.Command{
+		Use:   "combine VALUE [options]",
+		Short: "Make one resistance from standard parts in series or parallel",
+		Long: `List the best ways to make one resistance from standard values: a single
+part, two in series or in parallel, and with --max-parts 3 also three parts
+(all in series, all in parallel, one in series with a parallel pair, or a
+series pair in parallel with a third). Ranked by error, then fewer parts.
+The search is exact: for each choice of the other parts the last part's
+ideal value is computed and only its two standard neighbours are tried.
+
+JSON output (--format json):
+  {"target": 4320, "solutions": [{"rank": 1, "value": 4330, "parts": [3900, 430],
+    "combine": "series", "error": 0.0023, "part_count": 2}]}`,
+		Example: `  # 4.32k from E24 parts
+  ohmfit combine 4.32k
+
+  # 1.5 ohm for a current shunt from E12 parts, up to three of them
+  ohmfit combine 1R5 --series E12 --min 1 --max 100 --max-parts 3`,
+		Args: argsExactly(1, "one argument, the resistance to make"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			o.Value = args[0]
+			if err := checkFormat(cmd, o.Format, "table", "json"); err != nil {
+				return err
+			}
+			if o.MaxParts < 1 || o.MaxParts > 3 {
+				return usagef(cmd.CommandPath(), "--max-parts must be 1, 2 or 3, not %d", o.MaxParts)
+			}
+			if o.Top < 1 {
+				return usagef(cmd.CommandPath(), "--top must be at least 1, not %d", o.Top)
+			}
+			return runCombine(o)
+		},
+	}
+	f := cmd.Flags()
+	f.StringVar(&o.Series, "series", "E24", "`SERIES` to take parts from (E3 … E192)")
+	f.StringVar(&o.Min, "min", "10", "smallest part to use (`R`)")
+	f.StringVar(&o.Max, "max", "10M", "largest part to use (`R`)")
+	f.IntVar(&o.MaxParts, "max-parts", 2, "most parts to combine (`N`: 1, 2 or 3)")
+	f.IntVar(&o.Top, "top", 10, "how many ways to show (`N`)")
+	f.StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table or json")
+	return cmd
+}
+
+func runCombine(o *combineOptions) error {
+	target, err := readValue("VALUE", o.Value, eseries.Ohm)
+	if err != nil {
+		return err
+	}
+	if !(target > 0) {
+		return badInputf("VALUE must be a positive resistance, not %s", o.Value)
+	}
+	s, err := lookupSeries(o.Series)
+	if err != nil {
+		return err
+	}
+	lo, err := readValue("--min", o.Min, eseries.Ohm)
+	if err != nil {
+		return err
+	}
+	hi, err := readValue("--max", o.Max, eseries.Ohm)
+	if err != nil {
+		return err
+	}
+	if !(lo > 0) || hi < lo {
+		return badInputf("--min and --max must be positive with min <= max (got %s and %s)", o.Min, o.Max)
+	}
+	base := s.Values(lo, hi)
+	if len(base) == 0 {
+		return badInputf("no %s value between %s and %s", s.Name, eseries.Format(lo), eseries.Format(hi))
+	}
+	combs, err := synth.Combine(target, base, synth.CombineSettings{MaxParts: o.MaxParts, Top: o.Top})
+	if err != nil {
+		return badInputf("%s", trimPackage(err.Error()))
+	}
+	if o.Format == "json" {
+		sols := make([]object, len(combs))
+		for i, c := range combs {
+			sols[i] = object{{"rank", i + 1}, {"value", c.Value}, {"parts", c.Parts},
+				{"combine", c.Arrangement.String()}, {"error", c.Error}, {"part_count", c.Arrangement.Count()}}
+		}
+		return writeJSON(o.Out, object{{"target", target}, {"series", s.Name}, {"solutions", sols}})
+	}
+	var b strings.Builder
+	fmt.Fprintf(&b, "%s from %s parts (%s … %s), up to %d parts\n\n", eseries.FormatUnit(target, eseries.Ohm), s.Name, eseries.Format(lo), eseries.Format(hi), o.MaxParts)
+	tb := table{indent: "  ", cols: []column{{right: true, gap: 2}, {gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {}}}
+	tb.add("rank", "parts", "value", "error", "count")
+	for i, c := range combs {
+		tb.add(strconv.Itoa(i+1), arrangementText(c), eseries.Format(c.Value), signedError(c.Value, target), strconv.Itoa(c.Arrangement.Count()))
+	}
+	if err := tb.write(&b); err != nil {
+		return err
+	}
+	_, err = io.WriteString(o.Out, b.String())
+	return err
+}
+
+// arrangementText draws an arrangement with its values: "3.9k + 430",
+// "10k ∥ 4.7k", "1k + (2.2k ∥ 3.3k)", "(1k + 2.2k) ∥ 4.7k".
+func arrangementText(c synth.Combination) string {
+	f := make([]string, len(c.Parts))
+	for i, v := range c.Parts {
+		f[i] = eseries.Format(v)
+	}
+	switch c.Arrangement {
+	case synth.ArrSeries:
+		return f[0] + " + " + f[1]
+	case synth.ArrParallel:
+		return f[0] + " ∥ " + f[1]
+	case synth.ArrSeries3:
+		return f[0] + " + " + f[1] + " + " + f[2]
+	case synth.ArrParallel3:
+		return f[0] + " ∥ " + f[1] + " ∥ " + f[2]
+	case synth.ArrSeriesParallel:
+		return f[0] + " + (" + f[1] + " ∥ " + f[2] + ")"
+	case synth.ArrParallelSeries:
+		return "(" + f[0] + " + " + f[1] + ") ∥ " + f[2]
+	}
+	return f[0]
+}
+
+// signedError shows (value - target)/target as a signed percentage, "0" for
+// an exact hit.
+func signedError(v, target float64) string {
+	e := (v - target) / target
+	if e == 0 || (e < 1e-12 && e > -1e-12) {
+		return "0"
+	}
+	return percent(e)
+}

@@ -1,0 +1,522 @@
+package main
+
+import (
+	"context"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"os/signal"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/synth"
+	"github.com/spf13/cobra"
+)
+
+// searchOptions are the flags every synthesis command shares.
+type searchOptions struct {
+	Top       int
+	Format    string // table, json or csv
+	Series    string // overrides every position's series when set
+	TimeLimit time.Duration
+	Workers   int
+	Method    string // auto, exhaustive or heuristic
+	Quiet     bool
+
+	Out, ErrOut io.Writer
+	ErrIsTTY    bool // stderr is a terminal: show a progress bar
+}
+
+// bindSearchFlags adds the shared search flags to a command.
+func bindSearchFlags(cmd *cobra.Command, o *searchOptions) {
+	f := cmd.Flags()
+	f.IntVar(&o.Top, "top", 10, "how many ranked answers to show (`N`)")
+	f.StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table, json or csv")
+	f.StringVar(&o.Series, "series", "", "use this `SERIES` (E3 … E192) for every position, overriding the template")
+	f.DurationVar(&o.TimeLimit, "time-limit", 0, "stop after this long (e.g. 30s) and show the best found so far, marked not proven")
+	f.IntVar(&o.Workers, "workers", 0, "goroutines to search with (`N`; 0: one per core); the answer does not depend on it")
+	f.StringVar(&o.Method, "method", "auto", "`METHOD`: exhaustive (proven best), heuristic (relax and snap), or auto (exhaustive when the space allows)")
+	f.BoolVarP(&o.Quiet, "quiet", "q", false, "no progress bar")
+}
+
+// checkSearchFlags validates the shared flags.
+func checkSearchFlags(cmd *cobra.Command, o *searchOptions) error {
+	if err := checkFormat(cmd, o.Format, "table", "json", "csv"); err != nil {
+		return err
+	}
+	if o.Top < 1 {
+		return usagef(cmd.CommandPath(), "--top must be at least 1, not %d", o.Top)
+	}
+	if o.Workers < 0 {
+		return usagef(cmd.CommandPath(), "--workers must be 0 or more, not %d", o.Workers)
+	}
+	if o.TimeLimit < 0 {
+		return usagef(cmd.CommandPath(), "--time-limit must not be negative")
+	}
+	switch o.Method {
+	case "auto", "exhaustive", "heuristic":
+	default:
+		return usagef(cmd.CommandPath(), "--method must be auto, exhaustive or heuristic, not %q", o.Method)
+	}
+	if o.Series != "" {
+		s, err := lookupSeries(o.Series)
+		if err != nil {
+			return err
+		}
+		o.Series = s.Name
+	}
+	return nil
+}
+
+// fitOptions are the inputs of `ohmfit fit`.
+type fitOptions struct {
+	File string
+	searchOptions
+}
+
+// newFitCmd builds `ohmfit fit`.
+func newFitCmd(out, errOut io.Writer, errIsTTY bool) *cobra.Command {
+	o := &fitOptions{searchOptions: searchOptions{Out: out, ErrOut: errOut, ErrIsTTY: errIsTTY}}
+	cmd := &cobra.Command{
+		Use:   "fit FILE [options]",
+		Short: "Choose standard values for a template's free resistors",
+		Long: `Choose standard values for every resistor of the template that has no value,
+so that the goals are met as closely as possible and every hard limit holds.
+
+Each candidate is checked with a nodal analysis of the whole network in every
+condition. Answers are ranked by the template's rank keys (default: largest
+goal error, then power, then part count), then by the values in part order,
+so the same input always gives the same list. An answer marked * is
+Pareto-optimal in the list: no other answer is as good in error, power and
+part count and better in one.
+
+The exhaustive method proves its list best over the whole space; it is used
+when the space allows (method auto). Beyond that a heuristic runs (a
+continuous relaxation, then a search of the standard values around it), and
+the result says it is not proven. Ctrl-C stops a search and prints the best
+found so far.
+
+FILE is a template file, or example:NAME for a built-in example.
+
+Exit status: 0 with answers, 1 when nothing meets the hard limits (the message
+names the limit that rejected the most candidates), 2 for bad input.
+
+JSON output (--format json):
+  {"name": "...", "exhaustive": true, "status": "proven", "method": "rows",
+   "space": 83521, "evaluated": 1234, "solutions": [
+     {"rank": 1, "values": {"R1": 30100, "R2": 9530},
+      "parts": {"R1": [30100], "R2": [9530]},
+      "combine": {"R1": "single", "R2": "single"},
+      "error": 0.00041, "power": 0.00108, "part_count": 2, "pareto": true,
+      "targets": [{"target": "voltage fb", "condition": "nominal",
+                   "value": 0.80033, "goal": 0.8, "error": 0.00041}]}]}`,
+		Example: `  # the built-in regulator feedback example
+  ohmfit fit example:feedback
+
+  # the same with E24 parts only, top 5, as CSV for a spreadsheet
+  ohmfit fit example:feedback --series E24 --top 5 --format csv`,
+		Args: argsExactly(1, "one argument, the template file"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			o.File = args[0]
+			if err := checkSearchFlags(cmd, &o.searchOptions); err != nil {
+				return err
+			}
+			t, err := loadTemplate(o.File)
+			if err != nil {
+				return err
+			}
+			return runSearch(&o.searchOptions, t)
+		},
+	}
+	bindSearchFlags(cmd, &o.searchOptions)
+	return cmd
+}
+
+// runSearch compiles a template, searches it and renders the result. It is
+// shared by fit, divider and feedback.
+func runSearch(o *searchOptions, t *constraints.Template) error {
+	cp, err := constraints.Compile(t)
+	if err != nil {
+		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+	}
+	p, err := synth.NewProblem(cp, o.Series)
+	if err != nil {
+		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+	}
+	set := &synth.Settings{Top: o.Top, Workers: o.Workers, TimeLimit: o.TimeLimit, Progress: &synth.Progress{}}
+	var method synth.Method = synth.Rows{}
+	switch o.Method {
+	case "heuristic":
+		method = synth.Relax{}
+	case "auto":
+		if rows := synth.RowCount(p); rows > synth.DefaultMaxRows {
+			method = synth.Relax{}
+			fmt.Fprintf(o.ErrOut, "ohmfit: %.3g rows is too many to prove the best answer (budget %.3g); searching heuristically\n", rows, float64(synth.DefaultMaxRows))
+		}
+	case "exhaustive":
+		set.MaxRows = math.Inf(1)
+	}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	done := make(chan struct{})
+	if o.ErrIsTTY && !o.Quiet {
+		go showProgress(o.ErrOut, set.Progress, done)
+	} else {
+		close(done)
+	}
+	res, err := synth.Search(ctx, p, set, method)
+	if o.ErrIsTTY && !o.Quiet {
+		done <- struct{}{}
+		<-done
+	}
+	if err != nil {
+		if errors.Is(err, synth.ErrSpaceTooLarge) || errors.Is(err, synth.ErrTooManyRows) {
+			return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+		}
+		return err
+	}
+	switch res.Status {
+	case synth.Interrupted:
+		fmt.Fprintln(o.ErrOut, "ohmfit: interrupted; showing the best found so far (not proven)")
+	case synth.TimeLimit:
+		fmt.Fprintf(o.ErrOut, "ohmfit: time limit of %v reached; showing the best found so far (not proven)\n", o.TimeLimit)
+	}
+	if err := renderFit(o, p, res); err != nil {
+		return err
+	}
+	if len(res.Solutions) == 0 {
+		return &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res))}
+	}
+	return nil
+}
+
+// showProgress draws a one-line bar on stderr until told to stop, then
+// clears it and answers on the same channel.
+func showProgress(w io.Writer, pr *synth.Progress, done chan struct{}) {
+	tick := time.NewTicker(150 * time.Millisecond)
+	defer tick.Stop()
+	shown := false
+	for {
+		select {
+		case <-done:
+			if shown {
+				fmt.Fprint(w, "\r\033[K")
+			}
+			done <- struct{}{}
+			return
+		case <-tick.C:
+			d, n := pr.Fraction()
+			if n == 0 {
+				continue
+			}
+			const width = 30
+			f := float64(d) / float64(n)
+			bar := strings.Repeat("=", int(f*width)) + strings.Repeat(".", width-int(f*width))
+			fmt.Fprintf(w, "\r  searching [%s] %3.0f%%  %d/%d", bar, 100*f, d, n)
+			shown = true
+		}
+	}
+}
+
+// noSolutionMessage says which hard limit nothing could meet.
+func noSolutionMessage(p *synth.Problem, res *synth.Result) string {
+	scope := "no candidate meets the hard limits"
+	if !res.Status.Exhaustive() {
+		scope = "no candidate found meets the hard limits (the search was not exhaustive)"
+	}
+	b := res.Blocking
+	if b == nil {
+		return scope
+	}
+	t := p.Template
+	cond := p.Conditions[b.Condition].Name
+	if b.Target == len(t.Targets) {
+		return fmt.Sprintf("%s; most were rejected by supply_power_max %s in condition %q", scope,
+			eseries.FormatUnit(t.Limits.SupplyPowerMax, eseries.Watt), cond)
+	}
+	tg := t.Targets[b.Target]
+	return fmt.Sprintf("%s; most were rejected by %s %s in condition %q (line %d); widen that limit, the value ranges or the series",
+		scope, tg.Label(), describeLimit(tg), cond, tg.Pos.Line)
+}
+
+// describeLimit writes a target's hard limits, e.g. "max 100 µA".
+func describeLimit(tg constraints.Target) string {
+	u := tg.Kind.Unit()
+	var parts []string
+	if tg.HasEquals && tg.Tolerance > 0 {
+		if tg.TolRelative {
+			parts = append(parts, fmt.Sprintf("within %s of %s", eseries.FormatUnit(tg.Tolerance, eseries.Percent), eseries.FormatUnit(tg.Equals, u)))
+		} else {
+			parts = append(parts, fmt.Sprintf("within ±%s of %s", eseries.FormatUnit(tg.Tolerance, u), eseries.FormatUnit(tg.Equals, u)))
+		}
+	}
+	if tg.HasMin {
+		parts = append(parts, "min "+eseries.FormatUnit(tg.Min, u))
+	}
+	if tg.HasMax {
+		parts = append(parts, "max "+eseries.FormatUnit(tg.Max, u))
+	}
+	return strings.Join(parts, ", ")
+}
+
+// renderFit writes the result in the chosen format.
+func renderFit(o *searchOptions, p *synth.Problem, res *synth.Result) error {
+	switch o.Format {
+	case "json":
+		return writeJSON(o.Out, fitJSON(p, res))
+	case "csv":
+		return writeFitCSV(o.Out, p, res)
+	}
+	return writeFitTable(o.Out, p, res)
+}
+
+// positionText shows a position's realisation: "4.7k", "10k + 2.2k" or
+// "10k ∥ 47k".
+func positionText(opt synth.Option) string {
+	switch opt.Combine {
+	case constraints.Series:
+		return eseries.Format(opt.Parts[0]) + " + " + eseries.Format(opt.Parts[1])
+	case constraints.Parallel:
+		return eseries.Format(opt.Parts[0]) + " ∥ " + eseries.Format(opt.Parts[1])
+	}
+	return eseries.Format(opt.Value)
+}
+
+// goalColumn is one goal in one condition, shown as a column of the table.
+type goalColumn struct {
+	target, cond int
+	label        string
+}
+
+// goalColumns lists the goals to show beside each answer: every goal in
+// every condition it applies to, while that is at most four columns.
+func goalColumns(p *synth.Problem) []goalColumn {
+	var cols []goalColumn
+	multi := len(p.Conditions) > 1
+	for ti, tg := range p.Template.Targets {
+		if !tg.HasEquals {
+			continue
+		}
+		for ci, c := range p.Conditions {
+			if !p.Applies[ti][ci] {
+				continue
+			}
+			label := tg.Label()
+			if multi {
+				label += " @" + c.Name
+			}
+			cols = append(cols, goalColumn{ti, ci, label})
+		}
+	}
+	if len(cols) > 4 {
+		return nil
+	}
+	return cols
+}
+
+// summaryLine describes the search in one line.
+func summaryLine(p *synth.Problem, res *synth.Result) string {
+	st := res.Stats
+	verdict := "proven best over the whole space"
+	switch res.Status {
+	case synth.NoFeasible:
+		verdict = "proven: nothing meets the hard limits"
+	case synth.Heuristic:
+		verdict = "not proven (heuristic)"
+	case synth.TimeLimit:
+		verdict = "not proven (time limit)"
+	case synth.Interrupted:
+		verdict = "not proven (interrupted)"
+	}
+	return fmt.Sprintf("%s candidates (%s); %s scored by %s in %s; %s",
+		count(st.Space), spaceText(p), count(float64(st.Evaluated)), st.Method, roundDuration(st.Elapsed), verdict)
+}
+
+// spaceText is "R1 289 × R2 289".
+func spaceText(p *synth.Problem) string {
+	var parts []string
+	for _, d := range p.Domains {
+		parts = append(parts, fmt.Sprintf("%s %d", d.Name, len(d.Options)))
+	}
+	if len(parts) == 0 {
+		return "nothing to choose"
+	}
+	return strings.Join(parts, " × ")
+}
+
+// count writes a count with thousands separators, or in exponent form when
+// it is very large.
+func count(n float64) string {
+	if n >= 1e12 {
+		return strconv.FormatFloat(n, 'g', 3, 64)
+	}
+	s := strconv.FormatInt(int64(n), 10)
+	for i := len(s) - 3; i > 0; i -= 3 {
+		s = s[:i] + "," + s[i:]
+	}
+	return s
+}
+
+// roundDuration keeps three significant digits of a duration.
+func roundDuration(d time.Duration) time.Duration {
+	for r := time.Nanosecond; r < time.Hour; r *= 10 {
+		if d < 1000*r {
+			return d.Round(r)
+		}
+	}
+	return d.Round(time.Second)
+}
+
+// writeFitTable renders the ranked answers for people.
+func writeFitTable(w io.Writer, p *synth.Problem, res *synth.Result) error {
+	var b strings.Builder
+	if p.Template.Name != "" {
+		fmt.Fprintf(&b, "%s\n", p.Template.Name)
+	}
+	fmt.Fprintf(&b, "%s\n\n", summaryLine(p, res))
+	if len(res.Solutions) == 0 {
+		_, err := io.WriteString(w, b.String())
+		return err
+	}
+	goals := goalColumns(p)
+	tb := table{indent: "  ", cols: []column{{right: true, gap: 2}}}
+	head := []string{"rank"}
+	for _, d := range p.Domains {
+		head = append(head, d.Name)
+		tb.cols = append(tb.cols, column{gap: 3})
+	}
+	head = append(head, "error", "power", "parts")
+	tb.cols = append(tb.cols, column{right: true, gap: 3}, column{right: true, gap: 3}, column{right: true, gap: 3})
+	for _, g := range goals {
+		head = append(head, g.label)
+		tb.cols = append(tb.cols, column{right: true, gap: 3})
+	}
+	tb.cols[len(tb.cols)-1].gap = 0
+	tb.add(head...)
+	nc := len(p.Conditions)
+	pareto := false
+	for _, s := range res.Solutions {
+		rank := strconv.Itoa(s.Rank)
+		if s.Pareto {
+			rank += "*"
+			pareto = true
+		} else {
+			rank += " "
+		}
+		row := []string{rank}
+		for _, o := range s.Options {
+			row = append(row, positionText(o))
+		}
+		row = append(row, errorText(s.Score.Error), eseries.FormatUnit(s.Score.Power, eseries.Watt), strconv.Itoa(s.Parts))
+		for _, g := range goals {
+			v := s.Score.Values[g.target*nc+g.cond]
+			row = append(row, eseries.FormatUnit(v, p.Template.Targets[g.target].Kind.Unit()))
+		}
+		tb.add(row...)
+	}
+	if err := tb.write(&b); err != nil {
+		return err
+	}
+	if pareto {
+		b.WriteString("\n  * Pareto-optimal in this list: nothing here beats it on error, power and parts at once.\n")
+	}
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// errorText shows a goal error as a percentage with three significant
+// digits, and an exact hit (within rounding) as "0".
+func errorText(e float64) string {
+	if e <= 1e-12 {
+		return "0"
+	}
+	return strings.TrimPrefix(percent(e), "+")
+}
+
+// fitJSON builds the contract's JSON document for a search.
+func fitJSON(p *synth.Problem, res *synth.Result) object {
+	sols := make([]object, len(res.Solutions))
+	nc := len(p.Conditions)
+	for i, s := range res.Solutions {
+		values, parts, comb := make(object, 0), make(object, 0), make(object, 0)
+		for k, d := range p.Domains {
+			o := s.Options[k]
+			values = append(values, member{d.Name, o.Value})
+			parts = append(parts, member{d.Name, o.PartValues()})
+			comb = append(comb, member{d.Name, synth.CombineName(o.Combine)})
+		}
+		targets := []object{}
+		for ti, tg := range p.Template.Targets {
+			for ci, c := range p.Conditions {
+				if !p.Applies[ti][ci] {
+					continue
+				}
+				v := s.Score.Values[ti*nc+ci]
+				m := object{{"target", tg.Label()}, {"condition", c.Name}, {"value", v}}
+				if tg.HasEquals {
+					m = append(m, member{"goal", tg.Equals}, member{"error", tg.GoalError(v)})
+				}
+				lo, hi := tg.Band()
+				if !math.IsInf(lo, -1) {
+					m = append(m, member{"min", lo})
+				}
+				if !math.IsInf(hi, 1) {
+					m = append(m, member{"max", hi})
+				}
+				targets = append(targets, m)
+			}
+		}
+		sols[i] = object{
+			{"rank", s.Rank}, {"values", values}, {"parts", parts}, {"combine", comb},
+			{"error", s.Score.Error}, {"power", s.Score.Power}, {"part_count", s.Parts},
+			{"pareto", s.Pareto}, {"targets", targets},
+		}
+	}
+	return object{
+		{"name", p.Template.Name},
+		{"exhaustive", res.Status.Exhaustive()},
+		{"status", res.Status.String()},
+		{"method", res.Stats.Method},
+		{"space", res.Stats.Space},
+		{"evaluated", res.Stats.Evaluated},
+		{"solves", res.Stats.Solves},
+		{"solutions", sols},
+	}
+}
+
+// writeFitCSV writes one row per answer: rank, each position's effective
+// value, realisation and parts, then error, power and part count.
+func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result) error {
+	cw := csv.NewWriter(w)
+	head := []string{"rank"}
+	for _, d := range p.Domains {
+		head = append(head, d.Name, d.Name+" combine", d.Name+" parts")
+	}
+	head = append(head, "error", "power", "part_count", "pareto")
+	if err := cw.Write(head); err != nil {
+		return err
+	}
+	for _, s := range res.Solutions {
+		row := []string{strconv.Itoa(s.Rank)}
+		for _, o := range s.Options {
+			var ps []string
+			for _, v := range o.PartValues() {
+				ps = append(ps, eseries.Format(v))
+			}
+			row = append(row, strconv.FormatFloat(o.Value, 'g', -1, 64), synth.CombineName(o.Combine), strings.Join(ps, " "))
+		}
+		row = append(row, strconv.FormatFloat(s.Score.Error, 'g', -1, 64), strconv.FormatFloat(s.Score.Power, 'g', -1, 64),
+			strconv.Itoa(s.Parts), strconv.FormatBool(s.Pareto))
+		if err := cw.Write(row); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}

@@ -1,0 +1,238 @@
+package main
+
+import (
+	"bytes"
+	"flag"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/ohmfit/ohmfit/constraints/examples"
+)
+
+var update = flag.Bool("update", false, "rewrite the golden files in testdata from the current output")
+
+// runCLI runs one command line as main would and returns what it printed and
+// its exit code.
+func runCLI(t *testing.T, args ...string) (stdout, stderr string, code ExitCode) {
+	t.Helper()
+	var out, errOut bytes.Buffer
+	code = run(args, strings.NewReader(""), &out, &errOut)
+	return out.String(), errOut.String(), code
+}
+
+// golden compares got with testdata/name.golden, rewriting it under -update.
+func golden(t *testing.T, name, got string) {
+	t.Helper()
+	path := filepath.Join("testdata", name+".golden")
+	if *update {
+		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return
+	}
+	want, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatalf("%v (run `go test ./cmd/ohmfit -update` to create it)", err)
+	}
+	if got != string(want) {
+		t.Errorf("output differs from %s\n--- got\n%s--- want\n%s", path, got, want)
+	}
+}
+
+// TestGolden runs each command line and compares its exit code, stdout and
+// stderr, written into one file per case, with the golden copy.
+func TestGolden(t *testing.T) {
+	cases := []struct {
+		name string
+		args []string
+		code ExitCode
+	}{
+		// values
+		{"values-range", []string{"values", "E12", "--from", "1k", "--to", "10k"}, ExitOK},
+		{"values-default", []string{"values", "e3"}, ExitOK},
+		{"values-json", []string{"values", "E6", "--from", "100", "--to", "1kΩ", "--format", "json"}, ExitOK},
+		{"values-empty", []string{"values", "E3", "--from", "4.8k", "--to", "9k"}, ExitOK},
+		{"values-near", []string{"values", "E24", "--near", "4k32"}, ExitOK},
+		{"values-near-exact", []string{"values", "E24", "--near", "4.7kohm"}, ExitOK},
+		{"values-near-between", []string{"values", "E96", "--near", "4k7"}, ExitOK},
+		{"values-near-json", []string{"values", "E24", "--near", "4320", "--format", "json"}, ExitOK},
+		{"values-help", []string{"values", "--help"}, ExitOK},
+		{"values-err-series", []string{"values", "E25"}, ExitBadInput},
+		{"values-err-value", []string{"values", "E24", "--from", "4.7x"}, ExitBadInput},
+		{"values-err-unit", []string{"values", "E24", "--near", "3.3V"}, ExitBadInput},
+		{"values-err-order", []string{"values", "E24", "--from", "10k", "--to", "1k"}, ExitBadInput},
+		{"values-err-zero", []string{"values", "E24", "--near", "0"}, ExitBadInput},
+		{"values-err-empty", []string{"values", "E24", "--near="}, ExitBadInput},
+		{"values-err-conflict", []string{"values", "E24", "--near", "1k", "--to", "2k"}, ExitBadInput},
+		{"values-err-args", []string{"values"}, ExitBadInput},
+		{"values-err-format", []string{"values", "E24", "--format", "xml"}, ExitBadInput},
+		{"values-err-flag", []string{"values", "E24", "--nearr", "1k"}, ExitBadInput},
+
+		// solve
+		{"solve-table", []string{"solve", "testdata/bench.yaml"}, ExitOK},
+		{"solve-json", []string{"solve", "testdata/bench.yaml", "--format", "json"}, ExitOK},
+		{"solve-opamp", []string{"solve", "testdata/preamp.yaml"}, ExitOK},
+		{"solve-bridge", []string{"solve", "testdata/bridge-balanced.yaml"}, ExitOK},
+		{"solve-err-free", []string{"solve", "testdata/free.yaml"}, ExitBadInput},
+		{"solve-err-syntax", []string{"solve", "testdata/bad.yaml"}, ExitBadInput},
+		{"solve-err-missing", []string{"solve", "testdata/no-such-file.yaml"}, ExitBadInput},
+		{"solve-err-floating", []string{"solve", "testdata/floating.yaml"}, ExitBadInput},
+		{"solve-err-example", []string{"solve", "example:nosuch"}, ExitBadInput},
+		{"solve-err-args", []string{"solve", "a.yaml", "b.yaml"}, ExitBadInput},
+
+		// examples
+		{"examples-list", []string{"examples"}, ExitOK},
+		{"examples-err-unknown", []string{"examples", "brigde"}, ExitBadInput},
+
+		// the root command
+		{"root-help", []string{}, ExitOK},
+		{"root-err-command", []string{"valeus", "E24"}, ExitBadInput},
+		{"help-err-topic", []string{"help", "fitt"}, ExitBadInput},
+		{"help-solve", []string{"help", "solve"}, ExitOK},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			out, errOut, code := runCLI(t, tc.args...)
+			if code != tc.code {
+				t.Errorf("exit code %d, want %d (stderr: %q)", code, tc.code, errOut)
+			}
+			if code != ExitOK && strings.Count(errOut, "\n") != 1 {
+				t.Errorf("stderr should be exactly one line, got %q", errOut)
+			}
+			golden(t, tc.name, fmt.Sprintf("$ ohmfit %s\nexit %d\n--- stdout\n%s--- stderr\n%s",
+				strings.Join(tc.args, " "), code, out, errOut))
+		})
+	}
+}
+
+// TestExampleVerbatim checks that `ohmfit examples NAME` prints the stored
+// text byte for byte, so that redirecting it to a file gives a usable copy,
+// and that every example loads.
+func TestExampleVerbatim(t *testing.T) {
+	names := examples.Names()
+	if len(names) == 0 {
+		t.Fatal("no built-in examples")
+	}
+	for _, name := range names {
+		t.Run(name, func(t *testing.T) {
+			out, errOut, code := runCLI(t, "examples", name)
+			want, _ := examples.Get(name)
+			if code != ExitOK || errOut != "" || out != string(want) {
+				t.Errorf("exit %d, stderr %q, stdout differs from the stored text: %v", code, errOut, out != string(want))
+			}
+			if _, err := loadTemplate(examplePrefix + name); err != nil {
+				t.Errorf("example does not load: %v", err)
+			}
+		})
+	}
+}
+
+// TestVersion checks --version without a golden file: the Go release in it
+// changes with the toolchain.
+func TestVersion(t *testing.T) {
+	for _, arg := range []string{"--version", "-v"} {
+		out, errOut, code := runCLI(t, arg)
+		if code != ExitOK || errOut != "" || !strings.HasPrefix(out, "ohmfit dev") || strings.Count(out, "\n") != 1 {
+			t.Errorf("%s: exit %d, stdout %q, stderr %q", arg, code, out, errOut)
+		}
+	}
+}
+
+// TestPercent checks the percentage form used by the --near table.
+func TestPercent(t *testing.T) {
+	cases := []struct {
+		in   float64
+		want string
+	}{
+		{-0.00462963, "-0.463%"},
+		{0.0880, "+8.80%"},
+		{0.5, "+50.0%"},
+		{2, "+200%"},
+		{0, "±0%"},
+		{1.5e-6, "+0.000150%"},
+	}
+	for _, c := range cases {
+		if got := percent(c.in); got != c.want {
+			t.Errorf("percent(%v) = %q, want %q", c.in, got, c.want)
+		}
+	}
+}
+
+// TestDidYouMean checks the typo suggestions in messages.
+func TestDidYouMean(t *testing.T) {
+	cands := []string{"values", "solve", "examples", "help"}
+	cases := []struct{ word, want string }{
+		{"valeus", ` (did you mean "values"?)`},
+		{"SOLVE", ` (did you mean "solve"?)`},
+		{"exmaples", ` (did you mean "examples"?)`},
+		{"zzz", ""},
+		{"x", ""},
+	}
+	for _, c := range cases {
+		if got := didYouMean(c.word, cands); got != c.want {
+			t.Errorf("didYouMean(%q) = %q, want %q", c.word, got, c.want)
+		}
+	}
+}
+
+// TestObjectOrder checks that JSON objects keep their key order and that a
+// NaN is refused with the key named.
+func TestObjectOrder(t *testing.T) {
+	var b bytes.Buffer
+	if err := writeJSON(&b, object{{"z", 1.5}, {"a", object{{"m", "x<y"}}}}); err != nil {
+		t.Fatal(err)
+	}
+	if want := "{\n  \"z\": 1.5,\n  \"a\": {\n    \"m\": \"x<y\"\n  }\n}\n"; b.String() != want {
+		t.Errorf("got %q, want %q", b.String(), want)
+	}
+	nan := 0.0
+	nan /= nan
+	if err := writeJSON(&b, object{{"v", nan}}); err == nil || !strings.Contains(err.Error(), `"v"`) {
+		t.Errorf("NaN: got error %v", err)
+	}
+}
+
+// TestTidy checks that only residue next to a large value is shown as zero.
+func TestTidy(t *testing.T) {
+	cases := []struct{ v, scale, want float64 }{
+		{1e-19, 0.01, 0},
+		{-2e-16, 5, 0},
+		{1e-9, 5, 1e-9},
+		{1e-15, 0, 1e-15}, // nothing to compare with: keep it
+		{0, 0, 0},
+	}
+	for _, c := range cases {
+		if got := tidy(c.v, c.scale); got != c.want {
+			t.Errorf("tidy(%g, %g) = %g, want %g", c.v, c.scale, got, c.want)
+		}
+	}
+}
+
+// TestPowerBalance checks the property the solve table's last line shows:
+// the power the resistors dissipate is the power the sources and op-amp
+// outputs deliver (Tellegen's theorem), in every condition.
+func TestPowerBalance(t *testing.T) {
+	for _, file := range []string{"testdata/bench.yaml", "testdata/preamp.yaml", "testdata/bridge-balanced.yaml"} {
+		tpl, err := loadTemplate(file)
+		if err != nil {
+			t.Fatal(err)
+		}
+		results, err := analyzeAll(tpl)
+		if err != nil {
+			t.Fatalf("%s: %v", file, err)
+		}
+		for _, r := range results {
+			sum := 0.0
+			for _, p := range r.sol.Parts {
+				sum += p.Watts
+			}
+			if math.Abs(sum) > 1e-12*r.sol.ResistorPower {
+				t.Errorf("%s, %s: watts absorbed sum to %g, want 0 (resistors %g)", file, r.name, sum, r.sol.ResistorPower)
+			}
+		}
+	}
+}

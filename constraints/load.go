@@ -1,0 +1,1215 @@
+package constraints
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"slices"
+	"strconv"
+	"strings"
+	"unicode"
+	"unicode/utf8"
+
+	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/solver"
+	"gopkg.in/yaml.v3"
+)
+
+// MaxFileSize is the largest template or stock file read, in bytes. Real
+// templates are a few kilobytes; the bound keeps a wrong path (a log, an
+// image) from being slurped whole.
+const MaxFileSize = 4 << 20
+
+// maxDepth bounds nesting. The deepest legal path (choose, overrides, part,
+// series list) is five levels; anything far deeper is not a template.
+const maxDepth = 32
+
+// Defaults for choose, as the contract states them.
+const (
+	defaultSeries = "E24"
+	defaultMin    = 10.0
+	defaultMax    = 10e6
+)
+
+// Load reads and parses the template at path. File is set to path as given
+// and Dir to its directory, against which stock files are resolved.
+func Load(path string) (*Template, error) {
+	data, rerr := readFile(path)
+	if rerr != nil {
+		return nil, rerr
+	}
+	return Parse(path, data)
+}
+
+// Parse parses template text. file is used in messages and, through its
+// directory, to resolve stock files ("" means the current directory). The
+// error, if any, is an *Error for the first problem in file order.
+func Parse(file string, data []byte) (*Template, error) {
+	d := &decoder{file: file, dir: filepath.Dir(file)}
+	if file == "" {
+		d.dir = "."
+	}
+	t := d.parse(data)
+	if len(d.errs) > 0 {
+		return nil, d.first()
+	}
+	return t, nil
+}
+
+// readFile reads a regular file of at most MaxFileSize bytes. The size is
+// checked before reading so a huge or endless file costs nothing.
+func readFile(path string) ([]byte, *Error) {
+	fail := func(msg string, err error) ([]byte, *Error) {
+		return nil, &Error{File: path, Msg: msg, Err: err}
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return fail("cannot open: "+pathCause(err), err)
+	}
+	defer f.Close()
+	fi, err := f.Stat()
+	if err != nil {
+		return fail("cannot read: "+pathCause(err), err)
+	}
+	if !fi.Mode().IsRegular() {
+		return fail("not a regular file", nil)
+	}
+	tooBig := fmt.Sprintf("file is larger than %d MiB; this is not a template", MaxFileSize>>20)
+	if fi.Size() > MaxFileSize {
+		return fail(tooBig, nil)
+	}
+	// The limit also covers a file that grows between Stat and read.
+	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
+	if err != nil {
+		return fail("cannot read: "+pathCause(err), err)
+	}
+	if len(data) > MaxFileSize {
+		return fail(tooBig, nil)
+	}
+	return data, nil
+}
+
+// pathCause drops the path an fs error repeats, since Error names the file.
+func pathCause(err error) string {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err.Error()
+	}
+	return err.Error()
+}
+
+// entry is one key of a mapping with its value.
+type entry struct {
+	name     string
+	key, val *yaml.Node
+}
+
+// Cross-references are checked once every section has been read, so their
+// order in the file does not matter.
+type (
+	nodeRef struct {
+		name string
+		n    *yaml.Node
+		key  string
+	}
+	partRef struct {
+		name string
+		n    *yaml.Node
+		key  string
+	}
+	condRef struct {
+		name string
+		n    *yaml.Node
+		key  string
+	}
+	setRef struct {
+		cond     int
+		ctx      string
+		part     string
+		key, val *yaml.Node
+		path     string
+	}
+)
+
+// decoder walks the YAML node tree, filling a Template and collecting
+// problems. Walking the tree ourselves (rather than decoding into tagged
+// structs) gives every problem the position of the key or value at fault.
+type decoder struct {
+	file, dir string
+	errs      []*Error
+	t         *Template
+
+	groundNode *yaml.Node // the ground value, or nil when defaulted
+	partsNode  *yaml.Node
+
+	nodeRefs     []nodeRef
+	partRefs     []partRef
+	condRefs     []condRef
+	overrideRefs []partRef
+	setRefs      []setRef
+}
+
+func (d *decoder) errorf(n *yaml.Node, key, format string, args ...any) {
+	d.wrapf(n, key, nil, format, args...)
+}
+
+func (d *decoder) wrapf(n *yaml.Node, key string, cause error, format string, args ...any) {
+	e := &Error{File: d.file, Key: key, Msg: fmt.Sprintf(format, args...), Err: cause}
+	if n != nil {
+		e.Line, e.Col = n.Line, n.Column
+	}
+	d.errs = append(d.errs, e)
+}
+
+// missingf reports something absent from mapping n. The message points at
+// the mapping, but is ordered as if found at its end, so a misspelt key
+// inside it ("too:" for "to:") is reported first, as the real mistake.
+func (d *decoder) missingf(n *yaml.Node, key, format string, args ...any) {
+	d.errorf(n, key, format, args...)
+	last := n
+	for len(last.Content) > 0 {
+		last = last.Content[len(last.Content)-1]
+	}
+	d.errs[len(d.errs)-1].order = Pos{last.Line, last.Column + len(last.Value) + 1}
+}
+
+// first returns the earliest problem in file order.
+func (d *decoder) first() *Error {
+	best := d.errs[0]
+	for _, e := range d.errs[1:] {
+		if e.before(best) {
+			best = e
+		}
+	}
+	return best
+}
+
+func (d *decoder) parse(data []byte) *Template {
+	if len(data) > MaxFileSize {
+		d.errorf(nil, "", "template is larger than %d MiB", MaxFileSize>>20)
+		return nil
+	}
+	if line, col, ok := binaryAt(data); ok {
+		d.errs = append(d.errs, &Error{File: d.file, Line: line, Col: col,
+			Msg: "not a text file: unreadable or control characters; a template is UTF-8 YAML text"})
+		return nil
+	}
+	root := d.document(data)
+	if root == nil {
+		return nil
+	}
+	d.prescan(root, 0)
+	if len(d.errs) > 0 {
+		return nil
+	}
+	d.t = &Template{File: d.file, Dir: d.dir}
+	d.template(root)
+	if len(d.errs) > 0 {
+		return nil
+	}
+	d.crossCheck()
+	if len(d.errs) > 0 {
+		return nil
+	}
+	return d.t
+}
+
+// binaryAt finds the first byte that cannot be in YAML text: invalid UTF-8
+// or a control character other than tab, newline and carriage return.
+func binaryAt(data []byte) (line, col int, found bool) {
+	line, col = 1, 1
+	for i := 0; i < len(data); {
+		r, size := utf8.DecodeRune(data[i:])
+		if r == utf8.RuneError && size <= 1 {
+			return line, col, true
+		}
+		if r == '\n' {
+			line, col = line+1, 1
+		} else {
+			if unicode.IsControl(r) && r != '\t' && r != '\r' && r != '\u0085' {
+				return line, col, true
+			}
+			col++
+		}
+		i += size
+	}
+	return 0, 0, false
+}
+
+// document parses exactly one YAML document and returns its root, or nil
+// after recording a problem.
+func (d *decoder) document(data []byte) (root *yaml.Node) {
+	// yaml.v3 reports malformed input as errors, but it is a third-party
+	// parser fed arbitrary bytes; a panic inside it must still become a
+	// message, never a stack trace.
+	defer func() {
+		if r := recover(); r != nil {
+			d.errorf(nil, "", "cannot read YAML: the parser failed (%v)", r)
+			root = nil
+		}
+	}()
+	dec := yaml.NewDecoder(bytes.NewReader(data))
+	var doc yaml.Node
+	if err := dec.Decode(&doc); err != nil {
+		if errors.Is(err, io.EOF) {
+			d.errorf(nil, "", "empty template: expected `ohmfit: 1` followed by parts")
+		} else {
+			d.yamlError(err)
+		}
+		return nil
+	}
+	var extra yaml.Node
+	switch err := dec.Decode(&extra); {
+	case err == nil:
+		d.errorf(&extra, "", "a template is one YAML document; this file holds several (remove the extra `---`)")
+		return nil
+	case !errors.Is(err, io.EOF):
+		d.yamlError(err)
+		return nil
+	}
+	root = &doc
+	if root.Kind == yaml.DocumentNode {
+		if len(root.Content) == 0 {
+			d.errorf(nil, "", "empty template: expected `ohmfit: 1` followed by parts")
+			return nil
+		}
+		root = root.Content[0]
+	}
+	if root.Kind == yaml.ScalarNode && root.ShortTag() == "!!null" {
+		d.errorf(root, "", "empty template: expected `ohmfit: 1` followed by parts")
+		return nil
+	}
+	return root
+}
+
+// yamlError turns the parser's "yaml: line N: msg" into a positioned Error.
+func (d *decoder) yamlError(err error) {
+	msg := strings.TrimPrefix(err.Error(), "yaml: ")
+	e := &Error{File: d.file, Msg: "not valid YAML: " + msg, Err: err}
+	if rest, ok := strings.CutPrefix(msg, "line "); ok {
+		if num, text, ok := strings.Cut(rest, ": "); ok {
+			if n, perr := strconv.Atoi(num); perr == nil {
+				e.Line, e.Msg = n, "not valid YAML: "+text
+			}
+		}
+	}
+	d.errs = append(d.errs, e)
+}
+
+// prescan rejects aliases and deep nesting before anything is interpreted.
+// Aliases are refused outright: a template has no need for them, and
+// expanding nested aliases is how a small file becomes a huge one.
+func (d *decoder) prescan(n *yaml.Node, depth int) {
+	if depth > maxDepth {
+		d.errorf(n, "", "nested more than %d levels deep; this is not a template", maxDepth)
+		return
+	}
+	if n.Kind == yaml.AliasNode {
+		d.errorf(n, "", "YAML aliases (*%s) are not supported in templates; write the value out", n.Value)
+		return
+	}
+	for _, c := range n.Content {
+		d.prescan(c, depth+1)
+		if len(d.errs) > 0 {
+			return
+		}
+	}
+}
+
+// describe names a node's shape for "expected X, got Y" messages.
+func describe(n *yaml.Node) string {
+	switch n.Kind {
+	case yaml.MappingNode:
+		return "a mapping"
+	case yaml.SequenceNode:
+		return "a list"
+	case yaml.ScalarNode:
+		switch n.ShortTag() {
+		case "!!null":
+			return "nothing"
+		case "!!bool":
+			return "true/false"
+		case "!!int", "!!float":
+			return "the number " + n.Value
+		}
+		return strconv.Quote(n.Value)
+	}
+	return "something else"
+}
+
+func isNull(n *yaml.Node) bool {
+	return n.Kind == yaml.ScalarNode && n.ShortTag() == "!!null"
+}
+
+// joinKey extends a key path: joinKey("parts[1]", "to") is "parts[1].to".
+func joinKey(path, key string) string {
+	if path == "" {
+		return key
+	}
+	return path + "." + key
+}
+
+// label prefixes a message with its context: label("part \"R1\"", "to").
+func label(ctx, key string) string {
+	switch {
+	case ctx == "":
+		return key
+	case key == "":
+		return ctx
+	}
+	return ctx + ": " + key
+}
+
+// fields reads a mapping's keys in order, reporting non-scalar, duplicate
+// and (when allowed is not nil) unknown keys. Problem keys are skipped.
+func (d *decoder) fields(n *yaml.Node, path, ctx string, allowed []string) (map[string]entry, []entry) {
+	pre := ""
+	if ctx != "" {
+		pre = ctx + ": "
+	}
+	byName := map[string]entry{}
+	var order []entry
+	for i := 0; i+1 < len(n.Content); i += 2 {
+		k, v := n.Content[i], n.Content[i+1]
+		if k.Kind != yaml.ScalarNode || isNull(k) {
+			d.errorf(k, path, "%sexpected a key name, got %s", pre, describe(k))
+			continue
+		}
+		name := k.Value
+		kp := joinKey(path, name)
+		if prev, dup := byName[name]; dup {
+			d.errorf(k, kp, "%skey %q appears twice (first on line %d)", pre, name, prev.key.Line)
+			continue
+		}
+		if allowed != nil && !slices.Contains(allowed, name) {
+			if s := suggest(name, allowed); s != "" {
+				d.errorf(k, kp, "%sunknown key %q%s", pre, name, s)
+			} else {
+				d.errorf(k, kp, "%sunknown key %q; expected one of %s", pre, name, strings.Join(allowed, ", "))
+			}
+			continue
+		}
+		e := entry{name: name, key: k, val: v}
+		byName[name] = e
+		order = append(order, e)
+	}
+	return byName, order
+}
+
+// expectMapping reports n unless it is a mapping.
+func (d *decoder) expectMapping(n *yaml.Node, path, ctx, example string) bool {
+	if n.Kind == yaml.MappingNode {
+		return true
+	}
+	d.errorf(n, path, "%s: expected a mapping such as %s, got %s", ctx, example, describe(n))
+	return false
+}
+
+// expectList reports n unless it is a list.
+func (d *decoder) expectList(n *yaml.Node, path, ctx string) bool {
+	if n.Kind == yaml.SequenceNode {
+		return true
+	}
+	d.errorf(n, path, "%s: expected a list, got %s", ctx, describe(n))
+	return false
+}
+
+// name reads a name: a non-empty scalar without spaces or control characters,
+// since names appear unquoted in labels such as "voltage a-b".
+func (d *decoder) name(n *yaml.Node, path, ctx string) (string, bool) {
+	if n.Kind != yaml.ScalarNode || isNull(n) || n.ShortTag() == "!!bool" {
+		d.errorf(n, path, "%s: expected a name, got %s", ctx, describe(n))
+		return "", false
+	}
+	if n.Value == "" {
+		d.errorf(n, path, "%s: the name is empty", ctx)
+		return "", false
+	}
+	if strings.IndexFunc(n.Value, func(r rune) bool { return unicode.IsSpace(r) || unicode.IsControl(r) }) >= 0 {
+		d.errorf(n, path, "%s: name %q contains a space; names are single words such as vout or R1", ctx, n.Value)
+		return "", false
+	}
+	return n.Value, true
+}
+
+// value reads a number in the given unit with eseries.ParseAs.
+func (d *decoder) value(n *yaml.Node, path, ctx string, unit eseries.Unit) (float64, bool) {
+	if n.Kind != yaml.ScalarNode || isNull(n) {
+		d.errorf(n, path, "%s: expected a value such as %s, got %s", ctx, exampleValue(unit), describe(n))
+		return 0, false
+	}
+	v, err := eseries.ParseAs(n.Value, unit)
+	if err != nil {
+		d.wrapf(n, path, err, "%s: %s", ctx, strings.TrimPrefix(err.Error(), "eseries: "))
+		return 0, false
+	}
+	return v, true
+}
+
+func exampleValue(u eseries.Unit) string {
+	switch u {
+	case eseries.Ohm:
+		return "4.7k"
+	case eseries.Volt:
+		return "3.3"
+	case eseries.Amp:
+		return "100u"
+	case eseries.Watt:
+		return "50m"
+	}
+	return "0.25"
+}
+
+// positive reads a value that must be above zero.
+func (d *decoder) positive(n *yaml.Node, path, ctx string, unit eseries.Unit) (float64, bool) {
+	v, ok := d.value(n, path, ctx, unit)
+	if ok && v <= 0 {
+		d.errorf(n, path, "%s: must be positive, got %s", ctx, n.Value)
+		return 0, false
+	}
+	return v, ok
+}
+
+var topKeys = []string{"ohmfit", "name", "ground", "parts", "targets", "limits", "choose", "conditions", "rank"}
+
+func (d *decoder) template(root *yaml.Node) {
+	if root.Kind != yaml.MappingNode {
+		d.errorf(root, "", "a template is a mapping of keys (ohmfit, parts, targets, ...), got %s", describe(root))
+		return
+	}
+	// The version comes first: under another schema every other message
+	// would be misleading.
+	if !d.version(root) {
+		return
+	}
+	byName, _ := d.fields(root, "", "", topKeys)
+	t := d.t
+	t.Ground = DefaultGround
+	if e, ok := byName["name"]; ok && !isNull(e.val) {
+		if e.val.Kind != yaml.ScalarNode {
+			d.errorf(e.val, "name", "name: expected a line of text, got %s", describe(e.val))
+		} else {
+			t.Name = e.val.Value
+		}
+	}
+	if e, ok := byName["ground"]; ok {
+		if g, ok := d.name(e.val, "ground", "ground"); ok {
+			t.Ground, d.groundNode = g, e.val
+		}
+	}
+	if e, ok := byName["parts"]; ok {
+		d.partsNode = e.key
+		d.parts(e.val)
+	} else {
+		d.missingf(root, "parts", "missing key \"parts\": the network's resistors, sources and op-amps")
+	}
+	if e, ok := byName["targets"]; ok && !isNull(e.val) && d.expectList(e.val, "targets", "targets") {
+		for i, item := range e.val.Content {
+			d.target(item, fmt.Sprintf("targets[%d]", i), i)
+		}
+	}
+	if e, ok := byName["limits"]; ok && !isNull(e.val) {
+		d.limits(e.val)
+	}
+	t.Choose.Default = Choice{Series: defaultSeries, Min: defaultMin, Max: defaultMax, Combine: Single}
+	if e, ok := byName["choose"]; ok && !isNull(e.val) {
+		d.choose(e.val)
+	}
+	if e, ok := byName["conditions"]; ok && !isNull(e.val) && d.expectList(e.val, "conditions", "conditions") {
+		d.conditions(e.val)
+	}
+	if len(t.Conditions) == 0 {
+		t.Conditions = []Condition{{Name: "nominal"}}
+	}
+	if e, ok := byName["rank"]; ok && !isNull(e.val) {
+		d.rank(e.val)
+	} else {
+		t.Rank = []RankKey{ByError, ByPower, ByParts}
+	}
+}
+
+// version checks `ohmfit: 1`.
+func (d *decoder) version(root *yaml.Node) bool {
+	for i := 0; i+1 < len(root.Content); i += 2 {
+		k, v := root.Content[i], root.Content[i+1]
+		if k.Kind != yaml.ScalarNode || k.Value != "ohmfit" {
+			continue
+		}
+		if v.Kind == yaml.ScalarNode && v.Value == strconv.Itoa(SchemaVersion) {
+			return true
+		}
+		if v.Kind == yaml.ScalarNode && v.ShortTag() == "!!int" {
+			d.errorf(v, "ohmfit", "unsupported schema version %s; this ohmfit reads version %d", v.Value, SchemaVersion)
+		} else {
+			d.errorf(v, "ohmfit", "ohmfit: expected the schema version %d, got %s", SchemaVersion, describe(v))
+		}
+		return false
+	}
+	d.missingf(root, "ohmfit", "missing `ohmfit: %d` (the schema version) at the top of the template", SchemaVersion)
+	return false
+}
+
+// partTypes maps each type name to its kind and keys; required keys are all
+// but "value", which a resistor may leave out to be chosen.
+var partTypes = []struct {
+	name string
+	kind solver.Kind
+	keys []string
+}{
+	{"resistor", solver.Resistor, []string{"name", "type", "from", "to", "value"}},
+	{"voltage-source", solver.VoltageSource, []string{"name", "type", "plus", "minus", "volts"}},
+	{"current-source", solver.CurrentSource, []string{"name", "type", "from", "to", "amps"}},
+	{"opamp", solver.OpAmp, []string{"name", "type", "plus", "minus", "out"}},
+}
+
+func partTypeNames() []string {
+	names := make([]string, len(partTypes))
+	for i, p := range partTypes {
+		names[i] = p.name
+	}
+	return names
+}
+
+func (d *decoder) parts(n *yaml.Node) {
+	if isNull(n) || (n.Kind == yaml.SequenceNode && len(n.Content) == 0) {
+		d.errorf(n, "parts", "parts: the list is empty; a template needs at least one part")
+		return
+	}
+	if !d.expectList(n, "parts", "parts") {
+		return
+	}
+	seen := map[string]*yaml.Node{}
+	for i, item := range n.Content {
+		p, nameNode, ok := d.part(item, fmt.Sprintf("parts[%d]", i), i)
+		if !ok {
+			continue
+		}
+		if prev, dup := seen[p.Name]; dup {
+			d.errorf(nameNode, fmt.Sprintf("parts[%d].name", i), "part name %q is already used on line %d", p.Name, prev.Line)
+			continue
+		}
+		seen[p.Name] = nameNode
+		d.t.Parts = append(d.t.Parts, p)
+	}
+}
+
+func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, bool) {
+	ctx := fmt.Sprintf("part %d", i+1)
+	if !d.expectMapping(n, path, ctx, "{name: R1, type: resistor, from: a, to: b}") {
+		return PartSpec{}, nil, false
+	}
+	// Name and type are needed before the other keys can be judged.
+	var nameNode, typeNode *yaml.Node
+	for j := 0; j+1 < len(n.Content); j += 2 {
+		switch k := n.Content[j]; {
+		case k.Kind != yaml.ScalarNode:
+		case k.Value == "name" && nameNode == nil:
+			nameNode = n.Content[j+1]
+		case k.Value == "type" && typeNode == nil:
+			typeNode = n.Content[j+1]
+		}
+	}
+	if nameNode != nil && nameNode.Kind == yaml.ScalarNode && nameNode.Value != "" {
+		ctx = fmt.Sprintf("part %q", nameNode.Value)
+	}
+	if typeNode == nil {
+		d.missingf(n, joinKey(path, "type"), "%s: missing key \"type\" (one of %s)", ctx, strings.Join(partTypeNames(), ", "))
+		return PartSpec{}, nil, false
+	}
+	ti := -1
+	if typeNode.Kind == yaml.ScalarNode {
+		ti = slices.IndexFunc(partTypes, func(p struct {
+			name string
+			kind solver.Kind
+			keys []string
+		}) bool {
+			return p.name == typeNode.Value
+		})
+	}
+	if ti < 0 {
+		what := describe(typeNode)
+		if s := suggest(typeNode.Value, partTypeNames()); s != "" && typeNode.Kind == yaml.ScalarNode {
+			d.errorf(typeNode, joinKey(path, "type"), "%s: unknown part type %s%s", ctx, what, s)
+		} else {
+			d.errorf(typeNode, joinKey(path, "type"), "%s: unknown part type %s; types are %s", ctx, what, strings.Join(partTypeNames(), ", "))
+		}
+		return PartSpec{}, nil, false
+	}
+	pt := partTypes[ti]
+	nerr := len(d.errs)
+	byName, _ := d.fields(n, path, ctx, pt.keys)
+	for _, k := range pt.keys {
+		if _, ok := byName[k]; !ok && k != "value" {
+			d.missingf(n, joinKey(path, k), "%s: missing key %q for a %s", ctx, k, pt.name)
+		}
+	}
+	if len(d.errs) > nerr {
+		return PartSpec{}, nil, false
+	}
+	p := PartSpec{Part: solver.Part{Kind: pt.kind}, Pos: Pos{n.Line, n.Column}}
+	ok := true
+	str := func(key string, dst *string) {
+		if v, good := d.name(byName[key].val, joinKey(path, key), label(ctx, key)); good {
+			*dst = v
+		} else {
+			ok = false
+		}
+	}
+	str("name", &p.Name)
+	switch pt.kind {
+	case solver.Resistor, solver.CurrentSource:
+		str("from", &p.From)
+		str("to", &p.To)
+	case solver.VoltageSource:
+		// The solver keeps a source's + and - terminals in From and To.
+		str("plus", &p.From)
+		str("minus", &p.To)
+	case solver.OpAmp:
+		str("plus", &p.Plus)
+		str("minus", &p.Minus)
+		str("out", &p.Out)
+	}
+	if !ok {
+		return PartSpec{}, nil, false
+	}
+	if pt.kind != solver.OpAmp && p.From == p.To {
+		second := "to"
+		if pt.kind == solver.VoltageSource {
+			second = "minus"
+		}
+		d.errorf(byName[second].val, joinKey(path, second), "%s: both ends are on node %q, so the part does nothing", ctx, p.From)
+		return PartSpec{}, nil, false
+	}
+	switch pt.kind {
+	case solver.Resistor:
+		e, has := byName["value"]
+		if !has {
+			p.Free = true
+			break
+		}
+		if isNull(e.val) {
+			d.errorf(e.val, joinKey(path, "value"), "%s: value is empty; leave the key out to let ohmfit choose it", ctx)
+			return PartSpec{}, nil, false
+		}
+		p.Value, ok = d.positive(e.val, joinKey(path, "value"), label(ctx, "value"), eseries.Ohm)
+	case solver.VoltageSource:
+		p.Value, ok = d.value(byName["volts"].val, joinKey(path, "volts"), label(ctx, "volts"), eseries.Volt)
+	case solver.CurrentSource:
+		p.Value, ok = d.value(byName["amps"].val, joinKey(path, "amps"), label(ctx, "amps"), eseries.Amp)
+	}
+	return p, byName["name"].val, ok
+}
+
+var targetAllowed = append(slices.Clone(targetKeys), "equals", "tolerance", "min", "max", "when")
+
+func (d *decoder) target(n *yaml.Node, path string, i int) {
+	ctx := fmt.Sprintf("target %d", i+1)
+	if !d.expectMapping(n, path, ctx, "{voltage: fb, equals: 0.8}") {
+		return
+	}
+	byName, order := d.fields(n, path, ctx, targetAllowed)
+	tg := Target{Pos: Pos{n.Line, n.Column}}
+	var q *entry
+	for _, e := range order {
+		k := slices.Index(targetKeys, e.name)
+		if k < 0 {
+			continue
+		}
+		if q != nil {
+			d.errorf(e.key, joinKey(path, e.name), "%s: names both %s and %s; use one target per quantity", ctx, q.name, e.name)
+			return
+		}
+		q = &e
+		tg.Kind = TargetKind(k)
+	}
+	if q == nil {
+		d.missingf(n, path, "%s: needs one of %s", ctx, strings.Join(targetKeys, ", "))
+		return
+	}
+	qpath, qctx := joinKey(path, q.name), label(ctx, q.name)
+	switch tg.Kind {
+	case Voltage, Ratio, Resistance:
+		single := tg.Kind == Voltage && q.val.Kind == yaml.ScalarNode
+		if !single && (q.val.Kind != yaml.SequenceNode || len(q.val.Content) != 2) {
+			want := "a list of two nodes [a, b]"
+			if tg.Kind == Voltage {
+				want = "a node name or " + want
+			}
+			d.errorf(q.val, qpath, "%s: expected %s, got %s", qctx, want, describe(q.val))
+			return
+		}
+		items := q.val.Content
+		if single {
+			items = []*yaml.Node{q.val}
+		}
+		for j, it := range items {
+			name, ok := d.name(it, qpath, qctx)
+			if !ok {
+				return
+			}
+			if j == 1 && name == tg.Nodes[0] {
+				d.errorf(it, qpath, "%s: both nodes are %q; name two different nodes", qctx, name)
+				return
+			}
+			tg.Nodes = append(tg.Nodes, name)
+			d.nodeRefs = append(d.nodeRefs, nodeRef{name, it, qpath})
+		}
+	case Current, Power:
+		name, ok := d.name(q.val, qpath, qctx)
+		if !ok {
+			return
+		}
+		tg.Part = name
+		d.partRefs = append(d.partRefs, partRef{name, q.val, qpath})
+	}
+	unit := tg.Kind.Unit()
+	num := func(key string, has *bool, dst *float64) {
+		if e, ok := byName[key]; ok {
+			*dst, *has = d.value(e.val, joinKey(path, key), label(ctx, key), unit)
+		}
+	}
+	num("equals", &tg.HasEquals, &tg.Equals)
+	num("min", &tg.HasMin, &tg.Min)
+	num("max", &tg.HasMax, &tg.Max)
+	_, hasEq := byName["equals"]
+	_, hasMin := byName["min"]
+	_, hasMax := byName["max"]
+	if !hasEq && !hasMin && !hasMax {
+		d.missingf(n, path, "%s: %s has no equals, min or max to check", ctx, tg.Label())
+	}
+	if e, ok := byName["tolerance"]; ok {
+		if !hasEq {
+			d.errorf(e.key, joinKey(path, "tolerance"), "%s: tolerance needs equals (for a range use min and max)", ctx)
+		} else {
+			d.tolerance(e.val, joinKey(path, "tolerance"), label(ctx, "tolerance"), unit, &tg)
+		}
+	}
+	if tg.HasMin && tg.HasMax && tg.Min > tg.Max {
+		// Point at whichever bound comes second: that is where the clash shows.
+		lo, hi := byName["min"], byName["max"]
+		at, key := hi.val, "max"
+		if lo.val.Line > hi.val.Line || (lo.val.Line == hi.val.Line && lo.val.Column > hi.val.Column) {
+			at, key = lo.val, "min"
+		}
+		d.errorf(at, joinKey(path, key), "%s: min (%s) is above max (%s)", ctx, lo.val.Value, hi.val.Value)
+	}
+	if tg.HasEquals && ((tg.HasMin && tg.Equals < tg.Min) || (tg.HasMax && tg.Equals > tg.Max)) {
+		d.errorf(byName["equals"].val, joinKey(path, "equals"), "%s: equals (%s) lies outside min..max, so no design could meet it", ctx, byName["equals"].val.Value)
+	}
+	if e, ok := byName["when"]; ok {
+		wpath := joinKey(path, "when")
+		items := []*yaml.Node{e.val}
+		if e.val.Kind == yaml.SequenceNode {
+			items = e.val.Content
+			if len(items) == 0 {
+				d.errorf(e.val, wpath, "%s: when: the list is empty; leave it out to apply the target in every condition", ctx)
+			}
+		}
+		for _, it := range items {
+			if name, ok := d.name(it, wpath, label(ctx, "when")); ok {
+				tg.When = append(tg.When, name)
+				d.condRefs = append(d.condRefs, condRef{name, it, wpath})
+			}
+		}
+	}
+	d.t.Targets = append(d.t.Targets, tg)
+}
+
+// tolerance reads "1%" (relative to equals) or a plain value in the
+// quantity's unit (absolute).
+func (d *decoder) tolerance(n *yaml.Node, path, ctx string, unit eseries.Unit, tg *Target) {
+	if n.Kind == yaml.ScalarNode && !isNull(n) {
+		if q, err := eseries.Parse(n.Value); err == nil && q.Unit == eseries.Percent {
+			tg.Tolerance, tg.TolRelative = q.Value, true
+			if q.Value <= 0 {
+				d.errorf(n, path, "%s: must be positive, got %s", ctx, n.Value)
+			} else if tg.HasEquals && tg.Equals == 0 {
+				d.errorf(n, path, "%s: a percentage of equals: 0 is zero; give an absolute tolerance such as 5m", ctx)
+			}
+			return
+		}
+	}
+	if v, ok := d.positive(n, path, ctx, unit); ok {
+		tg.Tolerance = v
+	}
+}
+
+func (d *decoder) limits(n *yaml.Node) {
+	if !d.expectMapping(n, "limits", "limits", "{supply_power_max: 1m}") {
+		return
+	}
+	d.t.Limits.Pos = Pos{n.Line, n.Column}
+	byName, _ := d.fields(n, "limits", "limits", []string{"supply_power_max"})
+	if e, ok := byName["supply_power_max"]; ok {
+		d.t.Limits.SupplyPowerMax, _ = d.positive(e.val, "limits.supply_power_max", "limits: supply_power_max", eseries.Watt)
+	}
+}
+
+var choiceKeys = []string{"series", "min", "max", "combine"}
+
+func (d *decoder) choose(n *yaml.Node) {
+	if !d.expectMapping(n, "choose", "choose", "{series: E96, min: 1k, max: 1M}") {
+		return
+	}
+	byName, _ := d.fields(n, "choose", "choose", append(slices.Clone(choiceKeys), "overrides"))
+	def := &d.t.Choose.Default
+	def.Pos = Pos{n.Line, n.Column}
+	if !d.choice(def, n, byName, "choose", "choose") {
+		return
+	}
+	e, ok := byName["overrides"]
+	if !ok || isNull(e.val) {
+		return
+	}
+	if !d.expectMapping(e.val, "choose.overrides", "choose: overrides", "{R2: {series: E24}}") {
+		return
+	}
+	_, order := d.fields(e.val, "choose.overrides", "choose: overrides", nil)
+	d.t.Choose.Overrides = map[string]Choice{}
+	for _, o := range order {
+		path := "choose.overrides." + o.name
+		ctx := fmt.Sprintf("choose: override for %q", o.name)
+		d.overrideRefs = append(d.overrideRefs, partRef{o.name, o.key, path})
+		if !d.expectMapping(o.val, path, ctx, "{series: E24, min: 10k}") {
+			continue
+		}
+		c := *def
+		c.Pos = Pos{o.val.Line, o.val.Column}
+		ob, _ := d.fields(o.val, path, ctx, choiceKeys)
+		if d.choice(&c, o.val, ob, path, ctx) {
+			d.t.Choose.Overrides[o.name] = c
+		}
+	}
+}
+
+// choice applies the keys present to c (which holds the inherited values)
+// and checks the result. It reports whether c is usable.
+func (d *decoder) choice(c *Choice, n *yaml.Node, byName map[string]entry, path, ctx string) bool {
+	nerr := len(d.errs)
+	if e, ok := byName["series"]; ok {
+		d.series(c, e.val, joinKey(path, "series"), label(ctx, "series"))
+	}
+	if e, ok := byName["min"]; ok {
+		c.Min, _ = d.positive(e.val, joinKey(path, "min"), label(ctx, "min"), eseries.Ohm)
+	}
+	if e, ok := byName["max"]; ok {
+		c.Max, _ = d.positive(e.val, joinKey(path, "max"), label(ctx, "max"), eseries.Ohm)
+	}
+	if e, ok := byName["combine"]; ok {
+		cp := joinKey(path, "combine")
+		i := -1
+		if e.val.Kind == yaml.ScalarNode {
+			i = slices.Index(combineNames, e.val.Value)
+		}
+		if i >= 0 {
+			c.Combine = Combine(i)
+		} else if s := suggest(e.val.Value, combineNames); s != "" && e.val.Kind == yaml.ScalarNode {
+			d.errorf(e.val, cp, "%s: unknown way to combine %s%s", label(ctx, "combine"), describe(e.val), s)
+		} else {
+			d.errorf(e.val, cp, "%s: expected one of %s, got %s", label(ctx, "combine"), strings.Join(combineNames, ", "), describe(e.val))
+		}
+	}
+	if len(d.errs) > nerr {
+		return false
+	}
+	// Range problems point at the latest of the keys involved that this
+	// mapping sets (where the conflict shows), or at the mapping itself
+	// when all are inherited.
+	latest := func(keys ...string) *yaml.Node {
+		at := n
+		for _, k := range keys {
+			if e, ok := byName[k]; ok && (at == n || e.val.Line > at.Line || (e.val.Line == at.Line && e.val.Column > at.Column)) {
+				at = e.val
+			}
+		}
+		return at
+	}
+	if c.Min > c.Max {
+		d.errorf(latest("min", "max"), path, "%s: min (%s) is above max (%s)", ctx, eseries.Format(c.Min), eseries.Format(c.Max))
+		return false
+	}
+	at := latest("series", "min", "max")
+	if c.Stock != nil {
+		if !slices.ContainsFunc(c.Stock, func(v float64) bool { return v >= c.Min && v <= c.Max }) {
+			d.errorf(at, path, "%s: no stock value lies between min (%s) and max (%s)", ctx, eseries.Format(c.Min), eseries.Format(c.Max))
+			return false
+		}
+	} else if s, err := eseries.Lookup(c.Series); err == nil && s.Count(c.Min, c.Max) == 0 {
+		d.errorf(at, path, "%s: no %s value lies between min (%s) and max (%s)", ctx, s.Name, eseries.Format(c.Min), eseries.Format(c.Max))
+		return false
+	}
+	return true
+}
+
+// seriesLike tells a series name (E24, e96, E7) from a stock file path, so a
+// mistyped series is reported as such rather than as a missing file.
+func seriesLike(s string) bool {
+	if len(s) < 2 || (s[0] != 'E' && s[0] != 'e') {
+		return false
+	}
+	for _, r := range s[1:] {
+		if r < '0' || r > '9' {
+			return false
+		}
+	}
+	return true
+}
+
+// series reads `series:`: a series name, an inline stock list, or the path
+// of a stock file relative to the template's directory.
+func (d *decoder) series(c *Choice, n *yaml.Node, path, ctx string) {
+	switch {
+	case n.Kind == yaml.SequenceNode:
+		if len(n.Content) == 0 {
+			d.errorf(n, path, "%s: the stock list is empty", ctx)
+			return
+		}
+		vals := make([]float64, 0, len(n.Content))
+		for _, it := range n.Content {
+			v, ok := d.positive(it, path, ctx, eseries.Ohm)
+			if !ok {
+				return
+			}
+			vals = append(vals, v)
+		}
+		c.Series, c.Stock, c.StockFile = "", sortedUnique(vals), ""
+	case n.Kind == yaml.ScalarNode && !isNull(n) && n.Value != "":
+		if seriesLike(n.Value) {
+			s, err := eseries.Lookup(n.Value)
+			if err != nil {
+				d.wrapf(n, path, err, "%s: unknown series %q%s; series are %s", ctx, n.Value,
+					suggest(n.Value, eseries.Names()), strings.Join(eseries.Names(), " "))
+				return
+			}
+			c.Series, c.Stock, c.StockFile = s.Name, nil, ""
+			return
+		}
+		vals, file, ok := d.stockFile(n, path, ctx)
+		if ok {
+			c.Series, c.Stock, c.StockFile = "", vals, file
+		}
+	default:
+		d.errorf(n, path, "%s: expected a series name (E24), a list of values or a stock file, got %s", ctx, describe(n))
+	}
+}
+
+// stockFile reads a stock file: one value per line, blank lines and #
+// comments allowed. Problems inside it name that file and line, but are
+// ordered by the template position that named it.
+func (d *decoder) stockFile(n *yaml.Node, path, ctx string) ([]float64, string, bool) {
+	file := n.Value
+	if !filepath.IsAbs(file) {
+		file = filepath.Join(d.dir, file)
+	}
+	data, rerr := readFile(file)
+	if rerr != nil {
+		if errors.Is(rerr.Err, fs.ErrNotExist) {
+			d.wrapf(n, path, rerr.Err, "%s: no series or stock file named %q%s", ctx, n.Value, suggest(n.Value, eseries.Names()))
+		} else {
+			d.wrapf(n, path, rerr, "%s: stock file %s: %s", ctx, file, rerr.Msg)
+		}
+		return nil, "", false
+	}
+	var vals []float64
+	for i, line := range strings.Split(string(data), "\n") {
+		text, _, _ := strings.Cut(line, "#")
+		col := 1 + len(text) - len(strings.TrimLeftFunc(text, unicode.IsSpace))
+		text = strings.TrimSpace(text)
+		if text == "" {
+			continue
+		}
+		fail := func(msg string, err error) ([]float64, string, bool) {
+			d.errs = append(d.errs, &Error{File: file, Line: i + 1, Col: col, Key: path,
+				Msg:   fmt.Sprintf("%s (stock file named in %s at line %d)", msg, d.fileName(), n.Line),
+				Err:   err,
+				order: Pos{n.Line, n.Column}})
+			return nil, "", false
+		}
+		v, err := eseries.ParseAs(text, eseries.Ohm)
+		if err != nil {
+			return fail(strings.TrimPrefix(err.Error(), "eseries: "), err)
+		}
+		if v <= 0 {
+			return fail(fmt.Sprintf("stock value %s is not positive", text), nil)
+		}
+		vals = append(vals, v)
+	}
+	if len(vals) == 0 {
+		d.errorf(n, path, "%s: stock file %s holds no values", ctx, file)
+		return nil, "", false
+	}
+	return sortedUnique(vals), file, true
+}
+
+func (d *decoder) fileName() string {
+	if d.file == "" {
+		return "the template"
+	}
+	return d.file
+}
+
+func sortedUnique(v []float64) []float64 {
+	slices.Sort(v)
+	return slices.Compact(v)
+}
+
+func (d *decoder) conditions(n *yaml.Node) {
+	seen := map[string]*yaml.Node{}
+	for i, item := range n.Content {
+		path := fmt.Sprintf("conditions[%d]", i)
+		ctx := fmt.Sprintf("condition %d", i+1)
+		if !d.expectMapping(item, path, ctx, "{name: vin-low, set: {Vin: 10}}") {
+			continue
+		}
+		byName, _ := d.fields(item, path, ctx, []string{"name", "set"})
+		e, ok := byName["name"]
+		if !ok {
+			d.missingf(item, joinKey(path, "name"), "%s: missing key \"name\"", ctx)
+			continue
+		}
+		name, ok := d.name(e.val, joinKey(path, "name"), label(ctx, "name"))
+		if !ok {
+			continue
+		}
+		if prev, dup := seen[name]; dup {
+			d.errorf(e.val, joinKey(path, "name"), "condition name %q is already used on line %d", name, prev.Line)
+			continue
+		}
+		seen[name] = e.val
+		ctx = fmt.Sprintf("condition %q", name)
+		ci := len(d.t.Conditions)
+		d.t.Conditions = append(d.t.Conditions, Condition{Name: name, Pos: Pos{item.Line, item.Column}})
+		s, ok := byName["set"]
+		if !ok || isNull(s.val) {
+			continue
+		}
+		spath := joinKey(path, "set")
+		if !d.expectMapping(s.val, spath, label(ctx, "set"), "{Vin: 10}") {
+			continue
+		}
+		_, order := d.fields(s.val, spath, label(ctx, "set"), nil)
+		for _, o := range order {
+			d.setRefs = append(d.setRefs, setRef{cond: ci, ctx: label(ctx, "set"), part: o.name, key: o.key, val: o.val, path: joinKey(spath, o.name)})
+		}
+	}
+}
+
+func (d *decoder) rank(n *yaml.Node) {
+	if !d.expectList(n, "rank", "rank") {
+		return
+	}
+	var keys []RankKey
+	for i, it := range n.Content {
+		path := fmt.Sprintf("rank[%d]", i)
+		k := -1
+		if it.Kind == yaml.ScalarNode {
+			k = slices.Index(rankNames, it.Value)
+		}
+		switch {
+		case k < 0 && it.Kind == yaml.ScalarNode && suggest(it.Value, rankNames) != "":
+			d.errorf(it, path, "rank: unknown key %s%s", describe(it), suggest(it.Value, rankNames))
+		case k < 0:
+			d.errorf(it, path, "rank: expected one of %s, got %s", strings.Join(rankNames, ", "), describe(it))
+		case slices.Contains(keys, RankKey(k)):
+			d.errorf(it, path, "rank: %q appears twice", it.Value)
+		default:
+			keys = append(keys, RankKey(k))
+		}
+	}
+	// Keys left out still break ties, in the default order.
+	for _, k := range []RankKey{ByError, ByPower, ByParts} {
+		if !slices.Contains(keys, k) {
+			keys = append(keys, k)
+		}
+	}
+	d.t.Rank = keys
+}
+
+// crossCheck resolves names between sections once all are read.
+func (d *decoder) crossCheck() {
+	t := d.t
+	var nodes []string
+	for _, p := range t.Parts {
+		for _, n := range []string{p.From, p.To, p.Plus, p.Minus, p.Out} {
+			if n != "" && !slices.Contains(nodes, n) {
+				nodes = append(nodes, n)
+			}
+		}
+	}
+	if !slices.Contains(nodes, t.Ground) {
+		at, key := d.partsNode, "parts"
+		if d.groundNode != nil {
+			at, key = d.groundNode, "ground"
+		}
+		d.errorf(at, key, "no part connects to the ground node %q%s", t.Ground, suggest(t.Ground, nodes))
+	}
+	for _, r := range d.nodeRefs {
+		if !slices.Contains(nodes, r.name) {
+			d.errorf(r.n, r.key, "target names node %q, which no part connects%s", r.name, suggest(r.name, nodes))
+		}
+	}
+	var names []string
+	for _, p := range t.Parts {
+		names = append(names, p.Name)
+	}
+	for _, r := range d.partRefs {
+		if !slices.Contains(names, r.name) {
+			d.errorf(r.n, r.key, "target names part %q, which is not in parts%s", r.name, suggest(r.name, names))
+		}
+	}
+	var conds []string
+	for _, c := range t.Conditions {
+		conds = append(conds, c.Name)
+	}
+	for _, r := range d.condRefs {
+		if !slices.Contains(conds, r.name) {
+			d.errorf(r.n, r.key, "when names condition %q, which is not in conditions%s", r.name, suggest(r.name, conds))
+		}
+	}
+	var free []string
+	for _, p := range t.Parts {
+		if p.Free {
+			free = append(free, p.Name)
+		}
+	}
+	for _, r := range d.overrideRefs {
+		i, ok := t.Part(r.name)
+		switch {
+		case !ok:
+			d.errorf(r.n, r.key, "choose: overrides: no part named %q%s", r.name, suggest(r.name, free))
+		case !t.Parts[i].Free:
+			d.errorf(r.n, r.key, "choose: overrides: part %q is a %s with a value; overrides apply to resistors ohmfit chooses", r.name, t.Parts[i].Kind)
+		}
+	}
+	for _, s := range d.setRefs {
+		i, ok := t.Part(s.part)
+		if !ok {
+			d.errorf(s.key, s.path, "%s: no part named %q%s", s.ctx, s.part, suggest(s.part, names))
+			continue
+		}
+		p := t.Parts[i]
+		var v float64
+		switch {
+		case p.Free:
+			d.errorf(s.key, s.path, "%s: part %q has no value (ohmfit chooses it), so a condition cannot set it", s.ctx, s.part)
+			continue
+		case p.Kind == solver.OpAmp:
+			d.errorf(s.key, s.path, "%s: part %q is an op-amp, which has no value to set", s.ctx, s.part)
+			continue
+		case p.Kind == solver.Resistor:
+			v, ok = d.positive(s.val, s.path, label(s.ctx, s.part), eseries.Ohm)
+		case p.Kind == solver.VoltageSource:
+			v, ok = d.value(s.val, s.path, label(s.ctx, s.part), eseries.Volt)
+		default:
+			v, ok = d.value(s.val, s.path, label(s.ctx, s.part), eseries.Amp)
+		}
+		if ok {
+			c := &t.Conditions[s.cond]
+			c.Set = append(c.Set, Setting{Part: s.part, Value: v})
+		}
+	}
+}

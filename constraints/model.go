@@ -1,0 +1,140 @@
+package constraints
+
+import "github.com/ohmfit/ohmfit/solver"
+
+// SchemaVersion is the template schema this package reads (the `ohmfit:` key).
+const SchemaVersion = 1
+
+// DefaultGround is the reference node's name when a template gives none.
+const DefaultGround = "gnd"
+
+// Pos is a position in a template file, 1-based. A zero Pos means "unknown".
+type Pos struct {
+	Line, Col int
+}
+
+// Template is a loaded schema-1 template: the network, what to aim for, what
+// not to exceed, how to choose free values, and under which conditions.
+type Template struct {
+	File       string // file name used in messages ("" for text not from a file)
+	Dir        string // directory relative paths in the template are resolved against
+	Name       string
+	Ground     string // never empty after loading
+	Parts      []PartSpec
+	Targets    []Target
+	Limits     Limits
+	Choose     Choose
+	Conditions []Condition // never empty after loading: at least {Name: "nominal"}
+	Rank       []RankKey   // never empty after loading: default error, power, parts
+}
+
+// PartSpec is one part of a template. Free resistors (no value given) are the
+// positions ohmfit chooses; their Value is zero until a candidate fills it.
+type PartSpec struct {
+	solver.Part
+	Free bool // a resistor without a value: ohmfit chooses it
+	Pos  Pos
+}
+
+// TargetKind says which quantity a target measures.
+type TargetKind int
+
+// The quantities a target can name.
+const (
+	Voltage    TargetKind = iota // node voltage to ground, or a difference of two nodes
+	Current                      // current through a part in its edge direction
+	Power                        // watts absorbed by a part
+	Ratio                        // V(a) / V(b)
+	Resistance                   // resistance seen between two nodes, independent sources zeroed
+)
+
+// Target is one requirement on one quantity. A target with HasEquals is a
+// goal (it contributes an error); Tolerance, Min and Max are hard limits.
+type Target struct {
+	Kind  TargetKind
+	Nodes []string // Voltage: 1 or 2 nodes; Ratio and Resistance: exactly 2
+	Part  string   // Current and Power
+
+	HasEquals bool
+	Equals    float64
+
+	// Tolerance band around Equals, a hard limit. Zero means none.
+	// TolRelative: the band is Tolerance*|Equals|; otherwise it is absolute.
+	Tolerance   float64
+	TolRelative bool
+
+	HasMin, HasMax bool
+	Min, Max       float64
+
+	When []string // condition names; empty means every condition
+	Pos  Pos
+}
+
+// Limits are hard limits on the network as a whole.
+type Limits struct {
+	// SupplyPowerMax bounds the total power dissipated in all resistors, in
+	// watts, in the worst condition. Zero means no limit.
+	SupplyPowerMax float64
+	Pos            Pos
+}
+
+// Combine says how a free position may be realised from physical parts.
+type Combine int
+
+// Ways to realise a free position.
+const (
+	Single   Combine = iota // one part
+	Series                  // two parts in series (or one, when one is enough: see synth)
+	Parallel                // two parts in parallel
+	Any                     // one part, or two in series or in parallel
+)
+
+// Choice says where a free position's values come from.
+type Choice struct {
+	Series string    // "E24" etc.; "" when Stock is used
+	Stock  []float64 // an inventory of values, ascending, no duplicates; nil when Series is used
+	// StockFile is the file Stock was read from, resolved against the
+	// template's directory; "" for a series or an inline list.
+	StockFile string
+	Min       float64 // ohms, inclusive bound on each physical part; default 10
+	Max       float64 // ohms, inclusive; default 10M
+	Combine   Combine
+	Pos       Pos
+}
+
+// Choose holds the default choice and per-part overrides.
+type Choose struct {
+	Default   Choice
+	Overrides map[string]Choice // fully resolved: unspecified keys inherit Default
+}
+
+// For returns the choice that applies to the named part.
+func (c Choose) For(part string) Choice {
+	if o, ok := c.Overrides[part]; ok {
+		return o
+	}
+	return c.Default
+}
+
+// Setting overrides one part's value in a condition.
+type Setting struct {
+	Part  string
+	Value float64
+}
+
+// Condition is one operating point: a set of overridden values.
+type Condition struct {
+	Name string
+	Set  []Setting // in file order
+	Pos  Pos
+}
+
+// RankKey is one key of the ranking order.
+type RankKey int
+
+// Ranking keys.
+const (
+	ByError RankKey = iota
+	ByPower
+	ByParts
+)

@@ -1,0 +1,261 @@
+package constraints
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/ohmfit/ohmfit/solver"
+)
+
+// Tie tolerances of the contract: two errors or powers that agree within
+// TieRelative (relative) or TieAbsolute (absolute) are equal, so that an exact
+// hit that comes out as 0 or as 2e-16 ranks the same.
+const (
+	TieRelative = 1e-12
+	TieAbsolute = 1e-15
+)
+
+// Same reports whether a and b are equal within the contract's tie tolerances.
+func Same(a, b float64) bool {
+	d := math.Abs(a - b)
+	return d <= TieAbsolute || d <= TieRelative*math.Max(math.Abs(a), math.Abs(b))
+}
+
+// IsGoal reports whether the target contributes an error (it has `equals`).
+func (t Target) IsGoal() bool { return t.HasEquals }
+
+// GoalError is the contract's goal error of value v: |v - equals| / |equals|,
+// or |v| when equals is zero. It is zero for a target that is not a goal.
+func (t Target) GoalError(v float64) float64 {
+	if !t.HasEquals {
+		return 0
+	}
+	d := math.Abs(v - t.Equals)
+	if t.Equals == 0 {
+		return d
+	}
+	return d / math.Abs(t.Equals)
+}
+
+// Band returns the hard limits on the target's value: the tolerance band
+// around Equals intersected with [Min, Max]. Unbounded sides are ±Inf.
+func (t Target) Band() (lo, hi float64) {
+	lo, hi = math.Inf(-1), math.Inf(1)
+	if t.HasEquals && t.Tolerance > 0 {
+		w := t.Tolerance
+		if t.TolRelative {
+			w *= math.Abs(t.Equals)
+		}
+		lo, hi = t.Equals-w, t.Equals+w
+	}
+	if t.HasMin && t.Min > lo {
+		lo = t.Min
+	}
+	if t.HasMax && t.Max < hi {
+		hi = t.Max
+	}
+	return lo, hi
+}
+
+// Meets reports whether v lies inside the target's hard limits. Bounds are
+// inclusive, and a value on a bound within the tie tolerance counts as inside,
+// so that a design sitting exactly on a limit is not lost to rounding.
+func (t Target) Meets(v float64) bool {
+	if math.IsNaN(v) {
+		return false
+	}
+	lo, hi := t.Band()
+	return (v >= lo || Same(v, lo)) && (v <= hi || Same(v, hi))
+}
+
+// Probe reads one target's quantity from a solved network.
+type Probe struct {
+	Kind TargetKind
+	A, B int // node indices (B is ground for a single-node voltage)
+	Part int // part index for Current and Power
+}
+
+// Read returns the probed quantity from a solver that has just solved.
+// A ratio whose denominator node sits at 0 V reads as NaN, which no limit accepts.
+func (p Probe) Read(s *solver.Solver) (float64, error) {
+	switch p.Kind {
+	case Voltage:
+		return s.Voltage(p.A) - s.Voltage(p.B), nil
+	case Current:
+		return s.Amps(p.Part), nil
+	case Power:
+		return s.Watts(p.Part), nil
+	case Ratio:
+		d := s.Voltage(p.B)
+		if d == 0 {
+			return math.NaN(), nil
+		}
+		return s.Voltage(p.A) / d, nil
+	case Resistance:
+		return s.Resistance(p.A, p.B)
+	}
+	return 0, fmt.Errorf("constraints: unknown target kind %d", p.Kind)
+}
+
+// CondValues is one condition as a full vector of part values.
+type CondValues struct {
+	Name   string
+	Values []float64 // per part, template order; free parts hold 0
+}
+
+// Problem is a template compiled against its network: everything needed to
+// score a set of free values quickly and repeatedly.
+type Problem struct {
+	Template   *Template
+	Network    *solver.Network
+	Free       []int // part indices of the free positions, template order
+	Conditions []CondValues
+	Probes     []Probe  // one per target
+	Applies    [][]bool // [target][condition]
+}
+
+// Compile checks the template's network and prepares it for scoring.
+func Compile(t *Template) (*Problem, error) {
+	c := t.Circuit()
+	// Free parts need some positive value for the graph checks to see a resistor.
+	for _, i := range t.FreeParts() {
+		c.Parts[i].Value = 1
+	}
+	net, err := solver.Compile(c)
+	if err != nil {
+		return nil, err
+	}
+	p := &Problem{Template: t, Network: net, Free: t.FreeParts()}
+	for _, cond := range t.Conditions {
+		vals := make([]float64, len(t.Parts))
+		for i, ps := range t.Parts {
+			if !ps.Free {
+				vals[i] = ps.Value
+			}
+		}
+		for _, set := range cond.Set {
+			i, ok := t.Part(set.Part)
+			if !ok {
+				return nil, fmt.Errorf("constraints: condition %q sets unknown part %q", cond.Name, set.Part)
+			}
+			vals[i] = set.Value
+		}
+		p.Conditions = append(p.Conditions, CondValues{Name: cond.Name, Values: vals})
+	}
+	for _, tg := range t.Targets {
+		pr, err := probeFor(net, tg)
+		if err != nil {
+			return nil, err
+		}
+		p.Probes = append(p.Probes, pr)
+		app := make([]bool, len(p.Conditions))
+		for ci, cv := range p.Conditions {
+			app[ci] = tg.Applies(cv.Name)
+		}
+		p.Applies = append(p.Applies, app)
+	}
+	return p, nil
+}
+
+func probeFor(net *solver.Network, t Target) (Probe, error) {
+	pr := Probe{Kind: t.Kind}
+	node := func(name string) (int, error) {
+		i, ok := net.NodeIndex(name)
+		if !ok {
+			return 0, fmt.Errorf("constraints: target %s names node %q, which no part connects", t.Label(), name)
+		}
+		return i, nil
+	}
+	var err error
+	switch t.Kind {
+	case Current, Power:
+		i, ok := net.PartIndex(t.Part)
+		if !ok {
+			return pr, fmt.Errorf("constraints: target %s names unknown part %q", t.Label(), t.Part)
+		}
+		pr.Part = i
+	default:
+		if len(t.Nodes) == 0 {
+			return pr, fmt.Errorf("constraints: target %s names no node", t.Label())
+		}
+		if pr.A, err = node(t.Nodes[0]); err != nil {
+			return pr, err
+		}
+		pr.B = 0 // ground is node 0
+		if len(t.Nodes) > 1 {
+			if pr.B, err = node(t.Nodes[1]); err != nil {
+				return pr, err
+			}
+		}
+	}
+	return pr, nil
+}
+
+// Score is the outcome of one candidate over all conditions.
+type Score struct {
+	Feasible bool
+	Error    float64 // largest goal error over goals and conditions
+	Power    float64 // largest total resistor power over conditions, watts
+	// Values holds each target's value per condition, target-major:
+	// Values[t*len(Conditions)+c]; NaN where the target does not apply.
+	Values []float64
+	// Violated names the first hard limit the candidate fails (target index,
+	// condition index), or -1, -1. Target index len(Targets) is supply_power_max.
+	ViolatedTarget, ViolatedCondition int
+}
+
+// NewScore returns a Score sized for the problem, to be reused across calls.
+func (p *Problem) NewScore() *Score {
+	return &Score{Values: make([]float64, len(p.Probes)*len(p.Conditions))}
+}
+
+// Evaluate scores one assignment of the free positions (ohms, in Free
+// order) with full nodal solves, one per condition. It reuses s and sc and
+// does not allocate. A candidate whose network cannot be solved is infeasible.
+func (p *Problem) Evaluate(s *solver.Solver, free []float64, sc *Score) error {
+	nc := len(p.Conditions)
+	sc.Feasible, sc.Error, sc.Power = true, 0, 0
+	sc.ViolatedTarget, sc.ViolatedCondition = -1, -1
+	for ci, cv := range p.Conditions {
+		for i, v := range cv.Values {
+			s.SetValue(i, v)
+		}
+		for k, i := range p.Free {
+			s.SetValue(i, free[k])
+		}
+		if err := s.Solve(); err != nil {
+			sc.Feasible = false
+			return err
+		}
+		pw := s.ResistorPower()
+		if pw > sc.Power {
+			sc.Power = pw
+		}
+		if lim := p.Template.Limits.SupplyPowerMax; lim > 0 && pw > lim && !Same(pw, lim) && sc.Feasible {
+			sc.Feasible = false
+			sc.ViolatedTarget, sc.ViolatedCondition = len(p.Probes), ci
+		}
+		for ti, pr := range p.Probes {
+			k := ti*nc + ci
+			if !p.Applies[ti][ci] {
+				sc.Values[k] = math.NaN()
+				continue
+			}
+			v, err := pr.Read(s)
+			if err != nil {
+				sc.Feasible = false
+				return err
+			}
+			sc.Values[k] = v
+			tg := &p.Template.Targets[ti]
+			if !tg.Meets(v) && sc.Feasible {
+				sc.Feasible = false
+				sc.ViolatedTarget, sc.ViolatedCondition = ti, ci
+			}
+			if e := tg.GoalError(v); e > sc.Error || math.IsNaN(e) {
+				sc.Error = e
+			}
+		}
+	}
+	return nil
+}

@@ -1,0 +1,133 @@
+package constraints
+
+import (
+	"strconv"
+	"strings"
+
+	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/solver"
+)
+
+// Circuit returns the template's network for the solver: the parts in
+// template order, free resistors with Value 0 (the caller fills them in).
+func (t *Template) Circuit() solver.Circuit {
+	parts := make([]solver.Part, len(t.Parts))
+	for i, p := range t.Parts {
+		parts[i] = p.Part
+		if p.Free {
+			parts[i].Value = 0
+		}
+	}
+	return solver.Circuit{Ground: t.Ground, Parts: parts}
+}
+
+// FreeParts returns the indices in Parts of the free resistors, in order.
+func (t *Template) FreeParts() []int {
+	var idx []int
+	for i, p := range t.Parts {
+		if p.Free {
+			idx = append(idx, i)
+		}
+	}
+	return idx
+}
+
+// Part returns the index in Parts of the named part.
+func (t *Template) Part(name string) (int, bool) {
+	for i, p := range t.Parts {
+		if p.Name == name {
+			return i, true
+		}
+	}
+	return -1, false
+}
+
+// Valued reports whether every part has a value, so the template describes
+// one network that can be analysed as it stands.
+func (t *Template) Valued() bool {
+	return len(t.FreeParts()) == 0
+}
+
+// ConditionIndex returns the index in Conditions of the named condition.
+func (t *Template) ConditionIndex(name string) (int, bool) {
+	for i, c := range t.Conditions {
+		if c.Name == name {
+			return i, true
+		}
+	}
+	return -1, false
+}
+
+// String returns the quantity's template key: "voltage", "current", "power",
+// "ratio" or "resistance".
+func (k TargetKind) String() string {
+	if k >= 0 && int(k) < len(targetKeys) {
+		return targetKeys[k]
+	}
+	return "TargetKind(" + strconv.Itoa(int(k)) + ")"
+}
+
+// Unit returns the unit the quantity is measured in; NoUnit for a ratio.
+func (k TargetKind) Unit() eseries.Unit {
+	switch k {
+	case Voltage:
+		return eseries.Volt
+	case Current:
+		return eseries.Amp
+	case Power:
+		return eseries.Watt
+	case Resistance:
+		return eseries.Ohm
+	}
+	return eseries.NoUnit
+}
+
+// Label names the target as output shows it: "voltage fb", "voltage a-b",
+// "current R1", "power R1", "ratio fb/out", "resistance out-gnd".
+func (t Target) Label() string {
+	switch t.Kind {
+	case Current, Power:
+		return t.Kind.String() + " " + t.Part
+	case Ratio:
+		return t.Kind.String() + " " + strings.Join(t.Nodes, "/")
+	}
+	return t.Kind.String() + " " + strings.Join(t.Nodes, "-")
+}
+
+// Applies reports whether the target is checked in the named condition:
+// a target without `when` applies everywhere.
+func (t Target) Applies(cond string) bool {
+	if len(t.When) == 0 {
+		return true
+	}
+	for _, w := range t.When {
+		if w == cond {
+			return true
+		}
+	}
+	return false
+}
+
+// String returns the combine mode as templates and output spell it:
+// "single", "series", "parallel" or "any".
+func (c Combine) String() string {
+	if c >= 0 && int(c) < len(combineNames) {
+		return combineNames[c]
+	}
+	return "Combine(" + strconv.Itoa(int(c)) + ")"
+}
+
+// String returns the key as templates spell it: "error", "power" or "parts".
+func (k RankKey) String() string {
+	if k >= 0 && int(k) < len(rankNames) {
+		return rankNames[k]
+	}
+	return "RankKey(" + strconv.Itoa(int(k)) + ")"
+}
+
+// Spellings, indexed by the constants they name.
+var (
+	targetKeys   = []string{"voltage", "current", "power", "ratio", "resistance"}
+	combineNames = []string{"single", "series", "parallel", "any"}
+	rankNames    = []string{"error", "power", "parts"}
+)

@@ -1,0 +1,60 @@
+package solver
+
+import "gonum.org/v1/gonum/mat"
+
+// CondLimit is the condition number above which Analyze reports an
+// IllConditionedError: beyond it fewer than about two significant digits of
+// a float64 solution can be trusted.
+const CondLimit = 1e14
+
+// Solution is the DC operating point of a circuit as plain data.
+type Solution struct {
+	Nodes         []NodeVoltage // ground first, then in Network.Nodes order
+	Parts         []PartResult  // in the caller's part order
+	ResistorPower float64       // total watts dissipated in all resistors
+}
+
+// NodeVoltage is one node's voltage against ground.
+type NodeVoltage struct {
+	Name  string
+	Volts float64
+}
+
+// PartResult is what one part does, with the conventions of Solver.Volts,
+// Solver.Amps and Solver.Watts.
+type PartResult struct {
+	Name  string
+	Kind  Kind
+	Volts float64
+	Amps  float64
+	Watts float64
+}
+
+// Analyze compiles the circuit, checks its values (*ValueError), solves it
+// with the parts' Value fields and checks the conditioning of the MNA matrix
+// with an independent LU (gonum): a condition number above CondLimit gives an
+// *IllConditionedError. It is the one-shot entry point; for many solves of
+// one topology use Compile and a Solver.
+func Analyze(c Circuit) (*Solution, error) {
+	net, err := Compile(c)
+	if err != nil {
+		return nil, err
+	}
+	s := net.NewSolver()
+	if err := s.Check(); err != nil {
+		return nil, err
+	}
+	s.stamp()
+	n := net.n
+	a := mat.NewDense(n, n, append([]float64(nil), s.a[:n*n]...))
+	if err := s.factor(); err != nil {
+		return nil, err
+	}
+	var lu mat.LU
+	lu.Factorize(a)
+	if c := lu.Cond(); c > CondLimit {
+		return nil, &IllConditionedError{Cond: c}
+	}
+	s.finish()
+	return s.Solution(), nil
+}

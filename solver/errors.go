@@ -1,0 +1,211 @@
+package solver
+
+import (
+	"errors"
+	"fmt"
+	"strings"
+)
+
+// ErrSingular is wrapped by every error that means the network's equations
+// have no unique solution: floating nodes, source loops, current-source
+// cutsets, op-amps without feedback, a lost pivot and ill conditioning. Test
+// for it with errors.Is.
+var ErrSingular = errors.New("solver: network has no unique DC solution")
+
+// ErrNotSolved is returned by Solver.Resistance when there are no valid
+// factors to reuse: Solve has not succeeded since the solver was made or a
+// value was last set.
+var ErrNotSolved = errors.New("solver: no valid factorisation; call Solve first")
+
+// ErrEmpty is returned by Compile for a circuit without parts.
+var ErrEmpty = errors.New("solver: circuit has no parts")
+
+// FloatingError reports a group of nodes with no DC path to ground: nothing
+// but op-amp inputs (or nothing at all) ties them to the rest of the circuit.
+type FloatingError struct {
+	Nodes []string // every node of the group, in node order
+}
+
+func (e *FloatingError) Error() string {
+	if len(e.Nodes) == 1 {
+		return fmt.Sprintf("solver: node %s has no DC path to ground", e.Nodes[0])
+	}
+	return fmt.Sprintf("solver: nodes %s have no DC path to ground", strings.Join(e.Nodes, ", "))
+}
+
+// Unwrap returns ErrSingular.
+func (e *FloatingError) Unwrap() error { return ErrSingular }
+
+// SourceLoopError reports a loop made only of voltage sources and op-amp
+// outputs. An ideal op-amp output is a voltage source against ground, so an
+// output tied to ground, to another output or to a node held by a voltage
+// source closes such a loop.
+type SourceLoopError struct {
+	Sources []string // the voltage sources and op-amps in the loop, in edge order
+}
+
+func (e *SourceLoopError) Error() string {
+	names := strings.Join(e.Sources, ", ")
+	if len(e.Sources) == 1 {
+		return fmt.Sprintf("solver: op-amp %s drives its output straight into ground", names)
+	}
+	return fmt.Sprintf("solver: %s form a loop of voltage sources and op-amp outputs "+
+		"(an ideal op-amp output is a voltage source against ground)", names)
+}
+
+// Unwrap returns ErrSingular.
+func (e *SourceLoopError) Unwrap() error { return ErrSingular }
+
+// InputLoopError reports a loop made of voltage sources and op-amp input
+// pairs. An ideal op-amp holds its inputs at equal voltage, so sources around
+// such a loop either contradict that or leave an output current undetermined
+// (for example a voltage source straight across an op-amp's inputs, or two
+// op-amps sharing both input nodes).
+type InputLoopError struct {
+	Parts []string // the voltage sources and op-amps on the loop, in edge order
+}
+
+func (e *InputLoopError) Error() string {
+	return fmt.Sprintf("solver: %s form a loop of voltage sources and op-amp inputs "+
+		"(an ideal op-amp's inputs sit at equal voltage)", strings.Join(e.Parts, ", "))
+}
+
+// Unwrap returns ErrSingular.
+func (e *InputLoopError) Unwrap() error { return ErrSingular }
+
+// CurrentCutsetError reports current sources that feed a group of nodes with
+// no other DC path to ground, so their current has nowhere to go (or the
+// group's voltage is undetermined).
+type CurrentCutsetError struct {
+	Sources []string // current sources with one end in the group, in edge order
+	Nodes   []string // every node of the group, in node order
+}
+
+func (e *CurrentCutsetError) Error() string {
+	return fmt.Sprintf("solver: current from %s has nowhere to go: %s %s no other DC path to ground",
+		strings.Join(e.Sources, ", "), plural(len(e.Nodes), "node", "nodes"), nodeList(e.Nodes))
+}
+
+// Unwrap returns ErrSingular.
+func (e *CurrentCutsetError) Unwrap() error { return ErrSingular }
+
+// OpAmpFeedbackError reports an op-amp whose output cannot bring its inputs
+// together: either no feedback path reaches an input (Input empty), or input
+// node Input reaches ground only through the other input node Other, so the
+// parts between them fix the input difference whatever the output does.
+// See Compile for the exact rule.
+type OpAmpFeedbackError struct {
+	OpAmp        string
+	Input, Other string
+}
+
+func (e *OpAmpFeedbackError) Error() string {
+	if e.Input != "" {
+		return fmt.Sprintf("solver: op-amp %s has no usable feedback: input node %s connects to the "+
+			"rest of the circuit only through its other input %s", e.OpAmp, e.Input, e.Other)
+	}
+	return fmt.Sprintf("solver: op-amp %s has no feedback path from its output to an input", e.OpAmp)
+}
+
+// Unwrap returns ErrSingular.
+func (e *OpAmpFeedbackError) Unwrap() error { return ErrSingular }
+
+// SingularError reports a pivot lost during factorisation that the graph
+// checks did not foresee (for example two op-amps fighting over one node
+// through a balanced network). Unknown names the unknown whose column had no
+// usable pivot.
+type SingularError struct {
+	Unknown string // e.g. `node "fb"`, `current of voltage source "V1"`
+}
+
+func (e *SingularError) Error() string {
+	return fmt.Sprintf("solver: singular network: no pivot for the %s", e.Unknown)
+}
+
+// Unwrap returns ErrSingular.
+func (e *SingularError) Unwrap() error { return ErrSingular }
+
+// IllConditionedError reports an MNA matrix whose condition number is too
+// large for the solution to be trusted (values spread over too many decades).
+// Like gonum's mat.Condition it carries the estimate.
+type IllConditionedError struct {
+	Cond float64
+}
+
+func (e *IllConditionedError) Error() string {
+	return fmt.Sprintf("solver: network is ill-conditioned (condition number %.3g); "+
+		"check for values many decades apart", e.Cond)
+}
+
+// Unwrap returns ErrSingular.
+func (e *IllConditionedError) Unwrap() error { return ErrSingular }
+
+// ValueError reports a value the solver cannot use: a resistance that is
+// zero, negative, NaN or infinite, or a source value that is NaN or infinite.
+type ValueError struct {
+	Part  string
+	Kind  Kind
+	Value float64
+}
+
+func (e *ValueError) Error() string {
+	if e.Kind == Resistor {
+		return fmt.Sprintf("solver: resistor %s has unusable resistance %g (must be finite and > 0)", e.Part, e.Value)
+	}
+	return fmt.Sprintf("solver: %s %s has unusable value %g (must be finite)", e.Kind, e.Part, e.Value)
+}
+
+// DuplicatePartError reports two parts with the same name.
+type DuplicatePartError struct {
+	Name string
+}
+
+func (e *DuplicatePartError) Error() string {
+	return fmt.Sprintf("solver: duplicate part name %q", e.Name)
+}
+
+// PartError reports a part that cannot be placed in the graph at all: no
+// name, an unknown kind, or a terminal without a node name.
+type PartError struct {
+	Index  int    // position in Circuit.Parts
+	Name   string // part name, possibly empty
+	Reason string
+}
+
+func (e *PartError) Error() string {
+	if e.Name == "" {
+		return fmt.Sprintf("solver: part #%d: %s", e.Index+1, e.Reason)
+	}
+	return fmt.Sprintf("solver: part %s: %s", e.Name, e.Reason)
+}
+
+// ShortedError reports a part whose terminals sit on one node: a two-terminal
+// part with both ends on Node, or an op-amp with both inputs on Node. Such a
+// part does nothing (a resistor) or makes the equations contradictory (a
+// source), and is always a template mistake.
+type ShortedError struct {
+	Part string
+	Kind Kind
+	Node string
+}
+
+func (e *ShortedError) Error() string {
+	if e.Kind == OpAmp {
+		return fmt.Sprintf("solver: op-amp %s has both inputs on node %s", e.Part, e.Node)
+	}
+	return fmt.Sprintf("solver: part %s is shorted: both ends on node %s", e.Part, e.Node)
+}
+
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
+}
+
+func nodeList(nodes []string) string {
+	if len(nodes) == 1 {
+		return nodes[0] + " has"
+	}
+	return strings.Join(nodes, ", ") + " have"
+}

@@ -1,0 +1,326 @@
+package solver
+
+import "math"
+
+// Solver solves one Network again and again for new part values without
+// allocating. It owns its matrices, so use one Solver per goroutine.
+//
+// A Solver starts with the Value fields of the circuit's parts. Results
+// (Voltage, Volts, Amps, Watts, ResistorPower) describe the last successful
+// Solve, with the values it used, even if values have been set since; after
+// a failed Solve they are meaningless.
+type Solver struct {
+	net  *Network
+	n    int
+	vals []float64 // current values, per part
+	used []float64 // values of the last successful Solve
+	a    []float64 // MNA matrix, row-major n*n, then one scratch slot; LU factors after Solve
+	rhs  []float64 // right-hand side then solution, n + scratch
+	work []float64 // right-hand side for Resistance, n + scratch
+	v    []float64 // node voltages, ground (0) first
+	piv  []int
+	dinv []float64 // 1 / U[k][k]
+	ok   bool      // a and piv hold valid factors
+}
+
+// NewSolver returns a Solver for the network, loaded with the parts' Value
+// fields.
+func (net *Network) NewSolver() *Solver {
+	n := net.n
+	s := &Solver{
+		net:  net,
+		n:    n,
+		vals: make([]float64, len(net.parts)),
+		used: make([]float64, len(net.parts)),
+		a:    make([]float64, n*n+1),
+		rhs:  make([]float64, n+1),
+		work: make([]float64, n+1),
+		v:    make([]float64, len(net.nodes)),
+		piv:  make([]int, n),
+		dinv: make([]float64, n),
+	}
+	for i, p := range net.parts {
+		s.vals[i] = p.Value
+	}
+	return s
+}
+
+// Network returns the network the solver works on.
+func (s *Solver) Network() *Network { return s.net }
+
+// SetValue sets the value of a part (ohms, volts or amps; ignored for an
+// op-amp) by its index in the caller's part order. It does no checks, for
+// speed: call Check before trusting a Solve with values from outside. It
+// panics if part is out of range.
+func (s *Solver) SetValue(part int, v float64) {
+	s.vals[part] = v
+	s.ok = false
+}
+
+// Value returns the current value of a part.
+func (s *Solver) Value(part int) float64 { return s.vals[part] }
+
+// Check returns a *ValueError for the first part (in part order) whose
+// current value the solver cannot use: a resistance that is zero, negative,
+// NaN or infinite, or a source value that is NaN or infinite.
+func (s *Solver) Check() error {
+	for i, p := range s.net.parts {
+		if err := checkValue(p.Name, p.Kind, s.vals[i]); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func checkValue(name string, k Kind, v float64) error {
+	bad := false
+	switch k {
+	case Resistor:
+		bad = !(v > 0) || math.IsInf(v, 1) // !(v > 0) also catches NaN
+	case VoltageSource, CurrentSource:
+		bad = math.IsNaN(v) || math.IsInf(v, 0)
+	}
+	if bad {
+		return &ValueError{Part: name, Kind: k, Value: v}
+	}
+	return nil
+}
+
+// Solve stamps the current values, factors the MNA matrix (LU with partial
+// pivoting) and solves for all node voltages and branch currents. It does
+// not allocate on success and does not check values (see Check): a zero
+// resistance, for instance, gives a *SingularError or non-finite results.
+// A pivot below n·ε·max|A| returns a *SingularError naming the unknown
+// (max|A| is read off the diagonal, which bounds the rest when resistances
+// are positive). It does not estimate the condition number; Analyze does.
+func (s *Solver) Solve() error {
+	s.stamp()
+	if err := s.factor(); err != nil {
+		return err
+	}
+	s.finish()
+	return nil
+}
+
+// finish solves with fresh factors and publishes the results.
+func (s *Solver) finish() {
+	s.substitute(s.rhs)
+	s.v[0] = 0
+	copy(s.v[1:], s.rhs[:s.net.nodeUnknownOff])
+	copy(s.used, s.vals)
+}
+
+// stamp writes the matrix and right-hand side for the current values.
+func (s *Solver) stamp() {
+	a, rhs, vals := s.a, s.rhs, s.vals
+	copy(a, s.net.base)
+	for _, r := range s.net.resStamps {
+		g := 1 / vals[r.part]
+		a[r.aa] += g
+		a[r.bb] += g
+		a[r.ab] -= g
+		a[r.ba] -= g
+	}
+	clear(rhs)
+	for _, v := range s.net.vStamps {
+		rhs[v.row] = vals[v.part]
+	}
+	// KCL rows read "current leaving the node = current injected", so a
+	// current source takes its value from its From row and adds it to To.
+	for _, c := range s.net.iStamps {
+		i := vals[c.part]
+		rhs[c.from] -= i
+		rhs[c.to] += i
+	}
+}
+
+// factor overwrites s.a with its LU factors (unit lower L below the
+// diagonal, U on and above) and records the row swaps in s.piv and the
+// reciprocals of U's diagonal in s.dinv.
+func (s *Solver) factor() error {
+	s.ok = false
+	n, a := s.n, s.a[:s.n*s.n]
+	// max|A| without scanning the whole matrix: an off-diagonal conductance
+	// entry never exceeds the diagonal sums it is part of, and every source
+	// and nullor entry is ±1.
+	amax := s.net.unitMax
+	for k := range s.net.nodeUnknownOff {
+		if d := math.Abs(a[k*n+k]); d > amax {
+			amax = d
+		}
+	}
+	tol := float64(n) * 0x1p-52 * amax
+	for k := 0; k < n; k++ {
+		p, pmax := k, math.Abs(a[k*n+k])
+		for i := k + 1; i < n; i++ {
+			if m := math.Abs(a[i*n+k]); m > pmax {
+				p, pmax = i, m
+			}
+		}
+		if !(pmax > tol) { // also true for NaN
+			return &SingularError{Unknown: s.net.UnknownName(k)}
+		}
+		s.piv[k] = p
+		rk := a[k*n : k*n+n]
+		if p != k {
+			rp := a[p*n : p*n+n]
+			for j := range rk {
+				rk[j], rp[j] = rp[j], rk[j]
+			}
+		}
+		inv := 1 / rk[k]
+		s.dinv[k] = inv
+		uk := rk[k+1:]
+		for i := k + 1; i < n; i++ {
+			ri := a[i*n+k : i*n+n] // row i from column k
+			l := ri[0]
+			if l == 0 { // MNA matrices are sparse; most multipliers vanish
+				continue
+			}
+			l *= inv
+			ri[0] = l
+			ri = ri[1:]
+			ri = ri[:len(uk)] // lets the compiler drop bounds checks
+			for j, u := range uk {
+				ri[j] -= l * u
+			}
+		}
+	}
+	s.ok = true
+	return nil
+}
+
+// substitute solves A x = b in place with the factors in s.a, s.piv and
+// s.dinv.
+func (s *Solver) substitute(b []float64) {
+	n, a, dinv := s.n, s.a, s.dinv
+	b = b[:n]
+	dinv = dinv[:n]
+	for k, p := range s.piv {
+		if p != k {
+			b[k], b[p] = b[p], b[k]
+		}
+	}
+	for i := 1; i < n; i++ {
+		li := a[i*n : i*n+i]
+		bj := b[:len(li)]
+		sum := b[i]
+		for j, l := range li {
+			sum -= l * bj[j]
+		}
+		b[i] = sum
+	}
+	for i := n - 1; i >= 0; i-- {
+		ui := a[i*n+i+1 : i*n+n]
+		bj := b[i+1:]
+		bj = bj[:len(ui)]
+		sum := b[i]
+		for j, u := range ui {
+			sum -= u * bj[j]
+		}
+		b[i] = sum * dinv[i]
+	}
+}
+
+// Voltage returns the voltage of node (an index into Nodes) against ground.
+func (s *Solver) Voltage(node int) float64 { return s.v[node] }
+
+// Volts returns V(From) - V(To) of a part; V(Plus) - V(Minus) for a voltage
+// source; V(Out) for an op-amp.
+func (s *Solver) Volts(part int) float64 {
+	net := s.net
+	if net.pKind[part] == OpAmp {
+		return s.v[net.pTo[part]]
+	}
+	return s.v[net.pFrom[part]] - s.v[net.pTo[part]]
+}
+
+// Amps returns the current through a part along its edge: From -> To for a
+// resistor, + -> - through a voltage source (negative when it delivers),
+// the source's own current for a current source, and the current an op-amp
+// output drives into Out.
+func (s *Solver) Amps(part int) float64 {
+	net := s.net
+	switch net.pKind[part] {
+	case Resistor:
+		return (s.v[net.pFrom[part]] - s.v[net.pTo[part]]) / s.used[part]
+	case CurrentSource:
+		return s.used[part]
+	default:
+		return s.rhs[net.pRow[part]]
+	}
+}
+
+// Watts returns the power a part absorbs: edge voltage times edge current,
+// which is -V(Out)·I for an op-amp output. It is negative where the part
+// delivers power.
+func (s *Solver) Watts(part int) float64 {
+	net := s.net
+	return (s.v[net.pFrom[part]] - s.v[net.pTo[part]]) * s.Amps(part)
+}
+
+// ResistorPower returns the power dissipated in all resistors together,
+// which by Tellegen's theorem is the power the sources and op-amp outputs
+// deliver.
+func (s *Solver) ResistorPower() float64 {
+	net := s.net
+	sum := 0.0
+	for _, p := range net.resistors {
+		d := s.v[net.pFrom[p]] - s.v[net.pTo[p]]
+		sum += d * d / s.used[p]
+	}
+	return sum
+}
+
+// Resistance returns the resistance seen between nodes a and b (indices into
+// Nodes) with every independent source zeroed (voltage sources shorted,
+// current sources open) and op-amps left working: it injects 1 A into a,
+// takes it out at b and returns V(a) - V(b). It reuses the factors of the
+// last Solve, costs one forward and back substitution and does not
+// allocate. It returns ErrNotSolved if there are no valid factors (no
+// successful Solve since the solver was made or a value was set). It panics
+// if a or b is out of range.
+func (s *Solver) Resistance(a, b int) (float64, error) {
+	nn := len(s.v)
+	if a < 0 || a >= nn || b < 0 || b >= nn {
+		panic("solver: Resistance: node index out of range")
+	}
+	if !s.ok {
+		return 0, ErrNotSolved
+	}
+	if a == b {
+		return 0, nil
+	}
+	w := s.work
+	clear(w)
+	// Node k's KCL row is k-1; ground's injection goes to the scratch slot.
+	w[s.rhsRow(a)] += 1
+	w[s.rhsRow(b)] -= 1
+	s.substitute(w)
+	w[s.n] = 0 // scratch slot reads as ground
+	return w[s.rhsRow(a)] - w[s.rhsRow(b)], nil
+}
+
+func (s *Solver) rhsRow(node int) int {
+	if node == 0 {
+		return s.n
+	}
+	return node - 1
+}
+
+// Solution returns the last solution as plain data (allocates).
+func (s *Solver) Solution() *Solution {
+	net := s.net
+	sol := &Solution{
+		Nodes:         make([]NodeVoltage, len(net.nodes)),
+		Parts:         make([]PartResult, len(net.parts)),
+		ResistorPower: s.ResistorPower(),
+	}
+	for k, name := range net.nodes {
+		sol.Nodes[k] = NodeVoltage{Name: name, Volts: s.v[k]}
+	}
+	for i, p := range net.parts {
+		sol.Parts[i] = PartResult{Name: p.Name, Kind: p.Kind, Volts: s.Volts(i), Amps: s.Amps(i), Watts: s.Watts(i)}
+	}
+	return sol
+}

@@ -1,0 +1,89 @@
+package synth_test
+
+import (
+	"context"
+	"testing"
+
+	"github.com/ohmfit/ohmfit/synth"
+)
+
+const dividerE192YAML = `ohmfit: 1
+name: bench divider
+parts:
+  - {name: V1, type: voltage-source, plus: in, minus: gnd, volts: 3.3}
+  - {name: R1, type: resistor, from: in, to: out}
+  - {name: R2, type: resistor, from: out, to: gnd}
+targets:
+  - {voltage: out, equals: 0.8}
+choose: {series: E192, min: 1, max: 10M}
+`
+
+func benchSearch(b *testing.B, p *synth.Problem, workers int) {
+	b.Helper()
+	set := &synth.Settings{Workers: workers, MaxRows: 1e9}
+	var res *synth.Result
+	for b.Loop() {
+		var err error
+		res, err = synth.Search(context.Background(), p, set, nil)
+		if err != nil {
+			b.Fatal(err)
+		}
+	}
+	if res.Status != synth.Proven {
+		b.Fatalf("status %v", res.Status)
+	}
+	b.ReportMetric(float64(res.Stats.Evaluated), "scored/op")
+	b.ReportMetric(float64(res.Stats.Solves), "solves/op")
+}
+
+// Two positions, E192 over 1 Ω … 10 MΩ each: 1345² ≈ 1.8 million pairs.
+func BenchmarkDividerE192(b *testing.B) {
+	benchSearch(b, problemFromYAML(b, dividerE192YAML, ""), 1)
+}
+
+// Three positions into a fixed 10k load, 100 Ω … 1 MΩ: E24 ≈ 913 thousand
+// triples, E96 ≈ 57 million.
+func BenchmarkLoadedDivider(b *testing.B) {
+	for _, s := range []string{"E24", "E96"} {
+		b.Run(s, func(b *testing.B) {
+			benchSearch(b, problemFromYAML(b, loadedDividerYAML(s), ""), 1)
+		})
+	}
+}
+
+// The naive exhaustive baseline on the E24 case: every triple, one full
+// re-solve each (already the allocation-free solver, so the ratio measures
+// the search, not the solver).
+func BenchmarkLoadedDividerNaive(b *testing.B) {
+	p := problemFromYAML(b, loadedDividerYAML("E24"), "")
+	s := p.Network.NewSolver()
+	sc := p.NewScore()
+	free := make([]float64, 3)
+	for b.Loop() {
+		best := 2.0
+		for _, o1 := range p.Domains[0].Options {
+			for _, o2 := range p.Domains[1].Options {
+				for _, o3 := range p.Domains[2].Options {
+					free[0], free[1], free[2] = o1.Value, o2.Value, o3.Value
+					if err := p.Evaluate(s, free, sc); err != nil {
+						b.Fatal(err)
+					}
+					if sc.Feasible && sc.Error < best {
+						best = sc.Error
+					}
+				}
+			}
+		}
+		if best > 1 {
+			b.Fatal("nothing feasible")
+		}
+	}
+}
+
+// One against two workers on the E96 loaded divider.
+func BenchmarkWorkers(b *testing.B) {
+	p := problemFromYAML(b, loadedDividerYAML("E96"), "")
+	for _, w := range []int{1, 2} {
+		b.Run(map[int]string{1: "1", 2: "2"}[w], func(b *testing.B) { benchSearch(b, p, w) })
+	}
+}

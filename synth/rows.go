@@ -1,0 +1,602 @@
+package synth
+
+import (
+	"context"
+	"math"
+	"sync"
+	"sync/atomic"
+
+	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/solver"
+)
+
+// Rows is the exhaustive method. It picks the position with the most options
+// as the row position and enumerates every combination of the others (a row).
+// For each row and condition it solves the network once with the row
+// position at a reference value G0 and back-substitutes once more for the
+// response w to a unit current through that position. By the
+// Sherman–Morrison formula the MNA solution for any other conductance G of
+// that position is then exactly
+//
+//	x(G) = x0 - w·s,  s = (G-G0)·V0 / (1 + (G-G0)·z)
+//
+// where V0 is the voltage across the position and z = w(a) - w(b): the
+// bilinear theorem in matrix form. Every option of the row is scored from
+// that formula without another solve. Node voltages, currents and resistances
+// are monotone in G along a row while 1 + (G-G0)·z keeps its sign, so binary
+// search finds the options whose goals can still reach the current top list
+// and that meet the monotone hard limits; the rest of the row is skipped,
+// which is what makes the search both exhaustive and fast. Rows where the
+// formula has a pole inside the row's range, or whose solve fails, are scored
+// option by option with full solves.
+type Rows struct{}
+
+// Name returns "rows".
+func (Rows) Name() string { return "rows" }
+
+var _ Method = Rows{}
+
+// rowChunk is how many rows a worker claims at a time: small enough to
+// balance two cores and to notice a time limit within milliseconds.
+const rowChunk = 64
+
+func (Rows) run(ctx context.Context, p *Problem, set *Settings, st *runState) error {
+	if len(p.Domains) == 0 {
+		return runNoFree(p, st)
+	}
+	j := rowPosition(p)
+	var outer []int
+	for i := range p.Domains {
+		if i != j {
+			outer = append(outer, i)
+		}
+	}
+	rows := int64(1)
+	for _, i := range outer {
+		rows *= int64(len(p.Domains[i].Options))
+	}
+	if float64(rows) > set.MaxRows {
+		return tooManyRows(p, float64(rows), set.MaxRows)
+	}
+	if set.Progress != nil {
+		set.Progress.total.Store(rows)
+	}
+	workers := set.Workers
+	if int64(workers) > (rows+rowChunk-1)/rowChunk {
+		workers = int((rows + rowChunk - 1) / rowChunk)
+	}
+	st.stats.Workers = workers
+	var next atomic.Int64
+	var stopped atomic.Bool
+	var mu sync.Mutex
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Go(func() {
+			w := newRowWorker(p, st.r, set.Top, j, outer)
+			for {
+				if ctx.Err() != nil {
+					stopped.Store(true)
+					break
+				}
+				start := next.Add(rowChunk) - rowChunk
+				if start >= rows {
+					break
+				}
+				end := min(start+rowChunk, rows)
+				w.runRows(start, end)
+				if set.Progress != nil {
+					set.Progress.done.Add(end - start)
+				}
+			}
+			mu.Lock()
+			st.merge(w.top, w.viol, w.stats)
+			mu.Unlock()
+		})
+	}
+	wg.Wait()
+	st.status = Proven
+	if stopped.Load() {
+		st.status = Interrupted
+		if ctx.Err() == context.DeadlineExceeded {
+			st.status = TimeLimit
+		}
+	}
+	return nil
+}
+
+// rowPosition picks the position with the most options (ties: the last), so
+// the fewest rows need a solve.
+func rowPosition(p *Problem) int {
+	j := 0
+	for i, d := range p.Domains {
+		if len(d.Options) >= len(p.Domains[j].Options) {
+			j = i
+		}
+	}
+	return j
+}
+
+// runNoFree scores a template without free positions: one candidate.
+func runNoFree(p *Problem, st *runState) error {
+	s := p.Network.NewSolver()
+	sc := p.NewScore()
+	st.stats.Workers = 1
+	st.stats.Rows = 1
+	st.stats.Evaluated = 1
+	st.stats.Solves = int64(len(p.Conditions))
+	if err := p.Evaluate(s, nil, sc); err != nil {
+		return err
+	}
+	st.status = Proven
+	if sc.Feasible {
+		st.top.offer(&Candidate{Opt: []int32{}, Error: sc.Error, Power: sc.Power})
+	} else {
+		st.viol[sc.ViolatedTarget*st.nc+sc.ViolatedCondition]++
+	}
+	return nil
+}
+
+// rowCond holds one condition's exact description of a row.
+type rowCond struct {
+	vals []float64 // part values of this condition and row (row position at G0)
+	x0   []float64 // solution, ground first: node k at k, unknown u at u+1
+	w    []float64 // port response, same layout
+	g0   float64   // reference conductance of the row position
+	z    float64   // w(a) - w(b)
+	v0   float64   // x0(a) - x0(b)
+	// total resistor power as p0 + p1·s + p2·s²
+	p0, p1, p2 float64
+	// per target: for a resistance target, R0 and the numerator of its update
+	r0, rc []float64
+}
+
+// rowWorker searches rows on one goroutine with its own solver and top list.
+type rowWorker struct {
+	p      *Problem
+	net    *solver.Network
+	s      *solver.Solver
+	j      int // row position (index into Domains)
+	jPart  int
+	ja, jb int // row position's nodes
+	opts   []Option
+	outer  []int
+	cur    []int32
+	cond   []rowCond
+	top    *topList
+	cand   Candidate
+	viol   []int64
+	stats  Stats
+	nc     int
+	free   []float64
+	sc     *constraints.Score
+	port   []float64 // scratch for resistance targets
+	edges  []solver.Edge
+	branch []int // per part: unknown of its current + 1 in the x0 layout, or -1
+	keys   []constraints.RankKey
+	lim    float64
+}
+
+func newRowWorker(p *Problem, r *ranker, top, j int, outer []int) *rowWorker {
+	net := p.Network
+	n := net.Unknowns()
+	nc := len(p.Conditions)
+	w := &rowWorker{
+		p: p, net: net, s: net.NewSolver(), j: j, outer: outer,
+		jPart: p.Domains[j].Part, opts: p.Domains[j].Options,
+		cur:  make([]int32, len(p.Domains)),
+		cond: make([]rowCond, nc),
+		top:  newTopList(r, top, len(p.Domains)),
+		cand: Candidate{Opt: make([]int32, len(p.Domains))},
+		viol: make([]int64, (len(p.Probes)+1)*nc),
+		nc:   nc, free: make([]float64, len(p.Domains)), sc: p.NewScore(),
+		port: make([]float64, n+1),
+		keys: p.Template.Rank, lim: p.Template.Limits.SupplyPowerMax,
+	}
+	parts := net.Parts()
+	w.edges = make([]solver.Edge, len(parts))
+	for _, e := range net.Edges() {
+		w.edges[e.Part] = e
+	}
+	w.branch = make([]int, len(parts))
+	for i := range parts {
+		w.branch[i] = -1
+		if u := net.BranchUnknown(i); u >= 0 {
+			w.branch[i] = u + 1
+		}
+	}
+	e := w.edges[w.jPart]
+	w.ja, w.jb = e.From, e.To
+	for c := range w.cond {
+		rc := &w.cond[c]
+		rc.vals = make([]float64, len(parts))
+		rc.x0 = make([]float64, n+1)
+		rc.w = make([]float64, n+1)
+		rc.r0 = make([]float64, len(p.Probes))
+		rc.rc = make([]float64, len(p.Probes))
+	}
+	return w
+}
+
+// runRows searches rows [start, end) of the odometer over the outer positions.
+func (w *rowWorker) runRows(start, end int64) {
+	// Decode start into option indices (mixed radix, last outer position fastest).
+	r := start
+	for k := len(w.outer) - 1; k >= 0; k-- {
+		n := int64(len(w.p.Domains[w.outer[k]].Options))
+		w.cur[w.outer[k]] = int32(r % n)
+		r /= n
+	}
+	for row := start; row < end; row++ {
+		w.searchRow()
+		w.stats.Rows++
+		// Advance the odometer.
+		for k := len(w.outer) - 1; k >= 0; k-- {
+			i := w.outer[k]
+			w.cur[i]++
+			if int(w.cur[i]) < len(w.p.Domains[i].Options) {
+				break
+			}
+			w.cur[i] = 0
+		}
+	}
+}
+
+// searchRow scores the options of the row position for the current outer values.
+func (w *rowWorker) searchRow() {
+	ref := len(w.opts) / 2
+	if !w.prepare(w.opts[ref].Value) {
+		w.slowRow(0, len(w.opts)-1)
+		return
+	}
+	lo, hi := 0, len(w.opts)-1
+	// A pole of the update formula inside the row breaks monotonicity.
+	for c := range w.cond {
+		rc := &w.cond[c]
+		for _, i := range [2]int{lo, hi} {
+			if 1+(1/w.opts[i].Value-rc.g0)*rc.z <= 1e-9 {
+				w.slowRow(lo, hi)
+				return
+			}
+		}
+	}
+	lo, hi = w.narrow(lo, hi)
+	for i := lo; i <= hi; i++ {
+		w.scoreOption(i)
+	}
+}
+
+// prepare solves every condition for the row with the row position at
+// resistance rRef, and sets up the update formula. It reports false when a
+// solve fails.
+func (w *rowWorker) prepare(rRef float64) bool {
+	p, s := w.p, w.s
+	for _, i := range w.outer {
+		w.free[i] = w.p.Domains[i].Options[w.cur[i]].Value
+	}
+	for c := range w.cond {
+		rc := &w.cond[c]
+		copy(rc.vals, p.Conditions[c].Values)
+		for _, i := range w.outer {
+			rc.vals[p.Domains[i].Part] = w.free[i]
+		}
+		rc.vals[w.jPart] = rRef
+		for i, v := range rc.vals {
+			s.SetValue(i, v)
+		}
+		w.stats.Solves++
+		if err := s.Solve(); err != nil {
+			return false
+		}
+		x := s.X()
+		rc.x0[0] = 0
+		copy(rc.x0[1:], x)
+		w.stats.Solves++
+		if err := s.PortResponse(w.ja, w.jb, rc.w[1:]); err != nil {
+			return false
+		}
+		rc.w[0] = 0
+		rc.g0 = 1 / rRef
+		rc.z = rc.w[w.ja] - rc.w[w.jb]
+		rc.v0 = rc.x0[w.ja] - rc.x0[w.jb]
+		w.powerCoefficients(rc)
+		for ti, pr := range p.Probes {
+			if pr.Kind != constraints.Resistance || !p.Applies[ti][c] {
+				continue
+			}
+			w.stats.Solves++
+			if err := s.PortResponse(pr.A, pr.B, w.port[1:]); err != nil {
+				return false
+			}
+			w.port[0] = 0
+			rc.r0[ti] = w.port[pr.A] - w.port[pr.B]
+			rc.rc[ti] = (rc.w[pr.A] - rc.w[pr.B]) * (w.port[w.ja] - w.port[w.jb])
+		}
+	}
+	return true
+}
+
+// powerCoefficients writes the total resistor power as a quadratic in s.
+// By Tellegen's theorem it is the power the sources and op-amp outputs
+// deliver; each source's current (or voltage) is affine in s, and an op-amp
+// output's power is the product of two affine terms.
+func (w *rowWorker) powerCoefficients(rc *rowCond) {
+	rc.p0, rc.p1, rc.p2 = 0, 0, 0
+	for i, e := range w.edges {
+		switch e.Kind {
+		case solver.VoltageSource:
+			// Absorbed V·I with I = x0[b] - w[b]·s; delivered is the negative.
+			b := w.branch[i]
+			v := rc.vals[i]
+			rc.p0 -= v * rc.x0[b]
+			rc.p1 += v * rc.w[b]
+		case solver.CurrentSource:
+			iv := rc.vals[i]
+			rc.p0 -= (rc.x0[e.From] - rc.x0[e.To]) * iv
+			rc.p1 += (rc.w[e.From] - rc.w[e.To]) * iv
+		case solver.OpAmp:
+			// Delivered V(out)·I with both affine in s.
+			b, o := w.branch[i], e.To
+			rc.p0 += rc.x0[o] * rc.x0[b]
+			rc.p1 -= rc.x0[o]*rc.w[b] + rc.w[o]*rc.x0[b]
+			rc.p2 += rc.w[o] * rc.w[b]
+		}
+	}
+}
+
+// sAt returns the update parameter s and the conductance for option i.
+func (rc *rowCond) sAt(g float64) float64 {
+	dg := g - rc.g0
+	return dg * rc.v0 / (1 + dg*rc.z)
+}
+
+// probe returns target ti's value in condition rc at update parameter s and
+// row conductance g.
+func (w *rowWorker) probe(rc *rowCond, ti int, s, g float64) float64 {
+	pr := &w.p.Probes[ti]
+	switch pr.Kind {
+	case constraints.Voltage:
+		return (rc.x0[pr.A] - rc.w[pr.A]*s) - (rc.x0[pr.B] - rc.w[pr.B]*s)
+	case constraints.Ratio:
+		d := rc.x0[pr.B] - rc.w[pr.B]*s
+		if d == 0 {
+			return math.NaN()
+		}
+		return (rc.x0[pr.A] - rc.w[pr.A]*s) / d
+	case constraints.Current:
+		return w.amps(rc, pr.Part, s, g)
+	case constraints.Power:
+		e := w.edges[pr.Part]
+		if e.Kind == solver.OpAmp {
+			return -(rc.x0[e.To] - rc.w[e.To]*s) * w.amps(rc, pr.Part, s, g)
+		}
+		return ((rc.x0[e.From] - rc.w[e.From]*s) - (rc.x0[e.To] - rc.w[e.To]*s)) * w.amps(rc, pr.Part, s, g)
+	case constraints.Resistance:
+		dg := g - rc.g0
+		return rc.r0[ti] - dg*rc.rc[ti]/(1+dg*rc.z)
+	}
+	return math.NaN()
+}
+
+// amps is the current through part i along its edge.
+func (w *rowWorker) amps(rc *rowCond, i int, s, g float64) float64 {
+	e := w.edges[i]
+	switch e.Kind {
+	case solver.Resistor:
+		gi := g
+		if i != w.jPart {
+			gi = 1 / rc.vals[i]
+		}
+		return ((rc.x0[e.From] - rc.w[e.From]*s) - (rc.x0[e.To] - rc.w[e.To]*s)) * gi
+	case solver.CurrentSource:
+		return rc.vals[i]
+	}
+	b := w.branch[i]
+	return rc.x0[b] - rc.w[b]*s
+}
+
+// scoreOption scores option i of the row from the update formula and offers
+// it to the top list.
+func (w *rowWorker) scoreOption(i int) {
+	w.stats.Evaluated++
+	g := 1 / w.opts[i].Value
+	p := w.p
+	errMax, powMax := 0.0, 0.0
+	for c := range w.cond {
+		rc := &w.cond[c]
+		s := rc.sAt(g)
+		pw := rc.p0 + s*(rc.p1+s*rc.p2)
+		if pw > powMax {
+			powMax = pw
+		}
+		if w.lim > 0 && pw > w.lim && !constraints.Same(pw, w.lim) {
+			w.viol[len(p.Probes)*w.nc+c]++
+			return
+		}
+		for ti := range p.Probes {
+			if !p.Applies[ti][c] {
+				continue
+			}
+			v := w.probe(rc, ti, s, g)
+			tg := &p.Template.Targets[ti]
+			if !tg.Meets(v) {
+				w.viol[ti*w.nc+c]++
+				return
+			}
+			if e := tg.GoalError(v); e > errMax {
+				errMax = e
+			}
+		}
+	}
+	w.offer(i, errMax, powMax)
+}
+
+func (w *rowWorker) offer(i int, errMax, powMax float64) {
+	copy(w.cand.Opt, w.cur)
+	w.cand.Opt[w.j] = int32(i)
+	parts := 0
+	for k, d := range w.p.Domains {
+		parts += d.Options[w.cand.Opt[k]].Count
+	}
+	w.cand.Error, w.cand.Power, w.cand.Parts = errMax, powMax, parts
+	w.top.offer(&w.cand)
+}
+
+// slowRow scores options lo..hi with full nodal solves: for rows where the
+// update formula cannot be trusted.
+func (w *rowWorker) slowRow(lo, hi int) {
+	p := w.p
+	for k, d := range p.Domains {
+		w.free[k] = d.Options[w.cur[k]].Value
+	}
+	for i := lo; i <= hi; i++ {
+		w.free[w.j] = w.opts[i].Value
+		w.stats.Evaluated++
+		w.stats.Solves += int64(w.nc)
+		if err := p.Evaluate(w.s, w.free, w.sc); err != nil {
+			continue
+		}
+		if !w.sc.Feasible {
+			w.viol[w.sc.ViolatedTarget*w.nc+w.sc.ViolatedCondition]++
+			continue
+		}
+		w.offer(i, w.sc.Error, w.sc.Power)
+	}
+}
+
+// narrow shrinks [lo, hi] to the options that can still meet every monotone
+// hard limit and reach the top list, by binary search on each monotone
+// quantity. Options it cuts are counted as blocked by the limit that cut them
+// only when a hard limit (not the top list) empties the row.
+func (w *rowWorker) narrow(lo, hi int) (int, int) {
+	p := w.p
+	worst := w.top.worst()
+	byError := worst != nil && len(w.keys) > 0 && w.keys[0] == constraints.ByError
+	byPower := worst != nil && len(w.keys) > 0 && w.keys[0] == constraints.ByPower
+	for c := range w.cond {
+		rc := &w.cond[c]
+		// Total power: affine in s without op-amps; otherwise monotone when
+		// the parabola's vertex lies outside the row.
+		if w.lim > 0 || byPower {
+			if w.powerMonotone(rc, lo, hi) {
+				top := math.Inf(1)
+				if w.lim > 0 {
+					top = w.lim
+				}
+				if byPower {
+					top = math.Min(top, widen(worst.Power))
+				}
+				nlo, nhi := w.bisect(lo, hi, math.Inf(-1), top, func(i int) float64 {
+					g := 1 / w.opts[i].Value
+					s := rc.sAt(g)
+					return rc.p0 + s*(rc.p1+s*rc.p2)
+				})
+				if nlo > nhi {
+					if w.lim > 0 && !byPower {
+						w.viol[len(p.Probes)*w.nc+c] += int64(hi - lo + 1)
+					}
+					return 1, 0
+				}
+				lo, hi = nlo, nhi
+			}
+		}
+		for ti := range p.Probes {
+			if !p.Applies[ti][c] || !w.monotone(rc, ti, lo, hi) {
+				continue
+			}
+			tg := &p.Template.Targets[ti]
+			blo, bhi := tg.Band()
+			hard := !math.IsInf(blo, -1) || !math.IsInf(bhi, 1)
+			if byError && tg.HasEquals {
+				d := widen(worst.Error)
+				if tg.Equals != 0 {
+					d *= math.Abs(tg.Equals)
+				}
+				blo = math.Max(blo, tg.Equals-d)
+				bhi = math.Min(bhi, tg.Equals+d)
+			}
+			if math.IsInf(blo, -1) && math.IsInf(bhi, 1) {
+				continue
+			}
+			nlo, nhi := w.bisect(lo, hi, blo, bhi, func(i int) float64 {
+				g := 1 / w.opts[i].Value
+				return w.probe(rc, ti, rc.sAt(g), g)
+			})
+			if nlo > nhi {
+				if hard && worst == nil {
+					w.viol[ti*w.nc+c] += int64(hi - lo + 1)
+				}
+				return 1, 0
+			}
+			lo, hi = nlo, nhi
+		}
+	}
+	return lo, hi
+}
+
+// monotone reports whether target ti is monotone along options lo..hi of
+// the row (given that the update formula has no pole there).
+func (w *rowWorker) monotone(rc *rowCond, ti, lo, hi int) bool {
+	pr := &w.p.Probes[ti]
+	switch pr.Kind {
+	case constraints.Voltage, constraints.Current, constraints.Resistance:
+		return true
+	case constraints.Ratio:
+		// A bilinear function of s: monotone unless its denominator changes
+		// sign inside the row.
+		d1 := rc.x0[pr.B] - rc.w[pr.B]*rc.sAt(1/w.opts[lo].Value)
+		d2 := rc.x0[pr.B] - rc.w[pr.B]*rc.sAt(1/w.opts[hi].Value)
+		return (d1 > 0 && d2 > 0) || (d1 < 0 && d2 < 0)
+	}
+	return false
+}
+
+// powerMonotone reports whether total power is monotone along lo..hi.
+func (w *rowWorker) powerMonotone(rc *rowCond, lo, hi int) bool {
+	if rc.p2 == 0 {
+		return true
+	}
+	v := -rc.p1 / (2 * rc.p2)
+	s1, s2 := rc.sAt(1/w.opts[lo].Value), rc.sAt(1/w.opts[hi].Value)
+	return v <= math.Min(s1, s2) || v >= math.Max(s1, s2)
+}
+
+// bisect returns the sub-range of lo..hi where the monotone function f lies
+// in [a, b] (inclusive, within the tie tolerance), or an empty range (lo > hi).
+func (w *rowWorker) bisect(lo, hi int, a, b float64, f func(int) float64) (int, int) {
+	flo, fhi := f(lo), f(hi)
+	if math.IsNaN(flo) || math.IsNaN(fhi) {
+		return lo, hi
+	}
+	ge := func(v float64) bool { return v >= a || constraints.Same(v, a) }
+	le := func(v float64) bool { return v <= b || constraints.Same(v, b) }
+	in := func(v float64) bool { return ge(v) && le(v) }
+	if flo == fhi {
+		if in(flo) {
+			return lo, hi
+		}
+		return 1, 0
+	}
+	inc := flo < fhi
+	// first returns the first index in [l, h] where pred holds (pred is
+	// false then true along the range), or h+1.
+	first := func(l, h int, pred func(int) bool) int {
+		for l <= h {
+			m := int(uint(l+h) >> 1)
+			if pred(m) {
+				h = m - 1
+			} else {
+				l = m + 1
+			}
+		}
+		return l
+	}
+	var nlo, nhi int
+	if inc {
+		nlo = first(lo, hi, func(i int) bool { return ge(f(i)) })
+		nhi = first(lo, hi, func(i int) bool { return !le(f(i)) }) - 1
+	} else {
+		nlo = first(lo, hi, func(i int) bool { return le(f(i)) })
+		nhi = first(lo, hi, func(i int) bool { return !ge(f(i)) }) - 1
+	}
+	return nlo, nhi
+}

@@ -1,0 +1,384 @@
+package synth
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"runtime"
+	"sort"
+	"sync/atomic"
+	"time"
+
+	"github.com/ohmfit/ohmfit/constraints"
+)
+
+// Problem is a compiled template plus the options of each free position.
+type Problem struct {
+	*constraints.Problem
+	Domains []Domain // one per free position, in template order
+}
+
+// NewProblem builds the options of every free position from the template's
+// choose section. A non-empty series overrides the series of every position
+// (the `--series` flag), keeping each position's min, max and combine.
+func NewProblem(cp *constraints.Problem, series string) (*Problem, error) {
+	p := &Problem{Problem: cp}
+	t := cp.Template
+	for _, i := range cp.Free {
+		name := t.Parts[i].Name
+		ch := t.Choose.For(name)
+		if series != "" {
+			ch.Series, ch.Stock = series, nil
+		}
+		d, err := BuildDomain(i, name, ch)
+		if err != nil {
+			return nil, err
+		}
+		p.Domains = append(p.Domains, d)
+	}
+	return p, nil
+}
+
+// Space returns the number of candidates: the product of the positions'
+// option counts (1 when there is no free position).
+func (p *Problem) Space() float64 {
+	n := 1.0
+	for _, d := range p.Domains {
+		n *= float64(len(d.Options))
+	}
+	return n
+}
+
+// Settings tune a search. The zero value (or nil) means the defaults.
+type Settings struct {
+	// Top is how many ranked answers to keep. Zero means 10.
+	Top int
+	// Workers is the number of goroutines. Zero means runtime.GOMAXPROCS(0).
+	// The result does not depend on it.
+	Workers int
+	// TimeLimit stops the search after this long, keeping the best found so
+	// far (Status TimeLimit). Zero means no limit.
+	TimeLimit time.Duration
+	// MaxRows bounds the rows (combinations of all positions but one) the
+	// exhaustive method will take on. Zero means DefaultMaxRows.
+	MaxRows float64
+	// Progress, if not nil, is updated as the search runs, for a progress
+	// display in another goroutine.
+	Progress *Progress
+}
+
+// DefaultMaxRows is the default exhaustive budget: about ten seconds of
+// search on one core of a 2020s machine for a small network.
+const DefaultMaxRows = 2e7
+
+// MaxSpace is the largest candidate space any method accepts.
+const MaxSpace = 1e15
+
+// Progress reports how far a running search is. Its methods are safe to call
+// from any goroutine.
+type Progress struct {
+	done, total atomic.Int64
+}
+
+// Fraction returns rows done and rows in all.
+func (p *Progress) Fraction() (done, total int64) {
+	return p.done.Load(), p.total.Load()
+}
+
+// Status says how a search ended. It is not an error: stopping at a limit is
+// a result too.
+type Status int
+
+// Search outcomes.
+const (
+	Proven      Status = iota // every candidate was accounted for: the list is the best
+	TimeLimit                 // stopped at Settings.TimeLimit; best found so far
+	Interrupted               // the context was cancelled; best found so far
+	Heuristic                 // a method that does not cover the whole space ran
+	NoFeasible                // the whole space was covered and nothing met the hard limits
+)
+
+// String returns a short lower-case name of the status.
+func (s Status) String() string {
+	switch s {
+	case Proven:
+		return "proven"
+	case TimeLimit:
+		return "time limit"
+	case Interrupted:
+		return "interrupted"
+	case Heuristic:
+		return "heuristic"
+	case NoFeasible:
+		return "no feasible design"
+	}
+	return "unknown"
+}
+
+// Exhaustive reports whether the status means the result is proven over the
+// whole space (for NoFeasible: proven that nothing is feasible).
+func (s Status) Exhaustive() bool { return s == Proven || s == NoFeasible }
+
+// Stats describe the work a search did.
+type Stats struct {
+	Method    string        // name of the method that ran
+	Space     float64       // candidates in the whole space
+	Rows      int64         // rows visited (combinations of all positions but one)
+	Evaluated int64         // candidates scored from a nodal solution
+	Solves    int64         // nodal solves and back-substitutions
+	Workers   int           // goroutines used
+	Elapsed   time.Duration // wall time of the search
+}
+
+// Solution is one ranked answer, re-checked with full nodal solves.
+type Solution struct {
+	Rank    int
+	Options []Option // per position, template order
+	Score   *constraints.Score
+	Parts   int
+	// Pareto is true when no other answer in the list is at least as good in
+	// error, power and part count and better in one of them.
+	Pareto bool
+}
+
+// Values returns each position's effective value, in template order.
+func (s *Solution) Values() []float64 {
+	out := make([]float64, len(s.Options))
+	for i, o := range s.Options {
+		out[i] = o.Value
+	}
+	return out
+}
+
+// Violation says which hard limit blocked the most candidates, for the
+// message when nothing is feasible.
+type Violation struct {
+	Target    int // index into Template.Targets; len(Targets) means supply_power_max
+	Condition int // index into Problem.Conditions
+	Count     int64
+}
+
+// Result is the outcome of a search.
+type Result struct {
+	Solutions []Solution
+	Status    Status
+	Stats     Stats
+	// Blocking is the hard limit that rejected the most candidates; set
+	// when there are no solutions.
+	Blocking *Violation
+}
+
+// Method is a search strategy.
+type Method interface {
+	// Name is the method's name as shown to people.
+	Name() string
+	run(ctx context.Context, p *Problem, s *Settings, st *runState) error
+}
+
+// ErrSpaceTooLarge is wrapped by the error for a space no method will take.
+var ErrSpaceTooLarge = errors.New("synth: search space too large")
+
+// Search finds the best assignments of standard values to the free
+// positions. A nil Settings means defaults; a nil Method means Rows.
+func Search(ctx context.Context, p *Problem, s *Settings, m Method) (*Result, error) {
+	var set Settings
+	if s != nil {
+		set = *s
+	}
+	if set.Top <= 0 {
+		set.Top = 10
+	}
+	if set.Workers <= 0 {
+		set.Workers = runtime.GOMAXPROCS(0)
+	}
+	if set.MaxRows <= 0 {
+		set.MaxRows = DefaultMaxRows
+	}
+	if m == nil {
+		m = Rows{}
+	}
+	space := p.Space()
+	if space > MaxSpace {
+		return nil, fmt.Errorf("%w: %.3g candidates (%s); narrow the positions' min/max, use a coarser series or fewer pairs", ErrSpaceTooLarge, space, p.describeSpace())
+	}
+	if set.TimeLimit > 0 {
+		var cancel context.CancelFunc
+		ctx, cancel = context.WithTimeout(ctx, set.TimeLimit)
+		defer cancel()
+	}
+	start := time.Now()
+	st := newRunState(p, &set)
+	if err := m.run(ctx, p, &set, st); err != nil {
+		return nil, err
+	}
+	res := &Result{Stats: st.stats}
+	res.Stats.Method = m.Name()
+	res.Stats.Space = space
+	res.Stats.Elapsed = time.Since(start)
+	res.Status = st.status
+	if err := st.finish(p, res); err != nil {
+		return nil, err
+	}
+	if len(res.Solutions) == 0 {
+		if res.Status == Proven {
+			res.Status = NoFeasible
+		}
+		res.Blocking = st.blocking()
+	}
+	return res, nil
+}
+
+// describeSpace says how the space is made up, e.g. "R1 1345 × R2 1345".
+func (p *Problem) describeSpace() string {
+	out := ""
+	for i, d := range p.Domains {
+		if i > 0 {
+			out += " × "
+		}
+		out += fmt.Sprintf("%s %d", d.Name, len(d.Options))
+	}
+	if out == "" {
+		return "no free position"
+	}
+	return out
+}
+
+// runState is what methods share with Search: the merged top list, the
+// violation counts and the statistics.
+type runState struct {
+	r      *ranker
+	top    *topList
+	viol   []int64 // per (target or power limit) × condition
+	nc     int
+	status Status
+	stats  Stats
+}
+
+func newRunState(p *Problem, s *Settings) *runState {
+	r := &ranker{keys: p.Template.Rank, domains: p.Domains}
+	nc := len(p.Conditions)
+	return &runState{
+		r:    r,
+		top:  newTopList(r, s.Top, len(p.Domains)),
+		viol: make([]int64, (len(p.Probes)+1)*nc),
+		nc:   nc,
+	}
+}
+
+// merge folds a worker's results into the shared state. Called once per
+// worker after it stops, so no locking is needed beyond the caller's.
+func (st *runState) merge(w *topList, viol []int64, stats Stats) {
+	for _, c := range w.items {
+		st.top.offer(c)
+	}
+	for i, v := range viol {
+		st.viol[i] += v
+	}
+	st.stats.Rows += stats.Rows
+	st.stats.Evaluated += stats.Evaluated
+	st.stats.Solves += stats.Solves
+}
+
+func (st *runState) blocking() *Violation {
+	best := -1
+	for i, v := range st.viol {
+		if v > 0 && (best < 0 || v > st.viol[best]) {
+			best = i
+		}
+	}
+	if best < 0 {
+		return nil
+	}
+	return &Violation{Target: best / st.nc, Condition: best % st.nc, Count: st.viol[best]}
+}
+
+// finish re-scores the kept candidates with full nodal solves (the numbers
+// people see come from the solver itself, not from the rank-one updates the
+// search used), and marks the Pareto-optimal ones.
+func (st *runState) finish(p *Problem, res *Result) error {
+	s := p.Network.NewSolver()
+	free := make([]float64, len(p.Domains))
+	type scored struct {
+		c  *Candidate
+		sc *constraints.Score
+	}
+	var kept []scored
+	for _, c := range st.top.items {
+		for i, d := range p.Domains {
+			free[i] = d.Options[c.Opt[i]].Value
+		}
+		sc := p.NewScore()
+		if err := p.Evaluate(s, free, sc); err != nil || !sc.Feasible {
+			// Only a candidate sitting on a limit within rounding can get here.
+			continue
+		}
+		full := &Candidate{Opt: c.Opt, Error: sc.Error, Power: sc.Power, Parts: c.Parts}
+		kept = append(kept, scored{full, sc})
+	}
+	// Rank again on the solver's own numbers; they agree with the search's
+	// within rounding, so this only settles near-ties the same way a plain
+	// enumeration would.
+	sort.SliceStable(kept, func(i, j int) bool { return st.r.less(kept[i].c, kept[j].c) })
+	for _, k := range kept {
+		sol := Solution{Options: make([]Option, len(p.Domains)), Parts: k.c.Parts, Score: k.sc}
+		for i, d := range p.Domains {
+			sol.Options[i] = d.Options[k.c.Opt[i]]
+		}
+		res.Solutions = append(res.Solutions, sol)
+	}
+	for i := range res.Solutions {
+		res.Solutions[i].Rank = i + 1
+		res.Solutions[i].Pareto = true
+		a := &res.Solutions[i]
+		for j := range res.Solutions {
+			b := &res.Solutions[j]
+			if i != j && dominates(b, a) {
+				a.Pareto = false
+				break
+			}
+		}
+	}
+	return nil
+}
+
+// dominates reports whether a is at least as good as b in error, power and
+// part count, and better in at least one.
+func dominates(a, b *Solution) bool {
+	le := func(x, y float64) bool { return x <= y || constraints.Same(x, y) }
+	lt := func(x, y float64) bool { return x < y && !constraints.Same(x, y) }
+	if !le(a.Score.Error, b.Score.Error) || !le(a.Score.Power, b.Score.Power) || a.Parts > b.Parts {
+		return false
+	}
+	return lt(a.Score.Error, b.Score.Error) || lt(a.Score.Power, b.Score.Power) || a.Parts < b.Parts
+}
+
+// widen returns a threshold slightly above t, so that pruning never drops a
+// candidate that ties with t under the contract's tolerances.
+func widen(t float64) float64 {
+	return t + math.Max(constraints.TieAbsolute, 2*constraints.TieRelative*math.Abs(t))
+}
+
+// ErrTooManyRows is wrapped by the error of an exhaustive search whose rows
+// exceed Settings.MaxRows.
+var ErrTooManyRows = errors.New("synth: too many rows for an exhaustive search")
+
+func tooManyRows(p *Problem, rows, limit float64) error {
+	return fmt.Errorf("%w: %.3g rows (%s, %.3g candidates) is over the budget of %.3g; narrow the positions' min/max, use a coarser series, fix a part's value, or let the heuristic run", ErrTooManyRows, rows, p.describeSpace(), p.Space(), limit)
+}
+
+// RowCount returns how many rows the exhaustive method would visit: the
+// product of the option counts of every position but the largest.
+func RowCount(p *Problem) float64 {
+	if len(p.Domains) == 0 {
+		return 1
+	}
+	j := rowPosition(p)
+	n := 1.0
+	for i, d := range p.Domains {
+		if i != j {
+			n *= float64(len(d.Options))
+		}
+	}
+	return n
+}

@@ -1,0 +1,281 @@
+package synth_test
+
+import (
+	"context"
+	"fmt"
+	"math/rand/v2"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/constraints/examples"
+	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/synth"
+)
+
+func problemFromYAML(t testing.TB, text, series string) *synth.Problem {
+	t.Helper()
+	tp, err := constraints.Parse("test.yaml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	cp, err := constraints.Compile(tp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := synth.NewProblem(cp, series)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// Every built-in example: the search's top list equals a plain enumeration
+// with an independent gonum MNA solve. Examples whose space is too large for
+// the enumeration to finish quickly are searched with E12 values instead.
+func TestExamplesMatchBruteForce(t *testing.T) {
+	for _, name := range examples.Names() {
+		t.Run(name, func(t *testing.T) {
+			text, _ := examples.Get(name)
+			p := problemFromYAML(t, string(text), "")
+			if p.Space() > 150_000 {
+				p = problemFromYAML(t, string(text), "E12")
+			}
+			if p.Space() > 150_000 {
+				t.Skipf("space %g too large for the plain enumeration", p.Space())
+			}
+			compareWithBrute(t, p, 10, 2)
+		})
+	}
+}
+
+// Random small networks: a source, a few nodes, free and fixed resistors,
+// goals taken from a random valued instance (so a near-exact answer exists)
+// plus a random current or power limit.
+func TestRandomNetworksMatchBruteForce(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 11))
+	series := []string{"E6", "E12"}
+	for trial := range 40 {
+		text := randomTemplate(rng, series[trial%2])
+		t.Run(fmt.Sprint(trial), func(t *testing.T) {
+			p := problemFromYAML(t, text, "")
+			if p.Space() > 60_000 {
+				t.Skipf("space %g", p.Space())
+			}
+			compareWithBrute(t, p, 8, 1+trial%3)
+			if t.Failed() {
+				t.Log(text)
+			}
+		})
+	}
+}
+
+// randomTemplate writes a connected ladder-like network with three or four
+// nodes, two or three free resistors and goals on node voltages.
+func randomTemplate(rng *rand.Rand, series string) string {
+	nodes := []string{"gnd", "in", "n1", "n2", "n3"}[:3+rng.IntN(3)]
+	var b strings.Builder
+	fmt.Fprintf(&b, "ohmfit: 1\nname: random\nparts:\n")
+	fmt.Fprintf(&b, "  - {name: V1, type: voltage-source, plus: in, minus: gnd, volts: %.3g}\n", 1+9*rng.Float64())
+	// A chain in -> n1 -> n2 ... -> gnd guarantees a DC path from every node.
+	free := 0
+	res := 0
+	addR := func(a, c string) {
+		res++
+		if free < 3 && rng.IntN(3) > 0 {
+			free++
+			fmt.Fprintf(&b, "  - {name: R%d, type: resistor, from: %s, to: %s}\n", res, a, c)
+			return
+		}
+		fmt.Fprintf(&b, "  - {name: R%d, type: resistor, from: %s, to: %s, value: %s}\n", res, a, c, eseries.Format(1e3*(1+rng.Float64()*20)))
+	}
+	for i := 1; i < len(nodes)-1; i++ {
+		addR(nodes[i], nodes[i+1])
+	}
+	addR(nodes[len(nodes)-1], "gnd")
+	// A few cross links.
+	for range rng.IntN(3) {
+		a, c := nodes[1+rng.IntN(len(nodes)-1)], nodes[rng.IntN(len(nodes))]
+		if a != c {
+			addR(a, c)
+		}
+	}
+	if free == 0 {
+		addR("in", "gnd")
+	}
+	if rng.IntN(3) == 0 {
+		fmt.Fprintf(&b, "  - {name: I1, type: current-source, from: %s, to: gnd, amps: %.3gu}\n", nodes[len(nodes)-1], 1+rng.Float64()*50)
+	}
+	fmt.Fprintf(&b, "targets:\n")
+	goal := nodes[2+rng.IntN(len(nodes)-2)]
+	fmt.Fprintf(&b, "  - {voltage: %s, equals: %.4g}\n", goal, 0.2+rng.Float64())
+	switch rng.IntN(3) {
+	case 0:
+		fmt.Fprintf(&b, "  - {current: R1, max: %.3gm}\n", 0.1+rng.Float64())
+	case 1:
+		fmt.Fprintf(&b, "limits:\n  supply_power_max: %.3gm\n", 1+rng.Float64()*5)
+	}
+	fmt.Fprintf(&b, "choose:\n  series: %s\n  min: 1k\n  max: 100k\n", series)
+	if rng.IntN(2) == 0 {
+		fmt.Fprintf(&b, "rank: [power, error]\n")
+	}
+	return b.String()
+}
+
+const dividerYAML = `ohmfit: 1
+name: test divider
+parts:
+  - {name: V1, type: voltage-source, plus: in, minus: gnd, volts: 5}
+  - {name: R1, type: resistor, from: in, to: out}
+  - {name: R2, type: resistor, from: out, to: gnd}
+targets:
+  - {voltage: out, equals: 1.234}
+choose: {series: E24, min: 100, max: 1M}
+`
+
+// The divider's best answer against the closed form Vout = Vin·R2/(R1+R2)
+// (voltage divider formula) enumerated directly over the same values.
+func TestDividerClosedForm(t *testing.T) {
+	p := problemFromYAML(t, dividerYAML, "")
+	res, err := synth.Search(context.Background(), p, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, _ := eseries.Lookup("E24")
+	vals := s.Values(100, 1e6)
+	best := 1.0
+	for _, r1 := range vals {
+		for _, r2 := range vals {
+			e := abs(5*r2/(r1+r2)-1.234) / 1.234 // voltage divider formula
+			if e < best {
+				best = e
+			}
+		}
+	}
+	got := res.Solutions[0].Score.Error
+	if !close(got, best, 1e-9, 1e-15) {
+		t.Fatalf("best error %g, closed form %g", got, best)
+	}
+	if res.Status != synth.Proven {
+		t.Errorf("status %v", res.Status)
+	}
+}
+
+func abs(x float64) float64 {
+	if x < 0 {
+		return -x
+	}
+	return x
+}
+
+// The same input gives the same list for 1, 2 and 8 workers.
+func TestWorkersDeterministic(t *testing.T) {
+	p := problemFromYAML(t, loadedDividerYAML("E24"), "")
+	var first string
+	for _, w := range []int{1, 2, 8} {
+		res, err := synth.Search(context.Background(), p, &synth.Settings{Top: 20, Workers: w}, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var b strings.Builder
+		for _, s := range res.Solutions {
+			fmt.Fprintf(&b, "%v %v %.17g %.17g\n", s.Values(), s.Options, s.Score.Error, s.Score.Power)
+		}
+		if first == "" {
+			first = b.String()
+		} else if b.String() != first {
+			t.Fatalf("workers=%d gave a different list:\n%s\nvs\n%s", w, b.String(), first)
+		}
+	}
+}
+
+// A time limit stops the search with the best found so far, not proven.
+func TestTimeLimit(t *testing.T) {
+	p := problemFromYAML(t, loadedDividerYAML("E192"), "")
+	res, err := synth.Search(context.Background(), p, &synth.Settings{TimeLimit: time.Millisecond, Workers: 1, MaxRows: 1e9}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Status != synth.TimeLimit {
+		t.Skipf("search finished within 1 ms (status %v)", res.Status)
+	}
+	if res.Status.Exhaustive() {
+		t.Error("a stopped search must not claim to be exhaustive")
+	}
+}
+
+// A cancelled context stops the search as Interrupted.
+func TestInterrupted(t *testing.T) {
+	p := problemFromYAML(t, loadedDividerYAML("E96"), "")
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	res, err := synth.Search(ctx, p, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Status != synth.Interrupted || res.Status.Exhaustive() {
+		t.Fatalf("status %v", res.Status)
+	}
+}
+
+// Nothing feasible: the status says so and the blocking limit is named.
+func TestNoFeasible(t *testing.T) {
+	text := strings.Replace(dividerYAML, "targets:\n", "targets:\n  - {current: R1, max: 1n}\n", 1)
+	p := problemFromYAML(t, text, "")
+	res, err := synth.Search(context.Background(), p, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Status != synth.NoFeasible || len(res.Solutions) != 0 {
+		t.Fatalf("status %v, %d solutions", res.Status, len(res.Solutions))
+	}
+	if res.Blocking == nil || p.Template.Targets[res.Blocking.Target].Label() != "current R1" {
+		t.Fatalf("blocking %+v", res.Blocking)
+	}
+}
+
+// loadedDividerYAML: R1 top, R2 bottom, R3 in series into a fixed 10k load;
+// 2.5 V on the load from 5 V; the source must see at least 10k.
+func loadedDividerYAML(series string) string {
+	return `ohmfit: 1
+name: loaded divider
+parts:
+  - {name: V1, type: voltage-source, plus: in, minus: gnd, volts: 5}
+  - {name: R1, type: resistor, from: in, to: mid}
+  - {name: R2, type: resistor, from: mid, to: gnd}
+  - {name: R3, type: resistor, from: mid, to: load}
+  - {name: RL, type: resistor, from: load, to: gnd, value: 10k}
+targets:
+  - {voltage: load, equals: 2.5}
+limits:
+  supply_power_max: 2.5m
+choose: {series: ` + series + `, min: 100, max: 1M}
+`
+}
+
+// The heuristic finds the proven best on a space the exhaustive method can
+// check, and never claims to be exhaustive.
+func TestRelaxFindsProvenBest(t *testing.T) {
+	for _, text := range []string{dividerYAML, loadedDividerYAML("E24")} {
+		p := problemFromYAML(t, text, "")
+		exact, err := synth.Search(context.Background(), p, nil, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		heur, err := synth.Search(context.Background(), p, nil, synth.Relax{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if heur.Status != synth.Heuristic || heur.Status.Exhaustive() {
+			t.Errorf("status %v", heur.Status)
+		}
+		if len(heur.Solutions) == 0 {
+			t.Fatal("heuristic found nothing")
+		}
+		// Same best error (the heuristic may find a different tie).
+		if !close(heur.Solutions[0].Score.Error, exact.Solutions[0].Score.Error, 1e-9, 1e-12) {
+			t.Errorf("heuristic best %g, proven best %g", heur.Solutions[0].Score.Error, exact.Solutions[0].Score.Error)
+		}
+	}
+}
