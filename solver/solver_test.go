@@ -2,6 +2,7 @@ package solver
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -221,5 +222,39 @@ func TestZeroAllocs(t *testing.T) {
 				t.Errorf("results: %v allocs/run", n)
 			}
 		})
+	}
+}
+
+// TestConcurrentSolvers: one Network, one Solver per goroutine (run with
+// -race). Each goroutine's divider must follow its own R1 (divider formula).
+func TestConcurrentSolvers(t *testing.T) {
+	net, err := Compile(Circuit{Parts: []Part{vsrc("V1", "in", "gnd", 10), res("R1", "in", "out", 1e3), res("R2", "out", "gnd", 1e3)}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	out, _ := net.NodeIndex("out")
+	errs := make(chan error, 8)
+	for g := range 8 {
+		go func() {
+			s := net.NewSolver()
+			r1 := 1e3 * float64(g+1)
+			for range 200 {
+				s.SetValue(1, r1)
+				if err := s.Solve(); err != nil {
+					errs <- err
+					return
+				}
+				if want := 10 * 1e3 / (r1 + 1e3); !near(s.Voltage(out), want, lawTol) {
+					errs <- fmt.Errorf("goroutine %d: V(out) = %g, want %g", g, s.Voltage(out), want)
+					return
+				}
+			}
+			errs <- nil
+		}()
+	}
+	for range 8 {
+		if err := <-errs; err != nil {
+			t.Error(err)
+		}
 	}
 }

@@ -53,8 +53,7 @@ func (m Relax) run(ctx context.Context, p *Problem, set *Settings, st *runState)
 		}
 	}
 	rx := &relaxer{p: p, st: st, s: p.Network.NewSolver(), sc: p.NewScore(),
-		free: make([]float64, len(p.Domains)), w: newRowWorker(p, st.r, set.Top, j, outer)}
-	defer func() { st.merge(rx.w.top, rx.w.viol, rx.w.stats) }()
+		free: make([]float64, len(p.Domains))}
 	k := len(p.Domains)
 	lo, hi := make([]float64, k), make([]float64, k)
 	for i, d := range p.Domains {
@@ -84,7 +83,11 @@ func (m Relax) run(ctx context.Context, p *Problem, set *Settings, st *runState)
 			x = res.X
 		}
 		_ = err // a relaxation that stops early still gives a usable point
+		// Each start walks with a row worker of its own, so that its centre
+		// follows its own best answer, not one another start found.
+		rx.w = newRowWorker(p, st.r, set.Top, j, outer)
 		rx.descend(ctx, x, lo, hi, m.Radius)
+		st.merge(rx.w.top, rx.w.viol, rx.w.stats)
 		if set.Progress != nil {
 			set.Progress.done.Add(1)
 		}

@@ -416,7 +416,10 @@ func writeFitTable(w io.Writer, p *synth.Problem, res *synth.Result) error {
 		row = append(row, errorText(s.Score.Error), eseries.FormatUnit(s.Score.Power, eseries.Watt), strconv.Itoa(s.Parts))
 		for _, g := range goals {
 			v := s.Score.Values[g.target*nc+g.cond]
-			row = append(row, eseries.FormatUnit(v, p.Template.Targets[g.target].Kind.Unit()))
+			if math.Abs(v) < constraints.TieAbsolute {
+				v = 0 // rounding residue of an exact hit, e.g. a balanced bridge
+			}
+			row = append(row, preciseUnit(v, p.Template.Targets[g.target].Kind.Unit()))
 		}
 		tb.add(row...)
 	}
@@ -519,4 +522,21 @@ func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result) error {
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// preciseUnit is FormatUnit with five significant digits, for goal values
+// that sit close to their goal: "595.99 mV" rather than "596 mV".
+func preciseUnit(v float64, u eseries.Unit) string {
+	s := eseries.FormatSig(v, 5)
+	if u == eseries.NoUnit || u == eseries.Percent {
+		return s
+	}
+	prefix := ""
+	if n := len(s); n > 0 && strings.ContainsRune("pnumkMG", rune(s[n-1])) {
+		s, prefix = s[:n-1], s[n-1:]
+	}
+	if prefix == "u" {
+		prefix = "µ"
+	}
+	return s + " " + prefix + u.String()
 }
