@@ -26,6 +26,7 @@ type FloatingError struct {
 	Nodes []string // every node of the group, in node order
 }
 
+// Error names the fault in an engineer's words.
 func (e *FloatingError) Error() string {
 	if len(e.Nodes) == 1 {
 		return fmt.Sprintf("solver: node %s has no DC path to ground", e.Nodes[0])
@@ -44,6 +45,7 @@ type SourceLoopError struct {
 	Sources []string // the voltage sources and op-amps in the loop, in edge order
 }
 
+// Error names the fault in an engineer's words.
 func (e *SourceLoopError) Error() string {
 	names := strings.Join(e.Sources, ", ")
 	if len(e.Sources) == 1 {
@@ -65,6 +67,7 @@ type InputLoopError struct {
 	Parts []string // the voltage sources and op-amps on the loop, in edge order
 }
 
+// Error names the fault in an engineer's words.
 func (e *InputLoopError) Error() string {
 	return fmt.Sprintf("solver: %s form a loop of voltage sources and op-amp inputs "+
 		"(an ideal op-amp's inputs sit at equal voltage)", strings.Join(e.Parts, ", "))
@@ -81,6 +84,7 @@ type CurrentCutsetError struct {
 	Nodes   []string // every node of the group, in node order
 }
 
+// Error names the fault in an engineer's words.
 func (e *CurrentCutsetError) Error() string {
 	return fmt.Sprintf("solver: current from %s has nowhere to go: %s %s no other DC path to ground",
 		strings.Join(e.Sources, ", "), plural(len(e.Nodes), "node", "nodes"), nodeList(e.Nodes))
@@ -99,6 +103,7 @@ type OpAmpFeedbackError struct {
 	Input, Other string
 }
 
+// Error names the fault in an engineer's words.
 func (e *OpAmpFeedbackError) Error() string {
 	if e.Input != "" {
 		return fmt.Sprintf("solver: op-amp %s has no usable feedback: input node %s connects to the "+
@@ -118,6 +123,7 @@ type SingularError struct {
 	Unknown string // e.g. `node "fb"`, `current of voltage source "V1"`
 }
 
+// Error names the fault in an engineer's words.
 func (e *SingularError) Error() string {
 	return fmt.Sprintf("solver: singular network: no pivot for the %s", e.Unknown)
 }
@@ -132,6 +138,7 @@ type IllConditionedError struct {
 	Cond float64
 }
 
+// Error names the fault in an engineer's words.
 func (e *IllConditionedError) Error() string {
 	return fmt.Sprintf("solver: network is ill-conditioned (condition number %.3g); "+
 		"check for values many decades apart", e.Cond)
@@ -148,6 +155,7 @@ type ValueError struct {
 	Value float64
 }
 
+// Error names the fault in an engineer's words.
 func (e *ValueError) Error() string {
 	if e.Kind == Resistor {
 		return fmt.Sprintf("solver: resistor %s has unusable resistance %g (must be finite and > 0)", e.Part, e.Value)
@@ -160,6 +168,7 @@ type DuplicatePartError struct {
 	Name string
 }
 
+// Error names the fault in an engineer's words.
 func (e *DuplicatePartError) Error() string {
 	return fmt.Sprintf("solver: duplicate part name %q", e.Name)
 }
@@ -172,6 +181,7 @@ type PartError struct {
 	Reason string
 }
 
+// Error names the fault in an engineer's words.
 func (e *PartError) Error() string {
 	if e.Name == "" {
 		return fmt.Sprintf("solver: part #%d: %s", e.Index+1, e.Reason)
@@ -189,6 +199,7 @@ type ShortedError struct {
 	Node string
 }
 
+// Error names the fault in an engineer's words.
 func (e *ShortedError) Error() string {
 	if e.Kind == OpAmp {
 		return fmt.Sprintf("solver: op-amp %s has both inputs on node %s", e.Part, e.Node)
