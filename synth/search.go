@@ -7,6 +7,7 @@ import (
 	"math"
 	"runtime"
 	"sort"
+	"strings"
 	"sync/atomic"
 	"time"
 
@@ -25,6 +26,29 @@ type Problem struct {
 func NewProblem(cp *constraints.Problem, series string) (*Problem, error) {
 	p := &Problem{Problem: cp}
 	t := cp.Template
+	// Size the space from the base lists before building any pairs, so that
+	// an absurd request is refused at once rather than after minutes of
+	// sorting. Merging equal pair values shrinks a space only a little, so
+	// the refusal keeps a wide margin.
+	bound := 1.0
+	var desc []string
+	for _, i := range cp.Free {
+		name := t.Parts[i].Name
+		ch := t.Choose.For(name)
+		if series != "" {
+			ch.Series, ch.Stock = series, nil
+		}
+		base, err := BaseValues(ch)
+		if err != nil {
+			return nil, err
+		}
+		n := OptionCount(len(base), ch.Combine)
+		bound *= n
+		desc = append(desc, fmt.Sprintf("%s %.3g", name, n))
+	}
+	if bound > 10*MaxSpace {
+		return nil, fmt.Errorf("%w: about %.3g candidates (%s); narrow the positions' min/max, use a coarser series or fewer pairs", ErrSpaceTooLarge, bound, strings.Join(desc, " × "))
+	}
 	for _, i := range cp.Free {
 		name := t.Parts[i].Name
 		ch := t.Choose.For(name)

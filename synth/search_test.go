@@ -39,8 +39,11 @@ func TestExamplesMatchBruteForce(t *testing.T) {
 		t.Run(name, func(t *testing.T) {
 			text, _ := examples.Get(name)
 			p := problemFromYAML(t, string(text), "")
-			if p.Space() > 150_000 {
-				p = problemFromYAML(t, string(text), "E12")
+			for _, coarser := range []string{"E12", "E6", "E3"} {
+				if p.Space() <= 150_000 {
+					break
+				}
+				p = problemFromYAML(t, string(text), coarser)
 			}
 			if p.Space() > 150_000 {
 				t.Skipf("space %g too large for the plain enumeration", p.Space())
@@ -56,7 +59,7 @@ func TestExamplesMatchBruteForce(t *testing.T) {
 func TestRandomNetworksMatchBruteForce(t *testing.T) {
 	rng := rand.New(rand.NewPCG(7, 11))
 	series := []string{"E6", "E12"}
-	for trial := range 40 {
+	for trial := range 80 {
 		text := randomTemplate(rng, series[trial%2])
 		t.Run(fmt.Sprint(trial), func(t *testing.T) {
 			p := problemFromYAML(t, text, "")
@@ -110,13 +113,33 @@ func randomTemplate(rng *rand.Rand, series string) string {
 	fmt.Fprintf(&b, "targets:\n")
 	goal := nodes[2+rng.IntN(len(nodes)-2)]
 	fmt.Fprintf(&b, "  - {voltage: %s, equals: %.4g}\n", goal, 0.2+rng.Float64())
-	switch rng.IntN(3) {
+	// Limits of every kind the search reads from its rank-one update, so the
+	// fast path is compared with the plain enumeration for each of them.
+	switch rng.IntN(7) {
 	case 0:
 		fmt.Fprintf(&b, "  - {current: R1, max: %.3gm}\n", 0.1+rng.Float64())
 	case 1:
+		fmt.Fprintf(&b, "  - {power: R1, max: %.3gm}\n", 0.2+rng.Float64())
+	case 2:
+		fmt.Fprintf(&b, "  - {ratio: [%s, in], min: %.3g}\n", goal, 0.05+0.2*rng.Float64())
+	case 3:
+		fmt.Fprintf(&b, "  - {resistance: [%s, gnd], max: %.3gk}\n", goal, 1+5*rng.Float64())
+	case 4:
+		fmt.Fprintf(&b, "  - {current: V1, min: -%.3gm}\n", 0.5+2*rng.Float64())
+	case 5:
+		fmt.Fprintf(&b, "  - {voltage: [in, %s], equals: %.3g, tolerance: 20%%}\n", goal, 1+3*rng.Float64())
+	}
+	if rng.IntN(3) == 0 {
 		fmt.Fprintf(&b, "limits:\n  supply_power_max: %.3gm\n", 1+rng.Float64()*5)
 	}
-	fmt.Fprintf(&b, "choose:\n  series: %s\n  min: 1k\n  max: 100k\n", series)
+	switch rng.IntN(4) {
+	case 0:
+		fmt.Fprintf(&b, "choose:\n  series: E3\n  min: 1k\n  max: 100k\n  combine: %s\n", []string{"series", "parallel", "any"}[rng.IntN(3)])
+	case 1:
+		fmt.Fprintf(&b, "choose:\n  series: [1k, 2.2k, 3.3k, 4k7, 6.8k, 10k, 15k, 22k, 47k]\n")
+	default:
+		fmt.Fprintf(&b, "choose:\n  series: %s\n  min: 1k\n  max: 100k\n", series)
+	}
 	if rng.IntN(2) == 0 {
 		fmt.Fprintf(&b, "rank: [power, error]\n")
 	}

@@ -155,7 +155,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	case "heuristic":
 		method = synth.Relax{}
 	case "auto":
-		if rows := synth.RowCount(p); rows > synth.DefaultMaxRows {
+		if rows := synth.RowCount(p); rows > synth.DefaultMaxRows && p.Space() <= synth.MaxSpace {
 			method = synth.Relax{}
 			fmt.Fprintf(o.ErrOut, "ohmfit: %.3g rows is too many to prove the best answer (budget %.3g); searching heuristically\n", rows, float64(synth.DefaultMaxRows))
 		}

@@ -103,6 +103,7 @@ func TestGolden(t *testing.T) {
 		{"fit-err-series", []string{"fit", "example:feedback", "--series", "E25"}, ExitBadInput},
 		{"fit-err-top", []string{"fit", "example:feedback", "--top", "0"}, ExitBadInput},
 		{"fit-err-method", []string{"fit", "example:feedback", "--method", "fast"}, ExitBadInput},
+		{"fit-err-absurd", []string{"fit", "testdata/absurd.yaml"}, ExitBadInput},
 		{"fit-err-missing", []string{"fit", "testdata/no-such-file.yaml"}, ExitBadInput},
 		{"divider-table", []string{"divider", "--vin", "3.3", "--vout", "0.8", "--series", "E96", "--max-current", "100u", "--top", "5", "--workers", "1"}, ExitOK},
 		{"divider-load-json", []string{"divider", "--vin", "12", "--vout", "2.5", "--load", "100k", "--tolerance", "1%", "--top", "2", "--format", "json", "--workers", "1"}, ExitOK},

@@ -1,0 +1,142 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"math"
+	"os"
+	"os/exec"
+	"strings"
+	"syscall"
+	"testing"
+	"time"
+)
+
+// TestMain lets the test binary act as the ohmfit command when asked, so a
+// test can run it as a real process and send it a real interrupt.
+func TestMain(m *testing.M) {
+	if os.Getenv("OHMFIT_TEST_MAIN") == "1" {
+		os.Exit(int(run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr)))
+	}
+	os.Exit(m.Run())
+}
+
+type fitDoc struct {
+	Exhaustive bool   `json:"exhaustive"`
+	Status     string `json:"status"`
+	Solutions  []struct {
+		Rank    int                  `json:"rank"`
+		Values  map[string]float64   `json:"values"`
+		Parts   map[string][]float64 `json:"parts"`
+		Error   float64              `json:"error"`
+		Power   float64              `json:"power"`
+		Targets []struct {
+			Target string  `json:"target"`
+			Value  float64 `json:"value"`
+		} `json:"targets"`
+	} `json:"solutions"`
+}
+
+func fitJSONDoc(t *testing.T, args ...string) fitDoc {
+	t.Helper()
+	out, errOut, code := runCLI(t, args...)
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	var doc fitDoc
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatalf("%v in %s", err, out)
+	}
+	return doc
+}
+
+// Each divider answer against the closed form Vout = Vin·R2/(R1+R2) (voltage
+// divider formula), R2 in parallel with the load when there is one.
+func TestDividerAgainstClosedForm(t *testing.T) {
+	doc := fitJSONDoc(t, "divider", "--vin", "12", "--vout", "2.5", "--load", "100k", "--format", "json", "--top", "20")
+	if len(doc.Solutions) != 20 || !doc.Exhaustive {
+		t.Fatalf("%d solutions, exhaustive %v", len(doc.Solutions), doc.Exhaustive)
+	}
+	for _, s := range doc.Solutions {
+		r1, r2 := s.Values["R1"], s.Values["R2"]
+		low := r2 * 100e3 / (r2 + 100e3) // parallel law
+		want := 12 * low / (r1 + low)
+		got := s.Targets[0].Value
+		if math.Abs(got-want) > 1e-12*want {
+			t.Errorf("R1 %g R2 %g: %g V, closed form %g V", r1, r2, got, want)
+		}
+		if e := math.Abs(want-2.5) / 2.5; math.Abs(e-s.Error) > 1e-12 {
+			t.Errorf("R1 %g R2 %g: error %g, closed form %g", r1, r2, s.Error, e)
+		}
+		// Power: Vin² / (R1 + R2∥RL) — Ohm's law and the series law.
+		if p := 12 * 12 / (r1 + low); math.Abs(p-s.Power) > 1e-12*p {
+			t.Errorf("power %g, closed form %g", s.Power, p)
+		}
+	}
+}
+
+// The feedback network is solved as a network; its answers must obey the
+// adjustable regulator's closed form Vout = Vref·(1 + R1/R2) + Ibias·R1,
+// which follows from KCL at the feedback pin with the pin held at Vref.
+func TestFeedbackAgainstClosedForm(t *testing.T) {
+	doc := fitJSONDoc(t, "feedback", "--vref", "0.6", "--vout", "1.8", "--bias-current", "200n", "--series", "E24", "--format", "json", "--top", "15")
+	for _, s := range doc.Solutions {
+		r1, r2 := s.Values["R1"], s.Values["R2"]
+		want := 0.6*(1+r1/r2) + 200e-9*r1
+		if got := s.Targets[0].Value; math.Abs(got-want) > 1e-12*want {
+			t.Errorf("R1 %g R2 %g: Vout %g, closed form %g", r1, r2, got, want)
+		}
+	}
+}
+
+// A time limit ends a search that cannot finish with the best found so far,
+// marked not exhaustive, exit 0.
+func TestFitTimeLimit(t *testing.T) {
+	out, errOut, code := runCLI(t, "fit", "testdata/big.yaml", "--method", "exhaustive", "--time-limit", "200ms", "--format", "json", "--top", "3")
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	var doc fitDoc
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if doc.Exhaustive || doc.Status != "time limit" || len(doc.Solutions) == 0 {
+		t.Fatalf("exhaustive %v, status %q, %d solutions", doc.Exhaustive, doc.Status, len(doc.Solutions))
+	}
+	if !strings.Contains(errOut, "time limit") {
+		t.Errorf("stderr should say the time limit was reached: %q", errOut)
+	}
+}
+
+// Ctrl-C (SIGINT) stops a long search cleanly: the best so far is printed,
+// marked not proven, and the process exits 0 without a stack trace.
+func TestFitInterrupt(t *testing.T) {
+	cmd := exec.Command(os.Args[0], "fit", "testdata/big.yaml", "--method", "exhaustive", "--top", "3")
+	cmd.Env = append(os.Environ(), "OHMFIT_TEST_MAIN=1")
+	var out, errOut bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &out, &errOut
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	time.Sleep(500 * time.Millisecond)
+	if err := cmd.Process.Signal(syscall.SIGINT); err != nil {
+		t.Fatal(err)
+	}
+	done := make(chan error, 1)
+	go func() { done <- cmd.Wait() }()
+	select {
+	case err := <-done:
+		if err != nil {
+			t.Fatalf("%v; stderr: %s", err, errOut.String())
+		}
+	case <-time.After(30 * time.Second):
+		cmd.Process.Kill()
+		t.Fatal("the search did not stop after an interrupt")
+	}
+	if !strings.Contains(out.String(), "not proven (interrupted)") || !strings.Contains(out.String(), "1*") {
+		t.Errorf("stdout should show the best so far, marked not proven:\n%s", out.String())
+	}
+	if !strings.Contains(errOut.String(), "interrupted") || strings.Contains(errOut.String(), "goroutine") {
+		t.Errorf("stderr: %q", errOut.String())
+	}
+}
