@@ -201,6 +201,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 func showProgress(w io.Writer, pr *synth.Progress, done chan struct{}) {
 	tick := time.NewTicker(150 * time.Millisecond)
 	defer tick.Stop()
+	start := time.Now()
 	shown := false
 	for {
 		select {
@@ -218,7 +219,11 @@ func showProgress(w io.Writer, pr *synth.Progress, done chan struct{}) {
 			const width = 30
 			f := float64(d) / float64(n)
 			bar := strings.Repeat("=", int(f*width)) + strings.Repeat(".", width-int(f*width))
-			fmt.Fprintf(w, "\r  searching [%s] %3.0f%%  %d/%d", bar, 100*f, d, n)
+			eta := "?"
+			if d > 0 {
+				eta = roundDuration(time.Duration(float64(time.Since(start)) * float64(n-d) / float64(d))).String()
+			}
+			fmt.Fprintf(w, "\r\033[K  searching [%s] %3.0f%%  %s of %s rows, about %s left", bar, 100*f, count(float64(d)), count(float64(n)), eta)
 			shown = true
 		}
 	}
@@ -434,12 +439,19 @@ func writeFitTable(w io.Writer, p *synth.Problem, res *synth.Result) error {
 }
 
 // errorText shows a goal error as a percentage with three significant
-// digits, and an exact hit (within rounding) as "0".
+// digits, in ppm below 0.01 % where a percentage would need a row of zeros,
+// in plain exponent form below 0.1 ppm, and an exact hit (within rounding)
+// as "0".
 func errorText(e float64) string {
-	if e <= 1e-12 {
+	switch {
+	case e <= 1e-12:
 		return "0"
+	case e >= 1e-4:
+		return strings.TrimPrefix(percent(e), "+")
+	case e >= 1e-7:
+		return strconv.FormatFloat(e*1e6, 'g', 3, 64) + " ppm"
 	}
-	return strings.TrimPrefix(percent(e), "+")
+	return strconv.FormatFloat(e, 'e', 2, 64)
 }
 
 // fitJSON builds the contract's JSON document for a search.
