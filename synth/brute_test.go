@@ -351,3 +351,64 @@ func close(a, b, rel, abs float64) bool {
 	d := math.Abs(a - b)
 	return d <= abs || d <= rel*math.Max(math.Abs(a), math.Abs(b))
 }
+
+// bruteFront is the trade-off front of a rank-ordered list written plainly:
+// every candidate with error within cap that no other such candidate
+// dominates (no worse in error, power and part count, better in one); of
+// candidates tied in all three, the first in rank order.
+func bruteFront(all []bruteCand, cap float64) []bruteCand {
+	le := func(x, y float64) bool { return x <= y || constraints.Same(x, y) }
+	lt := func(x, y float64) bool { return x < y && !constraints.Same(x, y) }
+	var in []bruteCand
+	for _, c := range all {
+		if le(c.err, cap) {
+			in = append(in, c)
+		}
+	}
+	var out []bruteCand
+	for i, c := range in {
+		keep := true
+		for j, d := range in {
+			if i == j {
+				continue
+			}
+			noWorse := le(d.err, c.err) && le(d.power, c.power) && d.parts <= c.parts
+			better := lt(d.err, c.err) || lt(d.power, c.power) || d.parts < c.parts
+			tie := constraints.Same(d.err, c.err) && constraints.Same(d.power, c.power) && d.parts == c.parts
+			if (noWorse && better) || (tie && j < i) {
+				keep = false
+				break
+			}
+		}
+		if keep {
+			out = append(out, c)
+		}
+	}
+	sort.SliceStable(out, func(i, j int) bool {
+		if !constraints.Same(out[i].err, out[j].err) {
+			return out[i].err < out[j].err
+		}
+		return out[i].power < out[j].power
+	})
+	return out
+}
+
+// compareFrontWithBrute checks the search's trade-off front against the
+// plain enumeration's.
+func compareFrontWithBrute(t *testing.T, p *synth.Problem, cap float64, workers int) {
+	t.Helper()
+	want := bruteFront(bruteForce(t, p), cap)
+	res, err := synth.Search(context.Background(), p, &synth.Settings{Top: 3, Workers: workers, FrontErrorCap: cap}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Front) != len(want) {
+		t.Fatalf("front has %d answers, enumeration %d", len(res.Front), len(want))
+	}
+	for i, w := range want {
+		if fmt.Sprint(res.Front[i].Values()) != fmt.Sprint(w.vals) {
+			t.Errorf("front %d: search %v (%g, %g), enumeration %v (%g, %g)", i, res.Front[i].Values(),
+				res.Front[i].Score.Error, res.Front[i].Score.Power, w.vals, w.err, w.power)
+		}
+	}
+}

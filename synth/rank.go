@@ -139,3 +139,44 @@ func (t *topList) offer(c *Candidate) bool {
 	}
 	return true
 }
+
+// frontList keeps the candidates no other kept candidate dominates: at least
+// as good in error, power and part count, and better in one (error and power
+// compared with the contract's tie tolerances). Of candidates equal in all
+// three, the one that ranks first is kept, so the front is deterministic.
+type frontList struct {
+	r     *ranker
+	items []*Candidate
+}
+
+// dominatesCand reports whether a dominates b.
+func dominatesCand(a, b *Candidate) bool {
+	le := func(x, y float64) bool { return x <= y || constraints.Same(x, y) }
+	lt := func(x, y float64) bool { return x < y && !constraints.Same(x, y) }
+	if !le(a.Error, b.Error) || !le(a.Power, b.Power) || a.Parts > b.Parts {
+		return false
+	}
+	return lt(a.Error, b.Error) || lt(a.Power, b.Power) || a.Parts < b.Parts
+}
+
+// sameObjectives reports whether a and b tie in error, power and part count.
+func sameObjectives(a, b *Candidate) bool {
+	return constraints.Same(a.Error, b.Error) && constraints.Same(a.Power, b.Power) && a.Parts == b.Parts
+}
+
+// offer adds a copy of c unless a kept candidate dominates it, and drops the
+// kept candidates c dominates.
+func (f *frontList) offer(c *Candidate) {
+	for _, m := range f.items {
+		if dominatesCand(m, c) || (sameObjectives(m, c) && !f.r.less(c, m)) {
+			return
+		}
+	}
+	kept := f.items[:0]
+	for _, m := range f.items {
+		if !dominatesCand(c, m) && !sameObjectives(c, m) {
+			kept = append(kept, m)
+		}
+	}
+	f.items = append(kept, &Candidate{Opt: append([]int32(nil), c.Opt...), Error: c.Error, Power: c.Power, Parts: c.Parts})
+}

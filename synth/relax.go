@@ -85,9 +85,9 @@ func (m Relax) run(ctx context.Context, p *Problem, set *Settings, st *runState)
 		_ = err // a relaxation that stops early still gives a usable point
 		// Each start walks with a row worker of its own, so that its centre
 		// follows its own best answer, not one another start found.
-		rx.w = newRowWorker(p, st.r, set.Top, j, outer)
+		rx.w = newRowWorker(p, st.r, set, j, outer)
 		rx.descend(ctx, x, lo, hi, m.Radius)
-		st.merge(rx.w.top, rx.w.viol, rx.w.stats)
+		st.merge(rx.w.top, rx.w.front, rx.w.viol, rx.w.stats)
 		if set.Progress != nil {
 			set.Progress.done.Add(1)
 		}

@@ -72,7 +72,7 @@ func (Rows) run(ctx context.Context, p *Problem, set *Settings, st *runState) er
 	var wg sync.WaitGroup
 	for range workers {
 		wg.Go(func() {
-			w := newRowWorker(p, st.r, set.Top, j, outer)
+			w := newRowWorker(p, st.r, set, j, outer)
 			for {
 				if ctx.Err() != nil {
 					stopped.Store(true)
@@ -89,7 +89,7 @@ func (Rows) run(ctx context.Context, p *Problem, set *Settings, st *runState) er
 				}
 			}
 			mu.Lock()
-			st.merge(w.top, w.viol, w.stats)
+			st.merge(w.top, w.front, w.viol, w.stats)
 			mu.Unlock()
 		})
 	}
@@ -174,9 +174,14 @@ type rowWorker struct {
 	branch []int // per part: unknown of its current + 1 in the x0 layout, or -1
 	keys   []constraints.RankKey
 	lim    float64
+	ranges [][2]int // narrow's result, reused
+
+	frontCap float64    // goal error bound of the trade-off front; 0: none kept
+	front    *frontList // the worker's trade-off front, nil when none is kept
 }
 
-func newRowWorker(p *Problem, r *ranker, top, j int, outer []int) *rowWorker {
+func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *rowWorker {
+	top := set.Top
 	net := p.Network
 	n := net.Unknowns()
 	nc := len(p.Conditions)
@@ -191,6 +196,7 @@ func newRowWorker(p *Problem, r *ranker, top, j int, outer []int) *rowWorker {
 		nc:   nc, free: make([]float64, len(p.Domains)), sc: p.NewScore(),
 		port: make([]float64, n+1),
 		keys: p.Template.Rank, lim: p.Template.Limits.SupplyPowerMax,
+		ranges: make([][2]int, 0, 2),
 	}
 	parts := net.Parts()
 	w.edges = make([]solver.Edge, len(parts))
@@ -206,6 +212,10 @@ func newRowWorker(p *Problem, r *ranker, top, j int, outer []int) *rowWorker {
 	}
 	e := w.edges[w.jPart]
 	w.ja, w.jb = e.From, e.To
+	if set.FrontErrorCap > 0 {
+		w.frontCap = set.FrontErrorCap
+		w.front = &frontList{r: r}
+	}
 	for c := range w.cond {
 		rc := &w.cond[c]
 		rc.vals = make([]float64, len(parts))
@@ -259,9 +269,10 @@ func (w *rowWorker) searchRow() {
 			}
 		}
 	}
-	lo, hi = w.narrow(lo, hi)
-	for i := lo; i <= hi; i++ {
-		w.scoreOption(i)
+	for _, r := range w.narrow(lo, hi) {
+		for i := r[0]; i <= r[1]; i++ {
+			w.scoreOption(i)
+		}
 	}
 }
 
@@ -439,6 +450,9 @@ func (w *rowWorker) offer(i int, errMax, powMax float64) {
 	}
 	w.cand.Error, w.cand.Power, w.cand.Parts = errMax, powMax, parts
 	w.top.offer(&w.cand)
+	if w.front != nil && (errMax <= w.frontCap || constraints.Same(errMax, w.frontCap)) {
+		w.front.offer(&w.cand)
+	}
 }
 
 // slowRow scores options lo..hi with full nodal solves: for rows where the
@@ -463,66 +477,111 @@ func (w *rowWorker) slowRow(lo, hi int) {
 	}
 }
 
-// narrow shrinks [lo, hi] to the options that can still meet every monotone
-// hard limit and reach the top list, by binary search on each monotone
-// quantity. Options it cuts are counted as blocked by the limit that cut them
-// only when a hard limit (not the top list) empties the row.
-func (w *rowWorker) narrow(lo, hi int) (int, int) {
-	p := w.p
+// narrow returns the ranges of options lo..hi still worth scoring: those
+// that meet every monotone hard limit and that could still enter the top list
+// (or the trade-off front, when one is kept). Everything it drops is proven
+// unable to: each test is a binary search on a quantity that is monotone
+// along the row.
+func (w *rowWorker) narrow(lo, hi int) [][2]int {
+	lo, hi = w.hardLimits(lo, hi)
+	if lo > hi {
+		return nil
+	}
+	full := append(w.ranges[:0], [2]int{lo, hi})
 	worst := w.top.worst()
-	byError := worst != nil && len(w.keys) > 0 && w.keys[0] == constraints.ByError
-	byPower := worst != nil && len(w.keys) > 0 && w.keys[0] == constraints.ByPower
+	primary := constraints.ByError
+	if len(w.keys) > 0 {
+		primary = w.keys[0]
+	}
+	switch primary {
+	case constraints.ByError:
+		t := math.Inf(1)
+		if worst != nil {
+			t = widen(worst.Error)
+		}
+		if w.frontCap > 0 {
+			t = math.Max(t, widen(w.frontCap))
+		}
+		if math.IsInf(t, 1) {
+			return full
+		}
+		a, b := w.goalRange(lo, hi, t)
+		if a > b {
+			return nil
+		}
+		return append(w.ranges[:0], [2]int{a, b})
+	case constraints.ByPower:
+		if worst == nil {
+			return full
+		}
+		a, b, ok := w.powerRange(lo, hi, widen(worst.Power))
+		if !ok {
+			return full
+		}
+		out := w.ranges[:0]
+		if a <= b {
+			out = append(out, [2]int{a, b})
+		}
+		if w.frontCap > 0 {
+			// The front also wants low-error options the power bound drops.
+			c, d := w.goalRange(lo, hi, widen(w.frontCap))
+			out = unionRange(out, c, d)
+		}
+		return out
+	}
+	return full
+}
+
+// unionRange adds [a, b] (if not empty) to at most one existing range,
+// merging the two when they overlap or touch.
+func unionRange(r [][2]int, a, b int) [][2]int {
+	if a > b {
+		return r
+	}
+	if len(r) == 0 {
+		return append(r, [2]int{a, b})
+	}
+	x := r[0]
+	if a <= x[1]+1 && x[0] <= b+1 {
+		r[0] = [2]int{min(a, x[0]), max(b, x[1])}
+		return r
+	}
+	if a < x[0] {
+		return append([][2]int{{a, b}}, x)
+	}
+	return append(r, [2]int{a, b})
+}
+
+// hardLimits shrinks lo..hi to the options that meet every hard limit on a
+// quantity monotone along the row (in every condition). When a limit empties
+// a row before any answer is known, the row's options are counted against
+// that limit, for the message when nothing is feasible.
+func (w *rowWorker) hardLimits(lo, hi int) (int, int) {
+	p := w.p
+	counting := w.top.worst() == nil
 	for c := range w.cond {
 		rc := &w.cond[c]
-		// Total power: affine in s without op-amps; otherwise monotone when
-		// the parabola's vertex lies outside the row.
-		if w.lim > 0 || byPower {
-			if w.powerMonotone(rc, lo, hi) {
-				top := math.Inf(1)
-				if w.lim > 0 {
-					top = w.lim
+		if w.lim > 0 && w.powerMonotone(rc, lo, hi) {
+			nlo, nhi := w.bisect(lo, hi, math.Inf(-1), w.lim, rc, -1)
+			if nlo > nhi {
+				if counting {
+					w.viol[len(p.Probes)*w.nc+c] += int64(hi - lo + 1)
 				}
-				if byPower {
-					top = math.Min(top, widen(worst.Power))
-				}
-				nlo, nhi := w.bisect(lo, hi, math.Inf(-1), top, func(i int) float64 {
-					g := 1 / w.opts[i].Value
-					s := rc.sAt(g)
-					return rc.p0 + s*(rc.p1+s*rc.p2)
-				})
-				if nlo > nhi {
-					if w.lim > 0 && !byPower {
-						w.viol[len(p.Probes)*w.nc+c] += int64(hi - lo + 1)
-					}
-					return 1, 0
-				}
-				lo, hi = nlo, nhi
+				return 1, 0
 			}
+			lo, hi = nlo, nhi
 		}
 		for ti := range p.Probes {
-			if !p.Applies[ti][c] || !w.monotone(rc, ti, lo, hi) {
+			if !p.Applies[ti][c] {
 				continue
 			}
-			tg := &p.Template.Targets[ti]
-			blo, bhi := tg.Band()
-			hard := !math.IsInf(blo, -1) || !math.IsInf(bhi, 1)
-			if byError && tg.HasEquals {
-				d := widen(worst.Error)
-				if tg.Equals != 0 {
-					d *= math.Abs(tg.Equals)
-				}
-				blo = math.Max(blo, tg.Equals-d)
-				bhi = math.Min(bhi, tg.Equals+d)
-			}
-			if math.IsInf(blo, -1) && math.IsInf(bhi, 1) {
+			blo, bhi := p.Template.Targets[ti].Band()
+			if (math.IsInf(blo, -1) && math.IsInf(bhi, 1)) || !w.monotone(rc, ti, lo, hi) {
 				continue
 			}
-			nlo, nhi := w.bisect(lo, hi, blo, bhi, func(i int) float64 {
-				g := 1 / w.opts[i].Value
-				return w.probe(rc, ti, rc.sAt(g), g)
-			})
+			nlo, nhi := w.bisect(lo, hi, blo, bhi, rc, ti)
 			if nlo > nhi {
-				if hard && worst == nil {
+				if counting {
 					w.viol[ti*w.nc+c] += int64(hi - lo + 1)
 				}
 				return 1, 0
@@ -531,6 +590,48 @@ func (w *rowWorker) narrow(lo, hi int) (int, int) {
 		}
 	}
 	return lo, hi
+}
+
+// goalRange shrinks lo..hi to the options whose goal error can be at most t:
+// every monotone goal, in every condition, within t of its value.
+func (w *rowWorker) goalRange(lo, hi int, t float64) (int, int) {
+	p := w.p
+	for c := range w.cond {
+		rc := &w.cond[c]
+		for ti := range p.Probes {
+			tg := &p.Template.Targets[ti]
+			if !tg.HasEquals || !p.Applies[ti][c] || !w.monotone(rc, ti, lo, hi) {
+				continue
+			}
+			d := t
+			if tg.Equals != 0 {
+				d *= math.Abs(tg.Equals)
+			}
+			lo, hi = w.bisect(lo, hi, tg.Equals-d, tg.Equals+d, rc, ti)
+			if lo > hi {
+				return 1, 0
+			}
+		}
+	}
+	return lo, hi
+}
+
+// powerRange shrinks lo..hi to the options whose total power is at most t in
+// every condition. It reports false when power is not monotone along the row
+// in some condition, and then nothing can be cut.
+func (w *rowWorker) powerRange(lo, hi int, t float64) (int, int, bool) {
+	for c := range w.cond {
+		if !w.powerMonotone(&w.cond[c], lo, hi) {
+			return lo, hi, false
+		}
+	}
+	for c := range w.cond {
+		lo, hi = w.bisect(lo, hi, math.Inf(-1), t, &w.cond[c], -1)
+		if lo > hi {
+			return 1, 0, true
+		}
+	}
+	return lo, hi, true
 }
 
 // monotone reports whether target ti is monotone along options lo..hi of
@@ -560,29 +661,52 @@ func (w *rowWorker) powerMonotone(rc *rowCond, lo, hi int) bool {
 	return v <= math.Min(s1, s2) || v >= math.Max(s1, s2)
 }
 
-// bisect returns the sub-range of lo..hi where the monotone function f lies
-// in [a, b] (inclusive, within the tie tolerance), or an empty range (lo > hi).
-func (w *rowWorker) bisect(lo, hi int, a, b float64, f func(int) float64) (int, int) {
-	flo, fhi := f(lo), f(hi)
+// quantity returns target ti's value (or, for ti < 0, the total power) at
+// option i of the row in condition rc.
+func (w *rowWorker) quantity(rc *rowCond, ti, i int) float64 {
+	g := 1 / w.opts[i].Value
+	s := rc.sAt(g)
+	if ti < 0 {
+		return rc.p0 + s*(rc.p1+s*rc.p2)
+	}
+	return w.probe(rc, ti, s, g)
+}
+
+// bisect returns the sub-range of lo..hi where quantity ti (monotone along
+// the row) lies in [a, b] (inclusive, within the tie tolerance), or an empty
+// range (lo > hi).
+func (w *rowWorker) bisect(lo, hi int, a, b float64, rc *rowCond, ti int) (int, int) {
+	flo, fhi := w.quantity(rc, ti, lo), w.quantity(rc, ti, hi)
 	if math.IsNaN(flo) || math.IsNaN(fhi) {
 		return lo, hi
 	}
 	ge := func(v float64) bool { return v >= a || constraints.Same(v, a) }
 	le := func(v float64) bool { return v <= b || constraints.Same(v, b) }
-	in := func(v float64) bool { return ge(v) && le(v) }
 	if flo == fhi {
-		if in(flo) {
+		if ge(flo) && le(flo) {
 			return lo, hi
 		}
 		return 1, 0
 	}
 	inc := flo < fhi
-	// first returns the first index in [l, h] where pred holds (pred is
+	// first returns the first index in [l, h] where the test holds (it is
 	// false then true along the range), or h+1.
-	first := func(l, h int, pred func(int) bool) int {
+	first := func(l, h int, below bool) int {
 		for l <= h {
 			m := int(uint(l+h) >> 1)
-			if pred(m) {
+			v := w.quantity(rc, ti, m)
+			var ok bool
+			switch {
+			case inc && below:
+				ok = ge(v) // entering from below a
+			case inc:
+				ok = !le(v) // leaving above b
+			case below:
+				ok = le(v) // entering from above b
+			default:
+				ok = !ge(v) // leaving below a
+			}
+			if ok {
 				h = m - 1
 			} else {
 				l = m + 1
@@ -590,13 +714,5 @@ func (w *rowWorker) bisect(lo, hi int, a, b float64, f func(int) float64) (int, 
 		}
 		return l
 	}
-	var nlo, nhi int
-	if inc {
-		nlo = first(lo, hi, func(i int) bool { return ge(f(i)) })
-		nhi = first(lo, hi, func(i int) bool { return !le(f(i)) }) - 1
-	} else {
-		nlo = first(lo, hi, func(i int) bool { return le(f(i)) })
-		nhi = first(lo, hi, func(i int) bool { return !ge(f(i)) }) - 1
-	}
-	return nlo, nhi
+	return first(lo, hi, true), first(lo, hi, false) - 1
 }

@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/solver"
 )
 
 // Problem is a compiled template plus the options of each free position.
@@ -90,6 +91,12 @@ type Settings struct {
 	// Progress, if not nil, is updated as the search runs, for a progress
 	// display in another goroutine.
 	Progress *Progress
+	// FrontErrorCap, when positive, also keeps the trade-off front: every
+	// feasible answer with goal error at most this (a fraction: 0.01 is 1 %)
+	// that no other such answer beats on error, power and part count at
+	// once. Zero means no front. Keeping it makes the exhaustive method score
+	// every option within the cap, which costs time on large spaces.
+	FrontErrorCap float64
 }
 
 // DefaultMaxRows is the default exhaustive budget: about ten seconds of
@@ -191,6 +198,12 @@ type Result struct {
 	// Blocking is the hard limit that rejected the most candidates; set
 	// when there are no solutions.
 	Blocking *Violation
+	// Front is the trade-off front (see Settings.FrontErrorCap), by
+	// increasing error; nil when none was asked for. With Status Proven it is
+	// exact over the whole space.
+	Front []Solution
+	// FrontCap is the goal-error bound the front was kept under.
+	FrontCap float64
 }
 
 // Method is a search strategy.
@@ -271,30 +284,43 @@ func (p *Problem) describeSpace() string {
 // runState is what methods share with Search: the merged top list, the
 // violation counts and the statistics.
 type runState struct {
-	r      *ranker
-	top    *topList
-	viol   []int64 // per (target or power limit) × condition
-	nc     int
-	status Status
-	stats  Stats
+	r        *ranker
+	top      *topList
+	front    *frontList // nil unless Settings.FrontErrorCap > 0
+	frontCap float64
+	viol     []int64 // per (target or power limit) × condition
+	nc       int
+	status   Status
+	stats    Stats
 }
 
 func newRunState(p *Problem, s *Settings) *runState {
 	r := &ranker{keys: p.Template.Rank, domains: p.Domains}
 	nc := len(p.Conditions)
+	var front *frontList
+	if s.FrontErrorCap > 0 {
+		front = &frontList{r: r}
+	}
 	return &runState{
-		r:    r,
-		top:  newTopList(r, s.Top, len(p.Domains)),
-		viol: make([]int64, (len(p.Probes)+1)*nc),
-		nc:   nc,
+		r:        r,
+		front:    front,
+		frontCap: s.FrontErrorCap,
+		top:      newTopList(r, s.Top, len(p.Domains)),
+		viol:     make([]int64, (len(p.Probes)+1)*nc),
+		nc:       nc,
 	}
 }
 
 // merge folds a worker's results into the shared state. Called once per
 // worker after it stops, so no locking is needed beyond the caller's.
-func (st *runState) merge(w *topList, viol []int64, stats Stats) {
+func (st *runState) merge(w *topList, front *frontList, viol []int64, stats Stats) {
 	for _, c := range w.items {
 		st.top.offer(c)
+	}
+	if front != nil && st.front != nil {
+		for _, c := range front.items {
+			st.front.offer(c)
+		}
 	}
 	for i, v := range viol {
 		st.viol[i] += v
@@ -319,38 +345,11 @@ func (st *runState) blocking() *Violation {
 
 // finish re-scores the kept candidates with full nodal solves (the numbers
 // people see come from the solver itself, not from the rank-one updates the
-// search used), and marks the Pareto-optimal ones.
+// search used), ranks them again on those numbers, and marks the
+// Pareto-optimal ones.
 func (st *runState) finish(p *Problem, res *Result) error {
 	s := p.Network.NewSolver()
-	free := make([]float64, len(p.Domains))
-	type scored struct {
-		c  *Candidate
-		sc *constraints.Score
-	}
-	var kept []scored
-	for _, c := range st.top.items {
-		for i, d := range p.Domains {
-			free[i] = d.Options[c.Opt[i]].Value
-		}
-		sc := p.NewScore()
-		if err := p.Evaluate(s, free, sc); err != nil || !sc.Feasible {
-			// Only a candidate sitting on a limit within rounding can get here.
-			continue
-		}
-		full := &Candidate{Opt: c.Opt, Error: sc.Error, Power: sc.Power, Parts: c.Parts}
-		kept = append(kept, scored{full, sc})
-	}
-	// Rank again on the solver's own numbers; they agree with the search's
-	// within rounding, so this only settles near-ties the same way a plain
-	// enumeration would.
-	sort.SliceStable(kept, func(i, j int) bool { return st.r.less(kept[i].c, kept[j].c) })
-	for _, k := range kept {
-		sol := Solution{Options: make([]Option, len(p.Domains)), Parts: k.c.Parts, Score: k.sc}
-		for i, d := range p.Domains {
-			sol.Options[i] = d.Options[k.c.Opt[i]]
-		}
-		res.Solutions = append(res.Solutions, sol)
-	}
+	res.Solutions = st.rescore(p, s, st.top.items)
 	for i := range res.Solutions {
 		res.Solutions[i].Rank = i + 1
 		res.Solutions[i].Pareto = true
@@ -363,7 +362,58 @@ func (st *runState) finish(p *Problem, res *Result) error {
 			}
 		}
 	}
+	if st.front != nil {
+		front := st.rescore(p, s, st.front.items)
+		// The front reads best by increasing error (then power).
+		sort.SliceStable(front, func(i, j int) bool {
+			a, b := front[i].Score, front[j].Score
+			if !constraints.Same(a.Error, b.Error) {
+				return a.Error < b.Error
+			}
+			return a.Power < b.Power && !constraints.Same(a.Power, b.Power)
+		})
+		for i := range front {
+			front[i].Rank = i + 1
+			front[i].Pareto = true
+		}
+		res.Front = front
+		res.FrontCap = st.frontCap
+	}
 	return nil
+}
+
+// rescore evaluates candidates with full solves and returns them as
+// solutions in rank order. A candidate that fails its hard limits on the full
+// solve (only possible for one sitting on a limit within rounding) is left out.
+func (st *runState) rescore(p *Problem, s *solver.Solver, cands []*Candidate) []Solution {
+	free := make([]float64, len(p.Domains))
+	type scored struct {
+		c  *Candidate
+		sc *constraints.Score
+	}
+	var kept []scored
+	for _, c := range cands {
+		for i, d := range p.Domains {
+			free[i] = d.Options[c.Opt[i]].Value
+		}
+		sc := p.NewScore()
+		if err := p.Evaluate(s, free, sc); err != nil || !sc.Feasible {
+			continue
+		}
+		kept = append(kept, scored{&Candidate{Opt: c.Opt, Error: sc.Error, Power: sc.Power, Parts: c.Parts}, sc})
+	}
+	// Rank again on the solver's own numbers; they agree with the search's
+	// within rounding, so this only settles near-ties the same way a plain
+	// enumeration would.
+	sort.SliceStable(kept, func(i, j int) bool { return st.r.less(kept[i].c, kept[j].c) })
+	out := make([]Solution, len(kept))
+	for k, sc := range kept {
+		out[k] = Solution{Options: make([]Option, len(p.Domains)), Parts: sc.c.Parts, Score: sc.sc}
+		for i, d := range p.Domains {
+			out[k].Options[i] = d.Options[sc.c.Opt[i]]
+		}
+	}
+	return out
 }
 
 // dominates reports whether a is at least as good as b in error, power and

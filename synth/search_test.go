@@ -302,3 +302,29 @@ func TestRelaxFindsProvenBest(t *testing.T) {
 		}
 	}
 }
+
+// The trade-off front equals the plain enumeration's, on the examples and on
+// random networks, for caps from tight to loose.
+func TestFrontMatchesBruteForce(t *testing.T) {
+	for _, name := range []string{"divider", "feedback", "sensor-bias"} {
+		text, _ := examples.Get(name)
+		p := problemFromYAML(t, string(text), "E12")
+		for _, cap := range []float64{0.005, 0.05, 0.5} {
+			t.Run(fmt.Sprintf("%s/%g", name, cap), func(t *testing.T) { compareFrontWithBrute(t, p, cap, 2) })
+		}
+	}
+	rng := rand.New(rand.NewPCG(3, 5))
+	for trial := range 30 {
+		text := randomTemplate(rng, "E6")
+		p := problemFromYAML(t, text, "")
+		if p.Space() > 30_000 {
+			continue
+		}
+		t.Run(fmt.Sprint("random", trial), func(t *testing.T) {
+			compareFrontWithBrute(t, p, 0.02+rng.Float64()*0.3, 1+trial%2)
+			if t.Failed() {
+				t.Log(text)
+			}
+		})
+	}
+}

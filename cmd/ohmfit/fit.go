@@ -28,6 +28,7 @@ type searchOptions struct {
 	Workers   int
 	Method    string // auto, exhaustive or heuristic
 	Quiet     bool
+	Tradeoffs string // goal-error bound of the trade-off front; "" for none
 
 	Out, ErrOut io.Writer
 	ErrIsTTY    bool // stderr is a terminal: show a progress bar
@@ -43,6 +44,7 @@ func bindSearchFlags(cmd *cobra.Command, o *searchOptions) {
 	f.IntVar(&o.Workers, "workers", 0, "goroutines to search with (`N`; 0: one per core); the answer does not depend on it")
 	f.StringVar(&o.Method, "method", "auto", "`METHOD`: exhaustive (proven best), heuristic (relax and snap), or auto (exhaustive when the space allows)")
 	f.BoolVarP(&o.Quiet, "quiet", "q", false, "no progress bar")
+	f.StringVar(&o.Tradeoffs, "tradeoffs", "", "also list the trade-off front: every answer with goal error up to `E` (e.g. 1%) that nothing beats on error, power and parts at once")
 }
 
 // checkSearchFlags validates the shared flags.
@@ -150,6 +152,13 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
 	}
 	set := &synth.Settings{Top: o.Top, Workers: o.Workers, TimeLimit: o.TimeLimit, Progress: &synth.Progress{}}
+	if o.Tradeoffs != "" {
+		q, err := eseries.Parse(o.Tradeoffs)
+		if err != nil || !(q.Value > 0) || (q.Unit != eseries.Percent && q.Unit != eseries.NoUnit) {
+			return badInputf("--tradeoffs: want a goal error like 1%% or 0.01, not %q", o.Tradeoffs)
+		}
+		set.FrontErrorCap = q.Value
+	}
 	var method synth.Method = synth.Rows{}
 	switch o.Method {
 	case "heuristic":
@@ -390,8 +399,40 @@ func writeFitTable(w io.Writer, p *synth.Problem, res *synth.Result) error {
 		return err
 	}
 	goals := goalColumns(p)
+	if err := solutionTable(&b, p, res.Solutions, goals, true); err != nil {
+		return err
+	}
+	pareto := false
+	for _, s := range res.Solutions {
+		pareto = pareto || s.Pareto
+	}
+	if pareto {
+		b.WriteString("\n  * Pareto-optimal in this list: nothing here beats it on error, power and parts at once.\n")
+	}
+	if res.Front != nil {
+		scope := "proven over the whole space"
+		if !res.Status.Exhaustive() {
+			scope = "among the candidates scored; not proven"
+		}
+		fmt.Fprintf(&b, "\nTrade-offs: every answer with goal error up to %s that nothing beats on error, power and parts at once (%s)\n\n",
+			errorText(res.FrontCap), scope)
+		if err := solutionTable(&b, p, res.Front, goals, false); err != nil {
+			return err
+		}
+	}
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// solutionTable writes one row per answer: rank (with * when marked is set
+// and the answer is Pareto-optimal), each position, error, power, parts and
+// the goal values reached.
+func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, goals []goalColumn, marked bool) error {
 	tb := table{indent: "  ", cols: []column{{right: true, gap: 2}}}
 	head := []string{"rank"}
+	if !marked {
+		head[0] = "#"
+	}
 	for _, d := range p.Domains {
 		head = append(head, d.Name)
 		tb.cols = append(tb.cols, column{gap: 3})
@@ -405,14 +446,14 @@ func writeFitTable(w io.Writer, p *synth.Problem, res *synth.Result) error {
 	tb.cols[len(tb.cols)-1].gap = 0
 	tb.add(head...)
 	nc := len(p.Conditions)
-	pareto := false
-	for _, s := range res.Solutions {
+	for _, s := range sols {
 		rank := strconv.Itoa(s.Rank)
-		if s.Pareto {
-			rank += "*"
-			pareto = true
-		} else {
-			rank += " "
+		if marked {
+			if s.Pareto {
+				rank += "*"
+			} else {
+				rank += " "
+			}
 		}
 		row := []string{rank}
 		for _, o := range s.Options {
@@ -428,14 +469,7 @@ func writeFitTable(w io.Writer, p *synth.Problem, res *synth.Result) error {
 		}
 		tb.add(row...)
 	}
-	if err := tb.write(&b); err != nil {
-		return err
-	}
-	if pareto {
-		b.WriteString("\n  * Pareto-optimal in this list: nothing here beats it on error, power and parts at once.\n")
-	}
-	_, err := io.WriteString(w, b.String())
-	return err
+	return tb.write(b)
 }
 
 // errorText shows a goal error as a percentage with three significant
@@ -456,9 +490,27 @@ func errorText(e float64) string {
 
 // fitJSON builds the contract's JSON document for a search.
 func fitJSON(p *synth.Problem, res *synth.Result) object {
-	sols := make([]object, len(res.Solutions))
+	doc := object{
+		{"name", p.Template.Name},
+		{"exhaustive", res.Status.Exhaustive()},
+		{"status", res.Status.String()},
+		{"method", res.Stats.Method},
+		{"space", res.Stats.Space},
+		{"evaluated", res.Stats.Evaluated},
+		{"solves", res.Stats.Solves},
+		{"solutions", solutionsJSON(p, res.Solutions)},
+	}
+	if res.Front != nil {
+		doc = append(doc, member{"tradeoffs", object{{"error_max", res.FrontCap}, {"solutions", solutionsJSON(p, res.Front)}}})
+	}
+	return doc
+}
+
+// solutionsJSON writes answers with the contract's keys.
+func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
+	sols := make([]object, len(list))
 	nc := len(p.Conditions)
-	for i, s := range res.Solutions {
+	for i, s := range list {
 		values, parts, comb := make(object, 0), make(object, 0), make(object, 0)
 		for k, d := range p.Domains {
 			o := s.Options[k]
@@ -493,16 +545,7 @@ func fitJSON(p *synth.Problem, res *synth.Result) object {
 			{"pareto", s.Pareto}, {"targets", targets},
 		}
 	}
-	return object{
-		{"name", p.Template.Name},
-		{"exhaustive", res.Status.Exhaustive()},
-		{"status", res.Status.String()},
-		{"method", res.Stats.Method},
-		{"space", res.Stats.Space},
-		{"evaluated", res.Stats.Evaluated},
-		{"solves", res.Stats.Solves},
-		{"solutions", sols},
-	}
+	return sols
 }
 
 // writeFitCSV writes one row per answer: rank, each position's effective

@@ -30,7 +30,7 @@ func golden(t *testing.T, name, got string) {
 	t.Helper()
 	path := filepath.Join("testdata", name+".golden")
 	if *update {
-		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
+		if err := os.WriteFile(path, []byte(normaliseTiming(got)), 0o644); err != nil {
 			t.Fatal(err)
 		}
 		return
@@ -99,6 +99,9 @@ func TestGolden(t *testing.T) {
 		{"fit-gain-csv", []string{"fit", "example:gain-stage", "--top", "3", "--format", "csv", "--workers", "1"}, ExitOK},
 		{"fit-series-override", []string{"fit", "example:sensor-bias", "--series", "e12", "--top", "3", "--workers", "1"}, ExitOK},
 		{"fit-heuristic", []string{"fit", "example:feedback", "--method", "heuristic", "--top", "3", "--workers", "1"}, ExitOK},
+		{"fit-tradeoffs", []string{"divider", "--vin", "5", "--vout", "3.3", "--series", "E96", "--tradeoffs", "0.5%", "--top", "3", "--workers", "1"}, ExitOK},
+		{"fit-tradeoffs-json", []string{"fit", "example:feedback", "--tradeoffs", "1%", "--top", "1", "--format", "json", "--workers", "1"}, ExitOK},
+		{"fit-err-tradeoffs", []string{"fit", "example:feedback", "--tradeoffs", "5V"}, ExitBadInput},
 		{"fit-none", []string{"fit", "testdata/impossible.yaml"}, ExitNoSolution},
 		{"fit-err-series", []string{"fit", "example:feedback", "--series", "E25"}, ExitBadInput},
 		{"fit-err-top", []string{"fit", "example:feedback", "--top", "0"}, ExitBadInput},

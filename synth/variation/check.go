@@ -1,0 +1,625 @@
+package variation
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+
+	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/constraints/ratings"
+	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/solver"
+)
+
+// Distribution is how Monte Carlo draws a part's deviation.
+type Distribution int
+
+// Distributions.
+const (
+	Uniform Distribution = iota // flat over ±tolerance
+	Normal                      // Gaussian with σ = tolerance/3, not truncated
+)
+
+// String returns "uniform" or "normal".
+func (d Distribution) String() string {
+	if d == Normal {
+		return "normal"
+	}
+	return "uniform"
+}
+
+// Settings tune Check. The zero value (or nil) means the defaults.
+type Settings struct {
+	// Samples is the Monte Carlo sample count. Zero means DefaultSamples;
+	// negative means no Monte Carlo.
+	Samples int
+	// Seed makes the Monte Carlo run repeatable; the same seed gives the
+	// same numbers. Zero is a seed like any other.
+	Seed uint64
+	// Distribution of each part's deviation; zero means Uniform.
+	Distribution Distribution
+	// MaxCornerParts is the number of varying parts up to which the worst
+	// case enumerates every corner (2^n solves per condition). Zero means
+	// DefaultMaxCornerParts.
+	MaxCornerParts int
+	// MaxPackage, when not "", is the largest package allowed; a part that
+	// needs a larger one is a hard failure. It overrides the template's
+	// limits.max_package.
+	MaxPackage string
+	// KeepSamples keeps every Monte Carlo value in the report (for plots).
+	KeepSamples bool
+}
+
+// Defaults.
+const (
+	DefaultSamples        = 10000
+	DefaultMaxCornerParts = 16
+)
+
+// Methods of the worst case, as Report.Method names them.
+const (
+	MethodCorners    = "corners"    // every tolerance corner solved
+	MethodLinearised = "linearised" // the corners the sensitivities pick, solved
+)
+
+// Stats summarise a Monte Carlo run of one target in one condition.
+type Stats struct {
+	Mean, Sigma float64
+	Low, High   float64 // the 0.135 % and 99.865 % points (±3σ of a normal)
+	Yield       float64 // fraction of samples within the target's band
+	Failed      int     // samples whose network could not be solved
+}
+
+// Sensitivity is one target's sensitivity to one varied part.
+type Sensitivity struct {
+	Part       string
+	Absolute   float64 // dX/dx, in the target's unit per the part's unit
+	Normalised float64 // (dX/X)/(dx/x); NaN when X is 0
+}
+
+// Goal is one target in one condition.
+type Goal struct {
+	Target, Condition int
+	Label, CondName   string
+	Nominal           float64
+	WorstMin          float64
+	WorstMax          float64
+	// WorstError is the largest goal error over the worst-case range, for
+	// targets with `equals`; NaN otherwise.
+	WorstError float64
+	// InBand reports whether the whole worst-case range meets the target's
+	// hard limits; HasBand whether it has any.
+	InBand, HasBand bool
+	MonteCarlo      Stats
+	Sens            []Sensitivity // one per varied part, Design.Parts order
+	Samples         []float64     // Monte Carlo values when kept; NaN where a solve failed
+}
+
+// Rating is one resistor's load against its package.
+type Rating struct {
+	Part         string
+	NominalWatts float64 // largest over conditions, nominal values
+	Watts        float64 // largest over conditions and worst-case corners
+	Volts        float64 // largest |voltage| likewise
+	Package      string  // the package named in the template, or the smallest that fits
+	Chosen       bool    // Package was chosen by ohmfit (no package given)
+	Fits         bool    // a package in the table carries it (chosen case)
+	Rated        float64 // rated watts of Package
+	MaxVolts     float64 // working voltage of Package
+	Load         ratings.Load
+	Verdict      string // ratings.Load.Verdict, or "no package fits"
+}
+
+// Report is the outcome of Check.
+type Report struct {
+	Method       string // MethodCorners or MethodLinearised
+	Corners      int    // solves per condition spent on the worst case
+	Parts        []Varied
+	Goals        []Goal
+	Ratings      []Rating
+	Samples      int
+	Seed         uint64
+	Distribution Distribution
+	Ambient      constraints.Ambient
+	// Yield is the fraction of Monte Carlo samples meeting every hard limit
+	// in every condition.
+	Yield float64
+	// MaxVolts is the largest voltage between any two nodes, nominal or at a
+	// worst-case corner, with where it occurs.
+	MaxVolts         float64
+	MaxVoltsWhere    string
+	Warnings         []string
+	Cautions         []string
+	Failures         []string // hard limits broken (a package above MaxPackage)
+	WorstErrorDesign float64  // largest WorstError over goals
+}
+
+// ErrUnsolvable is wrapped when the nominal network cannot be solved.
+var ErrUnsolvable = errors.New("variation: the network cannot be solved")
+
+// Check analyses the design with real parts.
+func Check(d *Design, set *Settings) (*Report, error) {
+	var st Settings
+	if set != nil {
+		st = *set
+	}
+	if st.Samples == 0 {
+		st.Samples = DefaultSamples
+	}
+	if st.MaxCornerParts <= 0 {
+		st.MaxCornerParts = DefaultMaxCornerParts
+	}
+	p := d.Problem
+	t := p.Template
+	s := p.Network.NewSolver()
+	r := &Report{Parts: d.Parts, Seed: st.Seed, Distribution: st.Distribution, Ambient: d.ambient}
+	r.Warnings = append(r.Warnings, d.warnings...)
+	nc := len(p.Conditions)
+	nv := len(d.Parts)
+	zero := make([]float64, nv)
+
+	// Nominal values and sensitivities.
+	for ci := range p.Conditions {
+		d.setValues(s, ci, zero)
+		if err := s.Solve(); err != nil {
+			return nil, fmt.Errorf("%w in condition %q: %v", ErrUnsolvable, p.Conditions[ci].Name, err)
+		}
+		for ti, pr := range p.Probes {
+			if !p.Applies[ti][ci] {
+				continue
+			}
+			x, err := pr.Read(s)
+			if err != nil {
+				return nil, err
+			}
+			sens, err := d.sensitivities(s, pr, x, zero)
+			if err != nil {
+				return nil, err
+			}
+			tg := t.Targets[ti]
+			lo, hi := tg.Band()
+			r.Goals = append(r.Goals, Goal{Target: ti, Condition: ci, Label: tg.Label(), CondName: p.Conditions[ci].Name,
+				Nominal: x, WorstMin: x, WorstMax: x, Sens: sens,
+				HasBand: !math.IsInf(lo, -1) || !math.IsInf(hi, 1)})
+		}
+	}
+
+	// Worst case.
+	rt := newRatingTracker(d, p.Network)
+	var varying []int
+	for j := range d.Parts {
+		if d.varies(j) {
+			varying = append(varying, j)
+		}
+	}
+	dev := make([]float64, nv)
+	visit := func(ci int, goals []int) {
+		d.setValues(s, ci, dev)
+		if s.Solve() != nil {
+			return
+		}
+		rt.observe(s, ci, dev)
+		for _, gi := range goals {
+			g := &r.Goals[gi]
+			x, err := p.Probes[g.Target].Read(s)
+			if err != nil || math.IsNaN(x) {
+				continue
+			}
+			g.WorstMin = math.Min(g.WorstMin, x)
+			g.WorstMax = math.Max(g.WorstMax, x)
+		}
+	}
+	byCond := make([][]int, nc)
+	for gi, g := range r.Goals {
+		byCond[g.Condition] = append(byCond[g.Condition], gi)
+	}
+	for ci := range p.Conditions {
+		d.setValues(s, ci, zero)
+		if s.Solve() == nil {
+			rt.observe(s, ci, zero)
+		}
+	}
+	if len(varying) <= st.MaxCornerParts {
+		r.Method = MethodCorners
+		r.Corners = 1 << len(varying)
+		for ci := range p.Conditions {
+			for mask := 0; mask < r.Corners; mask++ {
+				clear(dev)
+				for b, j := range varying {
+					lo, hi := d.Bounds(j)
+					if mask&(1<<b) != 0 {
+						dev[j] = hi
+					} else {
+						dev[j] = lo
+					}
+				}
+				visit(ci, byCond[ci])
+			}
+		}
+	} else {
+		r.Method = MethodLinearised
+		r.Corners = 0
+		for gi := range r.Goals {
+			g := r.Goals[gi]
+			for _, sign := range []float64{1, -1} {
+				clear(dev)
+				for _, j := range varying {
+					lo, hi := d.Bounds(j)
+					if sign*g.Sens[j].Absolute >= 0 {
+						dev[j] = hi
+					} else {
+						dev[j] = lo
+					}
+				}
+				visit(g.Condition, []int{gi})
+				r.Corners++
+			}
+		}
+	}
+	for gi := range r.Goals {
+		g := &r.Goals[gi]
+		tg := t.Targets[g.Target]
+		g.InBand = tg.Meets(g.WorstMin) && tg.Meets(g.WorstMax)
+		g.WorstError = math.NaN()
+		if tg.HasEquals {
+			g.WorstError = math.Max(tg.GoalError(g.WorstMin), tg.GoalError(g.WorstMax))
+			r.WorstErrorDesign = math.Max(r.WorstErrorDesign, g.WorstError)
+		}
+	}
+
+	// Monte Carlo.
+	if st.Samples > 0 {
+		r.Samples = st.Samples
+		d.monteCarlo(s, r, &st, rt)
+	}
+	r.MaxVolts, r.MaxVoltsWhere = rt.maxVolts, rt.maxWhere
+	r.Ratings = rt.ratings(&st, t, r)
+	d.warn(r, &st)
+	return r, nil
+}
+
+// sensitivities returns the target's sensitivity to each varied part at the
+// solver's current solution, by the adjoint method.
+func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64, dev []float64) ([]Sensitivity, error) {
+	net := s.Network()
+	nn, np := len(net.Nodes()), len(d.Problem.Template.Parts)
+	grad := make([]float64, np)
+	var err error
+	if pr.Kind == constraints.Resistance {
+		err = s.ResistanceAdjoint(pr.A, pr.B, grad)
+	} else {
+		nodeW := make([]float64, nn)
+		partW := make([]float64, np)
+		switch pr.Kind {
+		case constraints.Voltage:
+			nodeW[pr.A] += 1
+			nodeW[pr.B] -= 1
+		case constraints.Current:
+			partW[pr.Part] = 1
+		case constraints.Power:
+			// Watts = (V(from) - V(to))·Amps along the part's edge.
+			for _, e := range net.Edges() {
+				if e.Part == pr.Part {
+					i := s.Amps(pr.Part)
+					nodeW[e.From] += i
+					nodeW[e.To] -= i
+					partW[pr.Part] = s.Voltage(e.From) - s.Voltage(e.To)
+				}
+			}
+		case constraints.Ratio:
+			vb := s.Voltage(pr.B)
+			nodeW[pr.A] += 1 / vb
+			nodeW[pr.B] -= s.Voltage(pr.A) / (vb * vb)
+		}
+		err = s.Adjoint(nodeW, partW, grad)
+	}
+	if err != nil {
+		return nil, err
+	}
+	out := make([]Sensitivity, len(d.Parts))
+	for j, v := range d.Parts {
+		pos := s.Value(v.Part)
+		g := grad[v.Part]
+		xj := v.Nominal * (1 + dev[j])
+		if v.pair > 0 {
+			// Chain rule through the pair: series dR/dRa = 1, parallel
+			// dR/dRa = (R/Ra)².
+			if v.combine == constraints.Parallel {
+				g *= (pos / xj) * (pos / xj)
+			}
+		} else {
+			xj = pos
+		}
+		n := math.NaN()
+		if x != 0 {
+			n = g * xj / x
+		}
+		out[j] = Sensitivity{Part: v.Name, Absolute: g, Normalised: n}
+	}
+	return out, nil
+}
+
+// monteCarlo fills each goal's Stats and the report's overall yield.
+func (d *Design) monteCarlo(s *solver.Solver, r *Report, st *Settings, rt *ratingTracker) {
+	p := d.Problem
+	t := p.Template
+	rng := rand.New(rand.NewPCG(st.Seed, 0x6f686d666974)) // "ohmfit"
+	n := st.Samples
+	vals := make([][]float64, len(r.Goals))
+	for gi := range vals {
+		vals[gi] = make([]float64, n)
+	}
+	byCond := make([][]int, len(p.Conditions))
+	for gi, g := range r.Goals {
+		byCond[g.Condition] = append(byCond[g.Condition], gi)
+	}
+	dev := make([]float64, len(d.Parts))
+	good := 0
+	for k := range n {
+		temp := constraints.ReferenceCelsius
+		if d.ambient.Set {
+			temp = d.ambient.Min + (d.ambient.Max-d.ambient.Min)*rng.Float64()
+		}
+		for j, v := range d.Parts {
+			var u float64
+			if st.Distribution == Normal {
+				u = rng.NormFloat64() * v.Tol / 3
+			} else {
+				u = (2*rng.Float64() - 1) * v.Tol
+			}
+			if !v.Relative {
+				dev[j] = u
+				continue
+			}
+			drift := 0.0
+			if v.Kind == solver.Resistor && d.ambient.Set {
+				drift = (2*rng.Float64() - 1) * v.TCR * (temp - constraints.ReferenceCelsius)
+			}
+			dev[j] = (1+u)*(1+drift) - 1
+		}
+		ok := true
+		for ci := range p.Conditions {
+			d.setValues(s, ci, dev)
+			solved := s.Solve() == nil
+			if solved {
+				if lim := t.Limits.SupplyPowerMax; lim > 0 && s.ResistorPower() > lim && !constraints.Same(s.ResistorPower(), lim) {
+					ok = false
+				}
+			}
+			for _, gi := range byCond[ci] {
+				x := math.NaN()
+				if solved {
+					if v, err := p.Probes[r.Goals[gi].Target].Read(s); err == nil {
+						x = v
+					}
+				}
+				vals[gi][k] = x
+				if !t.Targets[r.Goals[gi].Target].Meets(x) {
+					ok = false
+				}
+			}
+		}
+		if ok {
+			good++
+		}
+	}
+	r.Yield = float64(good) / float64(n)
+	for gi := range r.Goals {
+		g := &r.Goals[gi]
+		tg := t.Targets[g.Target]
+		g.MonteCarlo = summarise(vals[gi], tg.Meets)
+		if st.KeepSamples {
+			g.Samples = vals[gi]
+		}
+	}
+}
+
+// summarise computes mean, σ (n-1), the 0.135 %/99.865 % points (linear
+// interpolation between order statistics) and the yield.
+func summarise(x []float64, meets func(float64) bool) Stats {
+	var st Stats
+	clean := make([]float64, 0, len(x))
+	in := 0
+	for _, v := range x {
+		if math.IsNaN(v) {
+			st.Failed++
+			continue
+		}
+		clean = append(clean, v)
+		if meets(v) {
+			in++
+		}
+	}
+	if len(x) > 0 {
+		st.Yield = float64(in) / float64(len(x))
+	}
+	if len(clean) == 0 {
+		st.Mean, st.Sigma, st.Low, st.High = math.NaN(), math.NaN(), math.NaN(), math.NaN()
+		return st
+	}
+	sum := 0.0
+	for _, v := range clean {
+		sum += v
+	}
+	st.Mean = sum / float64(len(clean))
+	ss := 0.0
+	for _, v := range clean {
+		ss += (v - st.Mean) * (v - st.Mean)
+	}
+	if len(clean) > 1 {
+		st.Sigma = math.Sqrt(ss / float64(len(clean)-1))
+	}
+	slices.Sort(clean)
+	st.Low, st.High = Quantile(clean, 0.00135), Quantile(clean, 0.99865)
+	return st
+}
+
+// Quantile returns the q-quantile of sorted data by linear interpolation
+// between order statistics (position q·(n-1)).
+func Quantile(sorted []float64, q float64) float64 {
+	if len(sorted) == 0 {
+		return math.NaN()
+	}
+	pos := q * float64(len(sorted)-1)
+	i := int(math.Floor(pos))
+	if i >= len(sorted)-1 {
+		return sorted[len(sorted)-1]
+	}
+	f := pos - float64(i)
+	return sorted[i]*(1-f) + sorted[i+1]*f
+}
+
+// ratingTracker follows each resistor's largest power and voltage, and the
+// largest voltage between nodes, over every solve it is shown.
+type ratingTracker struct {
+	d                *Design
+	net              *solver.Network
+	nominal, watts   []float64
+	volts            []float64
+	maxVolts         float64
+	maxWhere         string
+	nodes            []string
+	nominalCondition bool
+}
+
+func newRatingTracker(d *Design, net *solver.Network) *ratingTracker {
+	n := len(d.Parts)
+	return &ratingTracker{d: d, net: net, nominal: make([]float64, n), watts: make([]float64, n), volts: make([]float64, n), nodes: net.Nodes()}
+}
+
+func (rt *ratingTracker) observe(s *solver.Solver, ci int, dev []float64) {
+	isNominal := !slices.ContainsFunc(dev, func(v float64) bool { return v != 0 })
+	for j, v := range rt.d.Parts {
+		if v.Kind != solver.Resistor {
+			continue
+		}
+		vo, w := rt.d.physical(s, j, dev)
+		rt.watts[j] = math.Max(rt.watts[j], math.Abs(w))
+		rt.volts[j] = math.Max(rt.volts[j], math.Abs(vo))
+		if isNominal {
+			rt.nominal[j] = math.Max(rt.nominal[j], math.Abs(w))
+		}
+	}
+	lo, hi, loN, hiN := 0.0, 0.0, 0, 0
+	for k := range rt.nodes {
+		v := s.Voltage(k)
+		if v < lo {
+			lo, loN = v, k
+		}
+		if v > hi {
+			hi, hiN = v, k
+		}
+	}
+	if hi-lo > rt.maxVolts {
+		rt.maxVolts = hi - lo
+		rt.maxWhere = fmt.Sprintf("%s to %s in condition %q", rt.nodes[hiN], rt.nodes[loN], rt.d.Problem.Conditions[ci].Name)
+		if loN == 0 {
+			rt.maxWhere = fmt.Sprintf("node %s in condition %q", rt.nodes[hiN], rt.d.Problem.Conditions[ci].Name)
+		}
+	}
+}
+
+// ratings rates each resistor against its package and notes failures of the
+// largest-package limit.
+func (rt *ratingTracker) ratings(st *Settings, t *constraints.Template, r *Report) []Rating {
+	maxPkg := t.Limits.MaxPackage
+	if st.MaxPackage != "" {
+		maxPkg = st.MaxPackage
+	}
+	var out []Rating
+	for j, v := range rt.d.Parts {
+		if v.Kind != solver.Resistor {
+			continue
+		}
+		rg := Rating{Part: v.Name, NominalWatts: rt.nominal[j], Watts: rt.watts[j], Volts: rt.volts[j]}
+		var pkg ratings.Package
+		if v.Package != "" {
+			pkg, _ = ratings.Lookup(v.Package)
+			rg.Fits = pkg.Fits(rg.Watts, rg.Volts)
+		} else {
+			rg.Chosen = true
+			pkg, rg.Fits = ratings.Smallest(rg.Watts, rg.Volts, false)
+			if !rg.Fits {
+				// Name the largest, so the overload shows against something real.
+				pkg = ratings.Packages[len(ratings.Packages)-1]
+				for _, q := range ratings.Packages {
+					if q.Watts > pkg.Watts || (q.Watts == pkg.Watts && q.Volts > pkg.Volts) {
+						pkg = q
+					}
+				}
+			}
+		}
+		rg.Package, rg.Rated, rg.MaxVolts = pkg.Name, pkg.Watts, pkg.Volts
+		rg.Load = pkg.LoadOf(rg.Watts, rg.Volts)
+		rg.Verdict = rg.Load.Verdict()
+		if rg.Chosen && !rg.Fits {
+			rg.Verdict = "no package fits"
+		}
+		if maxPkg != "" {
+			switch {
+			case !rg.Chosen && ratings.Rank(rg.Package) > ratings.Rank(maxPkg):
+				r.Failures = append(r.Failures, fmt.Sprintf("%s is a %s, larger than the allowed %s", v.Name, rg.Package, maxPkg))
+			case !rg.Fits || ratings.Rank(rg.Package) > ratings.Rank(maxPkg):
+				r.Failures = append(r.Failures, fmt.Sprintf("%s (%s, %s worst case) needs more than a %s gives at half its rating",
+					v.Name, eseries.FormatUnit(rg.Watts, eseries.Watt), eseries.FormatUnit(rg.Volts, eseries.Volt), pkgLimit(rg, maxPkg)))
+			}
+		}
+		out = append(out, rg)
+	}
+	return out
+}
+
+// pkgLimit names the package a failing part was held to.
+func pkgLimit(rg Rating, maxPkg string) string {
+	if !rg.Chosen {
+		return rg.Package
+	}
+	return maxPkg
+}
+
+// warn adds the warnings and cautions the report calls for.
+func (d *Design) warn(r *Report, st *Settings) {
+	for _, v := range d.Parts {
+		if v.Kind != solver.Resistor && v.Tol == 0 {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("%s has no tolerance and is taken as exact; give it `tolerance:` (a reference's ±1%% often matters more than the resistors')", v.Name))
+		}
+	}
+	for _, g := range r.Goals {
+		if g.HasBand && !g.InBand {
+			lo, hi := d.Problem.Template.Targets[g.Target].Band()
+			r.Warnings = append(r.Warnings, fmt.Sprintf("%s in %q leaves its limits in the worst case: %s … %s against %s … %s",
+				g.Label, g.CondName, num(g.WorstMin), num(g.WorstMax), num(lo), num(hi)))
+		}
+	}
+	if r.Samples > 0 && r.Yield < 1 {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("Monte Carlo: %.2f%% of %d samples meet every limit in every condition", 100*r.Yield, r.Samples))
+	}
+	for _, rg := range r.Ratings {
+		switch rg.Verdict {
+		case "overload", "no package fits":
+			r.Warnings = append(r.Warnings, fmt.Sprintf("%s overloads its %s: %s against %s rated, %s against %s",
+				rg.Part, rg.Package, eseries.FormatUnit(rg.Watts, eseries.Watt), eseries.FormatUnit(rg.Rated, eseries.Watt),
+				eseries.FormatUnit(rg.Volts, eseries.Volt), eseries.FormatUnit(rg.MaxVolts, eseries.Volt)))
+			r.Cautions = append(r.Cautions, ratings.RatingCaution(rg.Part, rg.Package, rg.Load))
+		case "derating":
+			r.Warnings = append(r.Warnings, fmt.Sprintf("%s runs above half the rating of its %s (%.0f%%); half is the usual derating",
+				rg.Part, rg.Package, 100*rg.Load.PowerFraction))
+			r.Cautions = append(r.Cautions, ratings.RatingCaution(rg.Part, rg.Package, rg.Load))
+		case "near":
+			r.Cautions = append(r.Cautions, ratings.RatingCaution(rg.Part, rg.Package, rg.Load))
+		}
+	}
+	if r.MaxVolts > ratings.ES1VoltsDC {
+		r.Cautions = append([]string{ratings.HazardCaution(r.MaxVoltsWhere, r.MaxVolts)}, r.Cautions...)
+	}
+}
+
+// num formats a value with five significant digits for messages.
+func num(v float64) string {
+	if math.IsInf(v, 0) {
+		return "∞"
+	}
+	return eseries.FormatSig(v, 5)
+}

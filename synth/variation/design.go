@@ -1,0 +1,276 @@
+package variation
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/solver"
+	"github.com/ohmfit/ohmfit/synth"
+)
+
+// AssumedTolerance is the tolerance given to a chosen part whose values come
+// from a stock list (no series to take a usual tolerance from) and to a
+// fixed resistor whose value is in no series: 1 %, with a warning (common
+// practice, no source: 1 % chip resistors are the usual default stock).
+const AssumedTolerance = 0.01
+
+// Default TCRs for resistors without a `tcr`, used only when an ambient
+// range is given: typical thick-film figures, from memory (common
+// practice; thin-film and metal-foil parts are far better).
+const (
+	DefaultTCRPrecise = 100e-6 // parts of 1 % or tighter
+	DefaultTCR        = 200e-6 // looser parts
+)
+
+// Varied is one physical part whose value varies: a resistor (a position
+// made of two parts has two Varied entries) or a source with a tolerance.
+type Varied struct {
+	Name     string // designator: the part's name, or name+"a"/"b" for a pair
+	Position string // the template part it realises
+	Part     int    // index of that part in the network
+	Kind     solver.Kind
+	Nominal  float64 // this physical part's nominal value (ohms, volts, amps)
+	// Tol is the tolerance: a fraction when Relative, else absolute in the
+	// part's unit.
+	Tol      float64
+	Relative bool
+	TCR      float64 // per °C, resistors only
+	// Series is the preferred-number series the value comes from, "" when
+	// unknown (a stock list, a fixed value in no series, a source).
+	Series string
+	// TolFrom says where the tolerance came from: "part", "choose",
+	// "series", "assumed" or "none".
+	TolFrom string
+	Package string // package named in the template, "" to choose one
+	pair    int    // 0 single; 1 or 2: first or second of a series/parallel pair
+	combine constraints.Combine
+	other   int // index in Design.Parts of the pair's other part, or -1
+}
+
+// Design is a template with every resistor valued, ready for analysis.
+type Design struct {
+	Problem *constraints.Problem
+	// Options are the chosen realisations of the free positions, in
+	// Problem.Free order; empty for a fully valued template.
+	Options []synth.Option
+	Parts   []Varied
+	// position[i] lists, per network part, the indices into Parts that
+	// realise it.
+	position [][]int
+	ambient  constraints.Ambient
+	warnings []string
+}
+
+// NewDesign prepares a compiled template for analysis. options fill its free
+// positions (in Problem.Free order; nil for a fully valued template); series,
+// when not empty, is the series that overrode the template's (`--series`).
+// ambient replaces the template's ambient range when Set.
+func NewDesign(p *constraints.Problem, options []synth.Option, series string, ambient constraints.Ambient) (*Design, error) {
+	t := p.Template
+	if len(options) != len(p.Free) {
+		return nil, fmt.Errorf("variation: %d free positions but %d options", len(p.Free), len(options))
+	}
+	d := &Design{Problem: p, Options: options, position: make([][]int, len(t.Parts)), ambient: t.Ambient}
+	if ambient.Set {
+		d.ambient = ambient
+	}
+	free := map[int]int{}
+	for k, i := range p.Free {
+		free[i] = k
+	}
+	for i, ps := range t.Parts {
+		switch ps.Kind {
+		case solver.OpAmp:
+			continue
+		case solver.VoltageSource, solver.CurrentSource:
+			v := Varied{Name: ps.Name, Position: ps.Name, Part: i, Kind: ps.Kind, Nominal: ps.Value,
+				Tol: ps.Tolerance, Relative: ps.TolRelative, TolFrom: "part", other: -1}
+			if ps.Tolerance == 0 {
+				v.TolFrom = "none"
+			}
+			d.add(i, v)
+			continue
+		}
+		k, isFree := free[i]
+		if !isFree {
+			v := Varied{Name: ps.Name, Position: ps.Name, Part: i, Kind: solver.Resistor, Nominal: ps.Value,
+				Package: ps.Package, other: -1}
+			ch := t.Choose.Default
+			v.Series = seriesOf(ps.Value, ch.Series)
+			d.tolerance(&v, ps, ch)
+			d.tcr(&v, ps, ch)
+			d.add(i, v)
+			continue
+		}
+		ch := t.Choose.For(ps.Name)
+		if series != "" {
+			ch.Series, ch.Stock = series, nil
+		}
+		o := options[k]
+		vals := o.PartValues()
+		idx := make([]int, len(vals))
+		for j, pv := range vals {
+			name := ps.Name
+			if len(vals) > 1 {
+				name += string(rune('a' + j))
+			}
+			v := Varied{Name: name, Position: ps.Name, Part: i, Kind: solver.Resistor, Nominal: pv,
+				Series: ch.Series, Package: ch.Package, pair: 0, combine: o.Combine, other: -1}
+			if len(vals) > 1 {
+				v.pair = j + 1
+			}
+			if ch.Stock != nil {
+				v.Series = ""
+			}
+			d.tolerance(&v, ps, ch)
+			d.tcr(&v, ps, ch)
+			idx[j] = len(d.Parts)
+			d.add(i, v)
+		}
+		if len(idx) == 2 {
+			d.Parts[idx[0]].other, d.Parts[idx[1]].other = idx[1], idx[0]
+		}
+	}
+	return d, nil
+}
+
+func (d *Design) add(part int, v Varied) {
+	d.position[part] = append(d.position[part], len(d.Parts))
+	d.Parts = append(d.Parts, v)
+}
+
+// seriesOf names the series a fixed value belongs to: the template's own
+// series when the value is in it, else "".
+func seriesOf(v float64, name string) string {
+	s, err := eseries.Lookup(name)
+	if err == nil && s.Contains(v) {
+		return s.Name
+	}
+	return ""
+}
+
+// tolerance fills a resistor's tolerance: the part's own, the choice's, the
+// series' usual one, or AssumedTolerance with a warning.
+func (d *Design) tolerance(v *Varied, ps constraints.PartSpec, ch constraints.Choice) {
+	v.Relative = true
+	switch {
+	case ps.Tolerance > 0:
+		v.Tol, v.Relative, v.TolFrom = ps.Tolerance, ps.TolRelative, "part"
+		if !ps.TolRelative && v.pair > 0 {
+			// An absolute tolerance on a position of two parts: share it in
+			// proportion to the values.
+			v.Tol, v.Relative = ps.Tolerance/ps.Value, true
+		}
+	case ch.Tolerance > 0:
+		v.Tol, v.TolFrom = ch.Tolerance, "choose"
+	default:
+		if s, err := eseries.Lookup(v.Series); err == nil && v.Series != "" {
+			v.Tol, v.TolFrom = s.Tolerance, "series"
+			return
+		}
+		v.Tol, v.TolFrom = AssumedTolerance, "assumed"
+		d.warnings = append(d.warnings, fmt.Sprintf("%s: no tolerance given and no series to take one from; assumed ±%s (give `tolerance:` on the part or in choose)",
+			v.Name, eseries.FormatUnit(AssumedTolerance, eseries.Percent)))
+	}
+}
+
+// tcr fills a resistor's TCR: the part's, the choice's, or the default for
+// its tolerance class.
+func (d *Design) tcr(v *Varied, ps constraints.PartSpec, ch constraints.Choice) {
+	switch {
+	case ps.HasTCR:
+		v.TCR = ps.TCR
+	case ch.HasTCR:
+		v.TCR = ch.TCR
+	case v.Relative && v.Tol <= 0.01:
+		v.TCR = DefaultTCRPrecise
+	default:
+		v.TCR = DefaultTCR
+	}
+}
+
+// Ambient returns the ambient range the analysis uses.
+func (d *Design) Ambient() constraints.Ambient { return d.ambient }
+
+// deltaT is the largest distance of the ambient range from the reference
+// temperature, 0 without a range.
+func (d *Design) deltaT() float64 {
+	if !d.ambient.Set {
+		return 0
+	}
+	return math.Max(math.Abs(d.ambient.Min-constraints.ReferenceCelsius), math.Abs(d.ambient.Max-constraints.ReferenceCelsius))
+}
+
+// Bounds returns a part's worst-case factor range: tolerance and TCR drift
+// over the ambient range, pushing the same way. For an absolute tolerance
+// the values are the deviation in the part's unit.
+func (d *Design) Bounds(j int) (lo, hi float64) {
+	v := d.Parts[j]
+	if !v.Relative {
+		return -v.Tol, v.Tol
+	}
+	drift := 0.0
+	if v.Kind == solver.Resistor {
+		drift = v.TCR * d.deltaT()
+	}
+	return (1-v.Tol)*(1-drift) - 1, (1+v.Tol)*(1+drift) - 1
+}
+
+// varies reports whether part j has any spread.
+func (d *Design) varies(j int) bool {
+	lo, hi := d.Bounds(j)
+	return lo != 0 || hi != 0
+}
+
+// setValues loads condition c into the solver with deviations dev (one per
+// Varied: relative for relative parts, absolute otherwise).
+func (d *Design) setValues(s *solver.Solver, c int, dev []float64) {
+	cv := d.Problem.Conditions[c]
+	for i, v := range cv.Values {
+		s.SetValue(i, v)
+	}
+	for i, idx := range d.position {
+		switch len(idx) {
+		case 1:
+			v := d.Parts[idx[0]]
+			nom := cv.Values[i]
+			if nom == 0 && v.Kind == solver.Resistor {
+				nom = v.Nominal // a free position
+			}
+			if v.Relative {
+				s.SetValue(i, nom*(1+dev[idx[0]]))
+			} else {
+				s.SetValue(i, nom+dev[idx[0]])
+			}
+		case 2:
+			a := d.Parts[idx[0]].Nominal * (1 + dev[idx[0]])
+			b := d.Parts[idx[1]].Nominal * (1 + dev[idx[1]])
+			if d.Parts[idx[0]].combine == constraints.Parallel {
+				s.SetValue(i, a*b/(a+b))
+			} else {
+				s.SetValue(i, a+b)
+			}
+		}
+	}
+}
+
+// physical returns the volts across and watts in varied resistor j, from
+// its position's solution (a pair shares current in series, voltage in
+// parallel).
+func (d *Design) physical(s *solver.Solver, j int, dev []float64) (volts, watts float64) {
+	v := d.Parts[j]
+	pv, pa := s.Volts(v.Part), s.Amps(v.Part)
+	if v.pair == 0 {
+		return pv, pv * pa
+	}
+	r := v.Nominal * (1 + dev[j])
+	if v.combine == constraints.Parallel {
+		return pv, pv * pv / r
+	}
+	return pa * r, pa * pa * r
+}
+
+// Warnings returns what NewDesign had to assume.
+func (d *Design) Warnings() []string { return append([]string(nil), d.warnings...) }
