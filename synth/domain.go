@@ -95,7 +95,7 @@ func BuildDomain(part int, name string, c constraints.Choice) (Domain, error) {
 		return d, fmt.Errorf("synth: position %s: no standard value between %s and %s", name, eseries.Format(c.Min), eseries.Format(c.Max))
 	}
 	if n := OptionCount(len(base), c.Combine); n > MaxOptions {
-		return d, fmt.Errorf("synth: position %s: %.3g options (%d base values, combine %s) is more than %d; narrow its min/max or use a coarser series", name, n, len(base), CombineName(c.Combine), MaxOptions)
+		return d, fmt.Errorf("synth: position %s: %.3g options (%d base values, combine %s) is more than %d; narrow its min/max or use a coarser series", name, n, len(base), c.Combine, MaxOptions)
 	}
 	single := c.Combine == constraints.Single || c.Combine == constraints.Any
 	series := c.Combine == constraints.Series || c.Combine == constraints.Any
@@ -146,19 +146,4 @@ func optionLess(a, b Option) bool {
 		return a.Parts[0] > b.Parts[0]
 	}
 	return a.Parts[1] > b.Parts[1]
-}
-
-// CombineName returns the template spelling of a combine mode.
-func CombineName(c constraints.Combine) string {
-	switch c {
-	case constraints.Single:
-		return "single"
-	case constraints.Series:
-		return "series"
-	case constraints.Parallel:
-		return "parallel"
-	case constraints.Any:
-		return "any"
-	}
-	return "unknown"
 }

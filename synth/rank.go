@@ -1,6 +1,8 @@
 package synth
 
 import (
+	"cmp"
+
 	"github.com/ohmfit/ohmfit/constraints"
 )
 
@@ -30,48 +32,28 @@ func (r *ranker) compare(a, b *Candidate) int {
 		switch k {
 		case constraints.ByError:
 			if !constraints.Same(a.Error, b.Error) {
-				return cmpFloat(a.Error, b.Error)
+				return cmp.Compare(a.Error, b.Error)
 			}
 		case constraints.ByPower:
 			if !constraints.Same(a.Power, b.Power) {
-				return cmpFloat(a.Power, b.Power)
+				return cmp.Compare(a.Power, b.Power)
 			}
 		case constraints.ByParts:
 			if a.Parts != b.Parts {
-				return cmpInt(a.Parts, b.Parts)
+				return cmp.Compare(a.Parts, b.Parts)
 			}
 		}
 	}
 	for i, d := range r.domains {
 		oa, ob := &d.Options[a.Opt[i]], &d.Options[b.Opt[i]]
 		if oa.Value != ob.Value {
-			return cmpFloat(oa.Value, ob.Value)
+			return cmp.Compare(oa.Value, ob.Value)
 		}
 	}
 	for i := range r.domains {
 		if a.Opt[i] != b.Opt[i] {
-			return cmpInt(int(a.Opt[i]), int(b.Opt[i]))
+			return cmp.Compare(a.Opt[i], b.Opt[i])
 		}
-	}
-	return 0
-}
-
-func cmpFloat(a, b float64) int {
-	switch {
-	case a < b:
-		return -1
-	case a > b:
-		return 1
-	}
-	return 0
-}
-
-func cmpInt(a, b int) int {
-	switch {
-	case a < b:
-		return -1
-	case a > b:
-		return 1
 	}
 	return 0
 }

@@ -31,7 +31,8 @@ type searchOptions struct {
 	Tradeoffs string // goal-error bound of the trade-off front; "" for none
 
 	Out, ErrOut io.Writer
-	ErrIsTTY    bool // stderr is a terminal: show a progress bar
+	ErrIsTTY    bool     // stderr is a terminal: show a progress bar
+	real        *fitReal // fit's real-parts flags; nil for divider and feedback
 }
 
 // bindSearchFlags adds the shared search flags to a command.
@@ -80,11 +81,13 @@ func checkSearchFlags(cmd *cobra.Command, o *searchOptions) error {
 type fitOptions struct {
 	File string
 	searchOptions
+	fitReal
 }
 
 // newFitCmd builds `ohmfit fit`.
 func newFitCmd(out, errOut io.Writer, errIsTTY bool) *cobra.Command {
 	o := &fitOptions{searchOptions: searchOptions{Out: out, ErrOut: errOut, ErrIsTTY: errIsTTY}}
+	o.real = &o.fitReal
 	cmd := &cobra.Command{
 		Use:   "fit FILE [options]",
 		Short: "Choose standard values for a template's free resistors",
@@ -129,6 +132,9 @@ JSON output (--format json):
 			if err := checkSearchFlags(cmd, &o.searchOptions); err != nil {
 				return err
 			}
+			if err := o.fitReal.validate(cmd); err != nil {
+				return err
+			}
 			t, err := loadTemplate(o.File)
 			if err != nil {
 				return err
@@ -137,6 +143,7 @@ JSON output (--format json):
 		},
 	}
 	bindSearchFlags(cmd, &o.searchOptions)
+	bindFitRealFlags(cmd, &o.fitReal)
 	return cmd
 }
 
@@ -145,13 +152,14 @@ JSON output (--format json):
 func runSearch(o *searchOptions, t *constraints.Template) error {
 	cp, err := constraints.Compile(t)
 	if err != nil {
-		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+		return templateError(t, err)
 	}
 	p, err := synth.NewProblem(cp, o.Series)
 	if err != nil {
 		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
 	}
 	set := &synth.Settings{Top: o.Top, Workers: o.Workers, TimeLimit: o.TimeLimit, Progress: &synth.Progress{}}
+	o.real.adjust(set)
 	if o.Tradeoffs != "" {
 		q, err := eseries.Parse(o.Tradeoffs)
 		if err != nil || !(q.Value > 0) || (q.Unit != eseries.Percent && q.Unit != eseries.NoUnit) {
@@ -196,7 +204,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	case synth.TimeLimit:
 		fmt.Fprintf(o.ErrOut, "ohmfit: time limit of %v reached; showing the best found so far (not proven)\n", o.TimeLimit)
 	}
-	if err := renderFit(o, p, res); err != nil {
+	if err := o.real.render(o, p, res); err != nil {
 		return err
 	}
 	if len(res.Solutions) == 0 {
@@ -516,7 +524,7 @@ func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 			o := s.Options[k]
 			values = append(values, member{d.Name, o.Value})
 			parts = append(parts, member{d.Name, o.PartValues()})
-			comb = append(comb, member{d.Name, synth.CombineName(o.Combine)})
+			comb = append(comb, member{d.Name, o.Combine.String()})
 		}
 		targets := []object{}
 		for ti, tg := range p.Template.Targets {
@@ -567,7 +575,7 @@ func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result) error {
 			for _, v := range o.PartValues() {
 				ps = append(ps, eseries.Format(v))
 			}
-			row = append(row, strconv.FormatFloat(o.Value, 'g', -1, 64), synth.CombineName(o.Combine), strings.Join(ps, " "))
+			row = append(row, strconv.FormatFloat(o.Value, 'g', -1, 64), o.Combine.String(), strings.Join(ps, " "))
 		}
 		row = append(row, strconv.FormatFloat(s.Score.Error, 'g', -1, 64), strconv.FormatFloat(s.Score.Power, 'g', -1, 64),
 			strconv.Itoa(s.Parts), strconv.FormatBool(s.Pareto))
