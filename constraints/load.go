@@ -474,7 +474,7 @@ func (d *decoder) positive(n *yaml.Node, path, ctx string, unit eseries.Unit) (f
 	return v, ok
 }
 
-var topKeys = []string{"ohmfit", "name", "ground", "parts", "targets", "limits", "choose", "conditions", "rank"}
+var topKeys = []string{"ohmfit", "name", "ground", "parts", "targets", "limits", "choose", "conditions", "rank", "ambient"}
 
 func (d *decoder) template(root *yaml.Node) {
 	if root.Kind != yaml.MappingNode {
@@ -525,6 +525,9 @@ func (d *decoder) template(root *yaml.Node) {
 	if len(t.Conditions) == 0 {
 		t.Conditions = []Condition{{Name: "nominal"}}
 	}
+	if e, ok := byName["ambient"]; ok && !isNull(e.val) {
+		d.ambient(e.val)
+	}
 	if e, ok := byName["rank"]; ok && !isNull(e.val) {
 		d.rank(e.val)
 	} else {
@@ -560,9 +563,9 @@ var partTypes = []struct {
 	kind solver.Kind
 	keys []string
 }{
-	{"resistor", solver.Resistor, []string{"name", "type", "from", "to", "value"}},
-	{"voltage-source", solver.VoltageSource, []string{"name", "type", "plus", "minus", "volts"}},
-	{"current-source", solver.CurrentSource, []string{"name", "type", "from", "to", "amps"}},
+	{"resistor", solver.Resistor, []string{"name", "type", "from", "to", "value", "tolerance", "tcr", "package"}},
+	{"voltage-source", solver.VoltageSource, []string{"name", "type", "plus", "minus", "volts", "tolerance"}},
+	{"current-source", solver.CurrentSource, []string{"name", "type", "from", "to", "amps", "tolerance"}},
 	{"opamp", solver.OpAmp, []string{"name", "type", "plus", "minus", "out"}},
 }
 
@@ -596,6 +599,9 @@ func (d *decoder) parts(n *yaml.Node) {
 		d.t.Parts = append(d.t.Parts, p)
 	}
 }
+
+// optionalPartKeys may be left out of a part.
+var optionalPartKeys = []string{"value", "tolerance", "tcr", "package"}
 
 func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, bool) {
 	ctx := fmt.Sprintf("part %d", i+1)
@@ -643,7 +649,7 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 	nerr := len(d.errs)
 	byName, _ := d.fields(n, path, ctx, pt.keys)
 	for _, k := range pt.keys {
-		if _, ok := byName[k]; !ok && k != "value" {
+		if _, ok := byName[k]; !ok && !slices.Contains(optionalPartKeys, k) {
 			d.missingf(n, joinKey(path, k), "%s: missing key %q for a %s", ctx, k, pt.name)
 		}
 	}
@@ -700,6 +706,9 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 		p.Value, ok = d.value(byName["volts"].val, joinKey(path, "volts"), label(ctx, "volts"), eseries.Volt)
 	case solver.CurrentSource:
 		p.Value, ok = d.value(byName["amps"].val, joinKey(path, "amps"), label(ctx, "amps"), eseries.Amp)
+	}
+	if ok && !d.realPart(&p, byName, path, ctx) {
+		return PartSpec{}, nil, false
 	}
 	return p, byName["name"].val, ok
 }
@@ -843,13 +852,16 @@ func (d *decoder) limits(n *yaml.Node) {
 		return
 	}
 	d.t.Limits.Pos = Pos{n.Line, n.Column}
-	byName, _ := d.fields(n, "limits", "limits", []string{"supply_power_max"})
+	byName, _ := d.fields(n, "limits", "limits", []string{"supply_power_max", "max_package"})
 	if e, ok := byName["supply_power_max"]; ok {
 		d.t.Limits.SupplyPowerMax, _ = d.positive(e.val, "limits.supply_power_max", "limits: supply_power_max", eseries.Watt)
 	}
+	if e, ok := byName["max_package"]; ok {
+		d.t.Limits.MaxPackage, _ = d.pkg(e.val, "limits.max_package", "limits: max_package")
+	}
 }
 
-var choiceKeys = []string{"series", "min", "max", "combine"}
+var choiceKeys = []string{"series", "min", "max", "combine", "tolerance", "tcr", "package"}
 
 func (d *decoder) choose(n *yaml.Node) {
 	if !d.expectMapping(n, "choose", "choose", "{series: E96, min: 1k, max: 1M}") {
@@ -913,6 +925,7 @@ func (d *decoder) choice(c *Choice, n *yaml.Node, byName map[string]entry, path,
 			d.errorf(e.val, cp, "%s: expected one of %s, got %s", label(ctx, "combine"), strings.Join(combineNames, ", "), describe(e.val))
 		}
 	}
+	d.realChoice(c, byName, path, ctx)
 	if len(d.errs) > nerr {
 		return false
 	}

@@ -26,6 +26,20 @@ type Template struct {
 	Choose     Choose
 	Conditions []Condition // never empty after loading: at least {Name: "nominal"}
 	Rank       []RankKey   // never empty after loading: default error, power, parts
+	Ambient    Ambient     // ambient temperature range for TCR; zero value: none given
+}
+
+// ReferenceCelsius is the temperature at which part values are nominal: the
+// usual reference of resistor TCR figures (common practice, no source).
+const ReferenceCelsius = 25.0
+
+// Ambient is the range of ambient temperature, in °C (the scale a
+// condition's `temperature` uses), over which `check` spreads each resistor
+// by its TCR. The template key is `ambient: {min: -20, max: 70}`.
+type Ambient struct {
+	Set      bool // false when the template gives no range
+	Min, Max float64
+	Pos      Pos
 }
 
 // PartSpec is one part of a template. Free resistors (no value given) are the
@@ -34,6 +48,21 @@ type PartSpec struct {
 	solver.Part
 	Free bool // a resistor without a value: ohmfit chooses it
 	Pos  Pos
+
+	// Tolerance of the part's value (`tolerance:` on a resistor or a
+	// source). With TolRelative it is a fraction ("1%" gives 0.01);
+	// otherwise an absolute amount in the part's unit (ohms, volts, amps).
+	// Zero means not given: a resistor then takes its choice's tolerance
+	// or its series' usual one, a source is taken as exact.
+	Tolerance   float64
+	TolRelative bool
+	// TCR is a resistor's temperature coefficient per °C (`tcr: 100ppm`
+	// gives 1e-4), taken as ± that much; HasTCR says it was given.
+	TCR    float64
+	HasTCR bool
+	// Package is a resistor's package (`package: 0603`), as
+	// ratings.Lookup names it; "" when not given.
+	Package string
 }
 
 // TargetKind says which quantity a target measures.
@@ -75,7 +104,11 @@ type Limits struct {
 	// SupplyPowerMax bounds the total power dissipated in all resistors, in
 	// watts, in the worst condition. Zero means no limit.
 	SupplyPowerMax float64
-	Pos            Pos
+	// MaxPackage is the largest resistor package allowed (`max_package:
+	// 0805`), as ratings names it; a part that needs a larger one fails
+	// `check`. "" means no limit.
+	MaxPackage string
+	Pos        Pos
 }
 
 // Combine says how a free position may be realised from physical parts.
@@ -99,7 +132,16 @@ type Choice struct {
 	Min       float64 // ohms, inclusive bound on each physical part; default 10
 	Max       float64 // ohms, inclusive; default 10M
 	Combine   Combine
-	Pos       Pos
+	// Tolerance of each chosen part as a fraction; zero means the series'
+	// usual tolerance (eseries.Series.Tolerance).
+	Tolerance float64
+	// TCR of each chosen part per °C, when HasTCR.
+	TCR    float64
+	HasTCR bool
+	// Package of each chosen part; "" lets `check` pick the smallest that
+	// carries it.
+	Package string
+	Pos     Pos
 }
 
 // Choose holds the default choice and per-part overrides.

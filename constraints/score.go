@@ -114,7 +114,8 @@ type Problem struct {
 	Applies    [][]bool // [target][condition]
 }
 
-// Compile checks the template's network and prepares it for scoring.
+// Compile checks the template's network and prepares it for scoring. A
+// network the solver refuses gives an *Error from Template.NetworkError.
 func Compile(t *Template) (*Problem, error) {
 	c := t.Circuit()
 	// Free parts need some positive value for the graph checks to see a resistor.
@@ -123,7 +124,7 @@ func Compile(t *Template) (*Problem, error) {
 	}
 	net, err := solver.Compile(c)
 	if err != nil {
-		return nil, err
+		return nil, t.NetworkError(err)
 	}
 	p := &Problem{Template: t, Network: net, Free: t.FreeParts()}
 	for _, cond := range t.Conditions {

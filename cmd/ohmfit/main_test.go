@@ -122,6 +122,19 @@ func TestGolden(t *testing.T) {
 		{"combine-err-value", []string{"combine", "0"}, ExitBadInput},
 		{"combine-err-code", []string{"combine", "4k7k"}, ExitBadInput},
 
+		// real parts: check, and fit's --check and --robust
+		{"check-divider", []string{"check", "testdata/check-divider.yaml", "--samples", "2000", "--seed", "3"}, ExitOK},
+		{"check-divider-json", []string{"check", "testdata/check-divider.yaml", "--samples", "500", "--dist", "normal", "--format", "json"}, ExitOK},
+		{"check-hv-package", []string{"check", "testdata/check-hv.yaml", "--samples", "500", "--max-package", "0603"}, ExitNoSolution},
+		{"check-fitted", []string{"check", "example:feedback", "--samples", "1000", "--ambient", "0..70"}, ExitOK},
+		{"check-err-dist", []string{"check", "testdata/check-divider.yaml", "--dist", "gauss"}, ExitBadInput},
+		{"check-err-ambient", []string{"check", "testdata/check-divider.yaml", "--ambient", "70..0"}, ExitBadInput},
+		{"check-err-package", []string{"check", "testdata/check-divider.yaml", "--max-package", "0604"}, ExitBadInput},
+		{"check-err-bom", []string{"check", "testdata/check-divider.yaml", "--bom", "parts.txt"}, ExitBadInput},
+		{"check-err-overwrite", []string{"check", "testdata/check-stock.yaml", "--samples", "0", "--bom", "testdata/check-stock.csv"}, ExitBadInput},
+		{"fit-robust", []string{"fit", "example:feedback", "--robust", "--top", "5", "--workers", "1"}, ExitOK},
+		{"fit-check", []string{"fit", "example:divider", "--check", "--top", "3", "--workers", "1"}, ExitOK},
+
 		// examples
 		{"examples-list", []string{"examples"}, ExitOK},
 		{"examples-err-unknown", []string{"examples", "brigde"}, ExitBadInput},

@@ -130,6 +130,7 @@ A template is a small YAML file; ` + "`ohmfit examples`" + ` lists the built-in 
 		newDividerCmd(stdout, stderr, isTerminal(stderr)),
 		newFeedbackCmd(stdout, stderr, isTerminal(stderr)),
 		newCombineCmd(stdout, stderr),
+		newCheckCmd(stdout, stderr),
 	)
 	for _, c := range root.Commands() {
 		// Each Use line spells out its options; cobra would append "[flags]".

@@ -127,11 +127,11 @@ func analyzeAll(t *constraints.Template) ([]conditionResult, error) {
 		}
 		sol, err := solver.Analyze(c)
 		if err != nil {
-			where := ""
+			e := t.NetworkError(err)
 			if len(t.Conditions) > 1 {
-				where = fmt.Sprintf("condition %q: ", cond.Name)
+				e.Msg = fmt.Sprintf("condition %q: %s", cond.Name, e.Msg)
 			}
-			return nil, badInputf("%s%s%s", filePrefix(t, constraints.Pos{}), where, trimPackage(err.Error()))
+			return nil, templateError(t, e)
 		}
 		results = append(results, conditionResult{name: cond.Name, sol: sol})
 	}

@@ -583,14 +583,16 @@ func pkgLimit(rg Rating, maxPkg string) string {
 func (d *Design) warn(r *Report, st *Settings) {
 	for _, v := range d.Parts {
 		if v.Kind != solver.Resistor && v.Tol == 0 {
-			r.Warnings = append(r.Warnings, fmt.Sprintf("%s has no tolerance and is taken as exact; give it `tolerance:` (a reference's ±1%% often matters more than the resistors')", v.Name))
+			r.Warnings = append(r.Warnings, fmt.Sprintf("%s has no tolerance and is taken as exact; give it `tolerance:` if it has one (a reference's ±1%% often matters more than the resistors')", v.Name))
 		}
 	}
 	for _, g := range r.Goals {
 		if g.HasBand && !g.InBand {
-			lo, hi := d.Problem.Template.Targets[g.Target].Band()
+			tg := d.Problem.Template.Targets[g.Target]
+			lo, hi := tg.Band()
+			u := tg.Kind.Unit()
 			r.Warnings = append(r.Warnings, fmt.Sprintf("%s in %q leaves its limits in the worst case: %s … %s against %s … %s",
-				g.Label, g.CondName, num(g.WorstMin), num(g.WorstMax), num(lo), num(hi)))
+				g.Label, g.CondName, num(g.WorstMin, u), num(g.WorstMax, u), num(lo, u), num(hi, u)))
 		}
 	}
 	if r.Samples > 0 && r.Yield < 1 {
@@ -616,10 +618,10 @@ func (d *Design) warn(r *Report, st *Settings) {
 	}
 }
 
-// num formats a value with five significant digits for messages.
-func num(v float64) string {
+// num formats a value with its unit for messages.
+func num(v float64, u eseries.Unit) string {
 	if math.IsInf(v, 0) {
 		return "∞"
 	}
-	return eseries.FormatSig(v, 5)
+	return eseries.FormatUnit(v, u)
 }

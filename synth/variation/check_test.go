@@ -220,10 +220,11 @@ choose: {combine: any}
 			}
 		}
 	}
-	// The gain 1 + Rf/Rg, differentiated: S_Rg = -(Rf/Rg)/(1+Rf/Rg); the
-	// pair's parts share S_Rf = -S_Rg in proportion Rf/Ra (parallel rule).
-	rf, rg := opt.Value, 2e3
-	want := -(rf / rg) / (1 + rf/rg)
+	// Non-inverting gain formula with the bias current Ib drawn from fb:
+	// V(out) = Vin·(1 + Rf/Rg) + Ib·Rf, so out/in = 1 + Rf/Rg + Ib·Rf/Vin and,
+	// differentiated, S_Rg = -(Rf/Rg) / (out/in).
+	rf, rg, ib, vin := opt.Value, 2e3, 1e-6, 0.3
+	want := -(rf / rg) / (1 + rf/rg + ib*rf/vin)
 	for j, v := range d.Parts {
 		if v.Name == "Rg" && math.Abs(r.Goals[0].Sens[j].Normalised-want) > 1e-12 {
 			t.Errorf("S(Rg) = %.15g, want %.15g (non-inverting gain formula, differentiated)", r.Goals[0].Sens[j].Normalised, want)
@@ -257,14 +258,14 @@ targets:
 }
 
 // TestDerating checks the package choice and the hard limit: 12 V across
-// 2.2 kΩ is 65.5 mW (P = V²/R), over half of an 0603's 100 mW, so the
-// smallest package at half its rating is an 0805 (125 mW); limited to 0603
-// that is a failure.
+// 2.7 kΩ is 53.3 mW (P = V²/R), over half of an 0603's 100 mW and under
+// half of an 0805's 125 mW, so the smallest package at half its rating is
+// an 0805; limited to 0603 that is a failure.
 func TestDerating(t *testing.T) {
 	text := `ohmfit: 1
 parts:
   - {name: V, type: voltage-source, plus: a, minus: gnd, volts: 12}
-  - {name: R1, type: resistor, from: a, to: gnd, value: 2.2k, tolerance: 0.0001%}
+  - {name: R1, type: resistor, from: a, to: gnd, value: 2.7k, tolerance: 0.0001%}
 targets:
   - {current: R1, max: 1}
 `
@@ -273,8 +274,8 @@ targets:
 		t.Fatal(err)
 	}
 	rg := r.Ratings[0]
-	if rg.Package != "0805" || math.Abs(rg.NominalWatts-144/2.2e3) > 1e-12 || len(r.Failures) != 0 {
-		t.Errorf("got %+v, failures %q; want 0805 for %g W", rg, r.Failures, 144/2.2e3)
+	if rg.Package != "0805" || math.Abs(rg.NominalWatts-144/2.7e3) > 1e-12 || len(r.Failures) != 0 {
+		t.Errorf("got %+v, failures %q; want 0805 for %g W", rg, r.Failures, 144/2.7e3)
 	}
 	r, err = Check(design(t, text), &Settings{Samples: -1, MaxPackage: "0603"})
 	if err != nil {

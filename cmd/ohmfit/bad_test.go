@@ -1,0 +1,100 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// badDir is the shared corpus of templates with one mistake each. Files
+// directly in it are refused by the loader, files in network/ by the
+// network checks; both state the expected "line:col: message" on their
+// first line ("# want: ..."). Files in raw/ cannot carry a comment (an empty
+// file, a binary one) and are checked by their golden files alone.
+var badDir = filepath.Join("..", "..", "testdata", "bad")
+
+// TestBadInputs runs `ohmfit fit FILE` and `ohmfit solve FILE` on every file
+// of the bad corpus, and on files too large to commit made here: each must
+// exit 2 with exactly one line on stderr and nothing on stdout, and the
+// line must match the golden copy in testdata/bad (and the file's own
+// "# want:" line where it has one).
+func TestBadInputs(t *testing.T) {
+	var files []string
+	for _, pat := range []string{"*.yaml", filepath.Join("network", "*.yaml"), filepath.Join("raw", "*")} {
+		m, err := filepath.Glob(filepath.Join(badDir, pat))
+		if err != nil {
+			t.Fatal(err)
+		}
+		files = append(files, m...)
+	}
+	if len(files) < 20 {
+		t.Fatalf("found %d bad templates in %s, want the whole corpus", len(files), badDir)
+	}
+	for _, f := range files {
+		rel, _ := filepath.Rel(badDir, f)
+		name := strings.ReplaceAll(strings.TrimSuffix(rel, filepath.Ext(rel)), string(filepath.Separator), "-")
+		t.Run(name, func(t *testing.T) {
+			data, err := os.ReadFile(f)
+			if err != nil {
+				t.Fatal(err)
+			}
+			want := ""
+			if first, _, _ := strings.Cut(string(data), "\n"); strings.HasPrefix(first, "# want: ") {
+				want = "ohmfit: " + f + ":" + strings.TrimPrefix(first, "# want: ")
+			} else if !strings.HasPrefix(rel, "raw") {
+				t.Fatalf("first line %q does not start with \"# want: \"", first)
+			}
+			got := badRuns(t, f, want)
+			golden(t, filepath.Join("bad", name), got)
+		})
+	}
+
+	// Files made here: a 100 MB one (refused by its size before it is
+	// read) and an empty one; the golden copies show the directory as TMP.
+	dir := t.TempDir()
+	huge := filepath.Join(dir, "huge.yaml")
+	hf, err := os.Create(huge)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// A real header, then a sparse tail: the size is what matters.
+	if _, err := hf.WriteString("ohmfit: 1\nparts:\n"); err != nil {
+		t.Fatal(err)
+	}
+	if err := hf.Truncate(100 << 20); err != nil {
+		t.Fatal(err)
+	}
+	if err := hf.Close(); err != nil {
+		t.Fatal(err)
+	}
+	t.Run("made-100MB", func(t *testing.T) {
+		got := badRuns(t, huge, "")
+		golden(t, filepath.Join("bad", "made-100MB"), strings.ReplaceAll(got, dir, "TMP"))
+	})
+}
+
+// badRuns runs fit and solve on file, checks the contract for bad input and
+// returns both stderr lines with their command lines, for a golden file.
+// want, when set, is the exact stderr line expected from both.
+func badRuns(t *testing.T, file, want string) string {
+	t.Helper()
+	var b strings.Builder
+	for _, args := range [][]string{{"fit", file, "--workers", "1"}, {"solve", file}} {
+		stdout, stderr, code := runCLI(t, args...)
+		if code != ExitBadInput {
+			t.Errorf("%v: exit %d, want %d\nstdout: %s\nstderr: %s", args, code, ExitBadInput, stdout, stderr)
+		}
+		if stdout != "" {
+			t.Errorf("%v: wrote to stdout:\n%s", args, stdout)
+		}
+		if strings.Count(stderr, "\n") != 1 || !strings.HasSuffix(stderr, "\n") {
+			t.Errorf("%v: want exactly one stderr line, got:\n%s", args, stderr)
+		}
+		if line := strings.TrimSuffix(stderr, "\n"); want != "" && !strings.HasPrefix(line, want) {
+			t.Errorf("%v:\ngot  %s\nwant %s", args, line, want)
+		}
+		b.WriteString("$ ohmfit " + strings.Join(args, " ") + "\n" + stderr)
+	}
+	return b.String()
+}

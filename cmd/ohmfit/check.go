@@ -1,0 +1,527 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/constraints/ratings"
+	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/solver"
+	"github.com/ohmfit/ohmfit/synth"
+	"github.com/ohmfit/ohmfit/synth/variation"
+	"github.com/spf13/cobra"
+)
+
+// realFlags are the settings of an analysis with real parts, shared by
+// `check` and `fit --check`.
+type realFlags struct {
+	Samples    int
+	Seed       uint64
+	Dist       string // uniform or normal
+	Ambient    string // "MIN..MAX" in °C, "" for the template's
+	MaxPackage string
+}
+
+// bindRealFlags adds the analysis flags to a command.
+func bindRealFlags(cmd *cobra.Command, r *realFlags) {
+	f := cmd.Flags()
+	f.IntVar(&r.Samples, "samples", variation.DefaultSamples, "Monte Carlo samples (`N`; 0: none)")
+	f.Uint64Var(&r.Seed, "seed", 1, "Monte Carlo seed (`N`); the same seed gives the same numbers")
+	f.StringVar(&r.Dist, "dist", "uniform", "`DIST`ribution of each part within its tolerance: uniform, or normal with tolerance = 3σ")
+	f.StringVar(&r.Ambient, "ambient", "", "ambient range in °C as `MIN..MAX` (e.g. -20..70), spreading each resistor by its TCR; overrides the template's ambient")
+	f.StringVar(&r.MaxPackage, "max-package", "", "largest resistor `PACKAGE` allowed (e.g. 0805); a part that needs more fails the run (exit 1)")
+}
+
+// settings checks the flags and turns them into variation settings and an
+// ambient range (Set false when not given).
+func (r *realFlags) settings(cmd *cobra.Command) (*variation.Settings, constraints.Ambient, error) {
+	st := &variation.Settings{Samples: r.Samples, Seed: r.Seed}
+	var amb constraints.Ambient
+	if r.Samples < 0 {
+		return nil, amb, usagef(cmd.CommandPath(), "--samples must be 0 or more, not %d", r.Samples)
+	}
+	if r.Samples == 0 {
+		st.Samples = -1
+	}
+	if r.Samples > 10_000_000 {
+		return nil, amb, usagef(cmd.CommandPath(), "--samples above 10,000,000 would take long and tell nothing new")
+	}
+	switch r.Dist {
+	case "uniform":
+	case "normal":
+		st.Distribution = variation.Normal
+	default:
+		return nil, amb, usagef(cmd.CommandPath(), "--dist must be uniform or normal, not %q", r.Dist)
+	}
+	if r.Ambient != "" {
+		lo, hi, ok := strings.Cut(r.Ambient, "..")
+		a, errA := constraints.ParseCelsius(lo)
+		b, errB := constraints.ParseCelsius(hi)
+		if !ok || errA != nil || errB != nil || a > b {
+			return nil, amb, usagef(cmd.CommandPath(), "--ambient wants MIN..MAX in °C such as -20..70, not %q", r.Ambient)
+		}
+		amb = constraints.Ambient{Set: true, Min: a, Max: b}
+	}
+	if r.MaxPackage != "" {
+		p, err := ratings.Lookup(r.MaxPackage)
+		if err != nil {
+			return nil, amb, usagef(cmd.CommandPath(), "--max-package: %s", strings.TrimPrefix(err.Error(), "ratings: "))
+		}
+		st.MaxPackage = p.Name
+	}
+	return st, amb, nil
+}
+
+// checkOptions are the inputs of `ohmfit check`.
+type checkOptions struct {
+	File   string
+	Format string
+	Rank   int
+	BOM    string
+	Plot   string
+	realFlags
+
+	Out, ErrOut io.Writer
+}
+
+// newCheckCmd builds `ohmfit check`.
+func newCheckCmd(out, errOut io.Writer) *cobra.Command {
+	o := &checkOptions{Out: out, ErrOut: errOut}
+	cmd := &cobra.Command{
+		Use:   "check FILE [options]",
+		Short: "Show what a valued design does with real parts",
+		Long: `Analyse a design with real parts: every resistor within its tolerance (the
+part's tolerance:, else choose's, else its series' usual one: E24 5 %, E96 1 %,
+…) and drifting by its TCR over an ambient range, every source within its own
+tolerance: (taken as exact without one).
+
+For each target in each condition it shows:
+  worst case   the extremes over every tolerance corner, each corner solved
+               exactly while there are at most 16 varying parts (2^16 corners);
+               beyond that the corners picked by the signs of the
+               sensitivities, each solved (linearised worst case). The output
+               says which ran.
+  Monte Carlo  mean, σ, the 0.135 % and 99.865 % points and the yield
+               against the target's limits, over --samples random builds.
+  sensitivity  (dX/X)/(dx/x) of the target to each part, by the adjoint method.
+For each resistor: its largest power and voltage over conditions and corners,
+the smallest package that carries it at no more than half its rated power
+(common practice), or the template's package:, with warnings near or beyond a
+rating, and cautions when a node exceeds 60 V DC (IEC 62368-1, ES1).
+
+Package ratings are typical thick-film figures from memory; the datasheet of
+the part you buy governs. ohmfit is a first check, not a safety assessment.
+
+A template with resistors still to choose is first fitted like ` + "`ohmfit fit`" + `, and
+the answer of --rank (default 1) is checked.
+
+FILE is a template file, or example:NAME for a built-in example.
+
+Exit status: 0 done; 1 a part needs a package above --max-package (or the
+template's limits.max_package); 2 bad input.`,
+		Example: `  # a valued design, with a ±1 % reference and 0 … 70 °C ambient
+  ohmfit check my-divider.yaml --ambient 0..70
+
+  # the built-in feedback example, fitted then checked, as JSON
+  ohmfit check example:feedback --format json --seed 7`,
+		Args: argsExactly(1, "one argument, the template file"),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			o.File = args[0]
+			if err := checkFormat(cmd, o.Format, "table", "json"); err != nil {
+				return err
+			}
+			if o.Rank < 1 {
+				return usagef(cmd.CommandPath(), "--rank must be at least 1, not %d", o.Rank)
+			}
+			st, amb, err := o.realFlags.settings(cmd)
+			if err != nil {
+				return err
+			}
+			if err := checkOutputFlags(cmd, o.BOM, o.Plot); err != nil {
+				return err
+			}
+			return runCheck(o, st, amb)
+		},
+	}
+	f := cmd.Flags()
+	f.StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table or json")
+	f.IntVar(&o.Rank, "rank", 1, "for a template with free resistors, which fitted answer to check (`N`)")
+	f.StringVar(&o.BOM, "bom", "", "also write a bill of materials to `FILE.csv`")
+	f.StringVar(&o.Plot, "plot", "", "also draw the Monte Carlo histograms to `FILE.svg` or FILE.png")
+	bindRealFlags(cmd, &o.realFlags)
+	return cmd
+}
+
+// checkOutputFlags checks the extensions of --bom and --plot.
+func checkOutputFlags(cmd *cobra.Command, bom, plot string) error {
+	if bom != "" && !strings.HasSuffix(strings.ToLower(bom), ".csv") {
+		return usagef(cmd.CommandPath(), "--bom writes CSV; name a .csv file, not %q", bom)
+	}
+	if plot != "" {
+		l := strings.ToLower(plot)
+		if !strings.HasSuffix(l, ".svg") && !strings.HasSuffix(l, ".png") {
+			return usagef(cmd.CommandPath(), "--plot draws SVG or PNG; name a .svg or .png file, not %q", plot)
+		}
+	}
+	return nil
+}
+
+// runCheck loads, fits when needed, analyses and renders.
+func runCheck(o *checkOptions, st *variation.Settings, amb constraints.Ambient) error {
+	t, err := loadTemplate(o.File)
+	if err != nil {
+		return err
+	}
+	cp, err := constraints.Compile(t)
+	if err != nil {
+		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+	}
+	var opts []synth.Option
+	if len(cp.Free) > 0 {
+		opts, err = fitForCheck(o, cp)
+		if err != nil {
+			return err
+		}
+	}
+	d, err := variation.NewDesign(cp, opts, "", amb)
+	if err != nil {
+		return err
+	}
+	st.KeepSamples = o.Plot != ""
+	rep, err := variation.Check(d, st)
+	if err != nil {
+		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), strings.TrimPrefix(err.Error(), "variation: "))
+	}
+	if o.Format == "json" {
+		if err := writeJSON(o.Out, checkJSON(t, d, rep)); err != nil {
+			return err
+		}
+	} else if err := writeCheckTable(o.Out, t, d, rep); err != nil {
+		return err
+	}
+	inputs := inputFiles(t)
+	if o.BOM != "" {
+		if err := writeAtomic(o.BOM, inputs, func(w io.Writer) error { return writeBOM(w, d, rep) }); err != nil {
+			return err
+		}
+	}
+	if o.Plot != "" {
+		if err := writeAtomic(o.Plot, inputs, func(w io.Writer) error { return plotHistograms(w, o.Plot, t, rep) }); err != nil {
+			return err
+		}
+	}
+	if len(rep.Failures) > 0 {
+		return &exitError{code: ExitNoSolution, err: errors.New(strings.Join(rep.Failures, "; "))}
+	}
+	return nil
+}
+
+// fitForCheck searches a template with free resistors and returns the
+// options of the answer of rank o.Rank, saying so on stderr.
+func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, error) {
+	t := cp.Template
+	p, err := synth.NewProblem(cp, "")
+	if err != nil {
+		return nil, badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+	}
+	var m synth.Method = synth.Rows{}
+	if synth.RowCount(p) > synth.DefaultMaxRows {
+		m = synth.Relax{}
+	}
+	res, err := synth.Search(context.Background(), p, &synth.Settings{Top: o.Rank}, m)
+	if err != nil {
+		return nil, badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+	}
+	if len(res.Solutions) < o.Rank {
+		if len(res.Solutions) == 0 {
+			return nil, &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res))}
+		}
+		return nil, badInputf("--rank %d: the fit has only %d answers", o.Rank, len(res.Solutions))
+	}
+	sol := res.Solutions[o.Rank-1]
+	var desc []string
+	for k, dm := range p.Domains {
+		desc = append(desc, dm.Name+" "+positionText(sol.Options[k]))
+	}
+	fmt.Fprintf(o.ErrOut, "ohmfit: %s has resistors to choose; checking fit's answer %d: %s\n", t.File, o.Rank, strings.Join(desc, ", "))
+	return sol.Options, nil
+}
+
+// inputFiles lists the files a run read, which outputs must not replace.
+func inputFiles(t *constraints.Template) []string {
+	files := []string{}
+	if !strings.HasPrefix(t.File, examplePrefix) {
+		files = append(files, t.File)
+	}
+	if f := t.Choose.Default.StockFile; f != "" {
+		files = append(files, f)
+	}
+	for _, c := range t.Choose.Overrides {
+		if c.StockFile != "" {
+			files = append(files, c.StockFile)
+		}
+	}
+	return files
+}
+
+// tolText shows a part's tolerance: "1%" or "±10 mV".
+func tolText(v variation.Varied) string {
+	if v.Tol == 0 {
+		return "exact"
+	}
+	if v.Relative {
+		return eseries.FormatUnit(v.Tol, eseries.Percent)
+	}
+	return "±" + eseries.FormatUnit(v.Tol, unitOf(v.Kind))
+}
+
+func unitOf(k solver.Kind) eseries.Unit {
+	switch k {
+	case solver.VoltageSource:
+		return eseries.Volt
+	case solver.CurrentSource:
+		return eseries.Amp
+	}
+	return eseries.Ohm
+}
+
+// ppm shows a TCR: "100 ppm/°C".
+func ppm(tcr float64) string {
+	return strconv.FormatFloat(tcr*1e6, 'g', 4, 64) + " ppm/°C"
+}
+
+// worstCaseText says which worst-case method ran.
+func worstCaseText(rep *variation.Report, nc int) string {
+	if rep.Method == variation.MethodCorners {
+		conds := "1 condition"
+		if nc != 1 {
+			conds = fmt.Sprintf("%d conditions", nc)
+		}
+		return fmt.Sprintf("every tolerance corner solved (%d per condition, %s)", rep.Corners, conds)
+	}
+	return fmt.Sprintf("linearised: %d corners picked from the sensitivities, each solved exactly (too many varying parts to try all)", rep.Corners)
+}
+
+// writeCheckTable renders a check report for people.
+func writeCheckTable(w io.Writer, t *constraints.Template, d *variation.Design, rep *variation.Report) error {
+	var b strings.Builder
+	if t.Name != "" {
+		fmt.Fprintf(&b, "%s, with real parts\n", t.Name)
+	}
+	fmt.Fprintf(&b, "worst case: %s\n", worstCaseText(rep, len(d.Problem.Conditions)))
+	if rep.Samples > 0 {
+		fmt.Fprintf(&b, "Monte Carlo: %s samples, %s, seed %d; %s meet every limit\n", count(float64(rep.Samples)), rep.Distribution, rep.Seed, yieldText(rep.Yield))
+	}
+	if a := rep.Ambient; a.Set {
+		fmt.Fprintf(&b, "ambient: %g … %g °C (TCR referred to %g °C)\n", a.Min, a.Max, constraints.ReferenceCelsius)
+	}
+	b.WriteByte('\n')
+	if err := writeGoalTable(&b, t, rep); err != nil {
+		return err
+	}
+	b.WriteString("\n  sensitivity (dX/X)/(dx/x), adjoint method\n\n")
+	sens := table{indent: "  ", cols: []column{{gap: 3}, {gap: 3}}}
+	head := []string{"target", "condition"}
+	for _, v := range rep.Parts {
+		head = append(head, v.Name)
+		sens.cols = append(sens.cols, column{right: true, gap: 3})
+	}
+	sens.cols[len(sens.cols)-1].gap = 0
+	sens.add(head...)
+	for _, g := range rep.Goals {
+		row := []string{g.Label, g.CondName}
+		for _, s := range g.Sens {
+			row = append(row, sensText(s))
+		}
+		sens.add(row...)
+	}
+	if err := sens.write(&b); err != nil {
+		return err
+	}
+	b.WriteByte('\n')
+	if err := writePartTable(&b, rep); err != nil {
+		return err
+	}
+	writeNotes(&b, rep)
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+func yieldText(y float64) string {
+	return strconv.FormatFloat(100*y, 'f', 2, 64) + "%"
+}
+
+func sensText(s variation.Sensitivity) string {
+	if math.IsNaN(s.Normalised) {
+		return "n/a"
+	}
+	if math.Abs(s.Normalised) < 5e-5 {
+		return "0"
+	}
+	return strconv.FormatFloat(s.Normalised, 'f', 4, 64)
+}
+
+// writeGoalTable writes one row per target and condition.
+func writeGoalTable(b *strings.Builder, t *constraints.Template, rep *variation.Report) error {
+	tb := table{indent: "  ", cols: []column{{gap: 3}, {gap: 3}}}
+	head := []string{"target", "condition", "nominal", "worst min", "worst max", "limits"}
+	if rep.Samples > 0 {
+		head = append(head, "mean", "σ", "0.135%", "99.865%", "yield")
+	}
+	for range head[2:] {
+		tb.cols = append(tb.cols, column{right: true, gap: 3})
+	}
+	tb.cols[len(tb.cols)-1].gap = 0
+	tb.add(head...)
+	for _, g := range rep.Goals {
+		tg := t.Targets[g.Target]
+		u := tg.Kind.Unit()
+		limit := "-"
+		if g.HasBand {
+			limit = "ok"
+			if !g.InBand {
+				limit = "OUT"
+			}
+		}
+		row := []string{g.Label, g.CondName, preciseUnit(g.Nominal, u), preciseUnit(g.WorstMin, u), preciseUnit(g.WorstMax, u), limit}
+		if rep.Samples > 0 {
+			mc := g.MonteCarlo
+			row = append(row, preciseUnit(mc.Mean, u), eseries.FormatUnit(mc.Sigma, u), preciseUnit(mc.Low, u), preciseUnit(mc.High, u), yieldText(mc.Yield))
+		}
+		tb.add(row...)
+	}
+	return tb.write(b)
+}
+
+// writePartTable writes one row per varied part with its rating.
+func writePartTable(b *strings.Builder, rep *variation.Report) error {
+	rated := map[string]variation.Rating{}
+	for _, r := range rep.Ratings {
+		rated[r.Part] = r
+	}
+	tb := table{indent: "  ", cols: []column{{gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {right: true, gap: 3},
+		{right: true, gap: 3}, {right: true, gap: 3}, {gap: 3}, {right: true, gap: 3}, {}}}
+	tb.add("part", "value", "tolerance", "TCR", "worst power", "worst volts", "package", "load", "verdict")
+	for _, v := range rep.Parts {
+		r, ok := rated[v.Name]
+		if !ok {
+			tb.add(v.Name, eseries.FormatUnit(v.Nominal, unitOf(v.Kind)), tolText(v), "", "", "", "", "", "")
+			continue
+		}
+		pkg := r.Package
+		if r.Chosen {
+			pkg += " (smallest)"
+		}
+		tb.add(v.Name, eseries.FormatUnit(v.Nominal, eseries.Ohm), tolText(v), ppm(v.TCR),
+			eseries.FormatUnit(r.Watts, eseries.Watt), eseries.FormatUnit(r.Volts, eseries.Volt), pkg,
+			strconv.FormatFloat(100*r.Load.PowerFraction, 'f', 0, 64)+"%", r.Verdict)
+	}
+	return tb.write(b)
+}
+
+// writeNotes writes the warnings, cautions and hard failures.
+func writeNotes(b *strings.Builder, rep *variation.Report) {
+	b.WriteString("\n  load is worst-case power over rated power; packages carry at most 50% (derating, common practice).\n")
+	b.WriteString("  Ratings are typical thick-film figures from memory: check the datasheet of the part you buy.\n")
+	for _, f := range rep.Failures {
+		fmt.Fprintf(b, "\nFAILS: %s\n", f)
+	}
+	if len(rep.Warnings) > 0 {
+		b.WriteString("\nwarnings:\n")
+		for _, w := range rep.Warnings {
+			fmt.Fprintf(b, "  - %s\n", w)
+		}
+	}
+	for _, c := range rep.Cautions {
+		fmt.Fprintf(b, "\n%s\n", c)
+	}
+}
+
+// finite returns v, or nil for a NaN or infinity, which JSON cannot hold.
+func finite(v float64) any {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return v
+}
+
+// checkJSON builds the check document: the contract's keys and the rest of
+// what the table shows.
+func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Report) object {
+	goals := make([]object, len(rep.Goals))
+	for i, g := range rep.Goals {
+		tg := t.Targets[g.Target]
+		sens := object{}
+		for _, s := range g.Sens {
+			sens = append(sens, member{s.Part, finite(s.Normalised)})
+		}
+		m := object{{"target", g.Label}, {"condition", g.CondName}, {"nominal", g.Nominal},
+			{"worst_min", g.WorstMin}, {"worst_max", g.WorstMax}}
+		if tg.HasEquals {
+			m = append(m, member{"goal", tg.Equals}, member{"worst_error", finite(g.WorstError)})
+		}
+		lo, hi := tg.Band()
+		m = append(m, member{"min", finite(lo)}, member{"max", finite(hi)}, member{"within_limits", !g.HasBand || g.InBand})
+		if rep.Samples > 0 {
+			mc := g.MonteCarlo
+			m = append(m, member{"monte_carlo", object{{"mean", finite(mc.Mean)}, {"sigma", finite(mc.Sigma)},
+				{"p0_135", finite(mc.Low)}, {"p99_865", finite(mc.High)}, {"yield", mc.Yield}, {"failed", mc.Failed}}})
+		}
+		m = append(m, member{"sensitivities", sens})
+		goals[i] = m
+	}
+	rated := map[string]variation.Rating{}
+	for _, r := range rep.Ratings {
+		rated[r.Part] = r
+	}
+	parts, sources := []object{}, []object{}
+	for _, v := range rep.Parts {
+		base := object{{"name", v.Name}, {"value", v.Nominal}, {"tolerance", v.Tol}, {"tolerance_relative", v.Relative}, {"tolerance_from", v.TolFrom}}
+		r, ok := rated[v.Name]
+		if !ok {
+			sources = append(sources, base)
+			continue
+		}
+		parts = append(parts, append(base,
+			member{"position", v.Position}, member{"series", v.Series}, member{"tcr", v.TCR},
+			member{"watts", r.Watts}, member{"nominal_watts", r.NominalWatts}, member{"volts", r.Volts},
+			member{"package", r.Package}, member{"package_chosen", r.Chosen},
+			member{"rated_watts", r.Rated}, member{"max_volts", r.MaxVolts},
+			member{"power_fraction", r.Load.PowerFraction}, member{"voltage_fraction", r.Load.VoltageFraction},
+			member{"verdict", r.Verdict}))
+	}
+	var amb any
+	if a := rep.Ambient; a.Set {
+		amb = object{{"min", a.Min}, {"max", a.Max}, {"reference", constraints.ReferenceCelsius}}
+	}
+	mc := any(nil)
+	if rep.Samples > 0 {
+		mc = object{{"samples", rep.Samples}, {"seed", rep.Seed}, {"distribution", rep.Distribution.String()}, {"yield", rep.Yield}}
+	}
+	return object{
+		{"name", t.Name},
+		{"worst_case", object{{"method", rep.Method}, {"corners", rep.Corners}}},
+		{"monte_carlo", mc},
+		{"ambient", amb},
+		{"goals", goals},
+		{"parts", parts},
+		{"sources", sources},
+		{"max_volts", rep.MaxVolts},
+		{"warnings", nonNilStrings(rep.Warnings)},
+		{"cautions", nonNilStrings(rep.Cautions)},
+		{"failures", nonNilStrings(rep.Failures)},
+	}
+}
+
+func nonNilStrings(s []string) []string {
+	if s == nil {
+		return []string{}
+	}
+	return s
+}

@@ -1,0 +1,225 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"strconv"
+	"strings"
+
+	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/synth"
+	"github.com/ohmfit/ohmfit/synth/variation"
+	"github.com/spf13/cobra"
+)
+
+// fitReal holds fit's real-parts flags: --check, --robust, --bom, --bom-rank
+// and --plot. A nil *fitReal (divider, feedback) does nothing.
+type fitReal struct {
+	Check   bool
+	Robust  bool
+	BOM     string
+	BOMRank int
+	Plot    string
+}
+
+// checkedAnswers is how many of fit's top answers --check analyses.
+const checkedAnswers = 3
+
+// bindFitRealFlags adds the real-parts flags to fit.
+func bindFitRealFlags(cmd *cobra.Command, r *fitReal) {
+	f := cmd.Flags()
+	f.BoolVar(&r.Check, "check", false, fmt.Sprintf("also check the top %d answers with real parts (worst case, Monte Carlo, ratings; see `ohmfit help check`)", checkedAnswers))
+	f.BoolVar(&r.Robust, "robust", false, fmt.Sprintf("rank by worst-case error with real tolerances: re-ranks the %d best answers by nominal error (not proven over the whole space)", variation.RerankPool))
+	f.StringVar(&r.BOM, "bom", "", "write the bill of materials of one answer (see --bom-rank) to `FILE.csv`")
+	f.IntVar(&r.BOMRank, "bom-rank", 1, "the answer (`N`) whose bill of materials --bom writes and --plot highlights")
+	f.StringVar(&r.Plot, "plot", "", "draw error against power for the answers to `FILE.svg` or FILE.png")
+}
+
+// validate checks the flags.
+func (r *fitReal) validate(cmd *cobra.Command) error {
+	if r.BOMRank < 1 {
+		return usagef(cmd.CommandPath(), "--bom-rank must be at least 1, not %d", r.BOMRank)
+	}
+	return checkOutputFlags(cmd, r.BOM, r.Plot)
+}
+
+// adjust widens the search's list where the flags need more answers.
+func (r *fitReal) adjust(set *synth.Settings) {
+	if r == nil {
+		return
+	}
+	if r.Robust {
+		set.Top = max(set.Top, variation.RerankPool)
+	}
+	set.Top = max(set.Top, r.BOMRank)
+}
+
+// render renders the search result, first re-ranked when --robust, and then
+// does what the other flags ask. Without flags it is renderFit.
+func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result) error {
+	if r == nil || (!r.Check && !r.Robust && r.BOM == "" && r.Plot == "") {
+		return renderFit(o, p, res)
+	}
+	t := p.Template
+	all := res.Solutions
+	var robust []variation.Robust
+	if r.Robust && len(all) > 0 {
+		var err error
+		all, robust, err = variation.Rerank(p, all, o.Series, constraints.Ambient{})
+		if err != nil {
+			return err
+		}
+		fmt.Fprintf(o.ErrOut, "ohmfit: --robust: the %d best answers by nominal error re-ranked by worst-case error (tolerances and TCR together); answers outside them were not considered\n", len(all))
+	}
+	shown := *res
+	shown.Solutions = all[:min(len(all), o.Top)]
+	var checks []object
+	var reports []*variation.Report
+	if r.Check {
+		for _, s := range shown.Solutions[:min(len(shown.Solutions), checkedAnswers)] {
+			d, err := variation.NewDesign(p.Problem, s.Options, o.Series, constraints.Ambient{})
+			if err != nil {
+				return err
+			}
+			rep, err := variation.Check(d, &variation.Settings{Seed: 1})
+			if err != nil {
+				return badInputf("%s%s", filePrefix(t, constraints.Pos{}), strings.TrimPrefix(err.Error(), "variation: "))
+			}
+			reports = append(reports, rep)
+			c := checkJSON(t, d, rep)
+			checks = append(checks, append(object{{"rank", s.Rank}}, c[1:]...))
+		}
+	}
+	switch o.Format {
+	case "json":
+		doc := fitJSON(p, &shown)
+		if robust != nil {
+			rb := make([]object, len(shown.Solutions))
+			for i, s := range shown.Solutions {
+				rb[i] = object{{"rank", s.Rank}, {"worst_error", finite(robust[i].WorstError)}, {"within_limits", robust[i].InBand}, {"method", robust[i].Method}}
+			}
+			doc = append(doc, member{"robust", rb})
+		}
+		if checks != nil {
+			doc = append(doc, member{"checks", checks})
+		}
+		if err := writeJSON(o.Out, doc); err != nil {
+			return err
+		}
+	default:
+		if err := renderFit(o, p, &shown); err != nil {
+			return err
+		}
+		if o.Format == "table" {
+			if err := writeRealTables(o.Out, p, shown.Solutions, robust, reports); err != nil {
+				return err
+			}
+		}
+	}
+	if len(all) == 0 {
+		return nil
+	}
+	if r.BOM != "" || r.Plot != "" {
+		if r.BOMRank > len(all) {
+			return badInputf("--bom-rank %d: the fit has only %d answers", r.BOMRank, len(all))
+		}
+	}
+	inputs := inputFiles(t)
+	if r.BOM != "" {
+		s := all[r.BOMRank-1]
+		d, err := variation.NewDesign(p.Problem, s.Options, o.Series, constraints.Ambient{})
+		if err != nil {
+			return err
+		}
+		rep, err := variation.Check(d, &variation.Settings{Samples: -1})
+		if err != nil {
+			return badInputf("%s%s", filePrefix(t, constraints.Pos{}), strings.TrimPrefix(err.Error(), "variation: "))
+		}
+		if err := writeAtomic(r.BOM, inputs, func(w io.Writer) error { return writeBOM(w, d, rep) }); err != nil {
+			return err
+		}
+	}
+	if r.Plot != "" {
+		if err := writeAtomic(r.Plot, inputs, func(w io.Writer) error { return plotPareto(w, r.Plot, p, all, r.BOMRank) }); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// writeRealTables writes the robust ranking's worst-case errors and the
+// checks of the top answers under fit's table.
+func writeRealTables(w io.Writer, p *synth.Problem, sols []synth.Solution, robust []variation.Robust, reports []*variation.Report) error {
+	var b strings.Builder
+	if robust != nil {
+		b.WriteString("\n  ranked by worst-case error (tolerance and TCR corners):\n\n")
+		tb := table{indent: "  ", cols: []column{{right: true, gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {}}}
+		tb.add("rank", "worst error", "nominal error", "limits at every corner")
+		for i, s := range sols {
+			in := "kept"
+			if !robust[i].InBand {
+				in = "broken"
+			}
+			tb.add(strconv.Itoa(s.Rank), errorText(robust[i].WorstError), errorText(s.Score.Error), in)
+		}
+		if err := tb.write(&b); err != nil {
+			return err
+		}
+	}
+	if reports != nil {
+		b.WriteString("\n  with real parts (`ohmfit help check`):\n\n")
+		tb := table{indent: "  ", cols: []column{{right: true, gap: 3}, {right: true, gap: 3}, {gap: 3}, {right: true, gap: 3}, {gap: 3}, {}}}
+		tb.add("rank", "worst error", "limits", "MC yield", "packages", "notes")
+		for i, rep := range reports {
+			lim := "kept"
+			for _, g := range rep.Goals {
+				if g.HasBand && !g.InBand {
+					lim = "broken"
+				}
+			}
+			var pk []string
+			for _, rg := range rep.Ratings {
+				pk = append(pk, rg.Part+" "+rg.Package)
+			}
+			notes := fmt.Sprintf("%d warnings", len(rep.Warnings))
+			if len(rep.Cautions) > 0 {
+				notes += fmt.Sprintf(", %d cautions", len(rep.Cautions))
+			}
+			tb.add(strconv.Itoa(sols[i].Rank), errorText(rep.WorstErrorDesign), lim, yieldText(rep.Yield), strings.Join(pk, ", "), notes)
+		}
+		if err := tb.write(&b); err != nil {
+			return err
+		}
+		for i, rep := range reports {
+			for _, c := range rep.Cautions {
+				fmt.Fprintf(&b, "\nrank %d: %s\n", sols[i].Rank, c)
+			}
+		}
+	}
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+// paretoPoint is one answer on the error-power plane.
+type paretoPoint struct {
+	err, power float64
+	parts      int
+	rank       int
+}
+
+func paretoPoints(sols []synth.Solution) []paretoPoint {
+	pts := make([]paretoPoint, len(sols))
+	for i, s := range sols {
+		pts[i] = paretoPoint{s.Score.Error, s.Score.Power, s.Parts, s.Rank}
+	}
+	return pts
+}
+
+// unitLabel is an axis label with a unit: "power (W)".
+func unitLabel(name string, u eseries.Unit) string {
+	if u == eseries.NoUnit {
+		return name
+	}
+	return name + " (" + u.String() + ")"
+}

@@ -1,0 +1,211 @@
+package main
+
+import (
+	"fmt"
+	"image/color"
+	"io"
+	"math"
+	"sort"
+	"strings"
+
+	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/synth"
+	"github.com/ohmfit/ohmfit/synth/variation"
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgimg"
+	"gonum.org/v1/plot/vg/vgsvg"
+)
+
+// engTicks labels an axis in engineering units ("200 µW", "1.5 mV").
+type engTicks struct{ unit eseries.Unit }
+
+// Ticks places gonum's default ticks and relabels the major ones.
+func (e engTicks) Ticks(lo, hi float64) []plot.Tick {
+	ts := plot.DefaultTicks{}.Ticks(lo, hi)
+	for i := range ts {
+		if ts[i].Label != "" {
+			ts[i].Label = eseries.FormatUnit(ts[i].Value, e.unit)
+		}
+	}
+	return ts
+}
+
+// percentTicks labels an axis of fractions as percentages.
+type percentTicks struct{}
+
+// Ticks places gonum's default ticks and writes them as percentages.
+func (percentTicks) Ticks(lo, hi float64) []plot.Tick {
+	ts := plot.DefaultTicks{}.Ticks(lo, hi)
+	for i := range ts {
+		if ts[i].Label != "" {
+			ts[i].Label = strings.TrimSuffix(strings.TrimRight(fmt.Sprintf("%.4f", 100*ts[i].Value), "0"), ".") + "%"
+		}
+	}
+	return ts
+}
+
+// glyphs by part count: 1 circle, 2 triangle, 3 square, more: cross.
+var glyphs = []draw.GlyphDrawer{draw.CircleGlyph{}, draw.TriangleGlyph{}, draw.SquareGlyph{}, draw.CrossGlyph{}}
+
+// plotPareto draws the answers' error against power, one marker shape per
+// part count, the Pareto front as a line and the chosen answer ringed.
+func plotPareto(w io.Writer, path string, p *synth.Problem, sols []synth.Solution, chosen int) error {
+	pl := plot.New()
+	pl.Title.Text = "error against power"
+	if p.Template.Name != "" {
+		pl.Title.Text = p.Template.Name + ": error against power"
+	}
+	pl.X.Label.Text = "power dissipated in the resistors, worst condition"
+	pl.Y.Label.Text = "largest goal error"
+	pl.X.Tick.Marker = engTicks{eseries.Watt}
+	pl.Y.Tick.Marker = percentTicks{}
+	pl.Add(plotter.NewGrid())
+	pts := paretoPoints(sols)
+	byCount := map[int]plotter.XYs{}
+	var counts []int
+	for _, q := range pts {
+		if _, ok := byCount[q.parts]; !ok {
+			counts = append(counts, q.parts)
+		}
+		byCount[q.parts] = append(byCount[q.parts], plotter.XY{X: q.power, Y: q.err})
+	}
+	sort.Ints(counts)
+	for i, n := range counts {
+		sc, err := plotter.NewScatter(byCount[n])
+		if err != nil {
+			return err
+		}
+		sc.GlyphStyle.Shape = glyphs[min(i, len(glyphs)-1)]
+		sc.GlyphStyle.Radius = vg.Points(3)
+		sc.GlyphStyle.Color = color.RGBA{R: 40, G: 90, B: 160, A: 255}
+		pl.Add(sc)
+		pl.Legend.Add(fmt.Sprintf("%d parts", n), sc)
+	}
+	// Pareto front: by rising power, each point with a lower error than
+	// every point of lower or equal power.
+	sorted := append([]paretoPoint(nil), pts...)
+	sort.Slice(sorted, func(a, b int) bool {
+		if sorted[a].power != sorted[b].power {
+			return sorted[a].power < sorted[b].power
+		}
+		return sorted[a].err < sorted[b].err
+	})
+	var front plotter.XYs
+	best := math.Inf(1)
+	for _, q := range sorted {
+		if q.err < best {
+			front = append(front, plotter.XY{X: q.power, Y: q.err})
+			best = q.err
+		}
+	}
+	if len(front) > 1 {
+		ln, err := plotter.NewLine(front)
+		if err != nil {
+			return err
+		}
+		ln.LineStyle.Color = color.RGBA{R: 120, G: 120, B: 120, A: 255}
+		ln.LineStyle.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
+		pl.Add(ln)
+		pl.Legend.Add("Pareto front", ln)
+	}
+	for _, q := range pts {
+		if q.rank != chosen {
+			continue
+		}
+		ring, err := plotter.NewScatter(plotter.XYs{{X: q.power, Y: q.err}})
+		if err != nil {
+			return err
+		}
+		ring.GlyphStyle.Shape = draw.RingGlyph{}
+		ring.GlyphStyle.Radius = vg.Points(7)
+		ring.GlyphStyle.Color = color.RGBA{R: 200, G: 30, B: 30, A: 255}
+		pl.Add(ring)
+		pl.Legend.Add(fmt.Sprintf("rank %d (chosen)", chosen), ring)
+	}
+	pl.Legend.Top = true
+	return savePlots(w, path, []*plot.Plot{pl}, 7*vg.Inch, 4.5*vg.Inch)
+}
+
+// plotHistograms draws one Monte Carlo histogram per target and condition,
+// with the target's limits as vertical lines.
+func plotHistograms(w io.Writer, path string, t *constraints.Template, rep *variation.Report) error {
+	var plots []*plot.Plot
+	for _, g := range rep.Goals {
+		var vals plotter.Values
+		for _, v := range g.Samples {
+			if !math.IsNaN(v) {
+				vals = append(vals, v)
+			}
+		}
+		if len(vals) == 0 {
+			continue
+		}
+		tg := t.Targets[g.Target]
+		u := tg.Kind.Unit()
+		pl := plot.New()
+		pl.Title.Text = fmt.Sprintf("%s, %s: %d samples, yield %s", g.Label, g.CondName, len(vals), yieldText(g.MonteCarlo.Yield))
+		pl.X.Label.Text = unitLabel(g.Label, u)
+		pl.Y.Label.Text = "samples"
+		pl.X.Tick.Marker = engTicks{u}
+		h, err := plotter.NewHist(vals, 50)
+		if err != nil {
+			return err
+		}
+		h.FillColor = color.RGBA{R: 120, G: 160, B: 210, A: 255}
+		pl.Add(h)
+		top := 0.0
+		for _, b := range h.Bins {
+			top = math.Max(top, b.Weight)
+		}
+		lo, hi := tg.Band()
+		for _, x := range []float64{lo, hi} {
+			if math.IsInf(x, 0) {
+				continue
+			}
+			ln, err := plotter.NewLine(plotter.XYs{{X: x, Y: 0}, {X: x, Y: top * 1.05}})
+			if err != nil {
+				return err
+			}
+			ln.LineStyle.Color = color.RGBA{R: 200, G: 30, B: 30, A: 255}
+			ln.LineStyle.Width = vg.Points(1.5)
+			pl.Add(ln)
+		}
+		plots = append(plots, pl)
+	}
+	if len(plots) == 0 {
+		return fmt.Errorf("no Monte Carlo samples to draw (is --samples 0?)")
+	}
+	return savePlots(w, path, plots, 7*vg.Inch, vg.Length(len(plots))*3*vg.Inch)
+}
+
+// savePlots draws the plots one above the other and writes SVG or PNG,
+// chosen by path's extension.
+func savePlots(w io.Writer, path string, plots []*plot.Plot, width, height vg.Length) error {
+	grid := make([][]*plot.Plot, len(plots))
+	for i, p := range plots {
+		grid[i] = []*plot.Plot{p}
+	}
+	tiles := draw.Tiles{Rows: len(plots), Cols: 1, PadY: vg.Points(12), PadTop: vg.Points(6), PadBottom: vg.Points(6), PadLeft: vg.Points(6), PadRight: vg.Points(12)}
+	if strings.HasSuffix(strings.ToLower(path), ".png") {
+		c := vgimg.NewWith(vgimg.UseWH(width, height), vgimg.UseDPI(110))
+		dc := draw.New(c)
+		dc.SetColor(color.White)
+		dc.Fill(dc.Rectangle.Path())
+		for i, cv := range plot.Align(grid, tiles, dc) {
+			grid[i][0].Draw(cv[0])
+		}
+		_, err := vgimg.PngCanvas{Canvas: c}.WriteTo(w)
+		return err
+	}
+	c := vgsvg.New(width, height)
+	dc := draw.New(c)
+	for i, cv := range plot.Align(grid, tiles, dc) {
+		grid[i][0].Draw(cv[0])
+	}
+	_, err := c.WriteTo(w)
+	return err
+}

@@ -1,0 +1,120 @@
+package constraints
+
+import (
+	"errors"
+	"fmt"
+	"slices"
+	"strings"
+
+	"github.com/ohmfit/ohmfit/solver"
+)
+
+// NetworkError explains an error the solver returned for t's network in the
+// template's terms: an *Error at the part at fault (the first one in file
+// order when several are), saying what is wrong and what would fix it. The
+// solver's error is kept in Err, so errors.Is(err, solver.ErrSingular) and
+// errors.As with the solver's types still work. An error the solver did not
+// tie to any part (a singular or ill-conditioned matrix) keeps its message
+// and gets no position. NetworkError returns nil for a nil err.
+func (t *Template) NetworkError(err error) *Error {
+	if err == nil {
+		return nil
+	}
+	e := &Error{File: t.File, Msg: strings.TrimPrefix(err.Error(), "solver: "), Err: err}
+	at := func(names ...string) {
+		for _, p := range t.Parts {
+			if slices.Contains(names, p.Name) {
+				e.Line, e.Col = p.Pos.Line, p.Pos.Col
+				return
+			}
+		}
+	}
+	var (
+		fl *solver.FloatingError
+		sl *solver.SourceLoopError
+		il *solver.InputLoopError
+		cc *solver.CurrentCutsetError
+		fb *solver.OpAmpFeedbackError
+		sh *solver.ShortedError
+		du *solver.DuplicatePartError
+		pe *solver.PartError
+		ve *solver.ValueError
+	)
+	switch {
+	case errors.As(err, &fl):
+		parts := t.partsOn(fl.Nodes)
+		at(parts...)
+		them := "it"
+		if len(fl.Nodes) > 1 {
+			them = "them"
+		}
+		e.Msg += fmt.Sprintf("; connect %s to the rest of the circuit or to %s (through a resistor, say), or remove %s",
+			them, t.Ground, strings.Join(parts, ", "))
+	case errors.As(err, &sl):
+		at(sl.Sources...)
+		if len(sl.Sources) == 1 {
+			e.Msg += fmt.Sprintf("; connect its out to a node of its own, not to %s", t.Ground)
+		} else {
+			e.Msg += "; remove one of them or put a resistor in series with one"
+		}
+	case errors.As(err, &il):
+		at(il.Parts...)
+		e.Msg += "; drive one of the op-amp inputs through a resistor, or remove one of the sources"
+	case errors.As(err, &cc):
+		at(cc.Sources...)
+		e.Msg += fmt.Sprintf("; add a resistor from %s to %s or to the rest of the circuit",
+			strings.Join(cc.Nodes, " or "), t.Ground)
+	case errors.As(err, &fb):
+		at(fb.OpAmp)
+		if fb.Input != "" {
+			e.Msg += fmt.Sprintf("; give node %s a path to %s of its own (a resistor, say)", fb.Input, t.Ground)
+		} else if i, ok := t.Part(fb.OpAmp); ok {
+			p := t.Parts[i]
+			e.Msg += fmt.Sprintf("; for negative feedback connect its out (%s) to its minus input (%s), directly or through a resistor",
+				p.Out, p.Minus)
+		}
+	case errors.As(err, &sh):
+		at(sh.Part)
+		if sh.Kind == solver.OpAmp {
+			e.Msg += "; connect plus and minus to different nodes"
+		} else {
+			e.Msg += "; connect its two ends to different nodes, or remove it if it is meant to be a wire"
+		}
+	case errors.As(err, &du):
+		// The second part of that name is the one to rename.
+		seen := false
+		for _, p := range t.Parts {
+			if p.Name == du.Name {
+				if seen {
+					e.Line, e.Col = p.Pos.Line, p.Pos.Col
+					break
+				}
+				seen = true
+			}
+		}
+		e.Msg += "; give each part its own name"
+	case errors.As(err, &pe):
+		if pe.Index >= 0 && pe.Index < len(t.Parts) {
+			p := t.Parts[pe.Index].Pos
+			e.Line, e.Col = p.Line, p.Col
+		}
+	case errors.As(err, &ve):
+		at(ve.Part)
+	}
+	return e
+}
+
+// partsOn returns, in part order, the names of the parts with a terminal on
+// any of the nodes.
+func (t *Template) partsOn(nodes []string) []string {
+	var names []string
+	for _, p := range t.Parts {
+		for _, n := range []string{p.From, p.To, p.Plus, p.Minus, p.Out} {
+			if n != "" && slices.Contains(nodes, n) {
+				names = append(names, p.Name)
+				break
+			}
+		}
+	}
+	return names
+}
