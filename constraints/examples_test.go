@@ -20,11 +20,12 @@ func TestEmbeddedExamples(t *testing.T) {
 	}
 	R, V, I, U := solver.Resistor, solver.VoltageSource, solver.CurrentSource, solver.OpAmp
 	want := map[string][]part{
-		"bridge":      {{"Vex", V, false}, {"RG", R, false}, {"R1", R, true}, {"R2", R, true}, {"R3", R, false}},
-		"divider":     {{"V5", V, false}, {"R1", R, true}, {"R2", R, true}, {"RL", R, false}},
-		"feedback":    {{"Vout", V, false}, {"R1", R, true}, {"R2", R, true}, {"Ibias", I, false}},
-		"gain-stage":  {{"Vin", V, false}, {"U1", U, false}, {"Rf", R, true}, {"Rg", R, true}, {"RL", R, false}},
-		"sensor-bias": {{"Vref", V, false}, {"R1", R, true}, {"RT", R, false}, {"R2", R, true}},
+		"battery-sense": {{"Vgpio", V, false}, {"Rtop", R, true}, {"RT1", R, false}, {"Rpar", R, true}},
+		"bridge":        {{"Vex", V, false}, {"RG", R, false}, {"R1", R, true}, {"R2", R, true}, {"R3", R, false}},
+		"divider":       {{"V5", V, false}, {"R1", R, true}, {"R2", R, true}, {"RL", R, false}},
+		"feedback":      {{"Vout", V, false}, {"R1", R, true}, {"R2", R, true}, {"Ibias", I, false}},
+		"gain-stage":    {{"Vin", V, false}, {"U1", U, false}, {"Rf", R, true}, {"Rg", R, true}, {"RL", R, false}},
+		"sensor-bias":   {{"Vref", V, false}, {"R1", R, true}, {"RT", R, false}, {"R2", R, true}},
 	}
 	names := examples.Names()
 	if len(names) != len(want) {

@@ -151,6 +151,8 @@ type decoder struct {
 	condRefs     []condRef
 	overrideRefs []partRef
 	setRefs      []setRef
+	curveRefs    []curveRef
+	adcRefs      []partRef
 }
 
 func (d *decoder) errorf(n *yaml.Node, key, format string, args ...any) {
@@ -474,7 +476,7 @@ func (d *decoder) positive(n *yaml.Node, path, ctx string, unit eseries.Unit) (f
 	return v, ok
 }
 
-var topKeys = []string{"ohmfit", "name", "ground", "parts", "targets", "limits", "choose", "conditions", "rank", "ambient"}
+var topKeys = []string{"ohmfit", "name", "ground", "parts", "targets", "limits", "choose", "conditions", "sweep", "rank", "ambient", "on_fraction"}
 
 func (d *decoder) template(root *yaml.Node) {
 	if root.Kind != yaml.MappingNode {
@@ -522,8 +524,15 @@ func (d *decoder) template(root *yaml.Node) {
 	if e, ok := byName["conditions"]; ok && !isNull(e.val) && d.expectList(e.val, "conditions", "conditions") {
 		d.conditions(e.val)
 	}
+	if e, ok := byName["sweep"]; ok && !isNull(e.val) {
+		d.sweep(e.val)
+	}
 	if len(t.Conditions) == 0 {
-		t.Conditions = []Condition{{Name: "nominal"}}
+		t.Conditions = []Condition{{Name: "nominal", Temperature: ReferenceCelsius}}
+	}
+	t.OnFraction = 1
+	if e, ok := byName["on_fraction"]; ok {
+		d.onFraction(e.val)
 	}
 	if e, ok := byName["ambient"]; ok && !isNull(e.val) {
 		d.ambient(e.val)
@@ -567,6 +576,9 @@ var partTypes = []struct {
 	{"voltage-source", solver.VoltageSource, []string{"name", "type", "plus", "minus", "volts", "tolerance"}},
 	{"current-source", solver.CurrentSource, []string{"name", "type", "from", "to", "amps", "tolerance"}},
 	{"opamp", solver.OpAmp, []string{"name", "type", "plus", "minus", "out"}},
+	// Sensors are resistors whose value follows the temperature (sensorload.go).
+	{"ntc", solver.Resistor, append([]string{"name", "type", "from", "to"}, sensorKeys["ntc"]...)},
+	{"rtd", solver.Resistor, append([]string{"name", "type", "from", "to"}, sensorKeys["rtd"]...)},
 }
 
 func partTypeNames() []string {
@@ -574,7 +586,7 @@ func partTypeNames() []string {
 	for i, p := range partTypes {
 		names[i] = p.name
 	}
-	return names
+	return append(names, "adc")
 }
 
 func (d *decoder) parts(n *yaml.Node) {
@@ -587,7 +599,21 @@ func (d *decoder) parts(n *yaml.Node) {
 	}
 	seen := map[string]*yaml.Node{}
 	for i, item := range n.Content {
-		p, nameNode, ok := d.part(item, fmt.Sprintf("parts[%d]", i), i)
+		path := fmt.Sprintf("parts[%d]", i)
+		if isADC(item) {
+			a, nameNode, ok := d.adc(item, path, fmt.Sprintf("part %d", i+1))
+			if !ok {
+				continue
+			}
+			if prev, dup := seen[a.Name]; dup {
+				d.errorf(nameNode, path+".name", "part name %q is already used on line %d", a.Name, prev.Line)
+				continue
+			}
+			seen[a.Name] = nameNode
+			d.t.ADCs = append(d.t.ADCs, a)
+			continue
+		}
+		p, nameNode, ok := d.part(item, path, i)
 		if !ok {
 			continue
 		}
@@ -649,7 +675,7 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 	nerr := len(d.errs)
 	byName, _ := d.fields(n, path, ctx, pt.keys)
 	for _, k := range pt.keys {
-		if _, ok := byName[k]; !ok && !slices.Contains(optionalPartKeys, k) {
+		if _, ok := byName[k]; !ok && !slices.Contains(optionalPartKeys, k) && !slices.Contains(sensorKeys[pt.name], k) {
 			d.missingf(n, joinKey(path, k), "%s: missing key %q for a %s", ctx, k, pt.name)
 		}
 	}
@@ -690,6 +716,12 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 		d.errorf(byName[second].val, joinKey(path, second), "%s: both ends are on node %q, so the part does nothing", ctx, p.From)
 		return PartSpec{}, nil, false
 	}
+	if _, sensor := sensorKeys[pt.name]; sensor {
+		if !d.sensorModel(&p, pt.name, n, byName, path, ctx) || !d.realPart(&p, byName, path, ctx) {
+			return PartSpec{}, nil, false
+		}
+		return p, byName["name"].val, true
+	}
 	switch pt.kind {
 	case solver.Resistor:
 		e, has := byName["value"]
@@ -713,7 +745,7 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 	return p, byName["name"].val, ok
 }
 
-var targetAllowed = append(slices.Clone(targetKeys), "equals", "tolerance", "min", "max", "when")
+var targetAllowed = append(slices.Clone(targetKeys), "equals", "tolerance", "min", "max", "when", "curve", "at")
 
 func (d *decoder) target(n *yaml.Node, path string, i int) {
 	ctx := fmt.Sprintf("target %d", i+1)
@@ -774,6 +806,32 @@ func (d *decoder) target(n *yaml.Node, path string, i int) {
 		}
 		tg.Part = name
 		d.partRefs = append(d.partRefs, partRef{name, q.val, qpath})
+	case Code, Resolution:
+		name, ok := d.name(q.val, qpath, qctx)
+		if !ok {
+			return
+		}
+		tg.ADC = name
+		d.adcRefs = append(d.adcRefs, partRef{name, q.val, qpath})
+	case Linearity, Sensitivity:
+		name, ok := d.name(q.val, qpath, qctx)
+		if !ok {
+			return
+		}
+		tg.Nodes = []string{name}
+		d.nodeRefs = append(d.nodeRefs, nodeRef{name, q.val, qpath})
+	}
+	if e, ok := byName["at"]; ok {
+		if tg.Kind != Sensitivity && tg.Kind != Resolution {
+			d.errorf(e.key, joinKey(path, "at"), "%s: at (a temperature) goes with sensitivity and resolution targets", ctx)
+			return
+		}
+		if tg.At, ok = d.temperature(e.val, joinKey(path, "at"), label(ctx, "at")); !ok {
+			return
+		}
+	} else if tg.Kind == Sensitivity || tg.Kind == Resolution {
+		d.missingf(n, joinKey(path, "at"), "%s: %s needs at, the temperature it is taken at (e.g. at: 25)", ctx, tg.Kind)
+		return
 	}
 	unit := tg.Kind.Unit()
 	num := func(key string, has *bool, dst *float64) {
@@ -787,6 +845,27 @@ func (d *decoder) target(n *yaml.Node, path string, i int) {
 	_, hasEq := byName["equals"]
 	_, hasMin := byName["min"]
 	_, hasMax := byName["max"]
+	if e, ok := byName["curve"]; ok {
+		cpath := joinKey(path, "curve")
+		switch {
+		case hasEq:
+			d.errorf(e.key, cpath, "%s: give equals or curve, not both", ctx)
+			return
+		case tg.Kind.Derived():
+			d.errorf(e.key, cpath, "%s: a %s target has one value over the sweep; curve goes with voltage, code and the like", ctx, tg.Kind)
+			return
+		case len(byName["when"].name) > 0:
+			d.errorf(e.key, cpath, "%s: a curve sets its own conditions (one per temperature); leave when out", ctx)
+			return
+		}
+		pts, ok := d.curve(e.val, cpath, label(ctx, "curve"), unit)
+		if !ok {
+			return
+		}
+		d.curveRefs = append(d.curveRefs, curveRef{target: len(d.t.Targets), points: pts, n: e.val, path: cpath})
+		// Each point becomes a goal; a tolerance applies to every point.
+		tg.HasEquals, tg.Equals, hasEq = true, pts[0].value, true
+	}
 	if !hasEq && !hasMin && !hasMax {
 		d.missingf(n, path, "%s: %s has no equals, min or max to check", ctx, tg.Label())
 	}
@@ -1078,7 +1157,7 @@ func (d *decoder) conditions(n *yaml.Node) {
 		if !d.expectMapping(item, path, ctx, "{name: vin-low, set: {Vin: 10}}") {
 			continue
 		}
-		byName, _ := d.fields(item, path, ctx, []string{"name", "set"})
+		byName, _ := d.fields(item, path, ctx, []string{"name", "set", "temperature"})
 		e, ok := byName["name"]
 		if !ok {
 			d.missingf(item, joinKey(path, "name"), "%s: missing key \"name\"", ctx)
@@ -1095,7 +1174,14 @@ func (d *decoder) conditions(n *yaml.Node) {
 		seen[name] = e.val
 		ctx = fmt.Sprintf("condition %q", name)
 		ci := len(d.t.Conditions)
-		d.t.Conditions = append(d.t.Conditions, Condition{Name: name, Pos: Pos{item.Line, item.Column}})
+		cond := Condition{Name: name, Pos: Pos{item.Line, item.Column}, Temperature: ReferenceCelsius}
+		if te, ok := byName["temperature"]; ok {
+			if cond.Temperature, ok = d.temperature(te.val, joinKey(path, "temperature"), label(ctx, "temperature")); !ok {
+				continue
+			}
+			cond.HasTemperature = true
+		}
+		d.t.Conditions = append(d.t.Conditions, cond)
 		s, ok := byName["set"]
 		if !ok || isNull(s.val) {
 			continue
@@ -1145,6 +1231,12 @@ func (d *decoder) rank(n *yaml.Node) {
 // crossCheck resolves names between sections once all are read.
 func (d *decoder) crossCheck() {
 	t := d.t
+	d.expandCurves()
+	t.addHiddenConditions()
+	d.checkSensors()
+	if len(d.errs) > 0 {
+		return
+	}
 	var nodes []string
 	for _, p := range t.Parts {
 		for _, n := range []string{p.From, p.To, p.Plus, p.Minus, p.Out} {
@@ -1212,6 +1304,9 @@ func (d *decoder) crossCheck() {
 			continue
 		case p.Kind == solver.OpAmp:
 			d.errorf(s.key, s.path, "%s: part %q is an op-amp, which has no value to set", s.ctx, s.part)
+			continue
+		case p.Sensor != nil:
+			d.errorf(s.key, s.path, "%s: part %q is a %s; its value follows the condition's temperature, so set temperature instead", s.ctx, s.part, p.SensorType)
 			continue
 		case p.Kind == solver.Resistor:
 			v, ok = d.positive(s.val, s.path, label(s.ctx, s.part), eseries.Ohm)

@@ -56,7 +56,9 @@ func TestParseBad(t *testing.T) {
 		{"unknown top key", head + "@@targts: []\n", `unknown key "targts" (did you mean "targets"?)`, "targts"},
 		{"unrelated top key", head + "@@colour: red\n", `unknown key "colour"; expected one of ohmfit, name, ground`, "colour"},
 		{"misspelt parts", "ohmfit: 1\n@@prats: []\n", `(did you mean "parts"?)`, "prats"},
-		{"reserved sweep", head + "@@sweep: {temperature: [0, 25]}\n", `unknown key "sweep"`, "sweep"},
+		{"sweep too short", head + "sweep: {temperature: @@[25]}\n", "a sweep needs at least two temperatures", "sweep.temperature"},
+		{"sweep bad range", head + "sweep: {temperature: @@{from: 50, to: 0, step: 5}}\n", "want from <= to", "sweep.temperature"},
+		{"on_fraction above one", head + "on_fraction: @@2\n", "above 0 and at most 1", "on_fraction"},
 		{"duplicate top key", head + "name: a\n@@name: b\n", `key "name" appears twice (first on line 7)`, "name"},
 		{"no parts", "ohmfit: 1\nparts: @@[]\n", "at least one part", "parts"},
 		{"parts not a list", "ohmfit: 1\nparts: @@{R1: 1k}\n", "parts: expected a list, got a mapping", "parts"},
@@ -75,8 +77,12 @@ func TestParseBad(t *testing.T) {
 			"contains a space", "parts[0].name"},
 		{"duplicate part name", head + "  - {name: @@R1, type: resistor, from: in, to: gnd}\n",
 			`part name "R1" is already used on line 4`, "parts[4].name"},
-		{"unknown type ntc", head + "  - {name: RT1, type: @@ntc, from: out, to: gnd, r25: 10k}\n",
-			`unknown part type "ntc"; types are resistor, voltage-source, current-source, opamp`, "parts[4].type"},
+		{"ntc without beta", head + "  - @@{name: RT1, type: ntc, from: out, to: gnd, r25: 10k}\n",
+			`a thermistor needs r25 and beta`, "parts[4].r25"},
+		{"ntc both models", head + "  - {name: RT1, type: ntc, from: out, to: gnd, r25: 10k, beta: 3950, @@steinhart: [1, 2, 3]}\n",
+			`either r25 and beta or steinhart`, "parts[4].steinhart"},
+		{"rtd without r0", head + "  - @@{name: RT1, type: rtd, from: out, to: gnd}\n", "an RTD needs r0", "parts[4].r0"},
+		{"adc bits", head + "  - {name: A1, type: adc, in: out, ref: 3.3, bits: @@0}\n", "whole number of bits from 1 to 32", "parts[4].bits"},
 		{"misspelt type", head + "  - {name: R4, type: @@resistr, from: out, to: gnd}\n",
 			`unknown part type "resistr" (did you mean "resistor"?)`, "parts[4].type"},
 		{"same node twice", head + "  - {name: R4, type: resistor, from: out, to: @@out}\n", "both ends are on node", "parts[4].to"},
@@ -127,7 +133,13 @@ func TestParseBad(t *testing.T) {
 		{"override min above inherited max", head + "choose:\n  max: 100k\n  overrides:\n    R2: {min: @@1M}\n", "min (1M) is above max (100k)", "choose.overrides.R2"},
 		{"condition missing name", head + "conditions:\n  - @@{set: {V1: 4}}\n", `missing key "name"`, "conditions[0].name"},
 		{"condition duplicate", head + "conditions:\n  - {name: a}\n  - {name: @@a}\n", `condition name "a" is already used on line 8`, "conditions[1].name"},
-		{"condition temperature", head + "conditions:\n  - {name: hot, @@temperature: 85}\n", `unknown key "temperature"`, "conditions[0].temperature"},
+		{"condition temperature", head + "conditions:\n  - {name: hot, temperature: @@hot}\n", `cannot read value "hot"`, "conditions[0].temperature"},
+		{"curve without condition", head + "sweep: {temperature: [0, 25]}\ntargets:\n  - {voltage: out, curve: {0: 2, @@50: 1}}\n",
+			"curve point at 50 °C: no condition has that temperature", "targets[0].curve"},
+		{"linearity needs three", head + "sweep: {temperature: [0, 25]}\ntargets:\n  - @@{linearity: out, max: 1}\n",
+			"linearity needs at least three temperatures", "targets[0]"},
+		{"sensitivity needs at", head + "targets:\n  - @@{sensitivity: out, min: 1m}\n", "sensitivity needs at", "targets[0].at"},
+		{"code names unknown adc", head + "targets:\n  - {code: @@ADC9, equals: 100}\n", `target names ADC "ADC9"`, "targets[0].code"},
 		{"set unknown part", head + "conditions:\n  - {name: low, set: {@@Vin: 4}}\n", `no part named "Vin"`, "conditions[0].set.Vin"},
 		{"set free part", head + "conditions:\n  - {name: low, set: {@@R1: 4k}}\n", "a condition cannot set it", "conditions[0].set.R1"},
 		{"set resistor negative", head + "conditions:\n  - {name: low, set: {R3: @@-1k}}\n", "must be positive", "conditions[0].set.R3"},
@@ -197,7 +209,7 @@ func zeroPos(t *Template) {
 
 func TestParseGood(t *testing.T) {
 	defChoice := Choice{Series: "E24", Min: 10, Max: 10e6, Combine: Single}
-	nominal := []Condition{{Name: "nominal"}}
+	nominal := []Condition{{Name: "nominal", Temperature: ReferenceCelsius}}
 	defRank := []RankKey{ByError, ByPower, ByParts}
 	cases := []struct {
 		name string
@@ -213,7 +225,7 @@ func TestParseGood(t *testing.T) {
 				{Part: solver.Part{Name: "R3", Kind: solver.Resistor, From: "out", To: "gnd", Value: 10e3}},
 			},
 			Choose:     Choose{Default: defChoice},
-			Conditions: nominal, Rank: defRank,
+			Conditions: nominal, Rank: defRank, OnFraction: 1,
 		}},
 		{"everything", `ohmfit: 1
 name: Every key
@@ -268,10 +280,11 @@ rank: [parts]
 				},
 			},
 			Conditions: []Condition{
-				{Name: "hot", Set: []Setting{{"Vs", 13}, {"Is", 30e-9}, {"Rb", 4300}}},
-				{Name: "cold"},
+				{Name: "hot", Set: []Setting{{"Vs", 13}, {"Is", 30e-9}, {"Rb", 4300}}, Temperature: ReferenceCelsius},
+				{Name: "cold", Temperature: ReferenceCelsius},
 			},
-			Rank: []RankKey{ByParts, ByError, ByPower},
+			Rank:       []RankKey{ByParts, ByError, ByPower},
+			OnFraction: 1,
 		}},
 	}
 	for _, c := range cases {

@@ -1,6 +1,9 @@
 package constraints
 
-import "github.com/ohmfit/ohmfit/solver"
+import (
+	"github.com/ohmfit/ohmfit/constraints/sensors"
+	"github.com/ohmfit/ohmfit/solver"
+)
 
 // SchemaVersion is the template schema this package reads (the `ohmfit:` key).
 const SchemaVersion = 1
@@ -27,6 +30,11 @@ type Template struct {
 	Conditions []Condition // never empty after loading: at least {Name: "nominal"}
 	Rank       []RankKey   // never empty after loading: default error, power, parts
 	Ambient    Ambient     // ambient temperature range for TCR; zero value: none given
+	ADCs       []ADC       // ADC inputs, in file order
+	// OnFraction is the fraction of the time the network is powered (a
+	// sensor switched on only while it is read); every power figure is the
+	// average, OnFraction times the power while on. 1 when not given.
+	OnFraction float64
 }
 
 // ReferenceCelsius is the temperature at which part values are nominal: the
@@ -63,18 +71,41 @@ type PartSpec struct {
 	// Package is a resistor's package (`package: 0603`), as
 	// ratings.Lookup names it; "" when not given.
 	Package string
+
+	// Sensor is set for a thermistor or RTD (`type: ntc` / `rtd`): a
+	// resistor whose value follows each condition's temperature. Its Value
+	// is the resistance at ReferenceCelsius.
+	Sensor     sensors.Model
+	SensorType string // "ntc" or "rtd"
 }
+
+// ADC is an analog-to-digital converter input (`type: adc`): an ideal,
+// unloading input whose reading targets can be written in codes.
+type ADC struct {
+	Name string
+	Node string  // the node it reads, against ground
+	Ref  float64 // full-scale reference, volts
+	Bits int
+	Pos  Pos
+}
+
+// Step is the voltage of one code step: Ref / 2^Bits.
+func (a ADC) Step() float64 { return a.Ref / float64(uint64(1)<<uint(a.Bits)) }
 
 // TargetKind says which quantity a target measures.
 type TargetKind int
 
 // The quantities a target can name.
 const (
-	Voltage    TargetKind = iota // node voltage to ground, or a difference of two nodes
-	Current                      // current through a part in its edge direction
-	Power                        // watts absorbed by a part
-	Ratio                        // V(a) / V(b)
-	Resistance                   // resistance seen between two nodes, independent sources zeroed
+	Voltage     TargetKind = iota // node voltage to ground, or a difference of two nodes
+	Current                       // current through a part in its edge direction
+	Power                         // watts absorbed by a part
+	Ratio                         // V(a) / V(b)
+	Resistance                    // resistance seen between two nodes, independent sources zeroed
+	Code                          // an ADC's output code, V(in)/ref·2^bits (not rounded)
+	Linearity                     // largest deviation of a node's voltage from the straight line through the ends of the temperature sweep, in °C of reading
+	Sensitivity                   // |dV/dT| of a node at a temperature, volts per °C
+	Resolution                    // °C per ADC step at a temperature
 )
 
 // Target is one requirement on one quantity. A target with HasEquals is a
@@ -97,6 +128,9 @@ type Target struct {
 
 	When []string // condition names; empty means every condition
 	Pos  Pos
+
+	ADC string  // Code and Resolution: the ADC part read
+	At  float64 // Sensitivity and Resolution: the temperature, °C
 }
 
 // Limits are hard limits on the network as a whole.
@@ -164,11 +198,19 @@ type Setting struct {
 	Value float64
 }
 
-// Condition is one operating point: a set of overridden values.
+// Condition is one operating point: a set of overridden values and a
+// temperature, which every sensor part follows.
 type Condition struct {
 	Name string
 	Set  []Setting // in file order
 	Pos  Pos
+
+	Temperature    float64 // °C; ReferenceCelsius when not given
+	HasTemperature bool
+	// Hidden conditions are added by ohmfit (half a degree either side of a
+	// sensitivity's temperature, to take the derivative); output leaves
+	// them out.
+	Hidden bool
 }
 
 // RankKey is one key of the ranking order.

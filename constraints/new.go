@@ -11,8 +11,9 @@ func New(name string) *Template {
 		Name:       name,
 		Ground:     DefaultGround,
 		Choose:     Choose{Default: Choice{Series: defaultSeries, Min: defaultMin, Max: defaultMax, Combine: Single}},
-		Conditions: []Condition{{Name: "nominal"}},
+		Conditions: []Condition{{Name: "nominal", Temperature: ReferenceCelsius}},
 		Rank:       []RankKey{ByError, ByPower, ByParts},
+		OnFraction: 1,
 	}
 }
 

@@ -70,9 +70,10 @@ func (t Target) Meets(v float64) bool {
 
 // Probe reads one target's quantity from a solved network.
 type Probe struct {
-	Kind TargetKind
-	A, B int // node indices (B is ground for a single-node voltage)
-	Part int // part index for Current and Power
+	Kind  TargetKind
+	A, B  int     // node indices (B is ground for a single-node voltage)
+	Part  int     // part index for Current and Power
+	Scale float64 // Code: codes per volt (2^bits / ref)
 }
 
 // Read returns the probed quantity from a solver that has just solved.
@@ -81,6 +82,8 @@ func (p Probe) Read(s *solver.Solver) (float64, error) {
 	switch p.Kind {
 	case Voltage:
 		return s.Voltage(p.A) - s.Voltage(p.B), nil
+	case Code:
+		return (s.Voltage(p.A) - s.Voltage(p.B)) * p.Scale, nil
 	case Current:
 		return s.Amps(p.Part), nil
 	case Power:
@@ -101,6 +104,7 @@ func (p Probe) Read(s *solver.Solver) (float64, error) {
 type CondValues struct {
 	Name   string
 	Values []float64 // per part, template order; free parts hold 0
+	Hidden bool      // added by ohmfit for a derivative; output leaves it out
 }
 
 // Problem is a template compiled against its network: everything needed to
@@ -111,7 +115,15 @@ type Problem struct {
 	Free       []int // part indices of the free positions, template order
 	Conditions []CondValues
 	Probes     []Probe  // one per target
-	Applies    [][]bool // [target][condition]
+	Applies    [][]bool // [target][condition]; false everywhere for sweep-wide targets
+	// Derived holds, per target, the probe of a sweep-wide target
+	// (linearity, sensitivity, resolution), or nil. Its value goes in the
+	// Score at condition 0.
+	Derived []*DerivedProbe
+	// Points is the scratch length the derived probes need.
+	Points int
+	// OnFraction scales every power figure (see Template.OnFraction).
+	OnFraction float64
 }
 
 // Compile checks the template's network and prepares it for scoring. A
@@ -127,33 +139,45 @@ func Compile(t *Template) (*Problem, error) {
 		return nil, t.NetworkError(err)
 	}
 	p := &Problem{Template: t, Network: net, Free: t.FreeParts()}
-	for _, cond := range t.Conditions {
-		vals := make([]float64, len(t.Parts))
-		for i, ps := range t.Parts {
-			if !ps.Free {
-				vals[i] = ps.Value
-			}
+	for ci, cond := range t.Conditions {
+		vals, err := t.ConditionValues(ci)
+		if err != nil {
+			return nil, err
 		}
-		for _, set := range cond.Set {
-			i, ok := t.Part(set.Part)
-			if !ok {
-				return nil, fmt.Errorf("constraints: condition %q sets unknown part %q", cond.Name, set.Part)
-			}
-			vals[i] = set.Value
-		}
-		p.Conditions = append(p.Conditions, CondValues{Name: cond.Name, Values: vals})
+		p.Conditions = append(p.Conditions, CondValues{Name: cond.Name, Values: vals, Hidden: cond.Hidden})
+	}
+	p.OnFraction = t.OnFraction
+	if p.OnFraction == 0 {
+		p.OnFraction = 1
 	}
 	for _, tg := range t.Targets {
 		pr, err := probeFor(net, tg)
 		if err != nil {
 			return nil, err
 		}
+		if tg.Kind == Code {
+			for _, a := range t.ADCs {
+				if a.Name == tg.ADC {
+					pr.Scale = 1 / a.Step()
+				}
+			}
+		}
 		p.Probes = append(p.Probes, pr)
 		app := make([]bool, len(p.Conditions))
-		for ci, cv := range p.Conditions {
-			app[ci] = tg.Applies(cv.Name)
+		var dp *DerivedProbe
+		if tg.Kind.Derived() {
+			if dp, err = derivedFor(t, tg, pr.A); err != nil {
+				return nil, err
+			}
+			dp.Offset = p.Points
+			p.Points += len(dp.Conds)
+		} else {
+			for ci, cv := range p.Conditions {
+				app[ci] = tg.Applies(cv.Name)
+			}
 		}
 		p.Applies = append(p.Applies, app)
+		p.Derived = append(p.Derived, dp)
 	}
 	return p, nil
 }
@@ -203,11 +227,13 @@ type Score struct {
 	// Violated names the first hard limit the candidate fails (target index,
 	// condition index), or -1, -1. Target index len(Targets) is supply_power_max.
 	ViolatedTarget, ViolatedCondition int
+
+	points []float64 // node voltages the derived probes read
 }
 
 // NewScore returns a Score sized for the problem, to be reused across calls.
 func (p *Problem) NewScore() *Score {
-	return &Score{Values: make([]float64, len(p.Probes)*len(p.Conditions))}
+	return &Score{Values: make([]float64, len(p.Probes)*len(p.Conditions)), points: make([]float64, p.Points)}
 }
 
 // Evaluate scores one assignment of the free positions (ohms, in Free
@@ -228,7 +254,7 @@ func (p *Problem) Evaluate(s *solver.Solver, free []float64, sc *Score) error {
 			sc.Feasible = false
 			return err
 		}
-		pw := s.ResistorPower()
+		pw := s.ResistorPower() * p.OnFraction
 		if pw > sc.Power {
 			sc.Power = pw
 		}
@@ -257,6 +283,47 @@ func (p *Problem) Evaluate(s *solver.Solver, free []float64, sc *Score) error {
 				sc.Error = e
 			}
 		}
+		for _, dp := range p.Derived {
+			if dp == nil {
+				continue
+			}
+			for k, c := range dp.Conds {
+				if c == ci {
+					sc.points[dp.Offset+k] = s.Voltage(dp.Node)
+				}
+			}
+		}
 	}
+	p.scoreDerived(sc.points, sc)
 	return nil
+}
+
+// scoreDerived computes the sweep-wide targets from the node voltages in
+// points (laid out by each probe's Offset), records them at condition 0, and
+// folds them into the score's feasibility and error.
+func (p *Problem) scoreDerived(points []float64, sc *Score) {
+	nc := len(p.Conditions)
+	for ti, dp := range p.Derived {
+		if dp == nil {
+			continue
+		}
+		v := dp.Value(points[dp.Offset : dp.Offset+len(dp.Conds)])
+		sc.Values[ti*nc] = v
+		tg := &p.Template.Targets[ti]
+		if !tg.Meets(v) && sc.Feasible {
+			sc.Feasible = false
+			sc.ViolatedTarget, sc.ViolatedCondition = ti, dp.Conds[0]
+		}
+		if e := tg.GoalError(v); e > sc.Error || math.IsNaN(e) {
+			sc.Error = e
+		}
+	}
+}
+
+// DerivedValue computes a sweep-wide target from the node voltages the
+// search gathered (laid out by each probe's Offset), for callers that score
+// without a full Evaluate.
+func (p *Problem) DerivedValue(ti int, points []float64) float64 {
+	dp := p.Derived[ti]
+	return dp.Value(points[dp.Offset : dp.Offset+len(dp.Conds)])
 }

@@ -1,6 +1,7 @@
 package constraints
 
 import (
+	"fmt"
 	"strconv"
 	"strings"
 
@@ -19,6 +20,51 @@ func (t *Template) Circuit() solver.Circuit {
 		}
 	}
 	return solver.Circuit{Ground: t.Ground, Parts: parts}
+}
+
+// ConditionValues returns every part's value in condition ci, template
+// order: the fixed values, the condition's settings, and each sensor's
+// resistance at the condition's temperature. Free parts hold 0.
+func (t *Template) ConditionValues(ci int) ([]float64, error) {
+	cond := t.Conditions[ci]
+	vals := make([]float64, len(t.Parts))
+	for i, ps := range t.Parts {
+		if !ps.Free {
+			vals[i] = ps.Value
+		}
+	}
+	for _, set := range cond.Set {
+		i, ok := t.Part(set.Part)
+		if !ok {
+			return nil, fmt.Errorf("constraints: condition %q sets unknown part %q", cond.Name, set.Part)
+		}
+		vals[i] = set.Value
+	}
+	for i, ps := range t.Parts {
+		if ps.Sensor == nil {
+			continue
+		}
+		r, err := ps.Sensor.Resistance(cond.Temperature)
+		if err != nil {
+			return nil, fmt.Errorf("constraints: part %s in condition %q: %v", ps.Name, cond.Name, err)
+		}
+		vals[i] = r
+	}
+	return vals, nil
+}
+
+// ConditionCircuit is Circuit with condition ci's values (see
+// ConditionValues).
+func (t *Template) ConditionCircuit(ci int) (solver.Circuit, error) {
+	c := t.Circuit()
+	vals, err := t.ConditionValues(ci)
+	if err != nil {
+		return c, err
+	}
+	for i := range c.Parts {
+		c.Parts[i].Value = vals[i]
+	}
+	return c, nil
 }
 
 // FreeParts returns the indices in Parts of the free resistors, in order.
@@ -82,12 +128,38 @@ func (k TargetKind) Unit() eseries.Unit {
 	return eseries.NoUnit
 }
 
+// UnitText is the unit of a quantity that eseries has no unit for, as
+// output writes it after the number: "°C", "V/°C", "°C/step"; "" otherwise.
+func (k TargetKind) UnitText() string {
+	switch k {
+	case Linearity:
+		return "°C"
+	case Sensitivity:
+		return "V/°C"
+	case Resolution:
+		return "°C/step"
+	}
+	return ""
+}
+
+// Derived reports whether the kind is computed from several conditions at
+// once (a temperature sweep) rather than in each condition.
+func (k TargetKind) Derived() bool {
+	return k == Linearity || k == Sensitivity || k == Resolution
+}
+
 // Label names the target as output shows it: "voltage fb", "voltage a-b",
 // "current R1", "power R1", "ratio fb/out", "resistance out-gnd".
 func (t Target) Label() string {
 	switch t.Kind {
 	case Current, Power:
 		return t.Kind.String() + " " + t.Part
+	case Code:
+		return t.Kind.String() + " " + t.ADC
+	case Sensitivity:
+		return fmt.Sprintf("sensitivity %s at %g°C", strings.Join(t.Nodes, "-"), t.At)
+	case Resolution:
+		return fmt.Sprintf("resolution %s at %g°C", t.ADC, t.At)
 	case Ratio:
 		return t.Kind.String() + " " + strings.Join(t.Nodes, "/")
 	}
@@ -127,7 +199,7 @@ func (k RankKey) String() string {
 
 // Spellings, indexed by the constants they name.
 var (
-	targetKeys   = []string{"voltage", "current", "power", "ratio", "resistance"}
+	targetKeys   = []string{"voltage", "current", "power", "ratio", "resistance", "code", "linearity", "sensitivity", "resolution"}
 	combineNames = []string{"single", "series", "parallel", "any"}
 	rankNames    = []string{"error", "power", "parts"}
 )

@@ -212,6 +212,7 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 			c.vals[i] = o.Value
 			c.parts += o.Count
 		}
+		points := make([]float64, p.Points)
 		for ci, cond := range p.Conditions {
 			vals := append([]float64(nil), cond.Values...)
 			for i, d := range p.Domains {
@@ -228,11 +229,20 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 					pw += ps.watts(i)
 				}
 			}
+			pw *= tp.OnFraction // average power of a duty-cycled supply
 			c.power = math.Max(c.power, pw)
 			if lim := tp.Limits.SupplyPowerMax; lim > 0 && pw > lim && !constraints.Same(pw, lim) {
 				feasible = false
 			}
-			for _, tg := range tp.Targets {
+			for ti, tg := range tp.Targets {
+				if dp := p.Derived[ti]; dp != nil {
+					for k, dc := range dp.Conds {
+						if dc == ci {
+							points[dp.Offset+k] = ps.v(tg.Nodes[0])
+						}
+					}
+					continue
+				}
 				if !tg.Applies(cond.Name) {
 					continue
 				}
@@ -245,6 +255,13 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 					}
 				case constraints.Ratio:
 					v = ps.v(tg.Nodes[0]) / ps.v(tg.Nodes[1])
+				case constraints.Code:
+					// An ADC reads V(in) / (ref / 2^bits) codes.
+					for _, a := range tp.ADCs {
+						if a.Name == tg.ADC {
+							v = ps.v(tg.Nodes[0]) * math.Pow(2, float64(a.Bits)) / a.Ref
+						}
+					}
 				case constraints.Current:
 					i, _ := tp.Part(tg.Part)
 					v = ps.amps(i)
@@ -261,7 +278,18 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 					c.err = math.Max(c.err, tg.GoalError(v))
 				}
 			}
-			_ = ci
+		}
+		for ti, tg := range tp.Targets {
+			if p.Derived[ti] == nil {
+				continue
+			}
+			v := p.DerivedValue(ti, points)
+			if !tg.Meets(v) {
+				feasible = false
+			}
+			if tg.HasEquals {
+				c.err = math.Max(c.err, tg.GoalError(v))
+			}
 		}
 		if feasible {
 			out = append(out, c)

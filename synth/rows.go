@@ -178,7 +178,13 @@ type rowWorker struct {
 
 	frontCap float64    // goal error bound of the trade-off front; 0: none kept
 	front    *frontList // the worker's trade-off front, nil when none is kept
+
+	points     []float64     // node voltages the sweep-wide targets read
+	condPoints [][]pointSlot // per condition: which points it fills
 }
+
+// pointSlot says that a condition's voltage at node fills points[idx].
+type pointSlot struct{ idx, node int }
 
 func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *rowWorker {
 	top := set.Top
@@ -215,6 +221,16 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 	if set.FrontErrorCap > 0 {
 		w.frontCap = set.FrontErrorCap
 		w.front = &frontList{r: r}
+	}
+	w.points = make([]float64, p.Points)
+	w.condPoints = make([][]pointSlot, nc)
+	for _, dp := range p.Derived {
+		if dp == nil {
+			continue
+		}
+		for k, c := range dp.Conds {
+			w.condPoints[c] = append(w.condPoints[c], pointSlot{dp.Offset + k, dp.Node})
+		}
 	}
 	for c := range w.cond {
 		rc := &w.cond[c]
@@ -352,6 +368,9 @@ func (w *rowWorker) powerCoefficients(rc *rowCond) {
 			rc.p2 += rc.w[o] * rc.w[b]
 		}
 	}
+	// Average power of a duty-cycled supply (on_fraction).
+	f := w.p.OnFraction
+	rc.p0, rc.p1, rc.p2 = rc.p0*f, rc.p1*f, rc.p2*f
 }
 
 // sAt returns the update parameter s and the conductance for option i.
@@ -367,6 +386,8 @@ func (w *rowWorker) probe(rc *rowCond, ti int, s, g float64) float64 {
 	switch pr.Kind {
 	case constraints.Voltage:
 		return (rc.x0[pr.A] - rc.w[pr.A]*s) - (rc.x0[pr.B] - rc.w[pr.B]*s)
+	case constraints.Code:
+		return ((rc.x0[pr.A] - rc.w[pr.A]*s) - (rc.x0[pr.B] - rc.w[pr.B]*s)) * pr.Scale
 	case constraints.Ratio:
 		d := rc.x0[pr.B] - rc.w[pr.B]*s
 		if d == 0 {
@@ -436,6 +457,26 @@ func (w *rowWorker) scoreOption(i int) {
 			if e := tg.GoalError(v); e > errMax {
 				errMax = e
 			}
+		}
+		for _, ps := range w.condPoints[c] {
+			w.points[ps.idx] = rc.x0[ps.node] - rc.w[ps.node]*s
+		}
+	}
+	// Sweep-wide targets (linearity, sensitivity, resolution) read the
+	// node voltages of several conditions; none is monotone along a row, so
+	// they are only checked here, never used to cut a row.
+	for ti, dp := range p.Derived {
+		if dp == nil {
+			continue
+		}
+		v := p.DerivedValue(ti, w.points)
+		tg := &p.Template.Targets[ti]
+		if !tg.Meets(v) {
+			w.viol[ti*w.nc+dp.Conds[0]]++
+			return
+		}
+		if e := tg.GoalError(v); e > errMax || math.IsNaN(e) {
+			errMax = e
 		}
 	}
 	w.offer(i, errMax, powMax)
@@ -639,7 +680,7 @@ func (w *rowWorker) powerRange(lo, hi int, t float64) (int, int, bool) {
 func (w *rowWorker) monotone(rc *rowCond, ti, lo, hi int) bool {
 	pr := &w.p.Probes[ti]
 	switch pr.Kind {
-	case constraints.Voltage, constraints.Current, constraints.Resistance:
+	case constraints.Voltage, constraints.Code, constraints.Current, constraints.Resistance:
 		return true
 	case constraints.Ratio:
 		// A bilinear function of s: monotone unless its denominator changes

@@ -263,8 +263,12 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result) string {
 			eseries.FormatUnit(t.Limits.SupplyPowerMax, eseries.Watt), cond)
 	}
 	tg := t.Targets[b.Target]
-	return fmt.Sprintf("%s; most were rejected by %s %s in condition %q (line %d); widen that limit, the value ranges or the series",
-		scope, tg.Label(), describeLimit(tg), cond, tg.Pos.Line)
+	where := fmt.Sprintf("in condition %q", cond)
+	if tg.Kind.Derived() {
+		where = "over the temperature sweep"
+	}
+	return fmt.Sprintf("%s; most were rejected by %s %s %s (line %d); widen that limit, the value ranges or the series",
+		scope, tg.Label(), describeLimit(tg), where, tg.Pos.Line)
 }
 
 // describeLimit writes a target's hard limits, e.g. "max 100 µA".
@@ -322,11 +326,16 @@ func goalColumns(p *synth.Problem) []goalColumn {
 	var cols []goalColumn
 	multi := len(p.Conditions) > 1
 	for ti, tg := range p.Template.Targets {
+		if p.Derived[ti] != nil {
+			// A sweep-wide figure is one number: show it, goal or limit.
+			cols = append(cols, goalColumn{ti, 0, tg.Label()})
+			continue
+		}
 		if !tg.HasEquals {
 			continue
 		}
 		for ci, c := range p.Conditions {
-			if !p.Applies[ti][ci] {
+			if !p.Applies[ti][ci] || c.Hidden {
 				continue
 			}
 			label := tg.Label()
@@ -336,7 +345,7 @@ func goalColumns(p *synth.Problem) []goalColumn {
 			cols = append(cols, goalColumn{ti, ci, label})
 		}
 	}
-	if len(cols) > 4 {
+	if len(cols) > 5 {
 		return nil
 	}
 	return cols
@@ -473,7 +482,7 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 			if math.Abs(v) < constraints.TieAbsolute {
 				v = 0 // rounding residue of an exact hit, e.g. a balanced bridge
 			}
-			row = append(row, preciseUnit(v, p.Template.Targets[g.target].Kind.Unit()))
+			row = append(row, quantityText(v, p.Template.Targets[g.target].Kind))
 		}
 		tb.add(row...)
 	}
@@ -529,11 +538,19 @@ func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 		targets := []object{}
 		for ti, tg := range p.Template.Targets {
 			for ci, c := range p.Conditions {
-				if !p.Applies[ti][ci] {
+				derived := p.Derived[ti] != nil
+				if derived && ci > 0 {
+					break
+				}
+				if (!derived && !p.Applies[ti][ci]) || c.Hidden {
 					continue
 				}
+				name := c.Name
+				if derived {
+					name = "sweep" // one figure over the temperature conditions
+				}
 				v := s.Score.Values[ti*nc+ci]
-				m := object{{"target", tg.Label()}, {"condition", c.Name}, {"value", v}}
+				m := object{{"target", tg.Label()}, {"condition", name}, {"value", v}}
 				if tg.HasEquals {
 					m = append(m, member{"goal", tg.Equals}, member{"error", tg.GoalError(v)})
 				}
@@ -585,6 +602,22 @@ func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result) error {
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// quantityText writes a target's value with its unit: five significant
+// digits for electrical quantities, codes with one decimal, °C figures with
+// four digits.
+func quantityText(v float64, k constraints.TargetKind) string {
+	switch k {
+	case constraints.Code:
+		return strconv.FormatFloat(v, 'f', 1, 64)
+	case constraints.Sensitivity:
+		return eseries.FormatUnit(v, eseries.Volt) + "/°C"
+	}
+	if u := k.UnitText(); u != "" {
+		return eseries.FormatSig(v, 4) + " " + u
+	}
+	return preciseUnit(v, k.Unit())
 }
 
 // preciseUnit is FormatUnit with five significant digits, for goal values

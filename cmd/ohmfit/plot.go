@@ -54,6 +54,27 @@ var glyphs = []draw.GlyphDrawer{draw.CircleGlyph{}, draw.TriangleGlyph{}, draw.S
 // plotPareto draws the answers' error against power, one marker shape per
 // part count, the Pareto front as a line and the chosen answer ringed.
 func plotPareto(w io.Writer, path string, p *synth.Problem, sols []synth.Solution, chosen int) error {
+	pl, err := paretoPlot(p, sols, chosen)
+	if err != nil {
+		return err
+	}
+	plots := []*plot.Plot{pl}
+	height := 4.5 * vg.Inch
+	// A template with a temperature sweep also gets the chosen answer's
+	// transfer curve against its goals.
+	if chosen >= 1 && chosen <= len(sols) {
+		if tc, err := transferPlot(p, sols[chosen-1]); err != nil {
+			return err
+		} else if tc != nil {
+			plots = append(plots, tc)
+			height = 9 * vg.Inch
+		}
+	}
+	return savePlots(w, path, plots, 7*vg.Inch, height)
+}
+
+// paretoPlot is the error-against-power plot of plotPareto.
+func paretoPlot(p *synth.Problem, sols []synth.Solution, chosen int) (*plot.Plot, error) {
 	pl := plot.New()
 	pl.Title.Text = "error against power"
 	if p.Template.Name != "" {
@@ -77,7 +98,7 @@ func plotPareto(w io.Writer, path string, p *synth.Problem, sols []synth.Solutio
 	for i, n := range counts {
 		sc, err := plotter.NewScatter(byCount[n])
 		if err != nil {
-			return err
+			return nil, err
 		}
 		sc.GlyphStyle.Shape = glyphs[min(i, len(glyphs)-1)]
 		sc.GlyphStyle.Radius = vg.Points(3)
@@ -105,7 +126,7 @@ func plotPareto(w io.Writer, path string, p *synth.Problem, sols []synth.Solutio
 	if len(front) > 1 {
 		ln, err := plotter.NewLine(front)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		ln.LineStyle.Color = color.RGBA{R: 120, G: 120, B: 120, A: 255}
 		ln.LineStyle.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
@@ -118,7 +139,7 @@ func plotPareto(w io.Writer, path string, p *synth.Problem, sols []synth.Solutio
 		}
 		ring, err := plotter.NewScatter(plotter.XYs{{X: q.power, Y: q.err}})
 		if err != nil {
-			return err
+			return nil, err
 		}
 		ring.GlyphStyle.Shape = draw.RingGlyph{}
 		ring.GlyphStyle.Radius = vg.Points(7)
@@ -127,7 +148,7 @@ func plotPareto(w io.Writer, path string, p *synth.Problem, sols []synth.Solutio
 		pl.Legend.Add(fmt.Sprintf("rank %d (chosen)", chosen), ring)
 	}
 	pl.Legend.Top = true
-	return savePlots(w, path, []*plot.Plot{pl}, 7*vg.Inch, 4.5*vg.Inch)
+	return pl, nil
 }
 
 // plotHistograms draws one Monte Carlo histogram per target and condition,

@@ -113,17 +113,15 @@ func requireValued(t *constraints.Template) error {
 // analyzeAll solves the network once per condition, each on its own copy of
 // the circuit with the condition's settings applied.
 func analyzeAll(t *constraints.Template) ([]conditionResult, error) {
-	base := t.Circuit()
 	results := make([]conditionResult, 0, len(t.Conditions))
-	for _, cond := range t.Conditions {
-		c := solver.Circuit{Ground: base.Ground, Parts: append([]solver.Part(nil), base.Parts...)}
-		for _, s := range cond.Set {
-			i, ok := t.Part(s.Part)
-			if !ok {
-				// The loader checks settings; this guards a template built in code.
-				return nil, badInputf("%scondition %q sets unknown part %q", filePrefix(t, cond.Pos), cond.Name, s.Part)
-			}
-			c.Parts[i].Value = s.Value
+	for ci, cond := range t.Conditions {
+		if cond.Hidden {
+			continue // a derivative's helper condition, not one the user wrote
+		}
+		c, err := t.ConditionCircuit(ci)
+		if err != nil {
+			// The loader checks settings; this guards a template built in code.
+			return nil, badInputf("%s%s", filePrefix(t, cond.Pos), trimPackage(err.Error()))
 		}
 		sol, err := solver.Analyze(c)
 		if err != nil {

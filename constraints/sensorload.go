@@ -1,0 +1,397 @@
+package constraints
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"github.com/ohmfit/ohmfit/constraints/sensors"
+	"github.com/ohmfit/ohmfit/eseries"
+	"gopkg.in/yaml.v3"
+)
+
+// This file reads what sensor networks need: thermistor and RTD parts, ADC
+// inputs, a condition's temperature, temperature sweeps, transfer curves,
+// the sweep-wide targets (linearity, sensitivity, resolution) and the
+// on_fraction of a duty-cycled supply.
+
+// sensorKeys are the keys of each sensor part type beyond name, type, from
+// and to; all are optional to the generic check and validated here.
+var sensorKeys = map[string][]string{
+	"ntc": {"r25", "beta", "steinhart", "tolerance", "package"},
+	"rtd": {"r0", "coefficients", "tolerance", "package"},
+}
+
+// sensorModel reads an ntc or rtd part's model and sets its Value to the
+// resistance at ReferenceCelsius.
+func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[string]entry, path, ctx string) bool {
+	p.SensorType = typ
+	switch typ {
+	case "ntc":
+		sh, hasSH := byName["steinhart"]
+		r25, hasR := byName["r25"]
+		beta, hasB := byName["beta"]
+		switch {
+		case hasSH && (hasR || hasB):
+			d.errorf(sh.key, joinKey(path, "steinhart"), "%s: give either r25 and beta or steinhart, not both", ctx)
+			return false
+		case hasSH:
+			c, ok := d.numbers(sh.val, joinKey(path, "steinhart"), label(ctx, "steinhart"), 3, "[1.129e-3, 2.341e-4, 8.775e-8]")
+			if !ok {
+				return false
+			}
+			p.Sensor = sensors.SteinhartHart{A: c[0], B: c[1], C: c[2]}
+		case hasR && hasB:
+			r, ok1 := d.positive(r25.val, joinKey(path, "r25"), label(ctx, "r25"), eseries.Ohm)
+			b, ok2 := d.positive(beta.val, joinKey(path, "beta"), label(ctx, "beta"), eseries.NoUnit)
+			if !ok1 || !ok2 {
+				return false
+			}
+			p.Sensor = sensors.Beta{R25: r, Beta: b}
+		default:
+			d.missingf(n, joinKey(path, "r25"), "%s: a thermistor needs r25 and beta (e.g. r25: 10k, beta: 3950) or steinhart: [A, B, C]", ctx)
+			return false
+		}
+	case "rtd":
+		r0, ok := byName["r0"]
+		if !ok {
+			d.missingf(n, joinKey(path, "r0"), "%s: an RTD needs r0, its resistance at 0 °C (100 for a Pt100)", ctx)
+			return false
+		}
+		r, ok := d.positive(r0.val, joinKey(path, "r0"), label(ctx, "r0"), eseries.Ohm)
+		if !ok {
+			return false
+		}
+		m := sensors.IEC60751(r)
+		if e, ok := byName["coefficients"]; ok {
+			c, ok := d.numbers(e.val, joinKey(path, "coefficients"), label(ctx, "coefficients"), 3, "[3.9083e-3, -5.775e-7, -4.183e-12]")
+			if !ok {
+				return false
+			}
+			m.A, m.B, m.C = c[0], c[1], c[2]
+		}
+		p.Sensor = m
+	}
+	v, err := p.Sensor.Resistance(ReferenceCelsius)
+	if err != nil || !(v > 0) || math.IsInf(v, 0) {
+		d.errorf(n, path, "%s: the model gives no usable resistance at %g °C", ctx, ReferenceCelsius)
+		return false
+	}
+	p.Value = v
+	return true
+}
+
+// numbers reads a list of exactly k plain numbers.
+func (d *decoder) numbers(n *yaml.Node, path, ctx string, k int, example string) ([]float64, bool) {
+	if n.Kind != yaml.SequenceNode || len(n.Content) != k {
+		d.errorf(n, path, "%s: expected a list of %d numbers such as %s, got %s", ctx, k, example, describe(n))
+		return nil, false
+	}
+	out := make([]float64, k)
+	for i, it := range n.Content {
+		v, ok := d.value(it, path, ctx, eseries.NoUnit)
+		if !ok {
+			return nil, false
+		}
+		out[i] = v
+	}
+	return out, true
+}
+
+// adc reads `{name: ADC1, type: adc, in: node, ref: 3.3, bits: 12}`.
+func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
+	byName, _ := d.fields(n, path, ctx, []string{"name", "type", "in", "ref", "bits"})
+	for _, k := range []string{"name", "in", "ref", "bits"} {
+		if _, ok := byName[k]; !ok {
+			d.missingf(n, joinKey(path, k), "%s: missing key %q for an adc (e.g. {name: ADC1, type: adc, in: sense, ref: 3.3, bits: 12})", ctx, k)
+			return ADC{}, nil, false
+		}
+	}
+	a := ADC{Pos: Pos{n.Line, n.Column}}
+	var ok bool
+	if a.Name, ok = d.name(byName["name"].val, joinKey(path, "name"), label(ctx, "name")); !ok {
+		return a, nil, false
+	}
+	if a.Node, ok = d.name(byName["in"].val, joinKey(path, "in"), label(ctx, "in")); !ok {
+		return a, nil, false
+	}
+	d.nodeRefs = append(d.nodeRefs, nodeRef{a.Node, byName["in"].val, joinKey(path, "in")})
+	if a.Ref, ok = d.positive(byName["ref"].val, joinKey(path, "ref"), label(ctx, "ref"), eseries.Volt); !ok {
+		return a, nil, false
+	}
+	b := byName["bits"].val
+	bits, err := strconv.Atoi(b.Value)
+	if b.Kind != yaml.ScalarNode || err != nil || bits < 1 || bits > 32 {
+		d.errorf(b, joinKey(path, "bits"), "%s: expected a whole number of bits from 1 to 32, got %s", label(ctx, "bits"), describe(b))
+		return a, nil, false
+	}
+	a.Bits = bits
+	return a, byName["name"].val, true
+}
+
+// temperature reads a temperature in °C: a plain number (85, -20, 25.5).
+func (d *decoder) temperature(n *yaml.Node, path, ctx string) (float64, bool) {
+	v, ok := d.value(n, path, ctx, eseries.NoUnit)
+	if ok && !(v > -sensors.ZeroCelsius && v < 1e4) {
+		d.errorf(n, path, "%s: %s °C is not a temperature a circuit meets", ctx, n.Value)
+		return 0, false
+	}
+	return v, ok
+}
+
+// sweep reads `sweep: {temperature: [-20, 0, 25]}` or
+// `sweep: {temperature: {from: -20, to: 85, step: 5}}` and adds one
+// condition per temperature, named like "-20C".
+func (d *decoder) sweep(n *yaml.Node) {
+	if !d.expectMapping(n, "sweep", "sweep", "{temperature: [-20, 0, 25, 50]}") {
+		return
+	}
+	byName, _ := d.fields(n, "sweep", "sweep", []string{"temperature"})
+	e, ok := byName["temperature"]
+	if !ok {
+		d.missingf(n, "sweep.temperature", "sweep: missing key \"temperature\"")
+		return
+	}
+	path, ctx := "sweep.temperature", "sweep: temperature"
+	var temps []float64
+	switch e.val.Kind {
+	case yaml.SequenceNode:
+		for _, it := range e.val.Content {
+			v, ok := d.temperature(it, path, ctx)
+			if !ok {
+				return
+			}
+			temps = append(temps, v)
+		}
+	case yaml.MappingNode:
+		r, _ := d.fields(e.val, path, ctx, []string{"from", "to", "step"})
+		var lim [3]float64
+		for i, k := range []string{"from", "to", "step"} {
+			x, ok := r[k]
+			if !ok {
+				d.missingf(e.val, joinKey(path, k), "%s: missing key %q (a range is {from: -20, to: 85, step: 5})", ctx, k)
+				return
+			}
+			if lim[i], ok = d.temperature(x.val, joinKey(path, k), label(ctx, k)); !ok {
+				return
+			}
+		}
+		from, to, step := lim[0], lim[1], lim[2]
+		if !(step > 0) || to < from || (to-from)/step > 1000 {
+			d.errorf(e.val, path, "%s: want from <= to and a positive step giving at most 1000 points", ctx)
+			return
+		}
+		for k := 0; ; k++ {
+			t := from + float64(k)*step
+			if t > to+1e-9*math.Max(1, math.Abs(to)) {
+				break
+			}
+			temps = append(temps, math.Round(t*1e9)/1e9)
+		}
+	default:
+		d.errorf(e.val, path, "%s: expected a list of temperatures or {from, to, step}, got %s", ctx, describe(e.val))
+		return
+	}
+	if len(temps) < 2 {
+		d.errorf(e.val, path, "%s: a sweep needs at least two temperatures", ctx)
+		return
+	}
+	for _, t := range temps {
+		name := TemperatureName(t)
+		if _, dup := d.t.ConditionIndex(name); dup {
+			d.errorf(e.val, path, "%s: %g °C appears twice (condition %q)", ctx, t, name)
+			return
+		}
+		d.t.Conditions = append(d.t.Conditions, Condition{Name: name, Pos: Pos{e.val.Line, e.val.Column}, Temperature: t, HasTemperature: true})
+	}
+}
+
+// TemperatureName is the name a sweep gives the condition at t °C: "-20C",
+// "25C", "37.5C".
+func TemperatureName(t float64) string {
+	return strconv.FormatFloat(t, 'g', -1, 64) + "C"
+}
+
+// curveRef is a transfer-curve target waiting for the conditions to be read.
+type curveRef struct {
+	target int // index into Targets of the template target it expands
+	points []curvePoint
+	n      *yaml.Node
+	path   string
+}
+
+type curvePoint struct {
+	celsius, value float64
+	n              *yaml.Node
+}
+
+// curve reads `curve: {-20: 2.9, 25: 1.65, 85: 0.42}` (temperature: value).
+func (d *decoder) curve(n *yaml.Node, path, ctx string, unit eseries.Unit) ([]curvePoint, bool) {
+	if !d.expectMapping(n, path, ctx, "{-20: 2.9, 25: 1.65, 85: 0.42}") {
+		return nil, false
+	}
+	_, order := d.fields(n, path, ctx, nil)
+	var pts []curvePoint
+	for _, e := range order {
+		t, ok := d.temperature(e.key, joinKey(path, e.name), ctx)
+		if !ok {
+			return nil, false
+		}
+		v, ok := d.value(e.val, joinKey(path, e.name), label(ctx, e.name), unit)
+		if !ok {
+			return nil, false
+		}
+		pts = append(pts, curvePoint{t, v, e.key})
+	}
+	if len(pts) == 0 {
+		d.errorf(n, path, "%s: the curve has no points", ctx)
+		return nil, false
+	}
+	return pts, true
+}
+
+// conditionAt finds the visible condition at a temperature.
+func (t *Template) conditionAt(celsius float64) (int, bool) {
+	for i, c := range t.Conditions {
+		if c.HasTemperature && !c.Hidden && math.Abs(c.Temperature-celsius) <= 1e-9 {
+			return i, true
+		}
+	}
+	return -1, false
+}
+
+// temperatureNames lists the temperatures the conditions have, for messages.
+func (t *Template) temperatureNames() string {
+	var out []string
+	for _, c := range t.Conditions {
+		if c.HasTemperature && !c.Hidden {
+			out = append(out, strconv.FormatFloat(c.Temperature, 'g', -1, 64))
+		}
+	}
+	if len(out) == 0 {
+		return "none"
+	}
+	return strings.Join(out, ", ")
+}
+
+// expandCurves replaces each transfer-curve target by one goal per point,
+// each in the condition at that temperature.
+func (d *decoder) expandCurves() {
+	if len(d.curveRefs) == 0 {
+		return
+	}
+	t := d.t
+	byTarget := map[int]curveRef{}
+	for _, c := range d.curveRefs {
+		byTarget[c.target] = c
+	}
+	var out []Target
+	for i, tg := range t.Targets {
+		c, ok := byTarget[i]
+		if !ok {
+			out = append(out, tg)
+			continue
+		}
+		for _, p := range c.points {
+			ci, ok := t.conditionAt(p.celsius)
+			if !ok {
+				d.errorf(p.n, c.path, "curve point at %g °C: no condition has that temperature (the conditions have %s); add it to sweep", p.celsius, t.temperatureNames())
+				return
+			}
+			pt := tg
+			pt.HasEquals, pt.Equals = true, p.value
+			pt.When = []string{t.Conditions[ci].Name}
+			out = append(out, pt)
+		}
+	}
+	t.Targets = out
+}
+
+// addHiddenConditions adds, for each sensitivity and resolution target, the
+// two conditions half a degree either side of its temperature that the
+// derivative is taken from (a central difference: its error is second order
+// in the step, far below any sensor's tolerance).
+func (t *Template) addHiddenConditions() {
+	for _, tg := range t.Targets {
+		if tg.Kind != Sensitivity && tg.Kind != Resolution {
+			continue
+		}
+		for _, dt := range []float64{-HalfStep, HalfStep} {
+			name := "~" + TemperatureName(tg.At+dt)
+			if _, ok := t.ConditionIndex(name); ok {
+				continue
+			}
+			t.Conditions = append(t.Conditions, Condition{Name: name, Temperature: tg.At + dt, HasTemperature: true, Hidden: true})
+		}
+	}
+}
+
+// HalfStep is half the temperature step of the central difference behind
+// sensitivity and resolution targets, °C.
+const HalfStep = 0.5
+
+// onFraction reads `on_fraction: 0.05` or `on_fraction: 5%`.
+func (d *decoder) onFraction(n *yaml.Node) {
+	v, ok := 0.0, false
+	if n.Kind == yaml.ScalarNode {
+		if q, err := eseries.Parse(n.Value); err == nil && (q.Unit == eseries.Percent || q.Unit == eseries.NoUnit) {
+			v, ok = q.Value, true
+		}
+	}
+	if !ok || !(v > 0 && v <= 1) {
+		d.errorf(n, "on_fraction", "on_fraction: expected the fraction of time the network is powered, above 0 and at most 1 (0.05 or 5%%), got %s", describe(n))
+		return
+	}
+	d.t.OnFraction = v
+}
+
+// checkSensors resolves the sensor-related names once every section is read.
+func (d *decoder) checkSensors() {
+	t := d.t
+	var adcNames []string
+	for _, a := range t.ADCs {
+		adcNames = append(adcNames, a.Name)
+	}
+	for _, r := range d.adcRefs {
+		if !slices.Contains(adcNames, r.name) {
+			d.errorf(r.n, r.key, "target names ADC %q, which is not in parts%s", r.name, suggest(r.name, adcNames))
+		}
+	}
+	for i := range t.Targets {
+		tg := &t.Targets[i]
+		if tg.Kind == Code || tg.Kind == Resolution {
+			for _, a := range t.ADCs {
+				if a.Name == tg.ADC {
+					tg.Nodes = []string{a.Node}
+				}
+			}
+		}
+		if tg.Kind == Linearity {
+			n := 0
+			for _, c := range t.Conditions {
+				if c.HasTemperature && !c.Hidden {
+					n++
+				}
+			}
+			if n < 3 {
+				d.errorf(&yaml.Node{Line: tg.Pos.Line, Column: tg.Pos.Col}, fmt.Sprintf("targets[%d]", i), "linearity needs at least three temperatures to measure against the line through the ends; the conditions have %s (use sweep)", t.temperatureNames())
+			}
+		}
+	}
+}
+
+// isADC reports whether a part mapping has `type: adc`.
+func isADC(n *yaml.Node) bool {
+	if n.Kind != yaml.MappingNode {
+		return false
+	}
+	for i := 0; i+1 < len(n.Content); i += 2 {
+		if k := n.Content[i]; k.Kind == yaml.ScalarNode && k.Value == "type" {
+			v := n.Content[i+1]
+			return v.Kind == yaml.ScalarNode && v.Value == "adc"
+		}
+	}
+	return false
+}
