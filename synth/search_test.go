@@ -328,3 +328,48 @@ func TestFrontMatchesBruteForce(t *testing.T) {
 		})
 	}
 }
+
+// A sensor network over a temperature sweep: goals in ADC codes at three
+// temperatures, linearity, sensitivity and resolution limits, a duty-cycled
+// supply, and both the error-first and the power-lean ranking — against the
+// plain enumeration.
+func TestSensorSweepMatchesBruteForce(t *testing.T) {
+	base := `ohmfit: 1
+name: sweep
+parts:
+  - {name: V1, type: voltage-source, plus: vcc, minus: gnd, volts: 3.3}
+  - {name: R1, type: resistor, from: vcc, to: s}
+  - {name: RT1, type: ntc, from: s, to: gnd, r25: 10k, beta: 3950}
+  - {name: R2, type: resistor, from: s, to: gnd}
+  - {name: PT, type: rtd, from: vcc, to: x, r0: 1000}
+  - {name: R3, type: resistor, from: x, to: gnd}
+  - {name: ADC1, type: adc, in: s, ref: 3.3, bits: 10}
+sweep: {temperature: [-10, 10, 25, 40, 60]}
+targets:
+  - {code: ADC1, curve: {-10: 800, 25: 512, 60: 200}, tolerance: 30%}
+  - {linearity: s, max: 3.7}
+  - {sensitivity: s, at: 40, min: 28m}
+  - {resolution: ADC1, at: 60, max: 0.18}
+  - {voltage: x, min: 0.2}
+limits: {supply_power_max: 46u}
+on_fraction: 5%
+choose: {series: E6, min: 1k, max: 1M}
+`
+	for _, rank := range []string{"", "rank: [power, error]\n"} {
+		p := problemFromYAML(t, base+rank, "")
+		compareWithBrute(t, p, 6, 2)
+		if rank != "" {
+			res, err := synth.Search(context.Background(), p, nil, nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			// Power-lean: no feasible candidate draws less than the first.
+			all := bruteForce(t, p)
+			for _, c := range all {
+				if c.power < res.Solutions[0].Score.Power*(1-1e-12) {
+					t.Fatalf("%v draws %g W, less than the first answer's %g W", c.vals, c.power, res.Solutions[0].Score.Power)
+				}
+			}
+		}
+	}
+}

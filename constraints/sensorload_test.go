@@ -1,0 +1,201 @@
+package constraints
+
+import (
+	"math"
+	"strings"
+	"testing"
+
+	"github.com/ohmfit/ohmfit/constraints/sensors"
+)
+
+const sweepTemplate = `ohmfit: 1
+name: sweep test
+parts:
+  - {name: V1, type: voltage-source, plus: vcc, minus: gnd, volts: 3}
+  - {name: R1, type: resistor, from: vcc, to: s}
+  - {name: RT1, type: ntc, from: s, to: gnd, r25: 10k, beta: 3435}
+  - {name: PT, type: rtd, from: vcc, to: x, r0: 1000}
+  - {name: RX, type: resistor, from: x, to: gnd, value: 1k}
+  - {name: ADC1, type: adc, in: s, ref: 3, bits: 12}
+conditions:
+  - {name: cold-start, temperature: -40}
+sweep: {temperature: {from: 0, to: 50, step: 12.5}}
+targets:
+  - {code: ADC1, curve: {0: 3000, 25: 2048, 50: 1100}, tolerance: 5%}
+  - {linearity: s, max: 5}
+  - {sensitivity: s, at: 25, min: 5m}
+  - {resolution: ADC1, at: 50, max: 0.5}
+on_fraction: 2%
+`
+
+// Sweeps, curves and derivative conditions expand as documented: one
+// condition per temperature named like "12.5C", one goal per curve point in
+// the condition at its temperature, and two hidden conditions half a degree
+// either side of each sensitivity or resolution temperature.
+func TestSweepExpansion(t *testing.T) {
+	tp, err := Parse("s.yaml", []byte(sweepTemplate))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var names []string
+	for _, c := range tp.Conditions {
+		names = append(names, c.Name)
+	}
+	want := "cold-start 0C 12.5C 25C 37.5C 50C ~24.5C ~25.5C ~49.5C ~50.5C"
+	if got := strings.Join(names, " "); got != want {
+		t.Errorf("conditions %q, want %q", got, want)
+	}
+	for _, c := range tp.Conditions {
+		if c.Hidden != strings.HasPrefix(c.Name, "~") {
+			t.Errorf("%s: hidden %v", c.Name, c.Hidden)
+		}
+	}
+	if tp.OnFraction != 0.02 {
+		t.Errorf("on_fraction %g", tp.OnFraction)
+	}
+	// The curve became three goals, one per point, in order.
+	var curve []string
+	for _, tg := range tp.Targets {
+		if tg.Kind == Code {
+			curve = append(curve, tg.When[0]+"="+strings.TrimSpace(strings.Split(tg.Label(), " ")[1]))
+			if tg.Tolerance != 0.05 || !tg.TolRelative {
+				t.Errorf("curve point lost its tolerance: %+v", tg)
+			}
+		}
+	}
+	if got := strings.Join(curve, " "); got != "0C=ADC1 25C=ADC1 50C=ADC1" {
+		t.Errorf("curve goals %q", got)
+	}
+	if len(tp.ADCs) != 1 || tp.ADCs[0].Node != "s" || tp.ADCs[0].Step() != 3.0/4096 {
+		t.Errorf("ADCs %+v", tp.ADCs)
+	}
+}
+
+// Each condition gives every sensor its resistance at that temperature (the
+// models' own values, checked against their references in package
+// sensors), and Compile carries them, the on_fraction and the code scale
+// into the problem.
+func TestSensorValuesPerCondition(t *testing.T) {
+	tp, err := Parse("s.yaml", []byte(sweepTemplate))
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := Compile(tp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ntc := sensors.Beta{R25: 10e3, Beta: 3435}
+	pt := sensors.IEC60751(1000)
+	for ci, c := range tp.Conditions {
+		rn, _ := ntc.Resistance(c.Temperature)
+		rp, _ := pt.Resistance(c.Temperature)
+		if got := p.Conditions[ci].Values[2]; got != rn {
+			t.Errorf("%s: NTC %g Ω, model %g Ω", c.Name, got, rn)
+		}
+		if got := p.Conditions[ci].Values[3]; got != rp {
+			t.Errorf("%s: RTD %g Ω, model %g Ω", c.Name, got, rp)
+		}
+	}
+	if p.OnFraction != 0.02 {
+		t.Errorf("on_fraction %g", p.OnFraction)
+	}
+	if p.Probes[0].Scale != 4096.0/3 {
+		t.Errorf("code scale %g", p.Probes[0].Scale)
+	}
+}
+
+// The sweep-wide targets against closed forms on a network whose voltage is
+// known: with R1 fixed and the sensor below it, V = Vcc·R(T)/(R1+R(T))
+// (voltage divider formula); the linearity, sensitivity and resolution the
+// problem computes must equal those computed here directly from the formula
+// and the definitions (end-point linearity: the largest distance from the
+// chord through the first and last points, divided by the chord's slope;
+// sensitivity: |dV/dT| by central difference over ±0.5 °C; resolution: the
+// code step over the sensitivity).
+func TestDerivedTargetsClosedForm(t *testing.T) {
+	text := strings.Replace(sweepTemplate, "{name: R1, type: resistor, from: vcc, to: s}", "{name: R1, type: resistor, from: vcc, to: s, value: 10k}", 1)
+	tp, err := Parse("s.yaml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := Compile(tp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sc := p.NewScore()
+	if err := p.Evaluate(p.Network.NewSolver(), nil, sc); err != nil {
+		t.Fatal(err)
+	}
+	ntc := sensors.Beta{R25: 10e3, Beta: 3435}
+	v := func(c float64) float64 {
+		r, _ := ntc.Resistance(c)
+		return 3 * r / (10e3 + r)
+	}
+	// Every condition with a temperature takes part: cold-start too.
+	temps := []float64{-40, 0, 12.5, 25, 37.5, 50}
+	slope := (v(50) - v(-40)) / 90
+	lin := 0.0
+	for _, c := range temps[1:5] {
+		lin = math.Max(lin, math.Abs((v(c)-v(-40)-slope*(c+40))/slope))
+	}
+	sens25 := math.Abs(v(25.5)-v(24.5)) / 1
+	sens50 := math.Abs(v(50.5)-v(49.5)) / 1
+	nc := len(p.Conditions)
+	want := map[TargetKind]float64{Linearity: lin, Sensitivity: sens25, Resolution: (3.0 / 4096) / sens50}
+	for ti, tg := range tp.Targets {
+		w, ok := want[tg.Kind]
+		if !ok {
+			continue
+		}
+		if got := sc.Values[ti*nc]; math.Abs(got-w) > 1e-9*w {
+			t.Errorf("%s: %g, closed form %g", tg.Label(), got, w)
+		}
+	}
+	// The central difference is close to the analytic derivative of the
+	// divider: dV/dT = Vcc·R1·(dR/dT)/(R1+R)², dR/dT = -B·R/T² (Beta model).
+	r, _ := ntc.Resistance(25)
+	tk := 25 + sensors.ZeroCelsius
+	exact := math.Abs(3 * 10e3 * (-3435 * r / (tk * tk)) / ((10e3 + r) * (10e3 + r)))
+	if math.Abs(sens25-exact) > 1e-4*exact {
+		t.Errorf("central difference %g, analytic derivative %g", sens25, exact)
+	}
+	// A parabola's chord: V = a + bT + cT² deviates from the line through
+	// its ends by at most |c|·h²/4 at the midpoint (h the span), so its
+	// end-point linearity in °C is |c|·h²/(4·|slope|).
+	d := DerivedProbe{Kind: Linearity, Temps: []float64{0, 10, 20, 30, 40}}
+	pts := make([]float64, 5)
+	for i, x := range d.Temps {
+		pts[i] = 1 + 0.01*x - 2e-5*x*x
+	}
+	slopeP := (pts[4] - pts[0]) / 40
+	if got, w := d.Value(pts), 2e-5*40*40/4/math.Abs(slopeP); math.Abs(got-w) > 1e-9 {
+		t.Errorf("parabola linearity %g °C, closed form %g °C", got, w)
+	}
+}
+
+// on_fraction scales every power figure: the average power of a supply that
+// is on for that fraction of the time.
+func TestOnFractionScalesPower(t *testing.T) {
+	full := strings.Replace(sweepTemplate, "on_fraction: 2%", "", 1)
+	full = strings.Replace(full, "{name: R1, type: resistor, from: vcc, to: s}", "{name: R1, type: resistor, from: vcc, to: s, value: 10k}", 1)
+	duty := strings.Replace(full, "targets:", "on_fraction: 0.25\ntargets:", 1)
+	var power [2]float64
+	for i, text := range []string{full, duty} {
+		tp, err := Parse("s.yaml", []byte(text))
+		if err != nil {
+			t.Fatal(err)
+		}
+		p, err := Compile(tp)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sc := p.NewScore()
+		if err := p.Evaluate(p.Network.NewSolver(), nil, sc); err != nil {
+			t.Fatal(err)
+		}
+		power[i] = sc.Power
+	}
+	if math.Abs(power[1]-0.25*power[0]) > 1e-15 {
+		t.Errorf("power %g with on_fraction 0.25, %g without", power[1], power[0])
+	}
+}
