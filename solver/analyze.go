@@ -1,6 +1,10 @@
 package solver
 
-import "gonum.org/v1/gonum/mat"
+import (
+	"math"
+
+	"gonum.org/v1/gonum/mat"
+)
 
 // CondLimit is the condition number above which Analyze reports an
 // IllConditionedError: beyond it fewer than about two significant digits of
@@ -33,7 +37,8 @@ type PartResult struct {
 // Analyze compiles the circuit, checks its values (*ValueError), solves it
 // with the parts' Value fields and checks the conditioning of the MNA matrix
 // with an independent LU (gonum): a condition number above CondLimit gives an
-// *IllConditionedError. It is the one-shot entry point; for many solves of
+// *IllConditionedError. A solution with a quantity beyond float64's range
+// gives an *OverflowError. It is the one-shot entry point; for many solves of
 // one topology use Compile and a Solver.
 func Analyze(c Circuit) (*Solution, error) {
 	net, err := Compile(c)
@@ -56,5 +61,35 @@ func Analyze(c Circuit) (*Solution, error) {
 		return nil, &IllConditionedError{Cond: c}
 	}
 	s.finish()
-	return s.Solution(), nil
+	sol := s.Solution()
+	if err := sol.checkFinite(); err != nil {
+		return nil, err
+	}
+	return sol, nil
+}
+
+// checkFinite returns an *OverflowError for the first quantity of the
+// solution (node voltages, then each part's volts, amps and watts, then the
+// total resistor power) that is not a finite number.
+func (sol *Solution) checkFinite() error {
+	bad := func(x float64) bool { return math.IsNaN(x) || math.IsInf(x, 0) }
+	for _, n := range sol.Nodes {
+		if bad(n.Volts) {
+			return &OverflowError{Quantity: "voltage of node " + n.Name}
+		}
+	}
+	for _, p := range sol.Parts {
+		for _, q := range [...]struct {
+			what string
+			x    float64
+		}{{"voltage", p.Volts}, {"current", p.Amps}, {"power", p.Watts}} {
+			if bad(q.x) {
+				return &OverflowError{Quantity: q.what + " of " + p.Kind.String() + " " + p.Name}
+			}
+		}
+	}
+	if bad(sol.ResistorPower) {
+		return &OverflowError{Quantity: "total resistor power"}
+	}
+	return nil
 }

@@ -147,6 +147,19 @@ func (e *IllConditionedError) Error() string {
 // Unwrap returns ErrSingular.
 func (e *IllConditionedError) Unwrap() error { return ErrSingular }
 
+// OverflowError reports a solution that does not fit in a float64: values
+// near the ends of its range (sources of 1e308 V, say) make a voltage,
+// current or power overflow to infinity or NaN. Quantity names the first
+// such result, e.g. "voltage of node out".
+type OverflowError struct {
+	Quantity string
+}
+
+// Error names the fault in an engineer's words.
+func (e *OverflowError) Error() string {
+	return fmt.Sprintf("solver: the %s is too large to compute; check for values off by many decades", e.Quantity)
+}
+
 // ValueError reports a value the solver cannot use: a resistance that is
 // zero, negative, NaN or infinite, or a source value that is NaN or infinite.
 type ValueError struct {

@@ -74,9 +74,11 @@ func typedError(err error) bool {
 		de *DuplicatePartError
 		se *ShortedError
 		ve *ValueError
+		oe *OverflowError
 	)
 	return errors.Is(err, ErrSingular) || errors.Is(err, ErrEmpty) ||
-		errors.As(err, &pe) || errors.As(err, &de) || errors.As(err, &se) || errors.As(err, &ve)
+		errors.As(err, &pe) || errors.As(err, &de) || errors.As(err, &se) || errors.As(err, &ve) ||
+		errors.As(err, &oe)
 }
 
 // FuzzSolve builds random circuits (random kinds between random nodes of a
@@ -151,7 +153,11 @@ func checkLaws(net *Network, sol *Solution) error {
 			gmax = math.Max(gmax, 1/parts[e.Part].Value)
 		}
 	}
-	for _, x := range append(append(append([]float64(nil), v...), cur...), volt...) {
+	all := append(append(append([]float64(nil), v...), cur...), volt...)
+	for _, p := range sol.Parts {
+		all = append(all, p.Watts)
+	}
+	for _, x := range append(all, sol.ResistorPower) {
 		if math.IsNaN(x) || math.IsInf(x, 0) {
 			return fmt.Errorf("accepted solution is not finite: nodes %v, edge currents %v", v, cur)
 		}

@@ -325,7 +325,7 @@ func writeCheckTable(w io.Writer, t *constraints.Template, d *variation.Design, 
 	if err := writeGoalTable(&b, t, rep); err != nil {
 		return err
 	}
-	b.WriteString("\n  sensitivity (dX/X)/(dx/x), adjoint method\n\n")
+	b.WriteString("\n  sensitivity (dX/X)/(dx/x): adjoint method; sweep-wide targets by central differences\n\n")
 	sens := table{indent: "  ", cols: []column{{gap: 3}, {gap: 3}}}
 	head := []string{"target", "condition"}
 	for _, v := range rep.Parts {

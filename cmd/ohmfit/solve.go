@@ -194,11 +194,15 @@ func writeSolveTable(w io.Writer, t *constraints.Template, results []conditionRe
 		}}
 		parts.add("part", "type", "voltage", "", "current", "", "power")
 		delivered, opamps := 0.0, false
-		for _, p := range r.sol.Parts {
+		for j, p := range r.sol.Parts {
 			v, vu := splitUnit(eseries.FormatUnit(tidy(p.Volts, vs), eseries.Volt))
 			a, au := splitUnit(eseries.FormatUnit(tidy(p.Amps, as), eseries.Amp))
 			pw, pu := splitUnit(eseries.FormatUnit(tidy(p.Watts, ws), eseries.Watt))
-			parts.add(p.Name, p.Kind.String(), v, vu, a, au, pw, pu)
+			kind := p.Kind.String()
+			if st := t.Parts[j].SensorType; st != "" {
+				kind = st // a thermistor or RTD, at the condition's temperature
+			}
+			parts.add(p.Name, kind, v, vu, a, au, pw, pu)
 			if p.Kind != solver.Resistor {
 				delivered -= p.Watts
 				opamps = opamps || p.Kind == solver.OpAmp

@@ -167,7 +167,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 			return nil, fmt.Errorf("%w in condition %q: %v", ErrUnsolvable, p.Conditions[ci].Name, err)
 		}
 		for ti, pr := range p.Probes {
-			if !p.Applies[ti][ci] {
+			if !p.Applies[ti][ci] || p.Conditions[ci].Hidden {
 				continue
 			}
 			x, err := pr.Read(s)
@@ -184,6 +184,24 @@ func Check(d *Design, set *Settings) (*Report, error) {
 				Nominal: x, WorstMin: x, WorstMax: x, Sens: sens,
 				HasBand: !math.IsInf(lo, -1) || !math.IsInf(hi, 1)})
 		}
+	}
+
+	// Sweep-wide targets (linearity, sensitivity, resolution): one goal
+	// each, over the conditions they read, with finite-difference
+	// sensitivities (they are not one solve's linear functional).
+	for ti, dp := range p.Derived {
+		if dp == nil {
+			continue
+		}
+		x, err := d.derivedAt(s, ti, zero)
+		if err != nil {
+			return nil, err
+		}
+		tg := t.Targets[ti]
+		lo, hi := tg.Band()
+		r.Goals = append(r.Goals, Goal{Target: ti, Condition: SweepCondition, Label: tg.Label(), CondName: "sweep",
+			Nominal: x, WorstMin: x, WorstMax: x, Sens: d.derivedSensitivities(s, ti, x),
+			HasBand: !math.IsInf(lo, -1) || !math.IsInf(hi, 1)})
 	}
 
 	// Worst case.
@@ -212,8 +230,20 @@ func Check(d *Design, set *Settings) (*Report, error) {
 		}
 	}
 	byCond := make([][]int, nc)
+	var sweep []int // goals of sweep-wide targets
 	for gi, g := range r.Goals {
+		if g.Condition == SweepCondition {
+			sweep = append(sweep, gi)
+			continue
+		}
 		byCond[g.Condition] = append(byCond[g.Condition], gi)
+	}
+	visitSweep := func(gi int) {
+		g := &r.Goals[gi]
+		if x, err := d.derivedAt(s, g.Target, dev); err == nil && !math.IsNaN(x) {
+			g.WorstMin = math.Min(g.WorstMin, x)
+			g.WorstMax = math.Max(g.WorstMax, x)
+		}
 	}
 	for ci := range p.Conditions {
 		d.setValues(s, ci, zero)
@@ -238,6 +268,22 @@ func Check(d *Design, set *Settings) (*Report, error) {
 				visit(ci, byCond[ci])
 			}
 		}
+		// A part is the same part at every temperature: each corner holds
+		// across all the conditions a sweep-wide target reads.
+		for _, gi := range sweep {
+			for mask := 0; mask < r.Corners; mask++ {
+				clear(dev)
+				for b, j := range varying {
+					lo, hi := d.Bounds(j)
+					if mask&(1<<b) != 0 {
+						dev[j] = hi
+					} else {
+						dev[j] = lo
+					}
+				}
+				visitSweep(gi)
+			}
+		}
 	} else {
 		r.Method = MethodLinearised
 		r.Corners = 0
@@ -253,7 +299,11 @@ func Check(d *Design, set *Settings) (*Report, error) {
 						dev[j] = lo
 					}
 				}
-				visit(g.Condition, []int{gi})
+				if g.Condition == SweepCondition {
+					visitSweep(gi)
+				} else {
+					visit(g.Condition, []int{gi})
+				}
 				r.Corners++
 			}
 		}
@@ -296,6 +346,9 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 		case constraints.Voltage:
 			nodeW[pr.A] += 1
 			nodeW[pr.B] -= 1
+		case constraints.Code:
+			nodeW[pr.A] += pr.Scale
+			nodeW[pr.B] -= pr.Scale
 		case constraints.Current:
 			partW[pr.Part] = 1
 		case constraints.Power:
@@ -352,9 +405,15 @@ func (d *Design) monteCarlo(s *solver.Solver, r *Report, st *Settings, rt *ratin
 		vals[gi] = make([]float64, n)
 	}
 	byCond := make([][]int, len(p.Conditions))
+	var sweep []int
 	for gi, g := range r.Goals {
+		if g.Condition == SweepCondition {
+			sweep = append(sweep, gi)
+			continue
+		}
 		byCond[g.Condition] = append(byCond[g.Condition], gi)
 	}
+	points := make([]float64, p.Points)
 	dev := make([]float64, len(d.Parts))
 	good := 0
 	for k := range n {
@@ -384,10 +443,12 @@ func (d *Design) monteCarlo(s *solver.Solver, r *Report, st *Settings, rt *ratin
 			d.setValues(s, ci, dev)
 			solved := s.Solve() == nil
 			if solved {
-				if lim := t.Limits.SupplyPowerMax; lim > 0 && s.ResistorPower() > lim && !constraints.Same(s.ResistorPower(), lim) {
+				pw := s.ResistorPower() * p.OnFraction
+				if lim := t.Limits.SupplyPowerMax; lim > 0 && pw > lim && !constraints.Same(pw, lim) {
 					ok = false
 				}
 			}
+			d.gatherPoints(s, ci, solved, points)
 			for _, gi := range byCond[ci] {
 				x := math.NaN()
 				if solved {
@@ -399,6 +460,13 @@ func (d *Design) monteCarlo(s *solver.Solver, r *Report, st *Settings, rt *ratin
 				if !t.Targets[r.Goals[gi].Target].Meets(x) {
 					ok = false
 				}
+			}
+		}
+		for _, gi := range sweep {
+			x := p.DerivedValue(r.Goals[gi].Target, points)
+			vals[gi][k] = x
+			if !t.Targets[r.Goals[gi].Target].Meets(x) {
+				ok = false
 			}
 		}
 		if ok {
@@ -591,8 +659,12 @@ func (d *Design) warn(r *Report, st *Settings) {
 			tg := d.Problem.Template.Targets[g.Target]
 			lo, hi := tg.Band()
 			u := tg.Kind.Unit()
-			r.Warnings = append(r.Warnings, fmt.Sprintf("%s in %q leaves its limits in the worst case: %s … %s against %s … %s",
-				g.Label, g.CondName, num(g.WorstMin, u), num(g.WorstMax, u), num(lo, u), num(hi, u)))
+			where := fmt.Sprintf("in %q", g.CondName)
+			if g.Condition == SweepCondition {
+				where = "over the sweep"
+			}
+			r.Warnings = append(r.Warnings, fmt.Sprintf("%s %s leaves its limits in the worst case: %s … %s against %s … %s",
+				g.Label, where, num(g.WorstMin, u), num(g.WorstMax, u), num(lo, u), num(hi, u)))
 		}
 	}
 	if r.Samples > 0 && r.Yield < 1 {
@@ -620,8 +692,78 @@ func (d *Design) warn(r *Report, st *Settings) {
 
 // num formats a value with its unit for messages.
 func num(v float64, u eseries.Unit) string {
-	if math.IsInf(v, 0) {
+	switch {
+	case math.IsInf(v, 1):
 		return "∞"
+	case math.IsInf(v, -1):
+		return "-∞"
 	}
 	return eseries.FormatUnit(v, u)
+}
+
+// SweepCondition is the Condition of a Goal for a sweep-wide target
+// (linearity, sensitivity, resolution), which reads several conditions.
+const SweepCondition = -1
+
+// gatherPoints records, after condition ci was solved, the node voltages the
+// sweep-wide targets read in it (NaN when the solve failed).
+func (d *Design) gatherPoints(s *solver.Solver, ci int, solved bool, points []float64) {
+	for _, dp := range d.Problem.Derived {
+		if dp == nil {
+			continue
+		}
+		for k, c := range dp.Conds {
+			if c != ci {
+				continue
+			}
+			points[dp.Offset+k] = math.NaN()
+			if solved {
+				points[dp.Offset+k] = s.Voltage(dp.Node)
+			}
+		}
+	}
+}
+
+// derivedAt computes sweep-wide target ti with the parts at deviation dev,
+// solving each condition it reads.
+func (d *Design) derivedAt(s *solver.Solver, ti int, dev []float64) (float64, error) {
+	p := d.Problem
+	dp := p.Derived[ti]
+	points := make([]float64, p.Points)
+	for _, ci := range dp.Conds {
+		d.setValues(s, ci, dev)
+		if err := s.Solve(); err != nil {
+			return math.NaN(), fmt.Errorf("%w in condition %q: %v", ErrUnsolvable, p.Conditions[ci].Name, err)
+		}
+		d.gatherPoints(s, ci, true, points)
+	}
+	return p.DerivedValue(ti, points), nil
+}
+
+// derivedSensitivities differentiates a sweep-wide target numerically: a
+// central difference with a relative step of 1e-6 in each varied part.
+func (d *Design) derivedSensitivities(s *solver.Solver, ti int, x float64) []Sensitivity {
+	const h = 1e-6
+	dev := make([]float64, len(d.Parts))
+	out := make([]Sensitivity, len(d.Parts))
+	for j, v := range d.Parts {
+		out[j] = Sensitivity{Part: v.Name, Absolute: math.NaN(), Normalised: math.NaN()}
+		if !v.Relative {
+			continue
+		}
+		clear(dev)
+		dev[j] = h
+		up, err1 := d.derivedAt(s, ti, dev)
+		dev[j] = -h
+		down, err2 := d.derivedAt(s, ti, dev)
+		if err1 != nil || err2 != nil {
+			continue
+		}
+		dxdu := (up - down) / (2 * h) // per unit relative change
+		out[j].Absolute = dxdu / v.Nominal
+		if x != 0 {
+			out[j].Normalised = dxdu / x
+		}
+	}
+	return out
 }
