@@ -102,7 +102,7 @@ func (d *decoder) numbers(n *yaml.Node, path, ctx string, k int, example string)
 
 // adc reads `{name: ADC1, type: adc, in: node, ref: 3.3, bits: 12}`.
 func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
-	byName, _ := d.fields(n, path, ctx, []string{"name", "type", "in", "ref", "bits"})
+	byName, _ := d.fields(n, path, ctx, []string{"name", "type", "in", "ref", "bits", "max_source"})
 	for _, k := range []string{"name", "in", "ref", "bits"} {
 		if _, ok := byName[k]; !ok {
 			d.missingf(n, joinKey(path, k), "%s: missing key %q for an adc (e.g. {name: ADC1, type: adc, in: sense, ref: 3.3, bits: 12})", ctx, k)
@@ -128,6 +128,15 @@ func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
 		return a, nil, false
 	}
 	a.Bits = bits
+	if e, ok := byName["max_source"]; ok {
+		// The source resistance the input sees, for its sampling capacitor
+		// to settle: a resistance target from the input to ground.
+		max, ok := d.positive(e.val, joinKey(path, "max_source"), label(ctx, "max_source"), eseries.Ohm)
+		if !ok {
+			return a, nil, false
+		}
+		d.t.Targets = append(d.t.Targets, Target{Kind: Resistance, Nodes: []string{a.Node, d.t.Ground}, HasMax: true, Max: max, Pos: Pos{e.val.Line, e.val.Column}})
+	}
 	return a, byName["name"].val, true
 }
 
