@@ -65,6 +65,11 @@ func (e *Error) sortPos() Pos {
 	return Pos{e.Line, e.Col}
 }
 
+// Suggest returns ` (did you mean "x"?)` for the candidate closest to word,
+// or "" when none is close enough to be a plausible typo: the same
+// suggestions template messages make, for the command line to share.
+func Suggest(word string, candidates []string) string { return suggest(word, candidates) }
+
 // suggest returns ` (did you mean "x"?)` for the candidate closest to word,
 // or "" when none is close enough to be a plausible typo. Case is ignored
 // when measuring, so "r1" suggests "R1"; ties go to the earlier candidate so

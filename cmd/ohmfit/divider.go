@@ -149,22 +149,33 @@ func (o *dividerOptions) template() (*constraints.Template, error) {
 	}
 	t.Targets = append(t.Targets, constraints.Target{Kind: constraints.Voltage, Nodes: []string{"out"},
 		HasEquals: true, Equals: vout, Tolerance: tol, TolRelative: rel})
-	if o.MaxCurrent != "" {
-		imax, err := readValue("--max-current", o.MaxCurrent, eseries.Amp)
-		if err != nil {
-			return nil, err
-		}
-		if !(imax > 0) {
-			return nil, badInputf("--max-current must be positive, not %s", o.MaxCurrent)
-		}
-		// The current through R1 flows in -> out, with the sign of vin.
-		tg := constraints.Target{Kind: constraints.Current, Part: "R1"}
-		if vin > 0 {
-			tg.HasMax, tg.Max = true, imax
-		} else {
-			tg.HasMin, tg.Min = true, -imax
-		}
-		t.Targets = append(t.Targets, tg)
+	// The current through R1 flows in -> out, with the sign of vin.
+	if err := addCurrentLimit(t, "R1", o.MaxCurrent, vin > 0); err != nil {
+		return nil, err
 	}
 	return t, nil
+}
+
+// addCurrentLimit adds `--max-current` as a limit on the current through
+// part, whose reference direction carries positive current when positive is
+// set (a negative rail reverses it). An empty flag adds nothing.
+func addCurrentLimit(t *constraints.Template, part, text string, positive bool) error {
+	if text == "" {
+		return nil
+	}
+	imax, err := readValue("--max-current", text, eseries.Amp)
+	if err != nil {
+		return err
+	}
+	if !(imax > 0) {
+		return badInputf("--max-current must be positive, not %s", text)
+	}
+	tg := constraints.Target{Kind: constraints.Current, Part: part}
+	if positive {
+		tg.HasMax, tg.Max = true, imax
+	} else {
+		tg.HasMin, tg.Min = true, -imax
+	}
+	t.Targets = append(t.Targets, tg)
+	return nil
 }

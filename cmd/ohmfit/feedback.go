@@ -98,21 +98,8 @@ func (o *feedbackOptions) template() (*constraints.Template, error) {
 	}
 	t.Targets = append(t.Targets, constraints.Target{Kind: constraints.Voltage, Nodes: []string{"out"},
 		HasEquals: true, Equals: vout, Tolerance: tol, TolRelative: rel})
-	if o.MaxCurrent != "" {
-		imax, err := readValue("--max-current", o.MaxCurrent, eseries.Amp)
-		if err != nil {
-			return nil, err
-		}
-		if !(imax > 0) {
-			return nil, badInputf("--max-current must be positive, not %s", o.MaxCurrent)
-		}
-		tg := constraints.Target{Kind: constraints.Current, Part: "R1"}
-		if vout > 0 {
-			tg.HasMax, tg.Max = true, imax
-		} else {
-			tg.HasMin, tg.Min = true, -imax
-		}
-		t.Targets = append(t.Targets, tg)
+	if err := addCurrentLimit(t, "R1", o.MaxCurrent, vout > 0); err != nil {
+		return nil, err
 	}
 	return t, nil
 }

@@ -256,15 +256,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 		r.Corners = 1 << len(varying)
 		for ci := range p.Conditions {
 			for mask := 0; mask < r.Corners; mask++ {
-				clear(dev)
-				for b, j := range varying {
-					lo, hi := d.Bounds(j)
-					if mask&(1<<b) != 0 {
-						dev[j] = hi
-					} else {
-						dev[j] = lo
-					}
-				}
+				d.corner(mask, varying, dev)
 				visit(ci, byCond[ci])
 			}
 		}
@@ -272,15 +264,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 		// across all the conditions a sweep-wide target reads.
 		for _, gi := range sweep {
 			for mask := 0; mask < r.Corners; mask++ {
-				clear(dev)
-				for b, j := range varying {
-					lo, hi := d.Bounds(j)
-					if mask&(1<<b) != 0 {
-						dev[j] = hi
-					} else {
-						dev[j] = lo
-					}
-				}
+				d.corner(mask, varying, dev)
 				visitSweep(gi)
 			}
 		}
@@ -766,4 +750,18 @@ func (d *Design) derivedSensitivities(s *solver.Solver, ti int, x float64) []Sen
 		}
 	}
 	return out
+}
+
+// corner sets dev to the tolerance corner numbered mask: bit b of mask puts
+// varying part b at its upper bound, a clear bit at its lower one.
+func (d *Design) corner(mask int, varying []int, dev []float64) {
+	clear(dev)
+	for b, j := range varying {
+		lo, hi := d.Bounds(j)
+		if mask&(1<<b) != 0 {
+			dev[j] = hi
+		} else {
+			dev[j] = lo
+		}
+	}
 }
