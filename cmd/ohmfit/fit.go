@@ -622,8 +622,11 @@ func quantityText(v float64, k constraints.TargetKind) string {
 
 // preciseUnit is FormatUnit with five significant digits, for goal values
 // that sit close to their goal: "595.99 mV" rather than "596 mV".
-func preciseUnit(v float64, u eseries.Unit) string {
-	s := eseries.FormatSig(v, 5)
+func preciseUnit(v float64, u eseries.Unit) string { return preciseSig(v, u, 5) }
+
+// preciseSig is FormatUnit with sig significant digits.
+func preciseSig(v float64, u eseries.Unit, sig int) string {
+	s := eseries.FormatSig(v, sig)
 	if u == eseries.NoUnit || u == eseries.Percent {
 		return s
 	}

@@ -141,7 +141,14 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result) 
 		}
 	}
 	if r.Plot != "" {
-		if err := writeAtomic(r.Plot, inputs, func(w io.Writer) error { return plotPareto(w, r.Plot, p, all, r.BOMRank) }); err != nil {
+		// The trade-off front, when asked for, shows the shape of the
+		// trade better than the ranked list alone: plot both.
+		pts := append([]synth.Solution(nil), all...)
+		for _, f := range res.Front {
+			f.Rank = 0 // not a ranked answer: never the one ringed
+			pts = append(pts, f)
+		}
+		if err := writeAtomic(r.Plot, inputs, func(w io.Writer) error { return plotPareto(w, r.Plot, p, pts, r.BOMRank) }); err != nil {
 			return err
 		}
 	}

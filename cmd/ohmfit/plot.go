@@ -26,12 +26,32 @@ type engTicks struct{ unit eseries.Unit }
 // Ticks places gonum's default ticks and relabels the major ones.
 func (e engTicks) Ticks(lo, hi float64) []plot.Tick {
 	ts := plot.DefaultTicks{}.Ticks(lo, hi)
-	for i := range ts {
-		if ts[i].Label != "" {
-			ts[i].Label = eseries.FormatUnit(ts[i].Value, e.unit)
+	// Four significant digits, or more when a narrow range would give two
+	// ticks the same label.
+	for sig := 4; sig <= 9; sig++ {
+		seen := map[string]bool{}
+		clash := false
+		for i := range ts {
+			if ts[i].Label == "" {
+				continue
+			}
+			ts[i].Label = engLabel(ts[i].Value, e.unit, sig)
+			clash = clash || seen[ts[i].Label]
+			seen[ts[i].Label] = true
+		}
+		if !clash {
+			break
 		}
 	}
 	return ts
+}
+
+// engLabel writes v with its unit at sig significant digits.
+func engLabel(v float64, u eseries.Unit, sig int) string {
+	if sig <= 4 {
+		return eseries.FormatUnit(v, u)
+	}
+	return preciseSig(v, u, sig)
 }
 
 // percentTicks labels an axis of fractions as percentages.
