@@ -173,7 +173,8 @@ func Compile(t *Template) (*Problem, error) {
 			p.Points += len(dp.Conds)
 		} else {
 			for ci, cv := range p.Conditions {
-				app[ci] = tg.Applies(cv.Name)
+				// Hidden conditions exist only for sweep-wide targets' derivatives.
+				app[ci] = tg.Applies(cv.Name) && !cv.Hidden
 			}
 		}
 		p.Applies = append(p.Applies, app)
@@ -255,6 +256,9 @@ func (p *Problem) Evaluate(s *solver.Solver, free []float64, sc *Score) error {
 			return err
 		}
 		pw := s.ResistorPower() * p.OnFraction
+		if cv.Hidden {
+			pw = 0 // a derivative's helper condition has no power figure of its own
+		}
 		if pw > sc.Power {
 			sc.Power = pw
 		}

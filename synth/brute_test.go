@@ -230,6 +230,9 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 				}
 			}
 			pw *= tp.OnFraction // average power of a duty-cycled supply
+			if cond.Hidden {
+				pw = 0 // helper conditions of a derivative carry no power figure
+			}
 			c.power = math.Max(c.power, pw)
 			if lim := tp.Limits.SupplyPowerMax; lim > 0 && pw > lim && !constraints.Same(pw, lim) {
 				feasible = false
@@ -243,7 +246,7 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 					}
 					continue
 				}
-				if !tg.Applies(cond.Name) {
+				if !tg.Applies(cond.Name) || cond.Hidden {
 					continue
 				}
 				var v float64

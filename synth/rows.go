@@ -138,12 +138,13 @@ func runNoFree(p *Problem, st *runState) error {
 
 // rowCond holds one condition's exact description of a row.
 type rowCond struct {
-	vals []float64 // part values of this condition and row (row position at G0)
-	x0   []float64 // solution, ground first: node k at k, unknown u at u+1
-	w    []float64 // port response, same layout
-	g0   float64   // reference conductance of the row position
-	z    float64   // w(a) - w(b)
-	v0   float64   // x0(a) - x0(b)
+	hidden bool      // a derivative's helper condition: no power or limits of its own
+	vals   []float64 // part values of this condition and row (row position at G0)
+	x0     []float64 // solution, ground first: node k at k, unknown u at u+1
+	w      []float64 // port response, same layout
+	g0     float64   // reference conductance of the row position
+	z      float64   // w(a) - w(b)
+	v0     float64   // x0(a) - x0(b)
 	// total resistor power as p0 + p1·s + p2·s²
 	p0, p1, p2 float64
 	// per target: for a resistance target, R0 and the numerator of its update
@@ -235,6 +236,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 	for c := range w.cond {
 		rc := &w.cond[c]
 		rc.vals = make([]float64, len(parts))
+		rc.hidden = p.Conditions[c].Hidden
 		rc.x0 = make([]float64, n+1)
 		rc.w = make([]float64, n+1)
 		rc.r0 = make([]float64, len(p.Probes))
@@ -436,13 +438,15 @@ func (w *rowWorker) scoreOption(i int) {
 	for c := range w.cond {
 		rc := &w.cond[c]
 		s := rc.sAt(g)
-		pw := rc.p0 + s*(rc.p1+s*rc.p2)
-		if pw > powMax {
-			powMax = pw
-		}
-		if w.lim > 0 && pw > w.lim && !constraints.Same(pw, w.lim) {
-			w.viol[len(p.Probes)*w.nc+c]++
-			return
+		if !rc.hidden {
+			pw := rc.p0 + s*(rc.p1+s*rc.p2)
+			if pw > powMax {
+				powMax = pw
+			}
+			if w.lim > 0 && pw > w.lim && !constraints.Same(pw, w.lim) {
+				w.viol[len(p.Probes)*w.nc+c]++
+				return
+			}
 		}
 		for ti := range p.Probes {
 			if !p.Applies[ti][c] {
@@ -602,7 +606,7 @@ func (w *rowWorker) hardLimits(lo, hi int) (int, int) {
 	counting := w.top.worst() == nil
 	for c := range w.cond {
 		rc := &w.cond[c]
-		if w.lim > 0 && w.powerMonotone(rc, lo, hi) {
+		if w.lim > 0 && !rc.hidden && w.powerMonotone(rc, lo, hi) {
 			nlo, nhi := w.bisect(lo, hi, math.Inf(-1), w.lim, rc, -1)
 			if nlo > nhi {
 				if counting {
@@ -662,11 +666,14 @@ func (w *rowWorker) goalRange(lo, hi int, t float64) (int, int) {
 // in some condition, and then nothing can be cut.
 func (w *rowWorker) powerRange(lo, hi int, t float64) (int, int, bool) {
 	for c := range w.cond {
-		if !w.powerMonotone(&w.cond[c], lo, hi) {
+		if !w.cond[c].hidden && !w.powerMonotone(&w.cond[c], lo, hi) {
 			return lo, hi, false
 		}
 	}
 	for c := range w.cond {
+		if w.cond[c].hidden {
+			continue
+		}
 		lo, hi = w.bisect(lo, hi, math.Inf(-1), t, &w.cond[c], -1)
 		if lo > hi {
 			return 1, 0, true

@@ -426,7 +426,7 @@ func (d *Design) monteCarlo(s *solver.Solver, r *Report, st *Settings, rt *ratin
 		for ci := range p.Conditions {
 			d.setValues(s, ci, dev)
 			solved := s.Solve() == nil
-			if solved {
+			if solved && !p.Conditions[ci].Hidden {
 				pw := s.ResistorPower() * p.OnFraction
 				if lim := t.Limits.SupplyPowerMax; lim > 0 && pw > lim && !constraints.Same(pw, lim) {
 					ok = false
