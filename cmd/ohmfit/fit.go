@@ -365,8 +365,12 @@ func summaryLine(p *synth.Problem, res *synth.Result) string {
 	case synth.Interrupted:
 		verdict = "not proven (interrupted)"
 	}
-	return fmt.Sprintf("%s candidates (%s); %s scored by %s in %s; %s",
-		count(st.Space), spaceText(p), count(float64(st.Evaluated)), st.Method, roundDuration(st.Elapsed), verdict)
+	noun := "candidates"
+	if st.Space == 1 {
+		noun = "candidate"
+	}
+	return fmt.Sprintf("%s %s (%s); %s scored by %s in %s; %s",
+		count(st.Space), noun, spaceText(p), count(float64(st.Evaluated)), st.Method, roundDuration(st.Elapsed), verdict)
 }
 
 // spaceText is "R1 289 × R2 289".
