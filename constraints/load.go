@@ -470,7 +470,11 @@ func exampleValue(u eseries.Unit) string {
 func (d *decoder) positive(n *yaml.Node, path, ctx string, unit eseries.Unit) (float64, bool) {
 	v, ok := d.value(n, path, ctx, unit)
 	if ok && v <= 0 {
-		d.errorf(n, path, "%s: must be positive, got %s", ctx, n.Value)
+		hint := ""
+		if unit == eseries.Ohm && v == 0 {
+			hint = "; a 0 Ω part is a wire: join its two nodes instead"
+		}
+		d.errorf(n, path, "%s: must be positive, got %s%s", ctx, n.Value, hint)
 		return 0, false
 	}
 	return v, ok
@@ -883,7 +887,7 @@ func (d *decoder) target(n *yaml.Node, path string, i int) {
 		if lo.val.Line > hi.val.Line || (lo.val.Line == hi.val.Line && lo.val.Column > hi.val.Column) {
 			at, key = lo.val, "min"
 		}
-		d.errorf(at, joinKey(path, key), "%s: min (%s) is above max (%s)", ctx, lo.val.Value, hi.val.Value)
+		d.errorf(at, joinKey(path, key), "%s: min (%s) is above max (%s); swap them", ctx, lo.val.Value, hi.val.Value)
 	}
 	if tg.HasEquals && ((tg.HasMin && tg.Equals < tg.Min) || (tg.HasMax && tg.Equals > tg.Max)) {
 		d.errorf(byName["equals"].val, joinKey(path, "equals"), "%s: equals (%s) lies outside min..max, so no design could meet it", ctx, byName["equals"].val.Value)
@@ -1021,7 +1025,7 @@ func (d *decoder) choice(c *Choice, n *yaml.Node, byName map[string]entry, path,
 		return at
 	}
 	if c.Min > c.Max {
-		d.errorf(latest("min", "max"), path, "%s: min (%s) is above max (%s)", ctx, eseries.Format(c.Min), eseries.Format(c.Max))
+		d.errorf(latest("min", "max"), path, "%s: min (%s) is above max (%s); swap them", ctx, eseries.Format(c.Min), eseries.Format(c.Max))
 		return false
 	}
 	at := latest("series", "min", "max")

@@ -373,3 +373,23 @@ choose: {series: E6, min: 1k, max: 1M}
 		}
 	}
 }
+
+// Memory stays flat however large the space: a search keeps only its top
+// list (and the front when asked for), so its allocations do not grow with
+// the number of candidates. The E96 loaded divider has 62 times the
+// candidates of the E24 one; the search's allocations must not follow.
+func TestSearchMemoryFlat(t *testing.T) {
+	allocs := func(series string) float64 {
+		p := problemFromYAML(t, loadedDividerYAML(series), "")
+		set := &synth.Settings{Workers: 1}
+		return testing.AllocsPerRun(2, func() {
+			if _, err := synth.Search(context.Background(), p, set, nil); err != nil {
+				t.Fatal(err)
+			}
+		})
+	}
+	small, large := allocs("E24"), allocs("E96")
+	if large > 2*small+50 {
+		t.Errorf("search allocations grow with the space: %v for E24, %v for E96", small, large)
+	}
+}

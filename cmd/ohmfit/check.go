@@ -85,6 +85,7 @@ type checkOptions struct {
 	Rank   int
 	BOM    string
 	Plot   string
+	Output string // write the report here instead of stdout; "" for stdout
 	realFlags
 
 	Out, ErrOut io.Writer
@@ -154,6 +155,7 @@ template's limits.max_package); 2 bad input.`,
 	f.IntVar(&o.Rank, "rank", 1, "for a template with free resistors, which fitted answer to check (`N`)")
 	f.StringVar(&o.BOM, "bom", "", "also write a bill of materials to `FILE.csv`")
 	f.StringVar(&o.Plot, "plot", "", "also draw the Monte Carlo histograms to `FILE.svg` or FILE.png")
+	f.StringVarP(&o.Output, "output", "o", "", "write the report to `FILE` instead of standard output (atomically; never over an input file)")
 	bindRealFlags(cmd, &o.realFlags)
 	return cmd
 }
@@ -178,6 +180,9 @@ func runCheck(o *checkOptions, st *variation.Settings, amb constraints.Ambient) 
 	if err != nil {
 		return err
 	}
+	if err := outputsAllowed(inputFiles(t), o.BOM, o.Plot); err != nil {
+		return err
+	}
 	cp, err := constraints.Compile(t)
 	if err != nil {
 		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
@@ -198,14 +203,16 @@ func runCheck(o *checkOptions, st *variation.Settings, amb constraints.Ambient) 
 	if err != nil {
 		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), strings.TrimPrefix(err.Error(), "variation: "))
 	}
-	if o.Format == "json" {
-		if err := writeJSON(o.Out, checkJSON(t, d, rep)); err != nil {
-			return err
+	inputs := inputFiles(t)
+	err = redirect(o.Output, inputs, &o.Out, func() error {
+		if o.Format == "json" {
+			return writeJSON(o.Out, checkJSON(t, d, rep))
 		}
-	} else if err := writeCheckTable(o.Out, t, d, rep); err != nil {
+		return writeCheckTable(o.Out, t, d, rep)
+	})
+	if err != nil {
 		return err
 	}
-	inputs := inputFiles(t)
 	if o.BOM != "" {
 		if err := writeAtomic(o.BOM, inputs, func(w io.Writer) error { return writeBOM(w, d, rep) }); err != nil {
 			return err

@@ -99,7 +99,7 @@ is the same as ` + "`ohmfit fit`" + `'s. The series defaults to E24 and the valu
 				return err
 			}
 			o.searchOptions.Series = "" // already the template's series
-			return runSearch(&o.searchOptions, t)
+			return redirect(o.Output, nil, &o.Out, func() error { return runSearch(&o.searchOptions, t) })
 		},
 	}
 	f := cmd.Flags()

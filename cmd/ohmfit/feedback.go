@@ -48,8 +48,8 @@ same as ` + "`ohmfit fit`" + `'s.`,
 			if err != nil {
 				return err
 			}
-			o.searchOptions.Series = ""
-			return runSearch(&o.searchOptions, t)
+			o.searchOptions.Series = "" // already the template's series
+			return redirect(o.Output, nil, &o.Out, func() error { return runSearch(&o.searchOptions, t) })
 		},
 	}
 	f := cmd.Flags()

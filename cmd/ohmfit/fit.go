@@ -29,6 +29,7 @@ type searchOptions struct {
 	Method    string // auto, exhaustive or heuristic
 	Quiet     bool
 	Tradeoffs string // goal-error bound of the trade-off front; "" for none
+	Output    string // write the result here instead of stdout; "" for stdout
 
 	Out, ErrOut io.Writer
 	ErrIsTTY    bool     // stderr is a terminal: show a progress bar
@@ -45,6 +46,7 @@ func bindSearchFlags(cmd *cobra.Command, o *searchOptions) {
 	f.IntVar(&o.Workers, "workers", 0, "goroutines to search with (`N`; 0: one per core); the answer does not depend on it")
 	f.StringVar(&o.Method, "method", "auto", "`METHOD`: exhaustive (proven best), heuristic (relax and snap), or auto (exhaustive when the space allows)")
 	f.BoolVarP(&o.Quiet, "quiet", "q", false, "no progress bar")
+	f.StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically; never over an input file)")
 	f.StringVar(&o.Tradeoffs, "tradeoffs", "", "also list the trade-off front: every answer with goal error up to `E` (e.g. 1%) that nothing beats on error, power and parts at once")
 }
 
@@ -139,7 +141,10 @@ JSON output (--format json):
 			if err != nil {
 				return err
 			}
-			return runSearch(&o.searchOptions, t)
+			if err := outputsAllowed(inputFiles(t), o.fitReal.BOM, o.fitReal.Plot); err != nil {
+				return err
+			}
+			return redirect(o.Output, inputFiles(t), &o.Out, func() error { return runSearch(&o.searchOptions, t) })
 		},
 	}
 	bindSearchFlags(cmd, &o.searchOptions)

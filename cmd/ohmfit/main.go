@@ -98,12 +98,13 @@ func exitCodeOf(err error) ExitCode {
 func isSolverError(err error) bool {
 	var (
 		ve *solver.ValueError
+		oe *solver.OverflowError
 		de *solver.DuplicatePartError
 		pe *solver.PartError
 		se *solver.ShortedError
 	)
 	return errors.Is(err, solver.ErrSingular) || errors.Is(err, solver.ErrEmpty) ||
-		errors.As(err, &ve) || errors.As(err, &de) || errors.As(err, &pe) || errors.As(err, &se)
+		errors.As(err, &ve) || errors.As(err, &oe) || errors.As(err, &de) || errors.As(err, &pe) || errors.As(err, &se)
 }
 
 // message is the text printed after "ohmfit: ". Usage errors end with a

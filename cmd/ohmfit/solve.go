@@ -16,6 +16,7 @@ import (
 type solveOptions struct {
 	File   string // template path, or "example:NAME"
 	Format string // "table" or "json"
+	Output string // write the result here instead of stdout; "" for stdout
 
 	Out, ErrOut io.Writer
 }
@@ -60,6 +61,7 @@ volts, amps and watts at full precision:
 		},
 	}
 	cmd.Flags().StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table or json")
+	cmd.Flags().StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically; never over an input file)")
 	return cmd
 }
 
@@ -82,6 +84,11 @@ func runSolve(o *solveOptions) error {
 	if err != nil {
 		return err
 	}
+	return redirect(o.Output, inputFiles(t), &o.Out, func() error { return renderSolve(o, t, results) })
+}
+
+// renderSolve writes the analysis in the chosen format.
+func renderSolve(o *solveOptions, t *constraints.Template, results []conditionResult) error {
 	if o.Format == "json" {
 		return writeJSON(o.Out, solveJSON(results))
 	}
