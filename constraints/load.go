@@ -1261,6 +1261,7 @@ func (d *decoder) crossCheck() {
 			d.errorf(r.n, r.key, "target names node %q, which no part connects%s", r.name, suggest(r.name, nodes))
 		}
 	}
+	d.checkDangling(nodes)
 	var names []string
 	for _, p := range t.Parts {
 		names = append(names, p.Name)
@@ -1323,5 +1324,67 @@ func (d *decoder) crossCheck() {
 			c := &t.Conditions[s.cond]
 			c.Set = append(c.Set, Setting{Part: s.part, Value: v})
 		}
+	}
+}
+
+// checkDangling reports a node that only one part touches and no target
+// reads: the part then carries no current and does nothing, which is almost
+// always a misspelt node name.
+func (d *decoder) checkDangling(nodes []string) {
+	t := d.t
+	// Terminals per node, and the part of the last one seen.
+	terminals := map[string]int{}
+	owner := map[string]int{}
+	for i, p := range t.Parts {
+		ends := []string{p.From, p.To}
+		if p.Kind == solver.OpAmp {
+			ends = []string{p.Plus, p.Minus, p.Out}
+		}
+		for _, n := range ends {
+			terminals[n]++
+			owner[n] = i
+		}
+	}
+	read := map[string]bool{t.Ground: true}
+	for _, r := range d.nodeRefs {
+		read[r.name] = true
+	}
+	// Nodes with a DC path to ground; a dangling end of a group without one
+	// is left to the network check, whose message about the group is the
+	// more useful.
+	grounded := map[string]bool{t.Ground: true}
+	for changed := true; changed; {
+		changed = false
+		for _, p := range t.Parts {
+			a, b := p.From, p.To
+			switch p.Kind {
+			case solver.CurrentSource:
+				continue
+			case solver.OpAmp:
+				a, b = p.Out, t.Ground
+			}
+			if grounded[a] != grounded[b] {
+				grounded[a], grounded[b] = true, true
+				changed = true
+			}
+		}
+	}
+	for _, n := range nodes {
+		// Only a resistor with one end in the air: a lone current source or
+		// op-amp input gets the network check's more specific message.
+		if read[n] || !grounded[n] || terminals[n] != 1 || t.Parts[owner[n]].Kind != solver.Resistor {
+			continue
+		}
+		p := t.Parts[owner[n]]
+		var others []string
+		for _, m := range nodes {
+			if m != n {
+				others = append(others, m)
+			}
+		}
+		d.errorf(&yaml.Node{Line: p.Pos.Line, Column: p.Pos.Col}, "parts",
+			"part %q: node %q connects to nothing else, so %s carries no current%s; connect the node or correct its name",
+			p.Name, n, p.Name, suggest(n, others))
+		return
 	}
 }
