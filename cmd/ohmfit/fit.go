@@ -209,6 +209,9 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	case synth.TimeLimit:
 		fmt.Fprintf(o.ErrOut, "ohmfit: time limit of %v reached; showing the best found so far (not proven)\n", o.TimeLimit)
 	}
+	if len(res.Solutions) > 0 {
+		solutionHazards(p, res.Solutions[0]).write(o.ErrOut)
+	}
 	if err := o.real.render(o, p, res); err != nil {
 		return err
 	}

@@ -105,6 +105,8 @@ func TestGolden(t *testing.T) {
 		{"fit-battery-sense", []string{"fit", "example:battery-sense", "--top", "3", "--workers", "1"}, ExitOK},
 		{"fit-battery-sense-json", []string{"fit", "example:battery-sense", "--top", "1", "--format", "json", "--workers", "1"}, ExitOK},
 		{"solve-sensors", []string{"solve", "testdata/thermistor-bench.yaml"}, ExitOK},
+		{"solve-hazard", []string{"solve", "testdata/hv-sense.yaml"}, ExitOK},
+		{"fit-hazard", []string{"fit", "testdata/hv-fit.yaml", "--top", "1", "--workers", "1"}, ExitOK},
 		{"fit-none", []string{"fit", "testdata/impossible.yaml"}, ExitNoSolution},
 		{"fit-err-series", []string{"fit", "example:feedback", "--series", "E25"}, ExitBadInput},
 		{"fit-err-top", []string{"fit", "example:feedback", "--top", "0"}, ExitBadInput},

@@ -84,6 +84,11 @@ func runSolve(o *solveOptions) error {
 	if err != nil {
 		return err
 	}
+	var h hazards
+	for _, r := range results {
+		h.observe(r.name, r.sol.Nodes, r.sol.Parts)
+	}
+	h.write(o.ErrOut)
 	return redirect(o.Output, inputFiles(t), &o.Out, func() error { return renderSolve(o, t, results) })
 }
 
