@@ -1,8 +1,10 @@
 package constraints
 
 import (
+	"errors"
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/ohmfit/ohmfit/solver"
 )
@@ -180,7 +182,35 @@ func Compile(t *Template) (*Problem, error) {
 		p.Applies = append(p.Applies, app)
 		p.Derived = append(p.Derived, dp)
 	}
+	if err := p.trial(); err != nil {
+		return nil, err
+	}
 	return p, nil
+}
+
+// trial solves every condition once with each free position at the
+// geometric middle of its range: values off by many decades (a source of
+// 1e300 V) overflow there too, and are better refused now, with the
+// solver's own explanation, than turned into infinite powers later.
+func (p *Problem) trial() error {
+	t := p.Template
+	for ci, cond := range t.Conditions {
+		c, err := t.ConditionCircuit(ci)
+		if err != nil {
+			return err
+		}
+		for _, i := range p.Free {
+			ch := t.Choose.For(t.Parts[i].Name)
+			c.Parts[i].Value = math.Sqrt(ch.Min * ch.Max)
+		}
+		if _, err := solver.Analyze(c); err != nil {
+			var oe *solver.OverflowError
+			if errors.As(err, &oe) {
+				return fmt.Errorf("constraints: condition %q: %s", cond.Name, strings.TrimPrefix(err.Error(), "solver: "))
+			}
+		}
+	}
+	return nil
 }
 
 func probeFor(net *solver.Network, t Target) (Probe, error) {

@@ -107,6 +107,7 @@ func TestGolden(t *testing.T) {
 		{"solve-sensors", []string{"solve", "testdata/thermistor-bench.yaml"}, ExitOK},
 		{"solve-hazard", []string{"solve", "testdata/hv-sense.yaml"}, ExitOK},
 		{"fit-hazard", []string{"fit", "testdata/hv-fit.yaml", "--top", "1", "--workers", "1"}, ExitOK},
+		{"fit-err-overflow", []string{"fit", "testdata/overflow.yaml"}, ExitBadInput},
 		{"fit-none", []string{"fit", "testdata/impossible.yaml"}, ExitNoSolution},
 		{"fit-err-series", []string{"fit", "example:feedback", "--series", "E25"}, ExitBadInput},
 		{"fit-err-top", []string{"fit", "example:feedback", "--top", "0"}, ExitBadInput},
