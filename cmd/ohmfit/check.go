@@ -99,7 +99,8 @@ func newCheckCmd(out, errOut io.Writer) *cobra.Command {
 		Short: "Show what a valued design does with real parts",
 		Long: `Analyse a design with real parts: every resistor within its tolerance (the
 part's tolerance:, else choose's, else its series' usual one: E24 5 %, E96 1 %,
-…) and drifting by its TCR over an ambient range, every source within its own
+…) and drifting by its TCR over an ambient range (or, without one, at each
+condition's temperature), every source within its own
 tolerance: (taken as exact without one).
 
 For each target in each condition it shows:
@@ -327,6 +328,8 @@ func writeCheckTable(w io.Writer, t *constraints.Template, d *variation.Design, 
 	}
 	if a := rep.Ambient; a.Set {
 		fmt.Fprintf(&b, "ambient: %g … %g °C (TCR referred to %g °C)\n", a.Min, a.Max, constraints.ReferenceCelsius)
+	} else if hasTemperatures(t) {
+		fmt.Fprintf(&b, "temperature: each resistor drifts by its TCR at its condition's temperature (referred to %g °C)\n", constraints.ReferenceCelsius)
 	}
 	b.WriteByte('\n')
 	if err := writeGoalTable(&b, t, rep); err != nil {
@@ -531,4 +534,14 @@ func nonNilStrings(s []string) []string {
 		return []string{}
 	}
 	return s
+}
+
+// hasTemperatures reports whether any condition carries a temperature.
+func hasTemperatures(t *constraints.Template) bool {
+	for _, c := range t.Conditions {
+		if c.HasTemperature {
+			return true
+		}
+	}
+	return false
 }

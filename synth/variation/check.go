@@ -261,12 +261,30 @@ func Check(d *Design, set *Settings) (*Report, error) {
 			}
 		}
 		// A part is the same part at every temperature: each corner holds
-		// across all the conditions a sweep-wide target reads.
+		// across all the conditions a sweep-wide target reads. When the
+		// conditions carry temperatures, a part's TCR sign is a corner of
+		// its own (high when hot is low when cold), so each part has four:
+		// tolerance ± times TCR ±.
 		for _, gi := range sweep {
-			for mask := 0; mask < r.Corners; mask++ {
-				d.corner(mask, varying, dev)
+			tcrBits := 0
+			if d.conditionTemperatures() && 2*len(varying) <= st.MaxCornerParts {
+				tcrBits = len(varying)
+				d.tcrDraw = make([]float64, len(d.Parts))
+			}
+			for mask := 0; mask < r.Corners<<tcrBits; mask++ {
+				d.corner(mask&(r.Corners-1), varying, dev)
+				for b, j := range varying {
+					if tcrBits == 0 {
+						break
+					}
+					d.tcrDraw[j] = -d.Parts[j].TCR
+					if mask&(1<<(len(varying)+b)) != 0 {
+						d.tcrDraw[j] = d.Parts[j].TCR
+					}
+				}
 				visitSweep(gi)
 			}
+			d.tcrDraw = nil
 		}
 	} else {
 		r.Method = MethodLinearised
@@ -400,6 +418,10 @@ func (d *Design) monteCarlo(s *solver.Solver, r *Report, st *Settings, rt *ratin
 	points := make([]float64, p.Points)
 	dev := make([]float64, len(d.Parts))
 	good := 0
+	if d.conditionTemperatures() {
+		d.tcrDraw = make([]float64, len(d.Parts))
+		defer func() { d.tcrDraw = nil }()
+	}
 	for k := range n {
 		temp := constraints.ReferenceCelsius
 		if d.ambient.Set {
@@ -421,6 +443,10 @@ func (d *Design) monteCarlo(s *solver.Solver, r *Report, st *Settings, rt *ratin
 				drift = (2*rng.Float64() - 1) * v.TCR * (temp - constraints.ReferenceCelsius)
 			}
 			dev[j] = (1+u)*(1+drift) - 1
+			if d.tcrDraw != nil && v.Kind == solver.Resistor {
+				// This part's coefficient, the same at every temperature.
+				d.tcrDraw[j] = (2*rng.Float64() - 1) * v.TCR
+			}
 		}
 		ok := true
 		for ci := range p.Conditions {

@@ -61,6 +61,11 @@ type Design struct {
 	position [][]int
 	ambient  constraints.Ambient
 	warnings []string
+	// tcrDraw, during a Monte Carlo sample, holds each part's drawn
+	// temperature coefficient (per °C, signed) for conditions with a
+	// temperature; nil outside the Monte Carlo, where a corner's drift
+	// pushes the same way as its tolerance.
+	tcrDraw []float64
 }
 
 // NewDesign prepares a compiled template for analysis. options fill its free
@@ -240,13 +245,13 @@ func (d *Design) setValues(s *solver.Solver, c int, dev []float64) {
 				nom = v.Nominal // a free position
 			}
 			if v.Relative {
-				s.SetValue(i, nom*(1+dev[idx[0]]))
+				s.SetValue(i, nom*d.factor(idx[0], c, dev))
 			} else {
 				s.SetValue(i, nom+dev[idx[0]])
 			}
 		case 2:
-			a := d.Parts[idx[0]].Nominal * (1 + dev[idx[0]])
-			b := d.Parts[idx[1]].Nominal * (1 + dev[idx[1]])
+			a := d.Parts[idx[0]].Nominal * d.factor(idx[0], c, dev)
+			b := d.Parts[idx[1]].Nominal * d.factor(idx[1], c, dev)
 			if d.Parts[idx[0]].combine == constraints.Parallel {
 				s.SetValue(i, a*b/(a+b))
 			} else {
@@ -274,3 +279,44 @@ func (d *Design) physical(s *solver.Solver, j int, dev []float64) (volts, watts 
 
 // Warnings returns what NewDesign had to assume.
 func (d *Design) Warnings() []string { return append([]string(nil), d.warnings...) }
+
+// factor is the relative value of varied part j in condition c: its
+// tolerance deviation dev[j] and, when the condition has a temperature and
+// no ambient range is given (which would govern instead), its TCR drift at
+// that temperature: R = R25·(1 + dev)·(1 + α·(T − 25 °C)). A corner takes α
+// at ±TCR with the sign of its tolerance deviation (both push the value the
+// same way); a Monte Carlo sample takes the α it drew. Sensors are left
+// alone: their temperature dependence is their model's.
+func (d *Design) factor(j, c int, dev []float64) float64 {
+	f := 1 + dev[j]
+	v := d.Parts[j]
+	cond := d.Problem.Template.Conditions[c]
+	if d.ambient.Set || !cond.HasTemperature || v.Kind != solver.Resistor || !v.Relative ||
+		d.Problem.Template.Parts[v.Part].Sensor != nil {
+		return f
+	}
+	dt := cond.Temperature - constraints.ReferenceCelsius
+	switch {
+	case d.tcrDraw != nil:
+		return f * (1 + d.tcrDraw[j]*dt)
+	case dev[j] > 0:
+		return f * (1 + v.TCR*math.Abs(dt))
+	case dev[j] < 0:
+		return f * (1 - v.TCR*math.Abs(dt))
+	}
+	return f
+}
+
+// conditionTemperatures reports whether TCR drift follows the conditions'
+// temperatures (some condition has one and no ambient range is given).
+func (d *Design) conditionTemperatures() bool {
+	if d.ambient.Set {
+		return false
+	}
+	for _, c := range d.Problem.Template.Conditions {
+		if c.HasTemperature {
+			return true
+		}
+	}
+	return false
+}

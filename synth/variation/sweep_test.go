@@ -77,3 +77,40 @@ func TestSweepGoals(t *testing.T) {
 		}
 	}
 }
+
+// TCR follows each condition's temperature when the template gives no
+// ambient range: R(T) = R25·(1 ± tol)·(1 ± α·|T − 25 °C|) at the corners.
+// The divider's extremes then follow from the voltage divider formula
+// V = Vin·R2/(R1 + R2) with R1 and R2 at those corners (R1 low and R2 high
+// for the maximum).
+func TestTCRAtConditionTemperature(t *testing.T) {
+	d := design(t, `ohmfit: 1
+parts:
+  - {name: V, type: voltage-source, plus: in, minus: gnd, volts: 10}
+  - {name: R1, type: resistor, from: in, to: mid, value: 10k, tolerance: 1%, tcr: 100ppm}
+  - {name: R2, type: resistor, from: mid, to: gnd, value: 10k, tolerance: 1%, tcr: 0ppm}
+targets:
+  - {voltage: mid, min: 0}
+conditions:
+  - {name: room, temperature: 25}
+  - {name: hot, temperature: 125}
+`)
+	r, err := Check(d, &Settings{Samples: 2000, Seed: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	div := func(r1, r2 float64) float64 { return 10 * r2 / (r1 + r2) }
+	want := map[string][2]float64{
+		"room": {div(10e3*1.01, 10e3*0.99), div(10e3*0.99, 10e3*1.01)},
+		"hot":  {div(10e3*1.01*1.01, 10e3*0.99), div(10e3*0.99*0.99, 10e3*1.01)},
+	}
+	for _, g := range r.Goals {
+		w := want[g.CondName]
+		if math.Abs(g.WorstMin-w[0]) > 1e-12 || math.Abs(g.WorstMax-w[1]) > 1e-12 {
+			t.Errorf("%s: worst case %.9f … %.9f, closed form %.9f … %.9f", g.CondName, g.WorstMin, g.WorstMax, w[0], w[1])
+		}
+		if g.MonteCarlo.Low < w[0]-1e-12 || g.MonteCarlo.High > w[1]+1e-12 {
+			t.Errorf("%s: Monte Carlo %g … %g outside the closed-form extremes", g.CondName, g.MonteCarlo.Low, g.MonteCarlo.High)
+		}
+	}
+}
