@@ -257,7 +257,11 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 	for k, dm := range p.Domains {
 		desc = append(desc, dm.Name+" "+positionText(sol.Options[k]))
 	}
-	fmt.Fprintf(o.ErrOut, "ohmfit: %s has resistors to choose; checking fit's answer %d: %s\n", t.File, o.Rank, strings.Join(desc, ", "))
+	proven := ""
+	if !res.Status.Exhaustive() {
+		proven = " (found by the heuristic, not proven best)"
+	}
+	fmt.Fprintf(o.ErrOut, "ohmfit: %s has resistors to choose; checking fit's answer %d%s: %s\n", t.File, o.Rank, proven, strings.Join(desc, ", "))
 	return sol.Options, nil
 }
 
