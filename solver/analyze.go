@@ -49,7 +49,10 @@ func Analyze(c Circuit) (*Solution, error) {
 	if err := s.Check(); err != nil {
 		return nil, err
 	}
+	s.SetRefinement(true)
 	s.stamp()
+	copy(s.orig, s.a[:net.n*net.n])
+	copy(s.origRHS, s.rhs[:net.n])
 	n := net.n
 	a := mat.NewDense(n, n, append([]float64(nil), s.a[:n*n]...))
 	if err := s.factor(); err != nil {

@@ -18,6 +18,10 @@ func TestSolverMatchesAnalyze(t *testing.T) {
 	for trial := range 50 {
 		c := randomNetwork(rng, 2+rng.IntN(10), trial%2 == 0)
 		s := mustSolver(t, c)
+		s.SetRefinement(true) // as Analyze does
+		if err := s.Solve(); err != nil {
+			t.Fatal(err)
+		}
 		for round := range 5 {
 			if round > 0 { // new values for every part
 				for i, p := range c.Parts {

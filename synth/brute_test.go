@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"math/big"
 	"sort"
 	"testing"
 
@@ -156,11 +157,37 @@ func (ps *plainSolution) watts(i int) float64 {
 }
 
 func (pn *plainNet) solve(vals []float64) (*plainSolution, error) {
+	a, b := pn.matrix(vals), pn.rhs(vals)
 	var lu mat.LU
-	lu.Factorize(pn.matrix(vals))
+	lu.Factorize(a)
 	var x mat.VecDense
-	if err := lu.SolveVecTo(&x, false, pn.rhs(vals)); err != nil {
+	if err := lu.SolveVecTo(&x, false, b); err != nil {
 		return nil, err
+	}
+	// Two steps of iterative refinement with the residual summed in
+	// extended precision (math/big), as the search's final scores are: so
+	// that designs that tie exactly (symmetric positions) tie here too and
+	// are ordered by the contract's later keys, not by rounding noise.
+	n := pn.n
+	for range 2 {
+		r := mat.NewVecDense(n, nil)
+		for i := 0; i < n; i++ {
+			sum := new(big.Float).SetPrec(200).SetFloat64(b.AtVec(i))
+			for j := 0; j < n; j++ {
+				if aij := a.At(i, j); aij != 0 {
+					p := new(big.Float).SetPrec(200).SetFloat64(aij)
+					p.Mul(p, new(big.Float).SetPrec(200).SetFloat64(x.AtVec(j)))
+					sum.Sub(sum, p)
+				}
+			}
+			f, _ := sum.Float64()
+			r.SetVec(i, f)
+		}
+		var d mat.VecDense
+		if err := lu.SolveVecTo(&d, false, r); err != nil {
+			return nil, err
+		}
+		x.AddVec(&x, &d)
 	}
 	return &plainSolution{pn: pn, x: &x, lu: &lu, val: vals}, nil
 }

@@ -188,7 +188,7 @@ type rowWorker struct {
 type pointSlot struct{ idx, node int }
 
 func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *rowWorker {
-	top := set.Top
+	top := set.Top + topMargin
 	net := p.Network
 	n := net.Unknowns()
 	nc := len(p.Conditions)

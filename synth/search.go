@@ -285,7 +285,8 @@ func (p *Problem) describeSpace() string {
 // violation counts and the statistics.
 type runState struct {
 	r        *ranker
-	top      *topList
+	want     int        // answers asked for (Settings.Top)
+	top      *topList   // keeps want + topMargin
 	front    *frontList // nil unless Settings.FrontErrorCap > 0
 	frontCap float64
 	viol     []int64 // per (target or power limit) × condition
@@ -303,9 +304,10 @@ func newRunState(p *Problem, s *Settings) *runState {
 	}
 	return &runState{
 		r:        r,
+		want:     s.Top,
 		front:    front,
 		frontCap: s.FrontErrorCap,
-		top:      newTopList(r, s.Top, len(p.Domains)),
+		top:      newTopList(r, s.Top+topMargin, len(p.Domains)),
 		viol:     make([]int64, (len(p.Probes)+1)*nc),
 		nc:       nc,
 	}
@@ -349,7 +351,13 @@ func (st *runState) blocking() *Violation {
 // Pareto-optimal ones.
 func (st *runState) finish(p *Problem, res *Result) error {
 	s := p.Network.NewSolver()
+	// Refined solves, so that designs equal in exact arithmetic (a
+	// decade-scaled copy) tie as the contract's tolerances intend.
+	s.SetRefinement(true)
 	res.Solutions = st.rescore(p, s, st.top.items)
+	if len(res.Solutions) > st.want {
+		res.Solutions = res.Solutions[:st.want]
+	}
 	for i := range res.Solutions {
 		res.Solutions[i].Rank = i + 1
 		res.Solutions[i].Pareto = true
@@ -456,3 +464,11 @@ func RowCount(p *Problem) float64 {
 	}
 	return n
 }
+
+// topMargin is how many candidates the search keeps beyond those asked for.
+// The search ranks by its fast rank-one updates and the final list by full,
+// refined solves; the two agree to rounding, and the margin makes sure a
+// candidate that ties with the last one asked for (a mirror image in a
+// symmetric network, say) is still there when the full solves settle the
+// order.
+const topMargin = 8

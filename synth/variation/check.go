@@ -154,6 +154,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 	p := d.Problem
 	t := p.Template
 	s := p.Network.NewSolver()
+	s.SetRefinement(true) // the figures people read, to full accuracy
 	r := &Report{Parts: d.Parts, Seed: st.Seed, Distribution: st.Distribution, Ambient: d.ambient}
 	r.Warnings = append(r.Warnings, d.warnings...)
 	nc := len(p.Conditions)
