@@ -18,11 +18,13 @@ import (
 // as penalties, using gonum's Nelder–Mead from several starting points. It
 // then snaps each continuous optimum to the nearest standard options and
 // walks the discrete neighbourhood (every combination within Radius options
-// of the centre) until no neighbour ranks better. The result is usually the
+// of the centre, then every option of one position at a time) until no
+// neighbour ranks better; the remaining position is always searched whole,
+// exactly, by the row machinery of Rows. The result is usually the
 // best or close to it, but nothing proves it: the status is Heuristic.
 type Relax struct {
 	// Starts is the number of starting points for the relaxation: the centre
-	// of the box and Starts-1 seeded random points. Zero means 8.
+	// of the box and Starts-1 seeded random points. Zero means 64.
 	Starts int
 	// Radius is how many options either side of the centre the discrete
 	// neighbourhood spans per position. Zero means 2.
@@ -39,7 +41,7 @@ func (m Relax) run(ctx context.Context, p *Problem, set *Settings, st *runState)
 		return runNoFree(p, st)
 	}
 	if m.Starts <= 0 {
-		m.Starts = 8
+		m.Starts = 64
 	}
 	if m.Radius <= 0 {
 		m.Radius = 2
@@ -207,8 +209,41 @@ func (rx *relaxer) descend(ctx context.Context, x, lo, hi []float64, radius int)
 			}
 		}
 		if !moved {
-			break
+			// The neighbourhood is settled: try every option of one outer
+			// position at a time, the others held at the centre (with the
+			// row position searched exactly, each is a two-position
+			// subproblem solved whole), and go on if that moved the best.
+			moved = rx.sweep(ctx, centre)
+			if !moved {
+				break
+			}
+			best = w.top.items[0].Opt
 		}
 		copy(centre, best)
 	}
+}
+
+// sweep searches, for each outer position in turn, all of its options with
+// the other outer positions at centre. It reports whether the best answer
+// moved away from centre.
+func (rx *relaxer) sweep(ctx context.Context, centre []int32) bool {
+	w := rx.w
+	for _, i := range w.outer {
+		if ctx.Err() != nil {
+			return false
+		}
+		copy(w.cur, centre)
+		for o := range rx.p.Domains[i].Options {
+			w.cur[i] = int32(o)
+			w.searchRow()
+			w.stats.Rows++
+		}
+	}
+	best := w.top.items[0].Opt
+	for _, i := range w.outer {
+		if best[i] != centre[i] {
+			return true
+		}
+	}
+	return false
 }
