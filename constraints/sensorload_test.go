@@ -113,19 +113,7 @@ func TestSensorValuesPerCondition(t *testing.T) {
 // sensitivity: |dV/dT| by central difference over ±0.5 °C; resolution: the
 // code step over the sensitivity).
 func TestDerivedTargetsClosedForm(t *testing.T) {
-	text := strings.Replace(sweepTemplate, "{name: R1, type: resistor, from: vcc, to: s}", "{name: R1, type: resistor, from: vcc, to: s, value: 10k}", 1)
-	tp, err := Parse("s.yaml", []byte(text))
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := Compile(tp)
-	if err != nil {
-		t.Fatal(err)
-	}
-	sc := p.NewScore()
-	if err := p.Evaluate(p.Network.NewSolver(), nil, sc); err != nil {
-		t.Fatal(err)
-	}
+	tp, p, sc := evaluateText(t, valuedSweep(sweepTemplate))
 	ntc := sensors.Beta{R25: 10e3, Beta: 3435}
 	v := func(c float64) float64 {
 		r, _ := ntc.Resistance(c)
@@ -176,26 +164,37 @@ func TestDerivedTargetsClosedForm(t *testing.T) {
 // on_fraction scales every power figure: the average power of a supply that
 // is on for that fraction of the time.
 func TestOnFractionScalesPower(t *testing.T) {
-	full := strings.Replace(sweepTemplate, "on_fraction: 2%", "", 1)
-	full = strings.Replace(full, "{name: R1, type: resistor, from: vcc, to: s}", "{name: R1, type: resistor, from: vcc, to: s, value: 10k}", 1)
+	full := valuedSweep(strings.Replace(sweepTemplate, "on_fraction: 2%", "", 1))
 	duty := strings.Replace(full, "targets:", "on_fraction: 0.25\ntargets:", 1)
 	var power [2]float64
 	for i, text := range []string{full, duty} {
-		tp, err := Parse("s.yaml", []byte(text))
-		if err != nil {
-			t.Fatal(err)
-		}
-		p, err := Compile(tp)
-		if err != nil {
-			t.Fatal(err)
-		}
-		sc := p.NewScore()
-		if err := p.Evaluate(p.Network.NewSolver(), nil, sc); err != nil {
-			t.Fatal(err)
-		}
+		_, _, sc := evaluateText(t, text)
 		power[i] = sc.Power
 	}
 	if math.Abs(power[1]-0.25*power[0]) > 1e-15 {
 		t.Errorf("power %g with on_fraction 0.25, %g without", power[1], power[0])
 	}
+}
+
+// valuedSweep gives the sweep template's free R1 a value of 10k.
+func valuedSweep(text string) string {
+	return strings.Replace(text, "{name: R1, type: resistor, from: vcc, to: s}", "{name: R1, type: resistor, from: vcc, to: s, value: 10k}", 1)
+}
+
+// evaluateText parses, compiles and scores a fully valued template.
+func evaluateText(t *testing.T, text string) (*Template, *Problem, *Score) {
+	t.Helper()
+	tp, err := Parse("s.yaml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := Compile(tp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sc := p.NewScore()
+	if err := p.Evaluate(p.Network.NewSolver(), nil, sc); err != nil {
+		t.Fatal(err)
+	}
+	return tp, p, sc
 }

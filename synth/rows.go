@@ -182,6 +182,7 @@ type rowWorker struct {
 
 	points     []float64     // node voltages the sweep-wide targets read
 	condPoints [][]pointSlot // per condition: which points it fills
+	derived    []int         // targets that are sweep-wide
 }
 
 // pointSlot says that a condition's voltage at node fills points[idx].
@@ -225,10 +226,11 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 	}
 	w.points = make([]float64, p.Points)
 	w.condPoints = make([][]pointSlot, nc)
-	for _, dp := range p.Derived {
+	for ti, dp := range p.Derived {
 		if dp == nil {
 			continue
 		}
+		w.derived = append(w.derived, ti)
 		for k, c := range dp.Conds {
 			w.condPoints[c] = append(w.condPoints[c], pointSlot{dp.Offset + k, dp.Node})
 		}
@@ -469,10 +471,8 @@ func (w *rowWorker) scoreOption(i int) {
 	// Sweep-wide targets (linearity, sensitivity, resolution) read the
 	// node voltages of several conditions; none is monotone along a row, so
 	// they are only checked here, never used to cut a row.
-	for ti, dp := range p.Derived {
-		if dp == nil {
-			continue
-		}
+	for _, ti := range w.derived {
+		dp := p.Derived[ti]
 		v := p.DerivedValue(ti, w.points)
 		tg := &p.Template.Targets[ti]
 		if !tg.Meets(v) {
