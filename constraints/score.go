@@ -124,6 +124,10 @@ type Problem struct {
 	Derived []*DerivedProbe
 	// Points is the scratch length the derived probes need.
 	Points int
+	// PointSlots lists, per condition, which scratch points the derived
+	// probes read in it: after solving condition c, points[slot.Index] is
+	// the voltage of slot.Node, for each slot in PointSlots[c].
+	PointSlots [][]PointSlot
 	// OnFraction scales every power figure (see Template.OnFraction).
 	OnFraction float64
 }
@@ -173,6 +177,12 @@ func Compile(t *Template) (*Problem, error) {
 			}
 			dp.Offset = p.Points
 			p.Points += len(dp.Conds)
+			if p.PointSlots == nil {
+				p.PointSlots = make([][]PointSlot, len(p.Conditions))
+			}
+			for k, c := range dp.Conds {
+				p.PointSlots[c] = append(p.PointSlots[c], PointSlot{Index: dp.Offset + k, Node: dp.Node})
+			}
 		} else {
 			for ci, cv := range p.Conditions {
 				// Hidden conditions exist only for sweep-wide targets' derivatives.
@@ -317,16 +327,7 @@ func (p *Problem) Evaluate(s *solver.Solver, free []float64, sc *Score) error {
 				sc.Error = e
 			}
 		}
-		for _, dp := range p.Derived {
-			if dp == nil {
-				continue
-			}
-			for k, c := range dp.Conds {
-				if c == ci {
-					sc.points[dp.Offset+k] = s.Voltage(dp.Node)
-				}
-			}
-		}
+		p.GatherPoints(ci, s, sc.points)
 	}
 	p.scoreDerived(sc.points, sc)
 	return nil
@@ -360,4 +361,21 @@ func (p *Problem) scoreDerived(points []float64, sc *Score) {
 func (p *Problem) DerivedValue(ti int, points []float64) float64 {
 	dp := p.Derived[ti]
 	return dp.Value(points[dp.Offset : dp.Offset+len(dp.Conds)])
+}
+
+// PointSlot is one node voltage a sweep-wide target reads in a condition.
+type PointSlot struct {
+	Index int // into the points scratch
+	Node  int // node index
+}
+
+// GatherPoints records, after condition ci was solved by s, the node
+// voltages the sweep-wide targets read in it. It does not allocate.
+func (p *Problem) GatherPoints(ci int, s *solver.Solver, points []float64) {
+	if p.PointSlots == nil {
+		return
+	}
+	for _, ps := range p.PointSlots[ci] {
+		points[ps.Index] = s.Voltage(ps.Node)
+	}
 }

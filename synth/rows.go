@@ -180,13 +180,9 @@ type rowWorker struct {
 	frontCap float64    // goal error bound of the trade-off front; 0: none kept
 	front    *frontList // the worker's trade-off front, nil when none is kept
 
-	points     []float64     // node voltages the sweep-wide targets read
-	condPoints [][]pointSlot // per condition: which points it fills
-	derived    []int         // targets that are sweep-wide
+	points  []float64 // node voltages the sweep-wide targets read
+	derived []int     // targets that are sweep-wide
 }
-
-// pointSlot says that a condition's voltage at node fills points[idx].
-type pointSlot struct{ idx, node int }
 
 func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *rowWorker {
 	top := set.Top + topMargin
@@ -225,14 +221,9 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		w.front = &frontList{r: r}
 	}
 	w.points = make([]float64, p.Points)
-	w.condPoints = make([][]pointSlot, nc)
 	for ti, dp := range p.Derived {
-		if dp == nil {
-			continue
-		}
-		w.derived = append(w.derived, ti)
-		for k, c := range dp.Conds {
-			w.condPoints[c] = append(w.condPoints[c], pointSlot{dp.Offset + k, dp.Node})
+		if dp != nil {
+			w.derived = append(w.derived, ti)
 		}
 	}
 	for c := range w.cond {
@@ -464,8 +455,10 @@ func (w *rowWorker) scoreOption(i int) {
 				errMax = e
 			}
 		}
-		for _, ps := range w.condPoints[c] {
-			w.points[ps.idx] = rc.x0[ps.node] - rc.w[ps.node]*s
+		if p.PointSlots != nil {
+			for _, ps := range p.PointSlots[c] {
+				w.points[ps.Index] = rc.x0[ps.Node] - rc.w[ps.Node]*s
+			}
 		}
 	}
 	// Sweep-wide targets (linearity, sensitivity, resolution) read the

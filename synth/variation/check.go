@@ -719,18 +719,14 @@ const SweepCondition = -1
 // gatherPoints records, after condition ci was solved, the node voltages the
 // sweep-wide targets read in it (NaN when the solve failed).
 func (d *Design) gatherPoints(s *solver.Solver, ci int, solved bool, points []float64) {
-	for _, dp := range d.Problem.Derived {
-		if dp == nil {
-			continue
-		}
-		for k, c := range dp.Conds {
-			if c != ci {
-				continue
-			}
-			points[dp.Offset+k] = math.NaN()
-			if solved {
-				points[dp.Offset+k] = s.Voltage(dp.Node)
-			}
+	p := d.Problem
+	if solved {
+		p.GatherPoints(ci, s, points)
+		return
+	}
+	if p.PointSlots != nil {
+		for _, ps := range p.PointSlots[ci] {
+			points[ps.Index] = math.NaN()
 		}
 	}
 }
