@@ -333,14 +333,22 @@ func (s *Solver) Resistance(a, b int) (float64, error) {
 	if a == b {
 		return 0, nil
 	}
+	w := s.port(a, b)
+	return w[s.rhsRow(a)] - w[s.rhsRow(b)], nil
+}
+
+// port solves, with the last factors, for a unit current injected at node a
+// and taken out at node b with every source zeroed, and returns the solution
+// in s.work, whose scratch slot past the unknowns reads as ground (0).
+func (s *Solver) port(a, b int) []float64 {
 	w := s.work
 	clear(w)
 	// Node k's KCL row is k-1; ground's injection goes to the scratch slot.
 	w[s.rhsRow(a)] += 1
 	w[s.rhsRow(b)] -= 1
 	s.substitute(w)
-	w[s.n] = 0 // scratch slot reads as ground
-	return w[s.rhsRow(a)] - w[s.rhsRow(b)], nil
+	w[s.n] = 0
+	return w
 }
 
 func (s *Solver) rhsRow(node int) int {

@@ -25,12 +25,7 @@ func (s *Solver) PortResponse(a, b int, dst []float64) error {
 	if !s.ok {
 		return ErrNotSolved
 	}
-	w := s.work
-	clear(w)
-	w[s.rhsRow(a)] += 1
-	w[s.rhsRow(b)] -= 1
-	s.substitute(w)
-	copy(dst, w[:s.n])
+	copy(dst, s.port(a, b)[:s.n])
 	return nil
 }
 
