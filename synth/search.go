@@ -237,7 +237,7 @@ func Search(ctx context.Context, p *Problem, s *Settings, m Method) (*Result, er
 	}
 	space := p.Space()
 	if space > MaxSpace {
-		return nil, fmt.Errorf("%w: %.3g candidates (%s); narrow the positions' min/max, use a coarser series or fewer pairs", ErrSpaceTooLarge, space, p.describeSpace())
+		return nil, fmt.Errorf("%w: %.3g candidates (%s); narrow the positions' min/max, use a coarser series or fewer pairs", ErrSpaceTooLarge, space, p.DescribeSpace())
 	}
 	if set.TimeLimit > 0 {
 		var cancel context.CancelFunc
@@ -266,19 +266,17 @@ func Search(ctx context.Context, p *Problem, s *Settings, m Method) (*Result, er
 	return res, nil
 }
 
-// describeSpace says how the space is made up, e.g. "R1 1345 × R2 1345".
-func (p *Problem) describeSpace() string {
-	out := ""
+// DescribeSpace says how the space is made up, e.g. "R1 1345 × R2 1345",
+// or "nothing to choose" when there is no free position.
+func (p *Problem) DescribeSpace() string {
+	parts := make([]string, len(p.Domains))
 	for i, d := range p.Domains {
-		if i > 0 {
-			out += " × "
-		}
-		out += fmt.Sprintf("%s %d", d.Name, len(d.Options))
+		parts[i] = fmt.Sprintf("%s %d", d.Name, len(d.Options))
 	}
-	if out == "" {
-		return "no free position"
+	if len(parts) == 0 {
+		return "nothing to choose"
 	}
-	return out
+	return strings.Join(parts, " × ")
 }
 
 // runState is what methods share with Search: the merged top list, the
@@ -446,7 +444,7 @@ func widen(t float64) float64 {
 var ErrTooManyRows = errors.New("synth: too many rows for an exhaustive search")
 
 func tooManyRows(p *Problem, rows, limit float64) error {
-	return fmt.Errorf("%w: %.3g rows (%s, %.3g candidates) is over the budget of %.3g; narrow the positions' min/max, use a coarser series, fix a part's value, or let the heuristic run", ErrTooManyRows, rows, p.describeSpace(), p.Space(), limit)
+	return fmt.Errorf("%w: %.3g rows (%s, %.3g candidates) is over the budget of %.3g; narrow the positions' min/max, use a coarser series, fix a part's value, or let the heuristic run", ErrTooManyRows, rows, p.DescribeSpace(), p.Space(), limit)
 }
 
 // RowCount returns how many rows the exhaustive method would visit: the

@@ -378,20 +378,9 @@ func summaryLine(p *synth.Problem, res *synth.Result) string {
 		noun = "candidate"
 	}
 	return fmt.Sprintf("%s %s (%s); %s scored by %s in %s; %s",
-		count(st.Space), noun, spaceText(p), count(float64(st.Evaluated)), st.Method, roundDuration(st.Elapsed), verdict)
+		count(st.Space), noun, p.DescribeSpace(), count(float64(st.Evaluated)), st.Method, roundDuration(st.Elapsed), verdict)
 }
 
-// spaceText is "R1 289 × R2 289".
-func spaceText(p *synth.Problem) string {
-	var parts []string
-	for _, d := range p.Domains {
-		parts = append(parts, fmt.Sprintf("%s %d", d.Name, len(d.Options)))
-	}
-	if len(parts) == 0 {
-		return "nothing to choose"
-	}
-	return strings.Join(parts, " × ")
-}
 
 // count writes a count with thousands separators, or in exponent form when
 // it is very large.
