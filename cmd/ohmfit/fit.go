@@ -381,7 +381,6 @@ func summaryLine(p *synth.Problem, res *synth.Result) string {
 		count(st.Space), noun, p.DescribeSpace(), count(float64(st.Evaluated)), st.Method, roundDuration(st.Elapsed), verdict)
 }
 
-
 // count writes a count with thousands separators, or in exponent form when
 // it is very large.
 func count(n float64) string {
