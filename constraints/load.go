@@ -803,27 +803,23 @@ func (d *decoder) target(n *yaml.Node, path string, i int) {
 			tg.Nodes = append(tg.Nodes, name)
 			d.nodeRefs = append(d.nodeRefs, nodeRef{name, it, qpath})
 		}
-	case Current, Power:
+	default:
+		// One name: a part, an ADC or a node, by kind.
 		name, ok := d.name(q.val, qpath, qctx)
 		if !ok {
 			return
 		}
-		tg.Part = name
-		d.partRefs = append(d.partRefs, partRef{name, q.val, qpath})
-	case Code, Resolution:
-		name, ok := d.name(q.val, qpath, qctx)
-		if !ok {
-			return
+		switch tg.Kind {
+		case Current, Power:
+			tg.Part = name
+			d.partRefs = append(d.partRefs, partRef{name, q.val, qpath})
+		case Code, Resolution:
+			tg.ADC = name
+			d.adcRefs = append(d.adcRefs, partRef{name, q.val, qpath})
+		default: // Linearity, Sensitivity
+			tg.Nodes = []string{name}
+			d.nodeRefs = append(d.nodeRefs, nodeRef{name, q.val, qpath})
 		}
-		tg.ADC = name
-		d.adcRefs = append(d.adcRefs, partRef{name, q.val, qpath})
-	case Linearity, Sensitivity:
-		name, ok := d.name(q.val, qpath, qctx)
-		if !ok {
-			return
-		}
-		tg.Nodes = []string{name}
-		d.nodeRefs = append(d.nodeRefs, nodeRef{name, q.val, qpath})
 	}
 	if e, ok := byName["at"]; ok {
 		if tg.Kind != Sensitivity && tg.Kind != Resolution {
