@@ -18,15 +18,7 @@ func TestBadFiles(t *testing.T) {
 	}
 	for _, f := range files {
 		t.Run(filepath.Base(f), func(t *testing.T) {
-			data, err := os.ReadFile(f)
-			if err != nil {
-				t.Fatal(err)
-			}
-			first, _, _ := strings.Cut(string(data), "\n")
-			want, ok := strings.CutPrefix(first, "# want: ")
-			if !ok {
-				t.Fatalf("first line %q does not start with \"# want: \"", first)
-			}
+			want := wantLine(t, f)
 			_, err = Load(f)
 			var e *Error
 			if !errors.As(err, &e) {
@@ -37,4 +29,19 @@ func TestBadFiles(t *testing.T) {
 			}
 		})
 	}
+}
+
+// wantLine returns what a bad-input file's first line, "# want: …", expects.
+func wantLine(t *testing.T, file string) string {
+	t.Helper()
+	data, err := os.ReadFile(file)
+	if err != nil {
+		t.Fatal(err)
+	}
+	first, _, _ := strings.Cut(string(data), "\n")
+	want, ok := strings.CutPrefix(first, "# want: ")
+	if !ok {
+		t.Fatalf("first line %q does not start with \"# want: \"", first)
+	}
+	return want
 }

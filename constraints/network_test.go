@@ -2,7 +2,6 @@ package constraints
 
 import (
 	"errors"
-	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -21,15 +20,7 @@ func TestBadNetworks(t *testing.T) {
 	}
 	for _, f := range files {
 		t.Run(filepath.Base(f), func(t *testing.T) {
-			data, err := os.ReadFile(f)
-			if err != nil {
-				t.Fatal(err)
-			}
-			first, _, _ := strings.Cut(string(data), "\n")
-			want, ok := strings.CutPrefix(first, "# want: ")
-			if !ok {
-				t.Fatalf("first line %q does not start with \"# want: \"", first)
-			}
+			want := wantLine(t, f)
 			tpl, err := Load(f)
 			if err != nil {
 				t.Fatalf("Load: %v (network templates must load)", err)

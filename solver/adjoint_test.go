@@ -98,14 +98,8 @@ func TestAdjointFiniteDifferences(t *testing.T) {
 	rng := rand.New(rand.NewPCG(9, 2))
 	for trial := range 30 {
 		c := randomNetwork(rng, 2+rng.IntN(5), trial%2 == 1)
-		net, err := Compile(c)
-		if err != nil {
-			t.Fatal(err)
-		}
-		s := net.NewSolver()
-		if err := s.Solve(); err != nil {
-			t.Fatal(err)
-		}
+		s := mustSolver(t, c)
+		net := s.Network()
 		nn, np := len(net.nodes), len(net.parts)
 		// Read-out: a random node voltage plus the power of a random part
 		// (chain rule weights: P = V·I, so ∂P/∂V = I and ∂P/∂I = V).

@@ -22,14 +22,8 @@ func TestPortResponseShermanMorrison(t *testing.T) {
 		{Name: "Rb", Kind: Resistor, From: "b", To: "gnd", Value: 6.8e3},
 		{Name: "I1", Kind: CurrentSource, From: "a", To: "gnd", Value: 1e-4},
 	}}
-	net, err := Compile(c)
-	if err != nil {
-		t.Fatal(err)
-	}
-	s := net.NewSolver()
-	if err := s.Solve(); err != nil {
-		t.Fatal(err)
-	}
+	s := mustSolver(t, c)
+	net := s.Network()
 	n := net.Unknowns()
 	ext := func(v []float64) []float64 { return append([]float64{0}, v...) } // ground first
 	x0 := ext(append([]float64(nil), s.X()...))
