@@ -553,14 +553,13 @@ func Quantile(sorted []float64, q float64) float64 {
 // ratingTracker follows each resistor's largest power and voltage, and the
 // largest voltage between nodes, over every solve it is shown.
 type ratingTracker struct {
-	d                *Design
-	net              *solver.Network
-	nominal, watts   []float64
-	volts            []float64
-	maxVolts         float64
-	maxWhere         string
-	nodes            []string
-	nominalCondition bool
+	d              *Design
+	net            *solver.Network
+	nominal, watts []float64
+	volts          []float64
+	maxVolts       float64
+	maxWhere       string
+	nodes          []string
 }
 
 func newRatingTracker(d *Design, net *solver.Network) *ratingTracker {
