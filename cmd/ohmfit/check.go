@@ -111,7 +111,13 @@ For each target in each condition it shows:
                says which ran.
   Monte Carlo  mean, σ, the 0.135 % and 99.865 % points and the yield
                against the target's limits, over --samples random builds.
-  sensitivity  (dX/X)/(dx/x) of the target to each part, by the adjoint method.
+  sensitivity  (dX/X)/(dx/x) of the target to each part: the relative change
+               of the target per relative change of the part's value, at
+               nominal values (no tolerance, no drift); for a thermistor or
+               RTD the value is its R25 or R0, which scales its whole curve.
+               By the adjoint method; sweep-wide targets (linearity,
+               sensitivity, resolution) by central differences of full
+               re-solves. JSON "sensitivities" holds the same figure.
 For each resistor: its largest power and voltage over conditions and corners,
 the smallest package that carries it at no more than half its rated power
 (common practice), or the template's package:, with warnings near or beyond a
@@ -339,7 +345,8 @@ func writeCheckTable(w io.Writer, t *constraints.Template, d *variation.Design, 
 	if err := writeGoalTable(&b, t, rep); err != nil {
 		return err
 	}
-	b.WriteString("\n  sensitivity (dX/X)/(dx/x): adjoint method; sweep-wide targets by central differences\n\n")
+	b.WriteString("\n  sensitivity (dX/X)/(dx/x): relative change of the target per relative change of a part's value, at nominal values\n")
+	b.WriteString("  (a sensor's R25 or R0); adjoint method, sweep-wide targets by central differences of full re-solves\n\n")
 	sens := table{indent: "  ", cols: []column{{gap: 3}, {gap: 3}}}
 	head := []string{"target", "condition"}
 	for _, v := range rep.Parts {

@@ -72,10 +72,14 @@ type Stats struct {
 	Failed      int     // samples whose network could not be solved
 }
 
-// Sensitivity is one target's sensitivity to one varied part.
+// Sensitivity is one target's sensitivity to one varied part, the
+// derivative at nominal values (every part at its value, no tolerance, no
+// TCR drift). x is the physical part's value: its ohms (each part of a pair
+// on its own), a source's volts or amps, and for a thermistor or RTD its R25
+// or R0, which scales its resistance at every temperature alike.
 type Sensitivity struct {
 	Part       string
-	Absolute   float64 // dX/dx, in the target's unit per the part's unit
+	Absolute   float64 // dX/dx, in the target's unit per the part's unit; NaN when it cannot be computed
 	Normalised float64 // (dX/X)/(dx/x); NaN when X is 0
 }
 
@@ -747,28 +751,44 @@ func (d *Design) derivedAt(s *solver.Solver, ti int, dev []float64) (float64, er
 }
 
 // derivedSensitivities differentiates a sweep-wide target numerically: a
-// central difference with a relative step of 1e-6 in each varied part.
+// central difference with a relative step of 1e-6 in each part's value
+// (for a part with an absolute tolerance, a step of 1e-6 of its value), at
+// nominal values. Nominal means no TCR drift either: while it runs every
+// part's temperature coefficient is held at zero, so that the step moves
+// the value alone and not also the drift a corner would add (factor turns a
+// deviation's sign into a TCR corner).
 func (d *Design) derivedSensitivities(s *solver.Solver, ti int, x float64) []Sensitivity {
 	const h = 1e-6
 	dev := make([]float64, len(d.Parts))
+	saved := d.tcrDraw
+	d.tcrDraw = make([]float64, len(d.Parts))
+	defer func() { d.tcrDraw = saved }()
 	out := make([]Sensitivity, len(d.Parts))
 	for j, v := range d.Parts {
 		out[j] = Sensitivity{Part: v.Name, Absolute: math.NaN(), Normalised: math.NaN()}
+		step := h // relative
 		if !v.Relative {
-			continue
+			step = h * math.Abs(v.Nominal)
+			if step == 0 {
+				step = h
+			}
 		}
 		clear(dev)
-		dev[j] = h
+		dev[j] = step
 		up, err1 := d.derivedAt(s, ti, dev)
-		dev[j] = -h
+		dev[j] = -step
 		down, err2 := d.derivedAt(s, ti, dev)
 		if err1 != nil || err2 != nil {
 			continue
 		}
-		dxdu := (up - down) / (2 * h) // per unit relative change
-		out[j].Absolute = dxdu / v.Nominal
+		slope := (up - down) / (2 * step) // per unit of dev
+		if v.Relative {
+			out[j].Absolute = slope / v.Nominal // dev is dx/x
+		} else {
+			out[j].Absolute = slope
+		}
 		if x != 0 {
-			out[j].Normalised = dxdu / x
+			out[j].Normalised = out[j].Absolute * v.Nominal / x
 		}
 	}
 	return out
