@@ -116,13 +116,24 @@ type Rating struct {
 	Verdict      string // ratings.Load.Verdict, or "no package fits"
 }
 
+// SensorLoad is a thermistor's or RTD's largest power and voltage. The
+// resistor package table does not rate sensors; their datasheet does (and a
+// self_heating target limits the rise the power causes).
+type SensorLoad struct {
+	Part         string
+	NominalWatts float64 // largest over conditions, nominal values
+	Watts        float64 // largest over conditions and worst-case corners
+	Volts        float64 // largest |voltage| likewise
+}
+
 // Report is the outcome of Check.
 type Report struct {
 	Method       string // MethodCorners or MethodLinearised
 	Corners      int    // solves per condition spent on the worst case
 	Parts        []Varied
 	Goals        []Goal
-	Ratings      []Rating
+	Ratings      []Rating // resistors only
+	Sensors      []SensorLoad
 	Samples      int
 	Seed         uint64
 	Distribution Distribution
@@ -333,6 +344,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 	}
 	r.MaxVolts, r.MaxVoltsWhere = rt.maxVolts, rt.maxWhere
 	r.Ratings = rt.ratings(&st, t, r)
+	r.Sensors = rt.sensors()
 	d.warn(r, &st)
 	return r, nil
 }
@@ -391,6 +403,12 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			}
 		} else {
 			xj = pos
+			if v.Sensor != "" {
+				// Per ohm of R25 (R0), which scales the resistance pos it
+				// has in this condition: dR/dR25 = pos/R25.
+				g *= pos / v.Nominal
+				xj = v.Nominal
+			}
 		}
 		n := math.NaN()
 		if x != 0 {
@@ -612,7 +630,7 @@ func (rt *ratingTracker) ratings(st *Settings, t *constraints.Template, r *Repor
 	}
 	var out []Rating
 	for j, v := range rt.d.Parts {
-		if v.Kind != solver.Resistor {
+		if v.Kind != solver.Resistor || v.Sensor != "" {
 			continue
 		}
 		rg := Rating{Part: v.Name, NominalWatts: rt.nominal[j], Watts: rt.watts[j], Volts: rt.volts[j]}
@@ -649,6 +667,17 @@ func (rt *ratingTracker) ratings(st *Settings, t *constraints.Template, r *Repor
 			}
 		}
 		out = append(out, rg)
+	}
+	return out
+}
+
+// sensors returns each sensor's load.
+func (rt *ratingTracker) sensors() []SensorLoad {
+	var out []SensorLoad
+	for j, v := range rt.d.Parts {
+		if v.Sensor != "" {
+			out = append(out, SensorLoad{Part: v.Name, NominalWatts: rt.nominal[j], Watts: rt.watts[j], Volts: rt.volts[j]})
+		}
 	}
 	return out
 }

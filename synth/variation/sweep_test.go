@@ -126,9 +126,11 @@ conditions:
 // from opts (a pair by the series law Ra + Rb or the parallel law
 // RaRb/(Ra + Rb)). A sensor is scaled through its model: R25 of a B-model
 // thermistor, R0 of an RTD, so that its resistance is f times as large at
-// every temperature.
-func scaledTemplate(t *testing.T, tpl *constraints.Template, opts []synth.Option, name string, f float64) *constraints.Template {
+// every temperature. It also returns the unscaled value of that part (ohms,
+// volts, R25 or R0).
+func scaledTemplate(t *testing.T, tpl *constraints.Template, opts []synth.Option, name string, f float64) (*constraints.Template, float64) {
 	t.Helper()
+	base := math.NaN()
 	c := *tpl
 	c.Parts = slices.Clone(tpl.Parts)
 	k := 0
@@ -138,10 +140,12 @@ func scaledTemplate(t *testing.T, tpl *constraints.Template, opts []synth.Option
 			o := opts[k]
 			k++
 			a, b := o.Parts[0], o.Parts[1]
-			switch name {
-			case ps.Name, ps.Name + "a":
+			switch {
+			case name == ps.Name && o.Count == 1, name == ps.Name+"a" && o.Count == 2:
+				base = a
 				a *= f
-			case ps.Name + "b":
+			case name == ps.Name+"b" && o.Count == 2:
+				base = b
 				b *= f
 			}
 			switch o.Combine {
@@ -160,18 +164,21 @@ func scaledTemplate(t *testing.T, tpl *constraints.Template, opts []synth.Option
 		}
 		switch m := ps.Sensor.(type) {
 		case nil:
+			base = ps.Value
 			ps.Value *= f
 		case sensors.Beta:
+			base = m.R25
 			m.R25 *= f
 			ps.Sensor = m
 		case sensors.RTD:
+			base = m.R0
 			m.R0 *= f
 			ps.Sensor = m
 		default:
 			t.Fatalf("%s: no way to scale a %T", name, m)
 		}
 	}
-	return &c
+	return &c, base
 }
 
 // resolvedTarget compiles a valued template afresh and returns target ti
@@ -267,7 +274,8 @@ choose: {series: E24, min: 1k, max: 1M, combine: any}
 					continue
 				}
 				kinds[tpl.Targets[g.Target].Kind] = true
-				x := resolvedTarget(t, scaledTemplate(t, tpl, c.opts, "", 1), g.Target)
+				nominal, _ := scaledTemplate(t, tpl, c.opts, "", 1)
+				x := resolvedTarget(t, nominal, g.Target)
 				if math.Abs(g.Nominal-x) > 1e-9*math.Abs(x) {
 					t.Errorf("%s: nominal %.12g, re-solved %.12g", g.Label, g.Nominal, x)
 				}
@@ -275,10 +283,11 @@ choose: {series: E24, min: 1k, max: 1M, combine: any}
 					t.Fatalf("%s: %d sensitivities for %d parts", g.Label, len(g.Sens), len(d.Parts))
 				}
 				for j, v := range d.Parts {
-					up := resolvedTarget(t, scaledTemplate(t, tpl, c.opts, v.Name, 1+h), g.Target)
-					down := resolvedTarget(t, scaledTemplate(t, tpl, c.opts, v.Name, 1-h), g.Target)
-					norm := (up - down) / (2 * h) / x        // (dX/X)/(dx/x)
-					abs := (up - down) / (2 * h * v.Nominal) // dX/dx
+					tUp, xj := scaledTemplate(t, tpl, c.opts, v.Name, 1+h)
+					tDown, _ := scaledTemplate(t, tpl, c.opts, v.Name, 1-h)
+					up, down := resolvedTarget(t, tUp, g.Target), resolvedTarget(t, tDown, g.Target)
+					norm := (up - down) / (2 * h) / x // (dX/X)/(dx/x)
+					abs := (up - down) / (2 * h * xj) // dX/dx
 					s := g.Sens[j]
 					if s.Part != v.Name {
 						t.Errorf("%s: sensitivity %d names %s, part is %s", g.Label, j, s.Part, v.Name)
@@ -286,7 +295,7 @@ choose: {series: E24, min: 1k, max: 1M, combine: any}
 					if !(math.Abs(s.Normalised-norm) <= 1e-5*math.Max(1, math.Abs(norm))) {
 						t.Errorf("%s vs %s: normalised %.8g, re-solved %.8g", g.Label, v.Name, s.Normalised, norm)
 					}
-					if !(math.Abs(s.Absolute-abs) <= 1e-5*math.Max(math.Abs(abs), math.Abs(x/v.Nominal))) {
+					if !(math.Abs(s.Absolute-abs) <= 1e-5*math.Max(math.Abs(abs), math.Abs(x/xj))) {
 						t.Errorf("%s vs %s: absolute %.8g, re-solved %.8g", g.Label, v.Name, s.Absolute, abs)
 					}
 				}
