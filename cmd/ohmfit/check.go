@@ -101,7 +101,10 @@ func newCheckCmd(out, errOut io.Writer) *cobra.Command {
 part's tolerance:, else choose's, else its series' usual one: E24 5 %, E96 1 %,
 …) and drifting by its TCR over an ambient range (or, without one, at each
 condition's temperature), every source within its own
-tolerance: (taken as exact without one).
+tolerance: (taken as exact without one), every thermistor or RTD within its
+own tolerance: on its R25 or R0 (1 % assumed, with a warning, without one)
+and with no resistor TCR, series or package rating: its model is its
+temperature dependence, its datasheet its rating.
 
 For each target in each condition it shows:
   worst case   the extremes over every tolerance corner, each corner solved
@@ -111,11 +114,24 @@ For each target in each condition it shows:
                says which ran.
   Monte Carlo  mean, σ, the 0.135 % and 99.865 % points and the yield
                against the target's limits, over --samples random builds.
-  sensitivity  (dX/X)/(dx/x) of the target to each part, by the adjoint method.
+  sensitivity  (dX/X)/(dx/x) of the target to each part: the relative change
+               of the target per relative change of the part's value, at
+               nominal values (no tolerance, no drift); for a thermistor or
+               RTD the value is its R25 or R0, which scales its whole curve.
+               By the adjoint method; sweep-wide targets (linearity,
+               sensitivity, resolution) by central differences of full
+               re-solves. JSON "sensitivities" holds the same figure.
 For each resistor: its largest power and voltage over conditions and corners,
 the smallest package that carries it at no more than half its rated power
 (common practice), or the template's package:, with warnings near or beyond a
 rating, and cautions when a node exceeds 60 V DC (IEC 62368-1, ES1).
+
+--bom writes one CSV line per item to order: resistors of equal value,
+series, tolerance, TCR and package share a line; each sensor is a line of its
+own, with its type (ntc, rtd) and model (R25 and B, the Steinhart–Hart
+coefficients, or R0 and the RTD coefficients). The tolerance column is the
+tolerance the check assumed, tolerance_from where it came from (part,
+choose, series, assumed).
 
 Package ratings are typical thick-film figures from memory; the datasheet of
 the part you buy governs. ohmfit is a first check, not a safety assessment.
@@ -339,7 +355,8 @@ func writeCheckTable(w io.Writer, t *constraints.Template, d *variation.Design, 
 	if err := writeGoalTable(&b, t, rep); err != nil {
 		return err
 	}
-	b.WriteString("\n  sensitivity (dX/X)/(dx/x): adjoint method; sweep-wide targets by central differences\n\n")
+	b.WriteString("\n  sensitivity (dX/X)/(dx/x): relative change of the target per relative change of a part's value, at nominal values\n")
+	b.WriteString("  (a sensor's R25 or R0); adjoint method, sweep-wide targets by central differences of full re-solves\n\n")
 	sens := table{indent: "  ", cols: []column{{gap: 3}, {gap: 3}}}
 	head := []string{"target", "condition"}
 	for _, v := range rep.Parts {
@@ -359,7 +376,7 @@ func writeCheckTable(w io.Writer, t *constraints.Template, d *variation.Design, 
 		return err
 	}
 	b.WriteByte('\n')
-	if err := writePartTable(&b, rep); err != nil {
+	if err := writePartTable(&b, d, rep); err != nil {
 		return err
 	}
 	writeNotes(&b, rep)
@@ -413,16 +430,33 @@ func writeGoalTable(b *strings.Builder, t *constraints.Template, rep *variation.
 	return tb.write(b)
 }
 
-// writePartTable writes one row per varied part with its rating.
-func writePartTable(b *strings.Builder, rep *variation.Report) error {
+// writePartTable writes one row per varied part with its rating; a sensor
+// has no resistor TCR, package rating or verdict, and its model follows.
+func writePartTable(b *strings.Builder, d *variation.Design, rep *variation.Report) error {
 	rated := map[string]variation.Rating{}
 	for _, r := range rep.Ratings {
 		rated[r.Part] = r
 	}
+	sensed := map[string]variation.SensorLoad{}
+	for _, s := range rep.Sensors {
+		sensed[s.Part] = s
+	}
 	tb := table{indent: "  ", cols: []column{{gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {right: true, gap: 3},
 		{right: true, gap: 3}, {right: true, gap: 3}, {gap: 3}, {right: true, gap: 3}, {}}}
 	tb.add("part", "value", "tolerance", "TCR", "worst power", "worst volts", "package", "load", "verdict")
-	for _, v := range rep.Parts {
+	var models []string
+	for j, v := range rep.Parts {
+		if sl, ok := sensed[v.Name]; ok {
+			pkg := v.Package
+			if pkg == "" {
+				pkg = "-"
+			}
+			tb.add(v.Name, eseries.FormatUnit(v.Nominal, eseries.Ohm), tolText(v), "-",
+				eseries.FormatUnit(sl.Watts, eseries.Watt), eseries.FormatUnit(sl.Volts, eseries.Volt), pkg, "-", "sensor")
+			models = append(models, fmt.Sprintf("  %s is an %s, %s, ±%s (%s): its datasheet rates it, not the package table.\n",
+				v.Name, variation.SensorKind(v.Sensor), d.SensorSpec(j), eseries.FormatUnit(v.Tol, eseries.Percent), v.TolFrom))
+			continue
+		}
 		r, ok := rated[v.Name]
 		if !ok {
 			tb.add(v.Name, eseries.FormatUnit(v.Nominal, unitOf(v.Kind)), tolText(v), "", "", "", "", "", "")
@@ -436,7 +470,16 @@ func writePartTable(b *strings.Builder, rep *variation.Report) error {
 			eseries.FormatUnit(r.Watts, eseries.Watt), eseries.FormatUnit(r.Volts, eseries.Volt), pkg,
 			strconv.FormatFloat(100*r.Load.PowerFraction, 'f', 0, 64)+"%", r.Verdict)
 	}
-	return tb.write(b)
+	if err := tb.write(b); err != nil {
+		return err
+	}
+	if len(models) > 0 {
+		b.WriteByte('\n')
+		for _, m := range models {
+			b.WriteString(m)
+		}
+	}
+	return nil
 }
 
 // writeNotes writes the warnings, cautions and hard failures.
@@ -494,16 +537,31 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 	for _, r := range rep.Ratings {
 		rated[r.Part] = r
 	}
+	sensed := map[string]variation.SensorLoad{}
+	for _, s := range rep.Sensors {
+		sensed[s.Part] = s
+	}
 	parts, sources := []object{}, []object{}
-	for _, v := range rep.Parts {
+	for j, v := range rep.Parts {
 		base := object{{"name", v.Name}, {"value", v.Nominal}, {"tolerance", v.Tol}, {"tolerance_relative", v.Relative}, {"tolerance_from", v.TolFrom}}
+		if sl, ok := sensed[v.Name]; ok {
+			var pkg any
+			if v.Package != "" {
+				pkg = v.Package
+			}
+			parts = append(parts, append(base,
+				member{"position", v.Position}, member{"type", v.Sensor}, member{"model", d.SensorSpec(j)},
+				member{"watts", sl.Watts}, member{"nominal_watts", sl.NominalWatts}, member{"volts", sl.Volts},
+				member{"package", pkg}))
+			continue
+		}
 		r, ok := rated[v.Name]
 		if !ok {
 			sources = append(sources, base)
 			continue
 		}
 		parts = append(parts, append(base,
-			member{"position", v.Position}, member{"series", v.Series}, member{"tcr", v.TCR},
+			member{"position", v.Position}, member{"type", variation.TypeResistor}, member{"series", v.Series}, member{"tcr", v.TCR},
 			member{"watts", r.Watts}, member{"nominal_watts", r.NominalWatts}, member{"volts", r.Volts},
 			member{"package", r.Package}, member{"package_chosen", r.Chosen},
 			member{"rated_watts", r.Rated}, member{"max_volts", r.MaxVolts},

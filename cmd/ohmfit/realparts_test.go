@@ -2,6 +2,8 @@ package main
 
 import (
 	"encoding/csv"
+	"encoding/json"
+	"fmt"
 	"io"
 	"os"
 	"path/filepath"
@@ -106,5 +108,119 @@ func TestFitPlotAndBOM(t *testing.T) {
 	c, err := os.ReadFile(filepath.Join(dir, "bom.csv"))
 	if err != nil || !strings.Contains(string(c), "3K6") {
 		t.Errorf("bom for rank 2 (3.6k, 8.2k): %q, %v", c, err)
+	}
+}
+
+// bomRows reads a BOM file into one map per line, keyed by the header.
+func bomRows(t *testing.T, path string) []map[string]string {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var out []map[string]string
+	for _, r := range rows[1:] {
+		m := map[string]string{}
+		for i, h := range rows[0] {
+			m[h] = r[i]
+		}
+		out = append(out, m)
+	}
+	return out
+}
+
+// TestBOMSensors writes the BOM of a design with a thermistor and an RTD
+// beside resistors, one of the same 10k value as the thermistor's R25. A
+// sensor is a line of its own, described by its model (R25 and B, R0 and
+// the coefficients), its given tolerance (an RTD's ±1.2 Ω is 0.12 % of its
+// R0 of 1 kΩ) and only the package the template names; no resistor TCR or
+// package rating. A resistor's absolute ±20 Ω on 2 kΩ is 1 %.
+func TestBOMSensors(t *testing.T) {
+	bom := filepath.Join(t.TempDir(), "bom.csv")
+	if _, errOut, code := runCLI(t, "check", "testdata/check-sensors.yaml", "--samples", "0", "--bom", bom); code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	want := []map[string]string{
+		{"designators": "Rb, Rc", "type": "resistor", "value": "10 kΩ", "code": "10K", "series": "E24", "tolerance": "1%",
+			"tolerance_from": "part", "tcr_ppm_per_c": "100", "model": "", "package": "0201", "power_rating_w": "0.05", "quantity": "2"},
+		{"designators": "RT1", "type": "ntc", "value": "10 kΩ", "code": "", "series": "", "tolerance": "3%",
+			"tolerance_from": "part", "tcr_ppm_per_c": "", "model": "R25 10 kΩ, B 3950 K", "package": "", "power_rating_w": "", "quantity": "1"},
+		{"designators": "PT1", "type": "rtd", "value": "1 kΩ", "code": "", "series": "", "tolerance": "0.12%",
+			"tolerance_from": "part", "tcr_ppm_per_c": "", "model": "R0 1 kΩ, IEC 60751 coefficients", "package": "0603", "power_rating_w": "", "quantity": "1"},
+		{"designators": "Rd", "type": "resistor", "value": "2 kΩ", "code": "2K0", "series": "E24", "tolerance": "1%",
+			"tolerance_from": "part", "tcr_ppm_per_c": "100", "model": "", "package": "0201", "power_rating_w": "0.05", "quantity": "1"},
+	}
+	got := bomRows(t, bom)
+	if len(got) != len(want) {
+		t.Fatalf("%d lines, want %d: %v", len(got), len(want), got)
+	}
+	for i, w := range want {
+		for k, v := range w {
+			if got[i][k] != v {
+				t.Errorf("line %d (%s): %s = %q, want %q", i+1, w["designators"], k, got[i][k], v)
+			}
+		}
+	}
+
+	// The check's table and JSON describe the sensors the same way.
+	out, errOut, code := runCLI(t, "check", "testdata/check-sensors.yaml", "--samples", "0", "--format", "json")
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	var doc struct {
+		Parts []map[string]any `json:"parts"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	seen := 0
+	for _, p := range doc.Parts {
+		switch p["name"] {
+		case "RT1", "PT1":
+			seen++
+			for _, k := range []string{"series", "tcr", "rated_watts", "verdict"} {
+				if _, ok := p[k]; ok {
+					t.Errorf("%s: JSON has resistor key %q: %v", p["name"], k, p[k])
+				}
+			}
+			if p["type"] != map[string]string{"RT1": "ntc", "PT1": "rtd"}[p["name"].(string)] || p["model"] == "" {
+				t.Errorf("%s: type %v, model %v", p["name"], p["type"], p["model"])
+			}
+		default:
+			if p["type"] != "resistor" {
+				t.Errorf("%s: type %v", p["name"], p["type"])
+			}
+		}
+	}
+	if seen != 2 {
+		t.Errorf("%d sensors among the JSON parts, want 2", seen)
+	}
+	table, errOut, code := runCLI(t, "check", "testdata/check-sensors.yaml", "--samples", "0")
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	golden(t, "check-sensors", table)
+}
+
+// TestFitBOMSensor writes fit's BOM for the battery-sense example, whose
+// answer puts a 10k resistor above a 10k thermistor: two lines, one of
+// each, and the thermistor's tolerance, given nowhere, marked as assumed.
+func TestFitBOMSensor(t *testing.T) {
+	bom := filepath.Join(t.TempDir(), "bom.csv")
+	if _, errOut, code := runCLI(t, "fit", "example:battery-sense", "--workers", "1", "--bom", bom); code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	types := map[string]string{}
+	for _, r := range bomRows(t, bom) {
+		types[r["designators"]] = r["type"] + " " + r["value"] + " " + r["tolerance"] + " " + r["tolerance_from"]
+	}
+	want := map[string]string{"Rtop": "resistor 10 kΩ 5% series", "RT1": "ntc 10 kΩ 1% assumed", "Rpar": "resistor 1 MΩ 5% series"}
+	if fmt.Sprint(types) != fmt.Sprint(want) {
+		t.Errorf("lines %v, want %v", types, want)
 	}
 }

@@ -72,10 +72,14 @@ type Stats struct {
 	Failed      int     // samples whose network could not be solved
 }
 
-// Sensitivity is one target's sensitivity to one varied part.
+// Sensitivity is one target's sensitivity to one varied part, the
+// derivative at nominal values (every part at its value, no tolerance, no
+// TCR drift). x is the physical part's value: its ohms (each part of a pair
+// on its own), a source's volts or amps, and for a thermistor or RTD its R25
+// or R0, which scales its resistance at every temperature alike.
 type Sensitivity struct {
 	Part       string
-	Absolute   float64 // dX/dx, in the target's unit per the part's unit
+	Absolute   float64 // dX/dx, in the target's unit per the part's unit; NaN when it cannot be computed
 	Normalised float64 // (dX/X)/(dx/x); NaN when X is 0
 }
 
@@ -112,13 +116,24 @@ type Rating struct {
 	Verdict      string // ratings.Load.Verdict, or "no package fits"
 }
 
+// SensorLoad is a thermistor's or RTD's largest power and voltage. The
+// resistor package table does not rate sensors; their datasheet does (and a
+// self_heating target limits the rise the power causes).
+type SensorLoad struct {
+	Part         string
+	NominalWatts float64 // largest over conditions, nominal values
+	Watts        float64 // largest over conditions and worst-case corners
+	Volts        float64 // largest |voltage| likewise
+}
+
 // Report is the outcome of Check.
 type Report struct {
 	Method       string // MethodCorners or MethodLinearised
 	Corners      int    // solves per condition spent on the worst case
 	Parts        []Varied
 	Goals        []Goal
-	Ratings      []Rating
+	Ratings      []Rating // resistors only
+	Sensors      []SensorLoad
 	Samples      int
 	Seed         uint64
 	Distribution Distribution
@@ -329,6 +344,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 	}
 	r.MaxVolts, r.MaxVoltsWhere = rt.maxVolts, rt.maxWhere
 	r.Ratings = rt.ratings(&st, t, r)
+	r.Sensors = rt.sensors()
 	d.warn(r, &st)
 	return r, nil
 }
@@ -387,6 +403,12 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			}
 		} else {
 			xj = pos
+			if v.Sensor != "" {
+				// Per ohm of R25 (R0), which scales the resistance pos it
+				// has in this condition: dR/dR25 = pos/R25.
+				g *= pos / v.Nominal
+				xj = v.Nominal
+			}
 		}
 		n := math.NaN()
 		if x != 0 {
@@ -608,7 +630,7 @@ func (rt *ratingTracker) ratings(st *Settings, t *constraints.Template, r *Repor
 	}
 	var out []Rating
 	for j, v := range rt.d.Parts {
-		if v.Kind != solver.Resistor {
+		if v.Kind != solver.Resistor || v.Sensor != "" {
 			continue
 		}
 		rg := Rating{Part: v.Name, NominalWatts: rt.nominal[j], Watts: rt.watts[j], Volts: rt.volts[j]}
@@ -645,6 +667,17 @@ func (rt *ratingTracker) ratings(st *Settings, t *constraints.Template, r *Repor
 			}
 		}
 		out = append(out, rg)
+	}
+	return out
+}
+
+// sensors returns each sensor's load.
+func (rt *ratingTracker) sensors() []SensorLoad {
+	var out []SensorLoad
+	for j, v := range rt.d.Parts {
+		if v.Sensor != "" {
+			out = append(out, SensorLoad{Part: v.Name, NominalWatts: rt.nominal[j], Watts: rt.watts[j], Volts: rt.volts[j]})
+		}
 	}
 	return out
 }
@@ -747,28 +780,44 @@ func (d *Design) derivedAt(s *solver.Solver, ti int, dev []float64) (float64, er
 }
 
 // derivedSensitivities differentiates a sweep-wide target numerically: a
-// central difference with a relative step of 1e-6 in each varied part.
+// central difference with a relative step of 1e-6 in each part's value
+// (for a part with an absolute tolerance, a step of 1e-6 of its value), at
+// nominal values. Nominal means no TCR drift either: while it runs every
+// part's temperature coefficient is held at zero, so that the step moves
+// the value alone and not also the drift a corner would add (factor turns a
+// deviation's sign into a TCR corner).
 func (d *Design) derivedSensitivities(s *solver.Solver, ti int, x float64) []Sensitivity {
 	const h = 1e-6
 	dev := make([]float64, len(d.Parts))
+	saved := d.tcrDraw
+	d.tcrDraw = make([]float64, len(d.Parts))
+	defer func() { d.tcrDraw = saved }()
 	out := make([]Sensitivity, len(d.Parts))
 	for j, v := range d.Parts {
 		out[j] = Sensitivity{Part: v.Name, Absolute: math.NaN(), Normalised: math.NaN()}
+		step := h // relative
 		if !v.Relative {
-			continue
+			step = h * math.Abs(v.Nominal)
+			if step == 0 {
+				step = h
+			}
 		}
 		clear(dev)
-		dev[j] = h
+		dev[j] = step
 		up, err1 := d.derivedAt(s, ti, dev)
-		dev[j] = -h
+		dev[j] = -step
 		down, err2 := d.derivedAt(s, ti, dev)
 		if err1 != nil || err2 != nil {
 			continue
 		}
-		dxdu := (up - down) / (2 * h) // per unit relative change
-		out[j].Absolute = dxdu / v.Nominal
+		slope := (up - down) / (2 * step) // per unit of dev
+		if v.Relative {
+			out[j].Absolute = slope / v.Nominal // dev is dx/x
+		} else {
+			out[j].Absolute = slope
+		}
 		if x != 0 {
-			out[j].Normalised = dxdu / x
+			out[j].Normalised = out[j].Absolute * v.Nominal / x
 		}
 	}
 	return out

@@ -31,12 +31,17 @@ type Varied struct {
 	Position string // the template part it realises
 	Part     int    // index of that part in the network
 	Kind     solver.Kind
-	Nominal  float64 // this physical part's nominal value (ohms, volts, amps)
+	Nominal  float64 // this physical part's nominal value (ohms, volts, amps); a sensor's R25 (thermistor) or R0 (RTD)
 	// Tol is the tolerance: a fraction when Relative, else absolute in the
 	// part's unit.
 	Tol      float64
 	Relative bool
-	TCR      float64 // per °C, resistors only
+	TCR      float64 // per °C, resistors only (0 for a sensor, whose model is its temperature dependence)
+	// Sensor is "ntc" or "rtd" for a thermistor or RTD, "" otherwise. A
+	// sensor varies by its tolerance alone, which scales its resistance at
+	// every temperature alike; it has no series, no TCR and no package
+	// rating of a resistor.
+	Sensor string
 	// Series is the preferred-number series the value comes from, "" when
 	// unknown (a stock list, a fixed value in no series, a source).
 	Series string
@@ -95,6 +100,14 @@ func NewDesign(p *constraints.Problem, options []synth.Option, series string, am
 			if ps.Tolerance == 0 {
 				v.TolFrom = "none"
 			}
+			d.add(i, v)
+			continue
+		}
+		if ps.Sensor != nil {
+			nom, _ := sensorSpec(ps.Sensor, ps.Value) // R25 or R0, the value it is ordered by
+			v := Varied{Name: ps.Name, Position: ps.Name, Part: i, Kind: solver.Resistor, Nominal: nom,
+				Package: ps.Package, Sensor: ps.SensorType, Relative: true, other: -1}
+			d.sensorTolerance(&v, ps)
 			d.add(i, v)
 			continue
 		}
@@ -181,15 +194,32 @@ func (d *Design) tolerance(v *Varied, ps constraints.PartSpec, ch constraints.Ch
 	}
 }
 
+// sensorTolerance fills a thermistor's or RTD's tolerance: its own, taken
+// relative to its R25 (R0) when given in ohms, or AssumedTolerance with a
+// warning. A resistor series' usual tolerance says nothing about a sensor.
+func (d *Design) sensorTolerance(v *Varied, ps constraints.PartSpec) {
+	switch {
+	case ps.Tolerance > 0 && ps.TolRelative:
+		v.Tol, v.TolFrom = ps.Tolerance, "part"
+	case ps.Tolerance > 0:
+		v.Tol, v.TolFrom = ps.Tolerance/v.Nominal, "part"
+	default:
+		v.Tol, v.TolFrom = AssumedTolerance, "assumed"
+		d.warnings = append(d.warnings, fmt.Sprintf("%s: an %s without a tolerance; assumed ±%s of its %s (give `tolerance:` on the part, from its datasheet)",
+			v.Name, SensorKind(ps.SensorType), eseries.FormatUnit(AssumedTolerance, eseries.Percent), sensorValueName(ps.SensorType)))
+	}
+}
+
 // tcr fills a resistor's TCR: the part's, the choice's, or the default for
-// its tolerance class.
+// its tolerance class (1 % or tighter, relative to its value).
 func (d *Design) tcr(v *Varied, ps constraints.PartSpec, ch constraints.Choice) {
 	switch {
 	case ps.HasTCR:
 		v.TCR = ps.TCR
 	case ch.HasTCR:
 		v.TCR = ch.TCR
-	case v.Relative && v.Tol <= 0.01:
+	case v.Relative && v.Tol <= 0.01, !v.Relative && v.Tol <= 0.01*v.Nominal:
+		// An absolute tolerance classes the part by its relative size.
 		v.TCR = DefaultTCRPrecise
 	default:
 		v.TCR = DefaultTCR

@@ -1,6 +1,7 @@
 // Package variation answers what a design does with real parts: each
 // resistor within its tolerance and drifting with its TCR over an ambient
-// range, each source within its own tolerance. For a fully valued template,
+// range, each source within its own tolerance, each thermistor or RTD within
+// its tolerance alone (its model is its temperature dependence). For a fully valued template,
 // or a template with one answer of a search filled in, it gives
 //
 //   - the worst case of every target in every condition: the exact extremes
@@ -10,10 +11,12 @@
 //   - a Monte Carlo run (uniform, or normal with tolerance = 3σ) with mean,
 //     σ, the 0.135 % and 99.865 % points and the yield against each target's
 //     band;
-//   - normalised sensitivities (dX/X)/(dx/x) of every target to every part,
-//     by the adjoint method (one transposed solve per target and condition);
+//   - normalised sensitivities (dX/X)/(dx/x) of every target to every part
+//     at nominal values, by the adjoint method (one transposed solve per
+//     target and condition), sweep-wide targets by central differences;
 //   - each resistor's worst power and voltage against its package's rating
-//     (package constraints/ratings), and the cautions those call for.
+//     (package constraints/ratings), and the cautions those call for;
+//   - the bill of materials (BOM, MergeBOM) that every command writes.
 //
 // Rerank orders a search's answers by worst-case error instead of nominal
 // error (`fit --robust`). It re-ranks the answers it is given, normally the

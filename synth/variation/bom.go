@@ -1,0 +1,179 @@
+package variation
+
+import (
+	"slices"
+	"strconv"
+	"strings"
+
+	"github.com/ohmfit/ohmfit/constraints/sensors"
+	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/solver"
+)
+
+// Part types of a BOM line.
+const (
+	TypeResistor = "resistor"
+	TypeNTC      = "ntc"
+	TypeRTD      = "rtd"
+)
+
+// BOMLine is one line of a bill of materials: physical parts a buyer orders
+// as one item, with the designators that take them. Every figure on it is
+// what the check of the design assumed.
+type BOMLine struct {
+	BOMItem
+	Designators []string
+	// TolFrom says where the tolerance came from: "part", "choose",
+	// "series" (the series' usual one) or "assumed" (nothing gave one; a
+	// warning says so); several, joined by ", ", when the line's parts
+	// differ in that.
+	TolFrom string
+}
+
+// BOMItem is what is ordered: two parts with equal items are one line.
+type BOMItem struct {
+	// Type is TypeResistor, TypeNTC or TypeRTD. A sensor is never on the
+	// same line as a resistor.
+	Type string
+	// Value is a resistor's ohms, a thermistor's R25 or an RTD's R0.
+	Value float64
+	// Code is the IEC 60062 code of a resistor's value; "" for a sensor
+	// or a value the code cannot write.
+	Code string
+	// Series is the preferred-number series of a resistor's value; "" for
+	// a value in none (a stock list) and for a sensor.
+	Series string
+	// Tolerance is the relative tolerance the check assumed (a fraction:
+	// 0.01 for 1 %; an absolute tolerance in ohms is given relative to the
+	// value).
+	Tolerance float64
+	// TCR is a resistor's temperature coefficient per °C, as the check
+	// assumed it (given, or the default for its tolerance); HasTCR is false
+	// for a sensor, whose model is its temperature dependence.
+	TCR    float64
+	HasTCR bool
+	// Model describes a sensor as it is ordered: "R25 10 kΩ, B 3435 K",
+	// the Steinhart–Hart coefficients, or R0 and the RTD's coefficients.
+	// "" for a resistor.
+	Model string
+	// Package is a resistor's package, named in the template or the
+	// smallest that carries it; for a sensor only the one the template
+	// names, else "".
+	Package string
+	// RatedWatts is the resistor package's power rating; 0 for a sensor,
+	// which the resistor package table does not rate.
+	RatedWatts float64
+}
+
+// Quantity is the number of parts the line orders.
+func (l BOMLine) Quantity() int { return len(l.Designators) }
+
+// BOM returns the bill of materials of a checked design: one line per
+// distinct item (see MergeBOM), in the order the parts first appear.
+// Resistors, each part of a pair on its own, and sensors are listed; sources
+// and op-amps are not parts to buy here. rep is the design's Check report,
+// whose ratings give each resistor's package.
+func BOM(d *Design, rep *Report) []BOMLine {
+	rated := map[string]Rating{}
+	for _, r := range rep.Ratings {
+		rated[r.Part] = r
+	}
+	var lines []BOMLine
+	for _, v := range d.Parts {
+		if v.Kind != solver.Resistor {
+			continue
+		}
+		l := BOMLine{Designators: []string{v.Name}, TolFrom: v.TolFrom}
+		l.Value, l.Tolerance = v.Nominal, v.Tol
+		if !v.Relative {
+			l.Tolerance = v.Tol / v.Nominal
+		}
+		if v.Sensor != "" {
+			ps := d.Problem.Template.Parts[v.Part]
+			l.Type, l.Package = v.Sensor, v.Package
+			l.Value, l.Model = sensorSpec(ps.Sensor, ps.Value)
+			lines = append(lines, l)
+			continue
+		}
+		l.Type, l.Series, l.TCR, l.HasTCR = TypeResistor, v.Series, v.TCR, true
+		if code, err := eseries.Code(v.Nominal); err == nil {
+			l.Code = code
+		}
+		r := rated[v.Name]
+		l.Package, l.RatedWatts = r.Package, r.Rated
+		lines = append(lines, l)
+	}
+	return MergeBOM(lines)
+}
+
+// MergeBOM groups lines that order the same item (equal BOMItem: type,
+// value, series, tolerance, TCR, model, package and rating) into one,
+// designators in the order given, lines in the order of first appearance.
+// A board's BOM is MergeBOM of its networks' lines.
+func MergeBOM(lines []BOMLine) []BOMLine {
+	var out []BOMLine
+	for _, l := range lines {
+		i := slices.IndexFunc(out, func(o BOMLine) bool { return o.BOMItem == l.BOMItem })
+		if i < 0 {
+			l.Designators = slices.Clone(l.Designators)
+			out = append(out, l)
+			continue
+		}
+		o := &out[i]
+		o.Designators = append(o.Designators, l.Designators...)
+		for _, f := range strings.Split(l.TolFrom, ", ") {
+			if !slices.Contains(strings.Split(o.TolFrom, ", "), f) {
+				o.TolFrom += ", " + f
+			}
+		}
+	}
+	return out
+}
+
+// SensorKind names a sensor type for people: "NTC thermistor" or "RTD".
+func SensorKind(typ string) string {
+	if typ == TypeNTC {
+		return "NTC thermistor"
+	}
+	return "RTD"
+}
+
+// sensorValueName names the value a sensor's tolerance applies to.
+func sensorValueName(typ string) string {
+	if typ == TypeNTC {
+		return "R25"
+	}
+	return "R0"
+}
+
+// sensorSpec returns the value that names a sensor (R25, R0) and its model
+// as a buyer orders it. r25 is the model's resistance at 25 °C.
+func sensorSpec(m sensors.Model, r25 float64) (float64, string) {
+	g := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+	switch m := m.(type) {
+	case sensors.Beta:
+		return m.R25, "R25 " + eseries.FormatUnit(m.R25, eseries.Ohm) + ", B " + g(m.Beta) + " K"
+	case sensors.SteinhartHart:
+		return r25, "R25 " + eseries.FormatUnit(r25, eseries.Ohm) + ", Steinhart–Hart A " + g(m.A) + ", B " + g(m.B) + ", C " + g(m.C)
+	case sensors.RTD:
+		coef := "IEC 60751 coefficients"
+		if std := sensors.IEC60751(m.R0); m != std {
+			coef = strings.Join([]string{"A " + g(m.A), "B " + g(m.B), "C " + g(m.C)}, ", ")
+		}
+		return m.R0, "R0 " + eseries.FormatUnit(m.R0, eseries.Ohm) + ", " + coef
+	}
+	return r25, ""
+}
+
+// SensorSpec describes a design's sensor part j (an index into
+// Design.Parts) as its BOM line does: "R25 10 kΩ, B 3435 K"; "" for a part
+// that is not a sensor.
+func (d *Design) SensorSpec(j int) string {
+	v := d.Parts[j]
+	if v.Sensor == "" {
+		return ""
+	}
+	ps := d.Problem.Template.Parts[v.Part]
+	_, s := sensorSpec(ps.Sensor, ps.Value)
+	return s
+}
