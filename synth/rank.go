@@ -65,6 +65,7 @@ type topList struct {
 	n     int
 	items []*Candidate // sorted, len <= n
 	spare *Candidate   // storage recycled from the evicted candidate
+	kept  int64        // candidates kept over the list's life, to notice a change
 }
 
 func newTopList(r *ranker, n, positions int) *topList {
@@ -104,6 +105,7 @@ func (t *topList) offer(c *Candidate) bool {
 	if lo < len(t.items) && t.r.compare(t.items[lo], c) == 0 {
 		return false // the same candidate, seen twice
 	}
+	t.kept++
 	slot := t.spare
 	t.spare = nil
 	if slot == nil {
@@ -118,6 +120,31 @@ func (t *topList) offer(c *Candidate) bool {
 		t.spare = t.items[t.n]
 		t.items[t.n] = nil
 		t.items = t.items[:t.n]
+	}
+	return true
+}
+
+// offerUnique is offer for a list that may see one candidate twice with
+// numbers that differ by rounding (scored along two different paths): a
+// candidate with the same options as a kept one is not kept again, so the
+// list's last entry is always the n-th distinct candidate.
+func (t *topList) offerUnique(c *Candidate) bool {
+	if t.full() && !t.r.less(c, t.items[t.n-1]) {
+		return false
+	}
+	for _, m := range t.items {
+		if sameOptions(m.Opt, c.Opt) {
+			return false
+		}
+	}
+	return t.offer(c)
+}
+
+func sameOptions(a, b []int32) bool {
+	for i := range a {
+		if a[i] != b[i] {
+			return false
+		}
 	}
 	return true
 }
