@@ -146,7 +146,7 @@ type bbShared struct {
 	j      int   // row position
 	outer  []int // the other positions
 	leaf   float64
-	front  float64 // Settings.FrontErrorCap
+	front  float64   // Settings.FrontErrorCap
 	single [][]int32 // per position: prefix counts of single-part options
 
 	mu      sync.Mutex
@@ -376,14 +376,14 @@ func (sh *bbShared) ruledOut(b *box, worst *Candidate) bool {
 
 // bbWorker is one goroutine of a branch-and-bound run.
 type bbWorker struct {
-	sh   *bbShared
-	p    *Problem
-	s    *solver.Solver
-	sc   *constraints.Score
-	free []float64
-	rw   *rowWorker // finishes leaves; its top list and front are the worker's answers
-	inc  *topList   // corners scored since the last sync
-	cand Candidate
+	sh    *bbShared
+	p     *Problem
+	s     *solver.Solver
+	sc    *constraints.Score
+	free  []float64
+	rw    *rowWorker // finishes leaves; its top list and front are the worker's answers
+	inc   *topList   // corners scored since the last sync
+	cand  Candidate
 	after func(int)
 
 	corners, solves int64 // corner candidates scored and their solves
@@ -398,16 +398,16 @@ type bbWorker struct {
 	amps   []int // op-amps
 
 	// Corner ranges per condition (index ×nc + condition).
-	det              []int8 // determinant sign seen: 0 none, ±1, 2 both
-	den              []int8 // per ratio target: sign of V(b), as det
-	qlo, qhi         []float64
-	qnan             []bool
-	vlo, vhi         []float64 // per power part: edge volts
-	ilo, ihi         []float64 // per power part: edge amps
-	wlo, whi         []float64 // per source: absorbed watts
-	ovlo, ovhi       []float64 // per op-amp: V(out)
-	oilo, oihi       []float64 // per op-amp: output current
-	corner           []int32
+	det        []int8 // determinant sign seen: 0 none, ±1, 2 both
+	den        []int8 // per ratio target: sign of V(b), as det
+	qlo, qhi   []float64
+	qnan       []bool
+	vlo, vhi   []float64 // per power part: edge volts
+	ilo, ihi   []float64 // per power part: edge amps
+	wlo, whi   []float64 // per source: absorbed watts
+	ovlo, ovhi []float64 // per op-amp: V(out)
+	oilo, oihi []float64 // per op-amp: output current
+	corner     []int32
 }
 
 func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
