@@ -52,7 +52,10 @@ import (
 type BranchBound struct {
 	// LeafRows is the largest number of rows (combinations of every
 	// position but the row position) of a box that the rows method
-	// finishes. Zero means 8.
+	// finishes. Zero means 64, or 2048 for three positions or fewer (there
+	// a single goal leaves a surface of near answers that every row
+	// crosses, and splitting costs more corner solves than it saves: a
+	// measured choice, see DEVELOPERS.md).
 	LeafRows int
 }
 
@@ -164,7 +167,10 @@ func (m BranchBound) run(ctx context.Context, p *Problem, set *Settings, st *run
 	}
 	leaf := m.LeafRows
 	if leaf <= 0 {
-		leaf = 8
+		leaf = 64
+		if len(p.Domains) <= 3 {
+			leaf = 2048
+		}
 	}
 	j := rowPosition(p)
 	var outer []int
