@@ -217,6 +217,9 @@ type Result struct {
 	// when nothing was proven about the rest of the space. +Inf when there
 	// is no answer and nothing is left open.
 	Bound float64
+	// Shard and Shards repeat Settings.Shard and Settings.Shards (both 0
+	// for a whole run); Top repeats Settings.Top.
+	Shard, Shards, Top int
 }
 
 // Method is a search strategy.
@@ -274,6 +277,7 @@ func Search(ctx context.Context, p *Problem, s *Settings, m Method) (*Result, er
 		return nil, err
 	}
 	res.Bound = st.open
+	res.Shard, res.Shards, res.Top = set.Shard, set.Shards, set.Top
 	for _, s := range res.Solutions {
 		res.Bound = math.Min(res.Bound, s.Score.Error)
 	}
