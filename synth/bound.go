@@ -52,10 +52,8 @@ import (
 type BranchBound struct {
 	// LeafRows is the largest number of rows (combinations of every
 	// position but the row position) of a box that the rows method
-	// finishes. Zero means 64, or 2048 for three positions or fewer (there
-	// a single goal leaves a surface of near answers that every row
-	// crosses, and splitting costs more corner solves than it saves: a
-	// measured choice, see DEVELOPERS.md).
+	// finishes. Zero means 64 (measured best on the four- and
+	// five-position cases; see DEVELOPERS.md).
 	LeafRows int
 }
 
@@ -108,11 +106,14 @@ func (b *box) clone() *box {
 
 // boxHeap orders open boxes by the lower bound on the first rank key, then
 // deepest first (a dive to a leaf finds answers early), then creation order.
+// (Breaking equal bounds by the next rank key instead was measured slower:
+// the dive to a first leaf matters more.)
 type boxHeap struct {
 	items []*box
 	power bool // the first rank key is power
 }
 
+// key returns a box's bound on the first rank key.
 func (h *boxHeap) key(b *box) float64 {
 	if h.power {
 		return b.power
@@ -167,10 +168,11 @@ func (m BranchBound) run(ctx context.Context, p *Problem, set *Settings, st *run
 	}
 	leaf := m.LeafRows
 	if leaf <= 0 {
+		// Larger leaves are faster on three positions (a single goal
+		// leaves a surface of near answers that every row crosses), but
+		// a long row's update formula rounds enough to hide exact ties
+		// from the tie tolerance; see DEVELOPERS.md.
 		leaf = 64
-		if len(p.Domains) <= 3 {
-			leaf = 2048
-		}
 	}
 	j := rowPosition(p)
 	var outer []int
@@ -210,7 +212,7 @@ func (m BranchBound) run(ctx context.Context, p *Problem, set *Settings, st *run
 	for _, b := range shardBoxes(sh, root, set.Shard, set.Shards) {
 		b.seq = sh.seq
 		sh.seq++
-		ws[0].bound(b)
+		ws[0].bound(b, nil)
 		ws[0].sync()
 		if sh.ruledOut(b, sh.worst()) {
 			ws[0].count(b)
@@ -402,6 +404,8 @@ type bbWorker struct {
 	pslot  []int // per target: its slot in pparts, or -1
 	srcs   []int // voltage and current sources
 	amps   []int // op-amps
+	res    []int // resistors
+	pos    []int // per part: its position (index into Domains), or -1
 
 	// Corner ranges per condition (index ×nc + condition).
 	det        []int8 // determinant sign seen: 0 none, ±1, 2 both
@@ -413,6 +417,7 @@ type bbWorker struct {
 	wlo, whi   []float64 // per source: absorbed watts
 	ovlo, ovhi []float64 // per op-amp: V(out)
 	oilo, oihi []float64 // per op-amp: output current
+	rvlo, rvhi []float64 // per resistor: edge volts
 	corner     []int32
 }
 
@@ -456,8 +461,18 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 			w.srcs = append(w.srcs, i)
 		case solver.OpAmp:
 			w.amps = append(w.amps, i)
+		case solver.Resistor:
+			w.res = append(w.res, i)
 		}
 	}
+	w.pos = make([]int, len(parts))
+	for i := range w.pos {
+		w.pos[i] = -1
+	}
+	for k, d := range p.Domains {
+		w.pos[d.Part] = k
+	}
+	w.rvlo, w.rvhi = make([]float64, len(w.res)*nc), make([]float64, len(w.res)*nc)
 	w.det = make([]int8, nc)
 	w.den = make([]int8, len(p.Probes)*nc)
 	w.qlo, w.qhi = make([]float64, len(p.Probes)*nc), make([]float64, len(p.Probes)*nc)
@@ -514,8 +529,8 @@ func (w *bbWorker) loop(ctx context.Context, set *Settings) {
 			w.progress(set, b)
 		default:
 			a, c := sh.split(b)
-			w.bound(a)
-			w.bound(c)
+			w.bound(a, worst)
+			w.bound(c, worst)
 			worst = w.sync()
 			for _, k := range []*box{a, c} {
 				if sh.ruledOut(k, worst) {
@@ -641,6 +656,10 @@ func (w *bbWorker) afterCond(ci int) {
 	for k, part := range w.srcs {
 		widenRange(w.wlo, w.whi, k*nc+ci, s.Watts(part), first)
 	}
+	for k, part := range w.res {
+		e := w.edges[part]
+		widenRange(w.rvlo, w.rvhi, k*nc+ci, s.Voltage(e.From)-s.Voltage(e.To), first)
+	}
 	for k, part := range w.amps {
 		widenRange(w.ovlo, w.ovhi, k*nc+ci, s.Voltage(w.edges[part].To), first)
 		widenRange(w.oilo, w.oihi, k*nc+ci, s.Amps(part), first)
@@ -684,8 +703,12 @@ func product(a, b, c, d float64) (float64, float64) {
 	return lo, hi
 }
 
-// bound scores the box's corners and derives its bounds.
-func (w *bbWorker) bound(b *box) {
+// bound scores the box's corners and derives its bounds. worst is the bar's
+// last candidate when the box is made (nil while there is none): a
+// candidate whose goal error is beyond it is ruled out by error whatever its
+// power, so the power bound may assume every goal within that error (see
+// voltBand).
+func (w *bbWorker) bound(b *box, worst *Candidate) {
 	p, nc := w.p, w.nc
 	b.bounded, b.infeasible, b.err, b.power = false, false, 0, 0
 	b.size = b.sizeOf()
@@ -791,12 +814,79 @@ func (w *bbWorker) bound(b *box) {
 			pw += lo
 			scale += math.Abs(lo)
 		}
-		pw = math.Max(0, pw-boundSlack*scale) * p.OnFraction
+		pw = math.Max(0, pw-boundSlack*scale)
+		// Each resistor dissipates V²·G: at least the smallest V² of its
+		// voltage range times its smallest conductance. The sum is often
+		// the tighter bound where an op-amp output's product is loose.
+		sum := 0.0
+		for k, part := range w.res {
+			lo, hi := padded(w.rvlo[k*nc+c], w.rvhi[k*nc+c])
+			lo, hi = w.voltBand(k, c, lo, hi, worst)
+			if lo > hi {
+				sum = math.Inf(1) // no candidate left to count: nothing here can rank
+				break
+			}
+			if lo <= 0 && hi >= 0 {
+				continue
+			}
+			v := math.Min(math.Abs(lo), math.Abs(hi))
+			r := p.Conditions[c].Values[part]
+			if i := w.pos[part]; i >= 0 {
+				r = p.Domains[i].Options[b.hi[i]].Value
+			}
+			sum += v * v / r
+		}
+		pw = math.Max(pw, sum*(1-boundSlack)) * p.OnFraction
 		b.power = math.Max(b.power, pw)
 		if lim > 0 && pw > lim && !constraints.Same(pw, lim) {
 			b.infeasible, b.violTarget, b.violCond = true, len(p.Probes), c
 		}
 	}
+}
+
+// voltBand narrows resistor k's voltage range in condition c to what a
+// candidate that is not ruled out can have: where a voltage target reads the
+// same two nodes, within its hard limits and, when the ranking puts error
+// first, within the bar's error of its goal. Candidates outside are
+// infeasible or rank after the bar on error, so the power bound need not
+// cover them.
+func (w *bbWorker) voltBand(k, c int, lo, hi float64, worst *Candidate) (float64, float64) {
+	p := w.p
+	e := w.edges[w.res[k]]
+	errFirst := len(w.sh.keys) > 0 && w.sh.keys[0] == constraints.ByError && w.sh.front == 0
+	for ti, pr := range p.Probes {
+		if pr.Kind != constraints.Voltage || !p.Applies[ti][c] {
+			continue
+		}
+		sign := 0.0
+		switch {
+		case pr.A == e.From && pr.B == e.To:
+			sign = 1
+		case pr.A == e.To && pr.B == e.From:
+			sign = -1
+		default:
+			continue
+		}
+		tg := &p.Template.Targets[ti]
+		blo, bhi := tg.Band()
+		if tg.HasEquals && errFirst && worst != nil {
+			t := widen(worst.Error)
+			d := t
+			if tg.Equals != 0 {
+				d *= math.Abs(tg.Equals)
+			}
+			blo, bhi = math.Max(blo, tg.Equals-d), math.Min(bhi, tg.Equals+d)
+		}
+		// Inclusive bands, widened for the tie tolerance and rounding.
+		blo, bhi = padded(blo, bhi)
+		blo -= constraints.TieAbsolute
+		bhi += constraints.TieAbsolute
+		if sign < 0 {
+			blo, bhi = -bhi, -blo
+		}
+		lo, hi = math.Max(lo, blo), math.Min(hi, bhi)
+	}
+	return lo, hi
 }
 
 // enclose returns a range holding target ti's value in condition c for every

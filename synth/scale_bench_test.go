@@ -77,30 +77,8 @@ var scaleCases = []scaleCase{
 		}
 		return best, n
 	}},
-	{"diff4-e96", func(p *synth.Problem, first []int) (float64, int64) {
-		r := [4][]float64{vals(p, 0), vals(p, 1), vals(p, 2), vals(p, 3)}
-		best, n := math.Inf(1), int64(0)
-		for _, i := range first {
-			r1 := r[0][i]
-			for _, r2 := range r[1] {
-				for _, r3 := range r[2] {
-					for _, r4 := range r[3] {
-						n++
-						// Ideal op-amp: V(m) = V(p), no input current, so
-						// V(p) divides VB against VOFF and
-						// Vo = V(p) + (V(p) − VA)·R2/R1.
-						out := func(va, vb float64) float64 {
-							vp := (vb*r4 + 1.25*r3) / (r3 + r4)
-							return vp + (vp-va)*r2/r1
-						}
-						e := math.Max(rel(out(2.0, 2.02), 1.4), rel(out(2.0, 2.2), 2.9))
-						best = math.Min(best, e)
-					}
-				}
-			}
-		}
-		return best, n
-	}},
+	{"diff4-e96", diffStage(1.25, [2][3]float64{{1.0, 1.05, 1.75}, {1.0, 1.2, 3.25}})},
+	{"skew4-e96", diffStage(1.25, [2][3]float64{{2.0, 2.02, 1.4}, {2.0, 2.2, 2.9}})},
 	{"taps5-e24", func(p *synth.Problem, first []int) (float64, int64) {
 		r := [5][]float64{vals(p, 0), vals(p, 1), vals(p, 2), vals(p, 3), vals(p, 4)}
 		best, n := math.Inf(1), int64(0)
@@ -167,6 +145,35 @@ var scaleCases = []scaleCase{
 		}
 		return best, n
 	}},
+}
+
+// diffStage is the brute force of a difference stage about a reference
+// vref, with two conditions of (VA, VB, goal for the output).
+func diffStage(vref float64, conds [2][3]float64) func(p *synth.Problem, first []int) (float64, int64) {
+	return func(p *synth.Problem, first []int) (float64, int64) {
+		r := [4][]float64{vals(p, 0), vals(p, 1), vals(p, 2), vals(p, 3)}
+		best, n := math.Inf(1), int64(0)
+		for _, i := range first {
+			r1 := r[0][i]
+			for _, r2 := range r[1] {
+				for _, r3 := range r[2] {
+					for _, r4 := range r[3] {
+						n++
+						// Ideal op-amp: V(m) = V(p), no input current, so
+						// V(p) divides VB against the reference and
+						// Vo = V(p) + (V(p) − VA)·R2/R1.
+						e := 0.0
+						for _, c := range conds {
+							vp := (c[1]*r4 + vref*r3) / (r3 + r4)
+							e = math.Max(e, rel(vp+(vp-c[0])*r2/r1, c[2]))
+						}
+						best = math.Min(best, e)
+					}
+				}
+			}
+		}
+		return best, n
+	}
 }
 
 func scaleProblem(t testing.TB, c scaleCase, series string) *synth.Problem {
