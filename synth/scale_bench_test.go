@@ -96,7 +96,7 @@ var scaleCases = []scaleCase{
 							if 144/(r1+za) > 20e-3*(1+1e-12) { // P = V²/R
 								continue
 							}
-							va := 12 * za / (r1 + za)             // divider formula
+							va := 12 * za / (r1 + za)              // divider formula
 							vc := va * zb / (r3 + zb) * 100e3 / zc // and twice more
 							best = math.Min(best, math.Max(rel(va, 5), rel(vc, 1.8)))
 						}
