@@ -453,12 +453,8 @@ func (st *runState) rescore(p *Problem, s *solver.Solver, cands []*Candidate) []
 // dominates reports whether a is at least as good as b in error, power and
 // part count, and better in at least one.
 func dominates(a, b *Solution) bool {
-	le := func(x, y float64) bool { return x <= y || constraints.Same(x, y) }
-	lt := func(x, y float64) bool { return x < y && !constraints.Same(x, y) }
-	if !le(a.Score.Error, b.Score.Error) || !le(a.Score.Power, b.Score.Power) || a.Parts > b.Parts {
-		return false
-	}
-	return lt(a.Score.Error, b.Score.Error) || lt(a.Score.Power, b.Score.Power) || a.Parts < b.Parts
+	return DominatesScore(ScoreKey{Error: a.Score.Error, Power: a.Score.Power, Parts: a.Parts},
+		ScoreKey{Error: b.Score.Error, Power: b.Score.Power, Parts: b.Parts})
 }
 
 // widen returns a threshold slightly above t, so that pruning never drops a
