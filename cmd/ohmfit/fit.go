@@ -115,11 +115,22 @@ so the same input always gives the same list. An answer marked * is
 Pareto-optimal in the list: no other answer is as good in error, power and
 part count and better in one.
 
-The exhaustive method proves its list best over the whole space; it is used
-when the space allows (method auto). Beyond that a heuristic runs (a
-continuous relaxation, then a search of the standard values around it), and
-the result says it is not proven. Ctrl-C stops a search and prints the best
-found so far.
+Two methods prove their list best over the whole space. Branch and bound
+(method bound) bounds boxes of values from their corners and rules out every
+box that cannot hold a better answer; the rows method (method exhaustive)
+scores every combination of all positions but one. Method auto uses branch
+and bound where its bounds cover every goal (every goal but a sweep-wide one)
+and the space is larger than one of its boxes, the rows method otherwise, and
+a heuristic (a continuous relaxation, then a search of the standard values
+around it) where neither can prove the result; the summary line names the
+method, and the result says when it is not proven. A result stopped by
+--time-limit or Ctrl-C says how far from proven it is: "nothing better than
+X can exist" (JSON "bound"). Ctrl-C stops a search and prints the best found
+so far.
+
+--shard K/N searches only the K-th of N disjoint parts of the space; the
+JSON results of all N parts, combined by "ohmfit merge", are the result of
+one whole run.
 
 FILE is a template file, or example:NAME for a built-in example.
 
@@ -128,7 +139,8 @@ names the limit that rejected the most candidates), 2 for bad input.
 
 JSON output (--format json):
   {"name": "...", "exhaustive": true, "status": "proven", "method": "rows",
-   "space": 83521, "evaluated": 1234, "solutions": [
+   "space": 83521, "evaluated": 1234, "solves": 2468, "bound": 0.00041,
+   "solutions": [
      {"rank": 1, "values": {"R1": 30100, "R2": 9530},
       "parts": {"R1": [30100], "R2": [9530]},
       "combine": {"R1": "single", "R2": "single"},

@@ -6,6 +6,9 @@ import (
 	"os"
 	"path/filepath"
 	"testing"
+
+	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/synth"
 )
 
 // fit --shard K/N for every K, then merge: the same ranked list as one whole
@@ -86,6 +89,38 @@ func TestMergeRefusesIncomplete(t *testing.T) {
 		_, errOut, code := runCLI(t, args...)
 		if code != ExitBadInput {
 			t.Errorf("%v: exit %d, want 2 (%s)", args, code, errOut)
+		}
+	}
+}
+
+// A result that is not proven says how far from proven it is when the
+// search proved a positive bound, and says nothing of the kind otherwise.
+func TestBoundLine(t *testing.T) {
+	tp, err := loadTemplate("testdata/shard.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	cp, err := constraints.Compile(tp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := synth.NewProblem(cp, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sol := []synth.Solution{{Score: &constraints.Score{Error: 0.0012}}}
+	for _, c := range []struct {
+		status synth.Status
+		bound  float64
+		want   string
+	}{
+		{synth.TimeLimit, 0.001, "best 0.120%; nothing better than 0.100% can exist"},
+		{synth.TimeLimit, 0, ""},
+		{synth.Proven, 0.0012, ""},
+	} {
+		got := boundLine(p, &synth.Result{Status: c.status, Bound: c.bound, Solutions: sol})
+		if got != c.want {
+			t.Errorf("%v bound %g: %q, want %q", c.status, c.bound, got, c.want)
 		}
 	}
 }
