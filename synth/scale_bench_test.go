@@ -152,6 +152,8 @@ var scaleCases = []scaleCase{
 func diffStage(vref float64, conds [2][3]float64) func(p *synth.Problem, first []int) (float64, int64) {
 	return func(p *synth.Problem, first []int) (float64, int64) {
 		r := [4][]float64{vals(p, 0), vals(p, 1), vals(p, 2), vals(p, 3)}
+		va0, vb0, goal0 := conds[0][0], conds[0][1], conds[0][2]
+		va1, vb1, goal1 := conds[1][0], conds[1][1], conds[1][2]
 		best, n := math.Inf(1), int64(0)
 		for _, i := range first {
 			r1 := r[0][i]
@@ -162,11 +164,10 @@ func diffStage(vref float64, conds [2][3]float64) func(p *synth.Problem, first [
 						// Ideal op-amp: V(m) = V(p), no input current, so
 						// V(p) divides VB against the reference and
 						// Vo = V(p) + (V(p) − VA)·R2/R1.
-						e := 0.0
-						for _, c := range conds {
-							vp := (c[1]*r4 + vref*r3) / (r3 + r4)
-							e = math.Max(e, rel(vp+(vp-c[0])*r2/r1, c[2]))
-						}
+						g, k := r2/r1, 1/(r3+r4)
+						vp0 := (vb0*r4 + vref*r3) * k
+						vp1 := (vb1*r4 + vref*r3) * k
+						e := math.Max(rel(vp0+(vp0-va0)*g, goal0), rel(vp1+(vp1-va1)*g, goal1))
 						best = math.Min(best, e)
 					}
 				}
