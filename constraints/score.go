@@ -281,6 +281,15 @@ func (p *Problem) NewScore() *Score {
 // order) with full nodal solves, one per condition. It reuses s and sc and
 // does not allocate. A candidate whose network cannot be solved is infeasible.
 func (p *Problem) Evaluate(s *solver.Solver, free []float64, sc *Score) error {
+	return p.EvaluateWith(s, free, sc, nil)
+}
+
+// EvaluateWith is Evaluate that also calls after(ci), when not nil, once
+// condition ci is solved and scored, while s still holds its solution: for a
+// caller that needs more of each solution than the score keeps (a search
+// bounding a box of values reads the determinant's sign and the sources'
+// powers there).
+func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, after func(ci int)) error {
 	nc := len(p.Conditions)
 	sc.Feasible, sc.Error, sc.Power = true, 0, 0
 	sc.ViolatedTarget, sc.ViolatedCondition = -1, -1
@@ -328,6 +337,9 @@ func (p *Problem) Evaluate(s *solver.Solver, free []float64, sc *Score) error {
 			}
 		}
 		p.GatherPoints(ci, s, sc.points)
+		if after != nil {
+			after(ci)
+		}
 	}
 	p.scoreDerived(sc.points, sc)
 	return nil

@@ -87,3 +87,37 @@ func BenchmarkWorkers(b *testing.B) {
 		b.Run(map[int]string{1: "1", 2: "2"}[w], func(b *testing.B) { benchSearch(b, p, w) })
 	}
 }
+
+// Branch and bound beside the rows method on the same problems.
+func BenchmarkBranchBound(b *testing.B) {
+	cases := []struct {
+		name string
+		text string
+	}{
+		{"loaded-E96", loadedDividerYAML("E96")},
+		{"ladder4-E24", ladderYAML("E24", 4)},
+	}
+	for _, c := range cases {
+		p := problemFromYAML(b, c.text, "")
+		b.Run(c.name+"/bound", func(b *testing.B) { benchMethod(b, p, 1, synth.BranchBound{}) })
+		b.Run(c.name+"/rows", func(b *testing.B) { benchMethod(b, p, 1, synth.Rows{}) })
+	}
+}
+
+func benchMethod(b *testing.B, p *synth.Problem, workers int, m synth.Method) {
+	b.Helper()
+	set := &synth.Settings{Workers: workers, MaxRows: 1e12}
+	var res *synth.Result
+	for b.Loop() {
+		var err error
+		res, err = synth.Search(context.Background(), p, set, m)
+		if err != nil {
+			b.Fatal(err)
+		}
+	}
+	if res.Status != synth.Proven {
+		b.Fatalf("status %v", res.Status)
+	}
+	b.ReportMetric(float64(res.Stats.Evaluated), "scored/op")
+	b.ReportMetric(float64(res.Stats.Solves), "solves/op")
+}

@@ -376,8 +376,19 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 // error and power within rounding.
 func compareWithBrute(t *testing.T, p *synth.Problem, top, workers int) {
 	t.Helper()
-	want := bruteForce(t, p)
-	res, err := synth.Search(context.Background(), p, &synth.Settings{Top: top, Workers: workers}, nil)
+	compareMethodWithBrute(t, p, top, workers, nil)
+}
+
+// compareMethodWithBrute is compareWithBrute for a given method.
+func compareMethodWithBrute(t *testing.T, p *synth.Problem, top, workers int, m synth.Method) {
+	t.Helper()
+	compareWantWithMethod(t, p, bruteForce(t, p), top, workers, m)
+}
+
+// compareWantWithMethod checks a method's list against an enumeration's.
+func compareWantWithMethod(t *testing.T, p *synth.Problem, want []bruteCand, top, workers int, m synth.Method) {
+	t.Helper()
+	res, err := synth.Search(context.Background(), p, &synth.Settings{Top: top, Workers: workers}, m)
 	if err != nil {
 		t.Fatal(err)
 	}

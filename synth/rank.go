@@ -28,21 +28,8 @@ func (r *ranker) less(a, b *Candidate) bool {
 }
 
 func (r *ranker) compare(a, b *Candidate) int {
-	for _, k := range r.keys {
-		switch k {
-		case constraints.ByError:
-			if !constraints.Same(a.Error, b.Error) {
-				return cmp.Compare(a.Error, b.Error)
-			}
-		case constraints.ByPower:
-			if !constraints.Same(a.Power, b.Power) {
-				return cmp.Compare(a.Power, b.Power)
-			}
-		case constraints.ByParts:
-			if a.Parts != b.Parts {
-				return cmp.Compare(a.Parts, b.Parts)
-			}
-		}
+	if c := compareKeys(r.keys, a.Error, a.Power, a.Parts, b.Error, b.Power, b.Parts); c != 0 {
+		return c
 	}
 	for i, d := range r.domains {
 		oa, ob := &d.Options[a.Opt[i]], &d.Options[b.Opt[i]]
@@ -65,6 +52,7 @@ type topList struct {
 	n     int
 	items []*Candidate // sorted, len <= n
 	spare *Candidate   // storage recycled from the evicted candidate
+	kept  int64        // candidates kept over the list's life, to notice a change
 }
 
 func newTopList(r *ranker, n, positions int) *topList {
@@ -104,6 +92,7 @@ func (t *topList) offer(c *Candidate) bool {
 	if lo < len(t.items) && t.r.compare(t.items[lo], c) == 0 {
 		return false // the same candidate, seen twice
 	}
+	t.kept++
 	slot := t.spare
 	t.spare = nil
 	if slot == nil {
@@ -118,6 +107,31 @@ func (t *topList) offer(c *Candidate) bool {
 		t.spare = t.items[t.n]
 		t.items[t.n] = nil
 		t.items = t.items[:t.n]
+	}
+	return true
+}
+
+// offerUnique is offer for a list that may see one candidate twice with
+// numbers that differ by rounding (scored along two different paths): a
+// candidate with the same options as a kept one is not kept again, so the
+// list's last entry is always the n-th distinct candidate.
+func (t *topList) offerUnique(c *Candidate) bool {
+	if t.full() && !t.r.less(c, t.items[t.n-1]) {
+		return false
+	}
+	for _, m := range t.items {
+		if sameOptions(m.Opt, c.Opt) {
+			return false
+		}
+	}
+	return t.offer(c)
+}
+
+func sameOptions(a, b []int32) bool {
+	for i := range a {
+		if a[i] != b[i] {
+			return false
+		}
 	}
 	return true
 }
@@ -161,4 +175,61 @@ func (f *frontList) offer(c *Candidate) {
 		}
 	}
 	f.items = append(kept, &Candidate{Opt: append([]int32(nil), c.Opt...), Error: c.Error, Power: c.Power, Parts: c.Parts})
+}
+
+// compareKeys orders two answers by the rank keys with the contract's tie
+// tolerances; 0 when they tie on every key.
+func compareKeys(keys []constraints.RankKey, ae, ap float64, an int, be, bp float64, bn int) int {
+	for _, k := range keys {
+		switch k {
+		case constraints.ByError:
+			if !constraints.Same(ae, be) {
+				return cmp.Compare(ae, be)
+			}
+		case constraints.ByPower:
+			if !constraints.Same(ap, bp) {
+				return cmp.Compare(ap, bp)
+			}
+		case constraints.ByParts:
+			if an != bn {
+				return cmp.Compare(an, bn)
+			}
+		}
+	}
+	return 0
+}
+
+// ScoreKey is what ranks a finished answer: its error, power, part count and
+// effective values in part order. MergeShards-style callers that hold only
+// answers (not their option indices) rank with it.
+type ScoreKey struct {
+	Error, Power float64
+	Parts        int
+	Values       []float64
+}
+
+// CompareScores orders two answers as a search ranks them: the rank keys with
+// the contract's tie tolerances, then the effective values in part order
+// (unique within a position, so this is a total order on distinct answers).
+func CompareScores(keys []constraints.RankKey, a, b ScoreKey) int {
+	if c := compareKeys(keys, a.Error, a.Power, a.Parts, b.Error, b.Power, b.Parts); c != 0 {
+		return c
+	}
+	for i := range a.Values {
+		if a.Values[i] != b.Values[i] {
+			return cmp.Compare(a.Values[i], b.Values[i])
+		}
+	}
+	return 0
+}
+
+// DominatesScore reports whether a is at least as good as b in error, power
+// and part count, and better in at least one (the Pareto mark of a list).
+func DominatesScore(a, b ScoreKey) bool {
+	le := func(x, y float64) bool { return x <= y || constraints.Same(x, y) }
+	lt := func(x, y float64) bool { return x < y && !constraints.Same(x, y) }
+	if !le(a.Error, b.Error) || !le(a.Power, b.Power) || a.Parts > b.Parts {
+		return false
+	}
+	return lt(a.Error, b.Error) || lt(a.Power, b.Power) || a.Parts < b.Parts
 }

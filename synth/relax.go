@@ -2,6 +2,7 @@ package synth
 
 import (
 	"context"
+	"errors"
 	"math"
 	"math/rand/v2"
 	"sort"
@@ -37,6 +38,9 @@ func (Relax) Name() string { return "relax-and-snap" }
 var _ Method = Relax{}
 
 func (m Relax) run(ctx context.Context, p *Problem, set *Settings, st *runState) error {
+	if set.Shards > 1 {
+		return errors.New("synth: the heuristic does not cover the space, so it cannot search a shard of it")
+	}
 	if len(p.Domains) == 0 {
 		return runNoFree(p, st)
 	}

@@ -58,15 +58,22 @@ func (Rows) run(ctx context.Context, p *Problem, set *Settings, st *runState) er
 	if float64(rows) > set.MaxRows {
 		return tooManyRows(p, float64(rows), set.MaxRows)
 	}
+	// A shard takes its share of the rows, in order.
+	first, last := int64(0), rows
+	if set.Shards > 1 {
+		n, k := int64(set.Shards), int64(set.Shard)
+		first, last = (k-1)*rows/n, k*rows/n
+	}
 	if set.Progress != nil {
-		set.Progress.total.Store(rows)
+		set.Progress.total.Store(last - first)
 	}
 	workers := set.Workers
-	if int64(workers) > (rows+rowChunk-1)/rowChunk {
-		workers = int((rows + rowChunk - 1) / rowChunk)
+	if int64(workers) > (last-first+rowChunk-1)/rowChunk {
+		workers = max(1, int((last-first+rowChunk-1)/rowChunk))
 	}
 	st.stats.Workers = workers
 	var next atomic.Int64
+	next.Store(first)
 	var stopped atomic.Bool
 	var mu sync.Mutex
 	var wg sync.WaitGroup
@@ -79,10 +86,10 @@ func (Rows) run(ctx context.Context, p *Problem, set *Settings, st *runState) er
 					break
 				}
 				start := next.Add(rowChunk) - rowChunk
-				if start >= rows {
+				if start >= last {
 					break
 				}
-				end := min(start+rowChunk, rows)
+				end := min(start+rowChunk, last)
 				w.runRows(start, end)
 				if set.Progress != nil {
 					set.Progress.done.Add(end - start)
@@ -95,7 +102,9 @@ func (Rows) run(ctx context.Context, p *Problem, set *Settings, st *runState) er
 	}
 	wg.Wait()
 	st.status = Proven
+	st.open = math.Inf(1)
 	if stopped.Load() {
+		st.open = 0 // rows not visited are not bounded
 		st.status = Interrupted
 		if ctx.Err() == context.DeadlineExceeded {
 			st.status = TimeLimit
@@ -128,6 +137,7 @@ func runNoFree(p *Problem, st *runState) error {
 		return err
 	}
 	st.status = Proven
+	st.open = math.Inf(1)
 	if sc.Feasible {
 		st.top.offer(&Candidate{Opt: []int32{}, Error: sc.Error, Power: sc.Power})
 	} else {
@@ -182,6 +192,11 @@ type rowWorker struct {
 
 	points  []float64 // node voltages the sweep-wide targets read
 	derived []int     // targets that are sweep-wide
+
+	// bar, when not nil, is a candidate known to rank among the best the
+	// search keeps (BranchBound's shared list): options that cannot beat it
+	// need not be scored.
+	bar *Candidate
 }
 
 func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *rowWorker {
@@ -264,12 +279,16 @@ func (w *rowWorker) runRows(start, end int64) {
 
 // searchRow scores the options of the row position for the current outer values.
 func (w *rowWorker) searchRow() {
-	ref := len(w.opts) / 2
+	w.searchRange(0, len(w.opts)-1, len(w.opts)/2)
+}
+
+// searchRange scores options lo..hi of the row position for the current
+// outer values, with option ref as the reference of the update formula.
+func (w *rowWorker) searchRange(lo, hi, ref int) {
 	if !w.prepare(w.opts[ref].Value) {
-		w.slowRow(0, len(w.opts)-1)
+		w.slowRow(lo, hi)
 		return
 	}
-	lo, hi := 0, len(w.opts)-1
 	// A pole of the update formula inside the row breaks monotonicity.
 	for c := range w.cond {
 		rc := &w.cond[c]
@@ -526,7 +545,7 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 		return nil
 	}
 	full := append(w.ranges[:0], [2]int{lo, hi})
-	worst := w.top.worst()
+	worst := w.threshold()
 	primary := constraints.ByError
 	if len(w.keys) > 0 {
 		primary = w.keys[0]
@@ -568,6 +587,17 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 		return out
 	}
 	return full
+}
+
+// threshold returns the candidate an option must beat to be worth scoring:
+// the last of the worker's full top list, or the bar another part of the
+// search set (see BranchBound), whichever ranks first; nil when neither.
+func (w *rowWorker) threshold() *Candidate {
+	t := w.top.worst()
+	if w.bar != nil && (t == nil || w.top.r.less(w.bar, t)) {
+		return w.bar
+	}
+	return t
 }
 
 // unionRange adds [a, b] (if not empty) to at most one existing range,

@@ -97,6 +97,12 @@ type Settings struct {
 	// once. Zero means no front. Keeping it makes the exhaustive method score
 	// every option within the cap, which costs time on large spaces.
 	FrontErrorCap float64
+	// Shard and Shards, when Shards > 1, search only the Shard-th (1-based)
+	// of Shards disjoint parts of the space, the same parts for the same
+	// problem on any machine; the shards' results together give the result
+	// of the whole search (see MergeShards). Methods that cannot split the
+	// space refuse it.
+	Shard, Shards int
 }
 
 // DefaultMaxRows is the default exhaustive budget: about ten seconds of
@@ -204,6 +210,16 @@ type Result struct {
 	Front []Solution
 	// FrontCap is the goal-error bound the front was kept under.
 	FrontCap float64
+	// Bound is a proven lower bound on the goal error of every candidate the
+	// search did not rule out: the kept answers and whatever a stopped or
+	// heuristic search left unexamined. It equals the best error of the list
+	// when the search is exhaustive and ranks by error first, and it is 0
+	// when nothing was proven about the rest of the space. +Inf when there
+	// is no answer and nothing is left open.
+	Bound float64
+	// Shard and Shards repeat Settings.Shard and Settings.Shards (both 0
+	// for a whole run); Top repeats Settings.Top.
+	Shard, Shards, Top int
 }
 
 // Method is a search strategy.
@@ -235,6 +251,9 @@ func Search(ctx context.Context, p *Problem, s *Settings, m Method) (*Result, er
 	if m == nil {
 		m = Rows{}
 	}
+	if set.Shards > 1 && (set.Shard < 1 || set.Shard > set.Shards) {
+		return nil, fmt.Errorf("synth: shard %d of %d does not exist", set.Shard, set.Shards)
+	}
 	space := p.Space()
 	if space > MaxSpace {
 		return nil, fmt.Errorf("%w: %.3g candidates (%s); narrow the positions' min/max, use a coarser series or fewer pairs", ErrSpaceTooLarge, space, p.DescribeSpace())
@@ -256,6 +275,11 @@ func Search(ctx context.Context, p *Problem, s *Settings, m Method) (*Result, er
 	res.Status = st.status
 	if err := st.finish(p, res); err != nil {
 		return nil, err
+	}
+	res.Bound = st.open
+	res.Shard, res.Shards, res.Top = set.Shard, set.Shards, set.Top
+	for _, s := range res.Solutions {
+		res.Bound = math.Min(res.Bound, s.Score.Error)
 	}
 	if len(res.Solutions) == 0 {
 		if res.Status == Proven {
@@ -291,6 +315,10 @@ type runState struct {
 	nc       int
 	status   Status
 	stats    Stats
+	// open is a lower bound on the goal error of every candidate the method
+	// left unexamined: +Inf when it examined or ruled out everything, 0
+	// (the default) when it cannot say.
+	open float64
 }
 
 func newRunState(p *Problem, s *Settings) *runState {
@@ -425,12 +453,8 @@ func (st *runState) rescore(p *Problem, s *solver.Solver, cands []*Candidate) []
 // dominates reports whether a is at least as good as b in error, power and
 // part count, and better in at least one.
 func dominates(a, b *Solution) bool {
-	le := func(x, y float64) bool { return x <= y || constraints.Same(x, y) }
-	lt := func(x, y float64) bool { return x < y && !constraints.Same(x, y) }
-	if !le(a.Score.Error, b.Score.Error) || !le(a.Score.Power, b.Score.Power) || a.Parts > b.Parts {
-		return false
-	}
-	return lt(a.Score.Error, b.Score.Error) || lt(a.Score.Power, b.Score.Power) || a.Parts < b.Parts
+	return DominatesScore(ScoreKey{Error: a.Score.Error, Power: a.Score.Power, Parts: a.Parts},
+		ScoreKey{Error: b.Score.Error, Power: b.Score.Power, Parts: b.Parts})
 }
 
 // widen returns a threshold slightly above t, so that pruning never drops a

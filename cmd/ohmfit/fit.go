@@ -26,7 +26,8 @@ type searchOptions struct {
 	Series    string // overrides every position's series when set
 	TimeLimit time.Duration
 	Workers   int
-	Method    string // auto, exhaustive or heuristic
+	Method    string // auto, exhaustive, bound or heuristic
+	Shard     string // "K/N": search the K-th of N parts of the space; "" for all
 	Quiet     bool
 	Tradeoffs string // goal-error bound of the trade-off front; "" for none
 	Output    string // write the result here instead of stdout; "" for stdout
@@ -44,7 +45,7 @@ func bindSearchFlags(cmd *cobra.Command, o *searchOptions) {
 	f.StringVar(&o.Series, "series", "", "use this `SERIES` (E3 … E192) for every position, overriding the template")
 	f.DurationVar(&o.TimeLimit, "time-limit", 0, "stop after this long (e.g. 30s) and show the best found so far, marked not proven")
 	f.IntVar(&o.Workers, "workers", 0, "goroutines to search with (`N`; 0: one per core); the answer does not depend on it")
-	f.StringVar(&o.Method, "method", "auto", "`METHOD`: exhaustive (proven best), heuristic (relax and snap), or auto (exhaustive when the space allows)")
+	f.StringVar(&o.Method, "method", "auto", "`METHOD`: bound (branch and bound over value boxes, proven best), exhaustive (every row, proven best), heuristic (relax and snap), or auto (branch and bound where its bounds apply, else exhaustive when the space allows)")
 	f.BoolVarP(&o.Quiet, "quiet", "q", false, "no progress bar")
 	f.StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically; never over an input file)")
 	f.StringVar(&o.Tradeoffs, "tradeoffs", "", "also list the trade-off front: every answer with goal error up to `E` (e.g. 1%) that nothing beats on error, power and parts at once")
@@ -65,9 +66,20 @@ func checkSearchFlags(cmd *cobra.Command, o *searchOptions) error {
 		return usagef(cmd.CommandPath(), "--time-limit must not be negative")
 	}
 	switch o.Method {
-	case "auto", "exhaustive", "heuristic":
+	case "auto", "exhaustive", "bound", "heuristic":
 	default:
-		return usagef(cmd.CommandPath(), "--method must be auto, exhaustive or heuristic, not %q", o.Method)
+		return usagef(cmd.CommandPath(), "--method must be auto, bound, exhaustive or heuristic, not %q", o.Method)
+	}
+	if o.Shard != "" {
+		if _, _, err := parseShard(o.Shard); err != nil {
+			return usagef(cmd.CommandPath(), "--shard: %v", err)
+		}
+		if o.Method == "heuristic" {
+			return usagef(cmd.CommandPath(), "--shard needs a method that covers the space (bound or exhaustive), not heuristic")
+		}
+		if o.Tradeoffs != "" {
+			return usagef(cmd.CommandPath(), "--shard and --tradeoffs cannot be used together")
+		}
 	}
 	if o.Series != "" {
 		s, err := lookupSeries(o.Series)
@@ -103,11 +115,22 @@ so the same input always gives the same list. An answer marked * is
 Pareto-optimal in the list: no other answer is as good in error, power and
 part count and better in one.
 
-The exhaustive method proves its list best over the whole space; it is used
-when the space allows (method auto). Beyond that a heuristic runs (a
-continuous relaxation, then a search of the standard values around it), and
-the result says it is not proven. Ctrl-C stops a search and prints the best
-found so far.
+Two methods prove their list best over the whole space. Branch and bound
+(method bound) bounds boxes of values from their corners and rules out every
+box that cannot hold a better answer; the rows method (method exhaustive)
+scores every combination of all positions but one. Method auto uses branch
+and bound where its bounds cover every goal (every goal but a sweep-wide one)
+and the space is larger than one of its boxes, the rows method otherwise, and
+a heuristic (a continuous relaxation, then a search of the standard values
+around it) where neither can prove the result; the summary line names the
+method, and the result says when it is not proven. A result stopped by
+--time-limit or Ctrl-C says how far from proven it is: "nothing better than
+X can exist" (JSON "bound"). Ctrl-C stops a search and prints the best found
+so far.
+
+--shard K/N searches only the K-th of N disjoint parts of the space; the
+JSON results of all N parts, combined by "ohmfit merge", are the result of
+one whole run.
 
 FILE is a template file, or example:NAME for a built-in example.
 
@@ -116,7 +139,8 @@ names the limit that rejected the most candidates), 2 for bad input.
 
 JSON output (--format json):
   {"name": "...", "exhaustive": true, "status": "proven", "method": "rows",
-   "space": 83521, "evaluated": 1234, "solutions": [
+   "space": 83521, "evaluated": 1234, "solves": 2468, "bound": 0.00041,
+   "solutions": [
      {"rank": 1, "values": {"R1": 30100, "R2": 9530},
       "parts": {"R1": [30100], "R2": [9530]},
       "combine": {"R1": "single", "R2": "single"},
@@ -149,6 +173,7 @@ JSON output (--format json):
 	}
 	bindSearchFlags(cmd, &o.searchOptions)
 	bindFitRealFlags(cmd, &o.fitReal)
+	cmd.Flags().StringVar(&o.Shard, "shard", "", "search only the `K/N`-th of N disjoint parts of the space (for a job array; combine the JSON results with ohmfit merge)")
 	return cmd
 }
 
@@ -172,14 +197,28 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 		}
 		set.FrontErrorCap = q.Value
 	}
+	if o.Shard != "" {
+		set.Shard, set.Shards, _ = parseShard(o.Shard)
+	}
 	var method synth.Method = synth.Rows{}
 	switch o.Method {
 	case "heuristic":
 		method = synth.Relax{}
+	case "bound":
+		method = synth.BranchBound{}
 	case "auto":
-		if rows := synth.RowCount(p); rows > synth.DefaultMaxRows && p.Space() <= synth.MaxSpace {
+		// Branch and bound wherever its corner bounds cover every goal and
+		// the space is more than one of its leaves (below that it would
+		// only run the rows method once).
+		rows := synth.RowCount(p)
+		switch {
+		case synth.BranchBound{}.Applies(p) && (rows > 2048 || set.Shards > 1):
+			method = synth.BranchBound{}
+		case rows > synth.DefaultMaxRows && p.Space() <= synth.MaxSpace && set.Shards <= 1:
 			method = synth.Relax{}
-			fmt.Fprintf(o.ErrOut, "ohmfit: %.3g rows is too many to prove the best answer (budget %.3g); searching heuristically\n", rows, float64(synth.DefaultMaxRows))
+			fmt.Fprintf(o.ErrOut, "ohmfit: %.3g rows is too many to prove the best answer (budget %.3g), and a sweep-wide goal has no box bound; searching heuristically\n", rows, float64(synth.DefaultMaxRows))
+		case set.Shards > 1:
+			set.MaxRows = math.Inf(1)
 		}
 	case "exhaustive":
 		set.MaxRows = math.Inf(1)
@@ -381,6 +420,32 @@ func summaryLine(p *synth.Problem, res *synth.Result) string {
 		count(st.Space), noun, p.DescribeSpace(), count(float64(st.Evaluated)), st.Method, roundDuration(st.Elapsed), verdict)
 }
 
+// boundLine says how far from proven a result is that is not proven, when
+// the search proved something about the rest of the space: "best 0.12 %;
+// nothing better than 0.10 % can exist". Empty for a proven result, for a
+// search that proved nothing (bound 0), and when the ranking does not put
+// error first (the best error is then not what the list leads with).
+func boundLine(p *synth.Problem, res *synth.Result) string {
+	if res.Status.Exhaustive() || len(res.Solutions) == 0 || !(res.Bound > 0) || math.IsInf(res.Bound, 1) {
+		return ""
+	}
+	if r := p.Template.Rank; len(r) > 0 && r[0] != constraints.ByError {
+		return ""
+	}
+	return fmt.Sprintf("best %s; nothing better than %s can exist", errorText(res.Solutions[0].Score.Error), errorText(res.Bound))
+}
+
+// parseShard reads "K/N" with 1 <= K <= N.
+func parseShard(s string) (k, n int, err error) {
+	a, b, ok := strings.Cut(s, "/")
+	k, err1 := strconv.Atoi(a)
+	n, err2 := strconv.Atoi(b)
+	if !ok || err1 != nil || err2 != nil || n < 1 || k < 1 || k > n {
+		return 0, 0, fmt.Errorf("want K/N with 1 <= K <= N (e.g. 2/8), not %q", s)
+	}
+	return k, n, nil
+}
+
 // count writes a count with thousands separators, or in exponent form when
 // it is very large.
 func count(n float64) string {
@@ -410,7 +475,11 @@ func writeFitTable(w io.Writer, p *synth.Problem, res *synth.Result) error {
 	if p.Template.Name != "" {
 		fmt.Fprintf(&b, "%s\n", p.Template.Name)
 	}
-	fmt.Fprintf(&b, "%s\n\n", summaryLine(p, res))
+	fmt.Fprintf(&b, "%s\n", summaryLine(p, res))
+	if line := boundLine(p, res); line != "" {
+		fmt.Fprintf(&b, "%s\n", line)
+	}
+	b.WriteString("\n")
 	if len(res.Solutions) == 0 {
 		_, err := io.WriteString(w, b.String())
 		return err
@@ -515,8 +584,19 @@ func fitJSON(p *synth.Problem, res *synth.Result) object {
 		{"space", res.Stats.Space},
 		{"evaluated", res.Stats.Evaluated},
 		{"solves", res.Stats.Solves},
-		{"solutions", solutionsJSON(p, res.Solutions)},
 	}
+	if !math.IsInf(res.Bound, 1) {
+		doc = append(doc, member{"bound", res.Bound})
+	}
+	if res.Shards > 0 {
+		// What merge needs to rank the shards' answers as one run would.
+		var keys []string
+		for _, k := range p.Template.Rank {
+			keys = append(keys, k.String())
+		}
+		doc = append(doc, member{"shard", fmt.Sprintf("%d/%d", res.Shard, res.Shards)}, member{"rank", keys}, member{"top", res.Top})
+	}
+	doc = append(doc, member{"solutions", solutionsJSON(p, res.Solutions)})
 	if res.Front != nil {
 		doc = append(doc, member{"tradeoffs", object{{"error_max", res.FrontCap}, {"solutions", solutionsJSON(p, res.Front)}}})
 	}

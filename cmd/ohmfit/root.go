@@ -131,6 +131,7 @@ A template is a small YAML file; ` + "`ohmfit examples`" + ` lists the built-in 
 		newFeedbackCmd(stdout, stderr, isTerminal(stderr)),
 		newCombineCmd(stdout, stderr),
 		newCheckCmd(stdout, stderr),
+		newMergeCmd(stdout, stderr),
 	)
 	for _, c := range root.Commands() {
 		// Each Use line spells out its options; cobra would append "[flags]".
