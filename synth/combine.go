@@ -168,6 +168,18 @@ type combiner struct {
 // further out is worse still. (Rounding moves a value by a few ulps, far
 // below the tie tolerance, so it cannot hide a part that belongs.)
 func (c *combiner) walk(vals []float64, value func(x float64) float64, add func(x, v float64) bool) {
+	if len(vals) == 0 {
+		return
+	}
+	// Every value lies between those of the smallest and the largest part:
+	// when both are on one side of the target and the nearer one is beyond
+	// the bound, so is every part.
+	if v := value(vals[0]); v > c.target && c.beyond(v) {
+		return
+	}
+	if v := value(vals[len(vals)-1]); v < c.target && c.beyond(v) {
+		return
+	}
 	k := sort.Search(len(vals), func(j int) bool { return value(vals[j]) >= c.target })
 	if c.seeding {
 		if k < len(vals) {
@@ -196,10 +208,10 @@ func (c *combiner) walk(vals []float64, value func(x float64) float64, add func(
 // it), which is what ends a walk; a dominated combination within the bound
 // does not end it.
 func (c *combiner) offer(a Arrangement, x, y, z, v float64) bool {
-	e := math.Abs(v-c.target) / c.target
-	if e > c.bound && !constraints.Same(e, c.bound) {
+	if c.beyond(v) {
 		return false
 	}
+	e := math.Abs(v-c.target) / c.target
 	if c.dominated(a.Count(), v) {
 		return true
 	}
@@ -227,10 +239,18 @@ func (c *combiner) offer(a Arrangement, x, y, z, v float64) bool {
 	return true
 }
 
+// beyond reports whether value v is worse than the top-th best so far and
+// not tied with it, so that it cannot be in the list.
+func (c *combiner) beyond(v float64) bool {
+	e := math.Abs(v-c.target) / c.target
+	return e > c.bound && !constraints.Same(e, c.bound)
+}
+
 // dominated reports whether some arrangement of fewer than n parts from base
-// has value v (by constraints.Same). With n = 3 every part a is tried as one
-// of a pair, and the partner's ideal value found by binary search, as the
-// pair's value rises with it.
+// has value v (by constraints.Same). With n = 3 each part a that can be the
+// larger of a pair is tried, the partner found by binary search as the pair's
+// value rises with it: a + b = v with a >= b needs v/2 <= a <= v, and
+// a ∥ b = v needs v <= a <= 2v (a little wider here, for rounding).
 func (c *combiner) dominated(n int, v float64) bool {
 	if n < 2 {
 		return false
@@ -241,7 +261,11 @@ func (c *combiner) dominated(n int, v float64) bool {
 	if n < 3 {
 		return false
 	}
-	for _, a := range c.base {
+	lo := sort.SearchFloat64s(c.base, 0.5*v*(1-1e-9))
+	for _, a := range c.base[lo:] {
+		if a > 2*v*(1+1e-9) {
+			break
+		}
 		if c.hits(c.base, func(b float64) float64 { return a + b }, v) ||
 			c.hits(c.base, func(b float64) float64 { return par(a, b) }, v) {
 			return true
