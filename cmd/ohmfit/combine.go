@@ -32,9 +32,13 @@ func newCombineCmd(out, errOut io.Writer) *cobra.Command {
 		Long: `List the best ways to make one resistance from standard values: a single
 part, two in series or in parallel, and with --max-parts 3 also three parts
 (all in series, all in parallel, one in series with a parallel pair, or a
-series pair in parallel with a third). Ranked by error, then fewer parts.
-The search is exact: for each choice of the other parts the last part's
-ideal value is computed and only its two standard neighbours are tried.
+series pair in parallel with a third). Ranked by error, then fewer parts,
+then arrangement, then larger parts first.
+
+A combination whose value equals (within 1e-12 relative) that of an
+arrangement with fewer parts is left out: 3.3k + 1k is not listed when the
+single 4.3k exists. Apart from those, the list is exact at every rank: it is
+the first --top of all singles, pairs and triples ranked this way.
 
 JSON output (--format json):
   {"target": 4320, "solutions": [{"rank": 1, "value": 4330, "parts": [3900, 430],
