@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/constraints/ratings"
 	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/ohmfit/ohmfit/solver"
 	"github.com/spf13/cobra"
@@ -84,11 +85,11 @@ func runSolve(o *solveOptions) error {
 	if err != nil {
 		return err
 	}
-	var h hazards
+	var w ratings.Watch
 	for _, r := range results {
-		h.observe(r.name, r.sol.Nodes, r.sol.Parts)
+		watchSolution(&w, t, nil, nil, r.name, r.sol)
 	}
-	h.write(o.ErrOut)
+	writeCautions(o.ErrOut, &w)
 	return redirect(o.Output, inputFiles(t), &o.Out, func() error { return renderSolve(o, t, results) })
 }
 
