@@ -358,7 +358,7 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			nodeW[pr.A] += pr.Scale
 			nodeW[pr.B] -= pr.Scale
 		case constraints.Current:
-			partW[pr.Part] = 1
+			partW[pr.Part] = pr.Sign
 		case constraints.Power:
 			// Watts = (V(from) - V(to))·Amps along the part's edge.
 			for _, e := range net.Edges() {
