@@ -76,6 +76,24 @@ type Probe struct {
 	A, B  int     // node indices (B is ground for a single-node voltage)
 	Part  int     // part index for Current and Power
 	Scale float64 // Code: codes per volt (2^bits / ref)
+	// Sign turns the solver's current of the part (along its edge) into
+	// what a current target reads: CurrentSign of the part's kind.
+	Sign float64
+}
+
+// CurrentSign is the one rule for what a current target reads, as a factor
+// on the solver's current along the part's edge. A voltage source's edge
+// runs plus → minus inside it, so a source that supplies the circuit reads
+// negative there; its target reads the current it delivers out of plus
+// (−1), positive when it supplies power, so that a max is a supply-current
+// budget. A resistor reads from → to, a current source the current it
+// drives (from → to inside it, out of to) and an op-amp the current its
+// output drives into out: +1, as the solver has them.
+func CurrentSign(k solver.Kind) float64 {
+	if k == solver.VoltageSource {
+		return -1
+	}
+	return 1
 }
 
 // Read returns the probed quantity from a solver that has just solved.
@@ -87,7 +105,7 @@ func (p Probe) Read(s *solver.Solver) (float64, error) {
 	case Code:
 		return (s.Voltage(p.A) - s.Voltage(p.B)) * p.Scale, nil
 	case Current:
-		return s.Amps(p.Part), nil
+		return p.Sign * s.Amps(p.Part), nil
 	case Power:
 		return s.Watts(p.Part), nil
 	case Ratio:
@@ -240,6 +258,11 @@ func probeFor(net *solver.Network, t Target) (Probe, error) {
 			return pr, fmt.Errorf("constraints: target %s names unknown part %q", t.Label(), t.Part)
 		}
 		pr.Part = i
+		for _, e := range net.Edges() {
+			if e.Part == i {
+				pr.Sign = CurrentSign(e.Kind)
+			}
+		}
 	default:
 		if len(t.Nodes) == 0 {
 			return pr, fmt.Errorf("constraints: target %s names no node", t.Label())

@@ -295,6 +295,12 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 				case constraints.Current:
 					i, _ := tp.Part(tg.Part)
 					v = ps.amps(i)
+					if tp.Parts[i].Kind == solver.VoltageSource {
+						// The contract: a current target on a voltage source reads
+						// what it delivers out of plus; the plain MNA's branch
+						// current runs plus -> minus inside it.
+						v = -v
+					}
 				case constraints.Power:
 					i, _ := tp.Part(tg.Part)
 					v = ps.watts(i)

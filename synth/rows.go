@@ -409,7 +409,7 @@ func (w *rowWorker) probe(rc *rowCond, ti int, s, g float64) float64 {
 		}
 		return (rc.x0[pr.A] - rc.w[pr.A]*s) / d
 	case constraints.Current:
-		return w.amps(rc, pr.Part, s, g)
+		return pr.Sign * w.amps(rc, pr.Part, s, g) // constraints.CurrentSign, set in the probe
 	case constraints.Power:
 		e := w.edges[pr.Part]
 		if e.Kind == solver.OpAmp {

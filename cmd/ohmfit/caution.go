@@ -3,86 +3,71 @@ package main
 import (
 	"fmt"
 	"io"
-	"math"
 
+	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/ratings"
-	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/ohmfit/ohmfit/solver"
 	"github.com/ohmfit/ohmfit/synth"
 )
 
-// largestPackage is the most power any package in the table carries at the
-// usual derating: a resistor above it needs more than a single common part.
-func largestPackage() (ratings.Package, float64) {
-	best := ratings.Packages[0]
-	for _, p := range ratings.Packages {
-		if p.Derated() > best.Derated() {
-			best = p
+// watchSolution shows one condition's solution to w: its node potentials
+// and each resistor's load, a position realised by two parts as those two
+// parts (named name+"a"/"b", as check names them), each against the package
+// the template gives it. opts are the free positions' realisations in
+// p.Free order, nil for a fully valued template.
+func watchSolution(w *ratings.Watch, t *constraints.Template, free []int, opts []synth.Option, cond string, sol *solver.Solution) {
+	where := ratings.Where(cond, false)
+	names := make([]string, len(sol.Nodes))
+	volts := make([]float64, len(sol.Nodes))
+	for i, n := range sol.Nodes {
+		names[i], volts[i] = n.Name, n.Volts
+	}
+	w.Nodes(where, names, volts, t.Ground)
+	option := map[int]synth.Option{}
+	for k, i := range free {
+		if k < len(opts) {
+			option[i] = opts[k]
 		}
 	}
-	return best, best.Derated()
-}
-
-// hazards collects the cautions a network's solution calls for: any node
-// above the 60 V DC limit of ES1 (IEC 62368-1), and any resistor
-// dissipating more than the largest common package carries at half its
-// rating. Each is said once, for its worst condition.
-type hazards struct {
-	volts      float64
-	voltsWhere string
-	watts      float64
-	wattsPart  string
-	across     float64 // largest voltage across one resistor
-	acrossPart string
-}
-
-// observe notes one condition's solution.
-func (h *hazards) observe(cond string, nodes []solver.NodeVoltage, parts []solver.PartResult) {
-	for _, n := range nodes {
-		if v := math.Abs(n.Volts); v > h.volts {
-			h.volts, h.voltsWhere = v, fmt.Sprintf("node %s in condition %q", n.Name, cond)
+	for i, pr := range sol.Parts {
+		ps := t.Parts[i]
+		if pr.Kind != solver.Resistor || ps.Sensor != nil {
+			continue // sensors are not in the resistor package table
 		}
-	}
-	for _, p := range parts {
-		if p.Kind != solver.Resistor {
+		o, isFree := option[i]
+		if !isFree {
+			w.Resistor(where, pr.Name, ps.Package, pr.Watts, pr.Volts)
 			continue
 		}
-		if p.Watts > h.watts {
-			h.watts, h.wattsPart = p.Watts, fmt.Sprintf("%s (condition %q)", p.Name, cond)
+		pkg := t.Choose.For(ps.Name).Package
+		vals := o.PartValues()
+		if len(vals) == 1 {
+			w.Resistor(where, pr.Name, pkg, pr.Watts, pr.Volts)
+			continue
 		}
-		if v := math.Abs(p.Volts); v > h.across {
-			h.across, h.acrossPart = v, fmt.Sprintf("%s (condition %q)", p.Name, cond)
+		for j, r := range vals {
+			// Series parts share the current, parallel parts the voltage.
+			v := pr.Volts
+			if o.Combine == constraints.Series {
+				v = pr.Amps * r
+			}
+			w.Resistor(where, pr.Name+string(rune('a'+j)), pkg, v*v/r, v)
 		}
 	}
 }
 
-// write prints the cautions, if any, to w (stderr: they must not mix with
-// a machine-readable result).
-func (h *hazards) write(w io.Writer) {
-	if h.volts > ratings.ES1VoltsDC {
-		fmt.Fprintln(w, "ohmfit: "+ratings.HazardCaution(h.voltsWhere, h.volts))
-	}
-	maxV := 0.0
-	for _, p := range ratings.Packages {
-		maxV = math.Max(maxV, p.Volts)
-	}
-	if h.across > maxV {
-		fmt.Fprintf(w, "ohmfit: CAUTION: %s has %s across it, above the working voltage of every package in the table (%s at most); "+
-			"use a high-voltage resistor or several in series, each within its rating, and run `ohmfit check` on the design.\n",
-			h.acrossPart, eseries.FormatUnit(h.across, eseries.Volt), eseries.FormatUnit(maxV, eseries.Volt))
-	}
-	if pkg, max := largestPackage(); h.watts > max {
-		fmt.Fprintf(w, "ohmfit: CAUTION: %s dissipates %s, more than a %s carries at half its rating; "+
-			"no single common chip or leaded resistor is enough. Use a power resistor rated for it with its "+
-			"derating curve, or spread the power, and run `ohmfit check` on the design.\n",
-			h.wattsPart, eseries.FormatUnit(h.watts, eseries.Watt), pkg.Name)
+// writeCautions prints the watch's cautions to w (stderr: they must not mix
+// with a machine-readable result).
+func writeCautions(out io.Writer, w *ratings.Watch) {
+	for _, c := range w.Cautions() {
+		fmt.Fprintln(out, "ohmfit: "+c)
 	}
 }
 
-// solutionHazards solves an answer in every visible condition and collects
-// its cautions.
-func solutionHazards(p *synth.Problem, sol synth.Solution) *hazards {
-	h := &hazards{}
+// solutionWatch solves an answer in every visible condition and watches
+// each solution.
+func solutionWatch(p *synth.Problem, sol synth.Solution) *ratings.Watch {
+	w := &ratings.Watch{}
 	t := p.Template
 	for ci, c := range t.Conditions {
 		if c.Hidden {
@@ -96,8 +81,8 @@ func solutionHazards(p *synth.Problem, sol synth.Solution) *hazards {
 			circ.Parts[i].Value = sol.Options[k].Value
 		}
 		if s, err := solver.Analyze(circ); err == nil {
-			h.observe(c.Name, s.Nodes, s.Parts)
+			watchSolution(w, t, p.Free, sol.Options, c.Name, s)
 		}
 	}
-	return h
+	return w
 }

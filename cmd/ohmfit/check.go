@@ -124,7 +124,8 @@ For each target in each condition it shows:
 For each resistor: its largest power and voltage over conditions and corners,
 the smallest package that carries it at no more than half its rated power
 (common practice), or the template's package:, with warnings near or beyond a
-rating, and cautions when a node exceeds 60 V DC (IEC 62368-1, ES1).
+rating, and a caution when any two nodes differ by more than 60 V DC in any
+condition or corner (ES1 of IEC 62368-1; 60.00 V is within ES1).
 
 --bom writes one CSV line per item to order: resistors of equal value,
 series, tolerance, TCR and package share a line; each sensor is a line of its

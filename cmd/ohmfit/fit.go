@@ -249,7 +249,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 		fmt.Fprintf(o.ErrOut, "ohmfit: time limit of %v reached; showing the best found so far (not proven)\n", o.TimeLimit)
 	}
 	if len(res.Solutions) > 0 {
-		solutionHazards(p, res.Solutions[0]).write(o.ErrOut)
+		writeCautions(o.ErrOut, solutionWatch(p, res.Solutions[0]))
 	}
 	if err := o.real.render(o, p, res); err != nil {
 		return err

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/constraints/ratings"
 	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/ohmfit/ohmfit/solver"
 	"github.com/spf13/cobra"
@@ -36,8 +37,10 @@ FILE is a template file, or example:NAME for a built-in example (see
 
 Signs follow the template's directions: a part's voltage is V(from) - V(to)
 (V(plus) - V(minus) for a voltage source, V(out) for an op-amp), its current
-flows from -> to, and its power is what it absorbs, negative where it
-delivers. The table ends with the power the resistors dissipate and the power
+flows from -> to (plus -> minus inside a voltage source), and its power is
+what it absorbs, negative where it delivers: the passive sign convention, so
+that the watts sum to zero. A current target on a voltage source reads the
+other way, the current it delivers out of plus (see the template reference). The table ends with the power the resistors dissipate and the power
 the sources deliver; the two agree (Tellegen's theorem), which is a quick
 check that the analysis is sound.
 
@@ -84,11 +87,11 @@ func runSolve(o *solveOptions) error {
 	if err != nil {
 		return err
 	}
-	var h hazards
+	var w ratings.Watch
 	for _, r := range results {
-		h.observe(r.name, r.sol.Nodes, r.sol.Parts)
+		watchSolution(&w, t, nil, nil, r.name, r.sol)
 	}
-	h.write(o.ErrOut)
+	writeCautions(o.ErrOut, &w)
 	return redirect(o.Output, inputFiles(t), &o.Out, func() error { return renderSolve(o, t, results) })
 }
 
@@ -204,7 +207,7 @@ func writeSolveTable(w io.Writer, t *constraints.Template, results []conditionRe
 			{right: true, gap: 1}, {gap: 3},
 			{right: true, gap: 1}, {},
 		}}
-		parts.add("part", "type", "voltage", "", "current", "", "power")
+		parts.add("part", "type", "voltage", "", "current", "", "power (passive signs: a delivering source reads negative)")
 		delivered, opamps := 0.0, false
 		for j, p := range r.sol.Parts {
 			v, vu := splitUnit(eseries.FormatUnit(tidy(p.Volts, vs), eseries.Volt))

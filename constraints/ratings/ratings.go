@@ -137,18 +137,6 @@ func (l Load) Verdict() string {
 	return "ok"
 }
 
-// HazardCaution is the caution printed when a node of a design is above the
-// ES1 DC limit. It names the place and the voltage and defers to codes and
-// licensed practice; it is plain text, one paragraph.
-func HazardCaution(where string, volts float64) string {
-	return fmt.Sprintf("CAUTION: %s reaches %.4g V, above the %g V DC limit of ES1 in IEC 62368-1: "+
-		"treat it as a hazardous voltage. Guard against contact, keep creepage and clearance distances "+
-		"for the working voltage on the board and in the wiring, use parts rated for that voltage, and "+
-		"discharge before handling. ohmfit's figures are a first check, not a safety assessment: follow "+
-		"the local electrical codes and the applicable standards, and have the design reviewed by a "+
-		"qualified (where required, licensed) person.", where, volts, ES1VoltsDC)
-}
-
 // RatingCaution is the caution printed when a part runs near or beyond its
 // package's ratings.
 func RatingCaution(part, pkg string, l Load) string {

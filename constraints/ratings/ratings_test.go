@@ -87,8 +87,9 @@ func TestCautions(t *testing.T) {
 	if ES1VoltsDC != 60 {
 		t.Errorf("ES1VoltsDC = %g, want 60 (IEC 62368-1 ES1 DC limit)", ES1VoltsDC)
 	}
-	h := HazardCaution("node hv", 72)
-	for _, want := range []string{"72 V", "60 V DC", "IEC 62368-1", "creepage", "local electrical codes", "licensed"} {
+	h := HazardCaution(Span{Volts: 80, High: NodeAt{"p40", 40}, Low: NodeAt{"n40", -40}, Where: Where("nominal", false)})
+	for _, want := range []string{`between node p40 (+40 V) and node n40 (-40 V) there are 80 V, in condition "nominal"`,
+		"60 V DC", "IEC 62368-1", "dangerous current", "creepage", "local electrical codes", "licensed"} {
 		if !strings.Contains(h, want) {
 			t.Errorf("hazard caution lacks %q: %s", want, h)
 		}

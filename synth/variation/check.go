@@ -144,11 +144,13 @@ type Report struct {
 	// MaxVolts is the largest voltage between any two nodes, nominal or at a
 	// worst-case corner, with where it occurs.
 	MaxVolts         float64
-	MaxVoltsWhere    string
+	MaxSpan          ratings.Span // the nodes, their potentials and where
 	Warnings         []string
 	Cautions         []string
 	Failures         []string // hard limits broken (a package above MaxPackage)
 	WorstErrorDesign float64  // largest WorstError over goals
+
+	hazards []string // the ratings.Watch cautions on the node potentials
 }
 
 // ErrUnsolvable is wrapped when the nominal network cannot be solved.
@@ -342,7 +344,10 @@ func Check(d *Design, set *Settings) (*Report, error) {
 		r.Samples = st.Samples
 		d.monteCarlo(s, r, &st, rt)
 	}
-	r.MaxVolts, r.MaxVoltsWhere = rt.maxVolts, rt.maxWhere
+	span := rt.watch.Span()
+	r.MaxVolts = span.Volts
+	r.MaxSpan = span
+	r.hazards = rt.watch.Cautions()
 	r.Ratings = rt.ratings(&st, t, r)
 	r.Sensors = rt.sensors()
 	d.warn(r, &st)
@@ -369,7 +374,7 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			nodeW[pr.A] += pr.Scale
 			nodeW[pr.B] -= pr.Scale
 		case constraints.Current:
-			partW[pr.Part] = 1
+			partW[pr.Part] = pr.Sign
 		case constraints.Power:
 			// Watts = (V(from) - V(to))·Amps along the part's edge.
 			for _, e := range net.Edges() {
@@ -579,14 +584,15 @@ type ratingTracker struct {
 	net            *solver.Network
 	nominal, watts []float64
 	volts          []float64
-	maxVolts       float64
-	maxWhere       string
+	watch          ratings.Watch // the node-to-node span, by the one rule
 	nodes          []string
+	volts1         []float64 // scratch: one solve's node potentials
 }
 
 func newRatingTracker(d *Design, net *solver.Network) *ratingTracker {
 	n := len(d.Parts)
-	return &ratingTracker{d: d, net: net, nominal: make([]float64, n), watts: make([]float64, n), volts: make([]float64, n), nodes: net.Nodes()}
+	return &ratingTracker{d: d, net: net, nominal: make([]float64, n), watts: make([]float64, n), volts: make([]float64, n),
+		nodes: net.Nodes(), volts1: make([]float64, len(net.Nodes()))}
 }
 
 func (rt *ratingTracker) observe(s *solver.Solver, ci int, dev []float64) {
@@ -602,23 +608,13 @@ func (rt *ratingTracker) observe(s *solver.Solver, ci int, dev []float64) {
 			rt.nominal[j] = math.Max(rt.nominal[j], math.Abs(w))
 		}
 	}
-	lo, hi, loN, hiN := 0.0, 0.0, 0, 0
+	if rt.d.Problem.Conditions[ci].Hidden {
+		return // a derivative's helper condition, not one the user wrote
+	}
 	for k := range rt.nodes {
-		v := s.Voltage(k)
-		if v < lo {
-			lo, loN = v, k
-		}
-		if v > hi {
-			hi, hiN = v, k
-		}
+		rt.volts1[k] = s.Voltage(k)
 	}
-	if hi-lo > rt.maxVolts {
-		rt.maxVolts = hi - lo
-		rt.maxWhere = fmt.Sprintf("%s to %s in condition %q", rt.nodes[hiN], rt.nodes[loN], rt.d.Problem.Conditions[ci].Name)
-		if loN == 0 {
-			rt.maxWhere = fmt.Sprintf("node %s in condition %q", rt.nodes[hiN], rt.d.Problem.Conditions[ci].Name)
-		}
-	}
+	rt.watch.Nodes(ratings.Where(rt.d.Problem.Conditions[ci].Name, !isNominal), rt.nodes, rt.volts1, rt.d.Problem.Template.Ground)
 }
 
 // ratings rates each resistor against its package and notes failures of the
@@ -635,22 +631,8 @@ func (rt *ratingTracker) ratings(st *Settings, t *constraints.Template, r *Repor
 		}
 		rg := Rating{Part: v.Name, NominalWatts: rt.nominal[j], Watts: rt.watts[j], Volts: rt.volts[j]}
 		var pkg ratings.Package
-		if v.Package != "" {
-			pkg, _ = ratings.Lookup(v.Package)
-			rg.Fits = pkg.Fits(rg.Watts, rg.Volts)
-		} else {
-			rg.Chosen = true
-			pkg, rg.Fits = ratings.Smallest(rg.Watts, rg.Volts, false)
-			if !rg.Fits {
-				// Name the largest, so the overload shows against something real.
-				pkg = ratings.Packages[len(ratings.Packages)-1]
-				for _, q := range ratings.Packages {
-					if q.Watts > pkg.Watts || (q.Watts == pkg.Watts && q.Volts > pkg.Volts) {
-						pkg = q
-					}
-				}
-			}
-		}
+		rg.Chosen = v.Package == ""
+		pkg, rg.Fits = ratings.Fit(v.Package, rg.Watts, rg.Volts)
 		rg.Package, rg.Rated, rg.MaxVolts = pkg.Name, pkg.Watts, pkg.Volts
 		rg.Load = pkg.LoadOf(rg.Watts, rg.Volts)
 		rg.Verdict = rg.Load.Verdict()
@@ -728,9 +710,7 @@ func (d *Design) warn(r *Report, st *Settings) {
 			r.Cautions = append(r.Cautions, ratings.RatingCaution(rg.Part, rg.Package, rg.Load))
 		}
 	}
-	if r.MaxVolts > ratings.ES1VoltsDC {
-		r.Cautions = append([]string{ratings.HazardCaution(r.MaxVoltsWhere, r.MaxVolts)}, r.Cautions...)
-	}
+	r.Cautions = append(r.hazards, r.Cautions...)
 }
 
 // num formats a value with its unit for messages.

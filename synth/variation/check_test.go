@@ -233,12 +233,13 @@ choose: {combine: any}
 }
 
 // TestHazardThreshold checks the caution at the ES1 limit of IEC 62368-1
-// (60 V DC): none at 59 V, one at 61 V.
+// (60 V DC, "not exceeding": 60.00 V is within ES1): none at 59.99 V or
+// 60 V, one at 60.01 V of either sign.
 func TestHazardThreshold(t *testing.T) {
 	for _, c := range []struct {
 		volts float64
 		want  bool
-	}{{59, false}, {61, true}, {-61, true}} {
+	}{{59.99, false}, {60, false}, {60.01, true}, {-60, false}, {-60.01, true}} {
 		d := design(t, fmt.Sprintf(`ohmfit: 1
 parts:
   - {name: V, type: voltage-source, plus: hv, minus: gnd, volts: %g}
