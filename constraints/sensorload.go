@@ -142,9 +142,9 @@ func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
 
 // temperature reads a temperature in °C: a plain number (85, -20, 25.5).
 func (d *decoder) temperature(n *yaml.Node, path, ctx string) (float64, bool) {
-	v, ok := d.value(n, path, ctx, eseries.NoUnit)
+	v, ok := d.number(n, path, ctx, eseries.NoUnit)
 	if ok && !(v > -sensors.ZeroCelsius && v < 1e4) {
-		d.errorf(n, path, "%s: %s °C is not a temperature a circuit meets", ctx, n.Value)
+		d.errorf(n, path, "%s: %s °C is not a temperature a circuit meets", ctx, eseries.Clip(n.Value))
 		return 0, false
 	}
 	return v, ok
