@@ -1280,6 +1280,9 @@ func (d *decoder) crossCheck() {
 	d.expandCurves()
 	t.addHiddenConditions()
 	d.checkSensors()
+	if len(d.errs) == 0 {
+		d.checkSensorRanges()
+	}
 	if len(d.errs) > 0 {
 		return
 	}
