@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"io/fs"
+	"math"
 	"os"
 	"path/filepath"
 	"slices"
@@ -311,7 +312,7 @@ func (d *decoder) prescan(n *yaml.Node, depth int) {
 		return
 	}
 	if n.Kind == yaml.AliasNode {
-		d.errorf(n, "", "YAML aliases (*%s) are not supported in templates; write the value out", n.Value)
+		d.errorf(n, "", "YAML aliases (*%s) are not supported in templates; write the value out", eseries.Clip(n.Value))
 		return
 	}
 	for _, c := range n.Content {
@@ -338,7 +339,7 @@ func describe(n *yaml.Node) string {
 		case "!!int", "!!float":
 			return "the number " + n.Value
 		}
-		return strconv.Quote(n.Value)
+		return eseries.Quote(n.Value)
 	}
 	return "something else"
 }
@@ -381,7 +382,7 @@ func (d *decoder) fields(n *yaml.Node, path, ctx string, allowed []string) (map[
 			d.errorf(k, path, "%sexpected a key name, got %s", pre, describe(k))
 			continue
 		}
-		name := k.Value
+		name := eseries.Clip(k.Value)
 		kp := joinKey(path, name)
 		if prev, dup := byName[name]; dup {
 			d.errorf(k, kp, "%skey %q appears twice (first on line %d)", pre, name, prev.key.Line)
@@ -420,6 +421,10 @@ func (d *decoder) expectList(n *yaml.Node, path, ctx string) bool {
 	return false
 }
 
+// MaxName is the longest name, in characters, of a part, node or
+// condition: names appear in every table and message.
+const MaxName = 64
+
 // name reads a name: a non-empty scalar without spaces or control characters,
 // since names appear unquoted in labels such as "voltage a-b".
 func (d *decoder) name(n *yaml.Node, path, ctx string) (string, bool) {
@@ -432,14 +437,52 @@ func (d *decoder) name(n *yaml.Node, path, ctx string) (string, bool) {
 		return "", false
 	}
 	if strings.IndexFunc(n.Value, func(r rune) bool { return unicode.IsSpace(r) || unicode.IsControl(r) }) >= 0 {
-		d.errorf(n, path, "%s: name %q contains a space; names are single words such as vout or R1", ctx, n.Value)
+		d.errorf(n, path, "%s: name %s contains a space; names are single words such as vout or R1", ctx, eseries.Quote(n.Value))
+		return "", false
+	}
+	if l := utf8.RuneCountInString(n.Value); l > MaxName {
+		d.errorf(n, path, "%s: name %s is %d characters long; names are short words such as vout or R1 (at most %d)", ctx, eseries.Quote(n.Value), l, MaxName)
 		return "", false
 	}
 	return n.Value, true
 }
 
-// value reads a number in the given unit with eseries.ParseAs.
+// Magnitudes a value may have (other than 0): no part, source, limit or
+// goal of a circuit lies outside 1e-30 … 1e30 of its unit (common practice,
+// no source; the SI prefixes end at quecto, 1e-30, and quetta, 1e30, from
+// memory), and
+// keeping inside leaves the solver's arithmetic far from float64's ends
+// (2.2e-308 … 1.8e308), so that products, powers and relative errors stay
+// finite and distinct.
+const (
+	MinMagnitude = 1e-30
+	MaxMagnitude = 1e30
+)
+
+// value reads a number in the given unit with eseries.ParseAs, refusing
+// magnitudes outside MinMagnitude … MaxMagnitude.
 func (d *decoder) value(n *yaml.Node, path, ctx string, unit eseries.Unit) (float64, bool) {
+	v, ok := d.number(n, path, ctx, unit)
+	if !ok {
+		return 0, false
+	}
+	switch a := math.Abs(v); {
+	case a != 0 && a < MinMagnitude:
+		hint := "write the value in its real size"
+		if strings.HasSuffix(path, ".equals") || strings.Contains(path, ".curve") {
+			hint = "for a goal of zero write 0 with an absolute tolerance such as 1m"
+		}
+		d.errorf(n, path, "%s: %s is below 1e-30 in size, smaller than any circuit quantity ohmfit computes with; %s", ctx, eseries.Clip(n.Value), hint)
+		return 0, false
+	case a > MaxMagnitude:
+		d.errorf(n, path, "%s: %s is above 1e30 in size, larger than any circuit quantity ohmfit computes with; check the exponent", ctx, eseries.Clip(n.Value))
+		return 0, false
+	}
+	return v, true
+}
+
+// number reads a number in the given unit with eseries.ParseAs.
+func (d *decoder) number(n *yaml.Node, path, ctx string, unit eseries.Unit) (float64, bool) {
 	if n.Kind != yaml.ScalarNode || isNull(n) {
 		d.errorf(n, path, "%s: expected a value such as %s, got %s", ctx, exampleValue(unit), describe(n))
 		return 0, false
@@ -474,7 +517,7 @@ func (d *decoder) positive(n *yaml.Node, path, ctx string, unit eseries.Unit) (f
 		if unit == eseries.Ohm && v == 0 {
 			hint = "; a 0 Ω part is a wire: join its two nodes instead"
 		}
-		d.errorf(n, path, "%s: must be positive, got %s%s", ctx, n.Value, hint)
+		d.errorf(n, path, "%s: must be positive, got %s%s", ctx, eseries.Clip(n.Value), hint)
 		return 0, false
 	}
 	return v, ok
@@ -559,7 +602,7 @@ func (d *decoder) version(root *yaml.Node) bool {
 			return true
 		}
 		if v.Kind == yaml.ScalarNode && v.ShortTag() == "!!int" {
-			d.errorf(v, "ohmfit", "unsupported schema version %s; this ohmfit reads version %d", v.Value, SchemaVersion)
+			d.errorf(v, "ohmfit", "unsupported schema version %s; this ohmfit reads version %d", eseries.Clip(v.Value), SchemaVersion)
 		} else {
 			d.errorf(v, "ohmfit", "ohmfit: expected the schema version %d, got %s", SchemaVersion, describe(v))
 		}
@@ -650,7 +693,7 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 		}
 	}
 	if nameNode != nil && nameNode.Kind == yaml.ScalarNode && nameNode.Value != "" {
-		ctx = fmt.Sprintf("part %q", nameNode.Value)
+		ctx = "part " + eseries.Quote(nameNode.Value)
 	}
 	if typeNode == nil {
 		d.missingf(n, joinKey(path, "type"), "%s: missing key \"type\" (one of %s)", ctx, strings.Join(partTypeNames(), ", "))
@@ -883,10 +926,10 @@ func (d *decoder) target(n *yaml.Node, path string, i int) {
 		if lo.val.Line > hi.val.Line || (lo.val.Line == hi.val.Line && lo.val.Column > hi.val.Column) {
 			at, key = lo.val, "min"
 		}
-		d.errorf(at, joinKey(path, key), "%s: min (%s) is above max (%s); swap them", ctx, lo.val.Value, hi.val.Value)
+		d.errorf(at, joinKey(path, key), "%s: min (%s) is above max (%s); swap them", ctx, eseries.Clip(lo.val.Value), eseries.Clip(hi.val.Value))
 	}
 	if tg.HasEquals && ((tg.HasMin && tg.Equals < tg.Min) || (tg.HasMax && tg.Equals > tg.Max)) {
-		d.errorf(byName["equals"].val, joinKey(path, "equals"), "%s: equals (%s) lies outside min..max, so no design could meet it", ctx, byName["equals"].val.Value)
+		d.errorf(byName["equals"].val, joinKey(path, "equals"), "%s: equals (%s) lies outside min..max, so no design could meet it", ctx, eseries.Clip(byName["equals"].val.Value))
 	}
 	if e, ok := byName["when"]; ok {
 		wpath := joinKey(path, "when")
@@ -914,7 +957,7 @@ func (d *decoder) tolerance(n *yaml.Node, path, ctx string, unit eseries.Unit, t
 		if q, err := eseries.Parse(n.Value); err == nil && q.Unit == eseries.Percent {
 			tg.Tolerance, tg.TolRelative = q.Value, true
 			if q.Value <= 0 {
-				d.errorf(n, path, "%s: must be positive, got %s", ctx, n.Value)
+				d.errorf(n, path, "%s: must be positive, got %s", ctx, eseries.Clip(n.Value))
 			} else if tg.HasEquals && tg.Equals == 0 {
 				d.errorf(n, path, "%s: a percentage of equals: 0 is zero; give an absolute tolerance such as 5m", ctx)
 			}
@@ -1073,7 +1116,7 @@ func (d *decoder) series(c *Choice, n *yaml.Node, path, ctx string) {
 		if seriesLike(n.Value) {
 			s, err := eseries.Lookup(n.Value)
 			if err != nil {
-				d.wrapf(n, path, err, "%s: unknown series %q%s; series are %s", ctx, n.Value,
+				d.wrapf(n, path, err, "%s: unknown series %s%s; series are %s", ctx, eseries.Quote(n.Value),
 					suggest(n.Value, eseries.Names()), strings.Join(eseries.Names(), " "))
 				return
 			}
@@ -1100,7 +1143,7 @@ func (d *decoder) stockFile(n *yaml.Node, path, ctx string) ([]float64, string, 
 	data, rerr := readFile(file)
 	if rerr != nil {
 		if errors.Is(rerr.Err, fs.ErrNotExist) {
-			d.wrapf(n, path, rerr.Err, "%s: no series or stock file named %q%s", ctx, n.Value, suggest(n.Value, eseries.Names()))
+			d.wrapf(n, path, rerr.Err, "%s: no series or stock file named %s%s", ctx, eseries.Quote(n.Value), suggest(n.Value, eseries.Names()))
 		} else {
 			d.wrapf(n, path, rerr, "%s: stock file %s: %s", ctx, file, rerr.Msg)
 		}
@@ -1126,7 +1169,10 @@ func (d *decoder) stockFile(n *yaml.Node, path, ctx string) ([]float64, string, 
 			return fail(strings.TrimPrefix(err.Error(), "eseries: "), err)
 		}
 		if v <= 0 {
-			return fail(fmt.Sprintf("stock value %s is not positive", text), nil)
+			return fail(fmt.Sprintf("stock value %s is not positive", eseries.Clip(text)), nil)
+		}
+		if v < MinMagnitude || v > MaxMagnitude {
+			return fail(fmt.Sprintf("stock value %s lies outside 1e-30 … 1e30 Ω, the range of any resistor", eseries.Clip(text)), nil)
 		}
 		vals = append(vals, v)
 	}
@@ -1214,7 +1260,7 @@ func (d *decoder) rank(n *yaml.Node) {
 		case k < 0:
 			d.errorf(it, path, "rank: expected one of %s, got %s", strings.Join(rankNames, ", "), describe(it))
 		case slices.Contains(keys, RankKey(k)):
-			d.errorf(it, path, "rank: %q appears twice", it.Value)
+			d.errorf(it, path, "rank: %s appears twice", eseries.Quote(it.Value))
 		default:
 			keys = append(keys, RankKey(k))
 		}
@@ -1234,6 +1280,9 @@ func (d *decoder) crossCheck() {
 	d.expandCurves()
 	t.addHiddenConditions()
 	d.checkSensors()
+	if len(d.errs) == 0 {
+		d.checkSensorRanges()
+	}
 	if len(d.errs) > 0 {
 		return
 	}

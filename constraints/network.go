@@ -3,9 +3,11 @@ package constraints
 import (
 	"errors"
 	"fmt"
+	"math"
 	"slices"
 	"strings"
 
+	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/ohmfit/ohmfit/solver"
 )
 
@@ -39,6 +41,9 @@ func (t *Template) NetworkError(err error) *Error {
 		du *solver.DuplicatePartError
 		pe *solver.PartError
 		ve *solver.ValueError
+		se *solver.SingularError
+		ic *solver.IllConditionedError
+		oe *solver.OverflowError
 	)
 	switch {
 	case errors.As(err, &fl):
@@ -100,8 +105,93 @@ func (t *Template) NetworkError(err error) *Error {
 		}
 	case errors.As(err, &ve):
 		at(ve.Part)
+	case errors.As(err, &se):
+		// A pivot lost where the graph checks saw none: values so far apart
+		// that one swamps another in floating point.
+		if se.Node != "" {
+			parts := t.partsOn([]string{se.Node})
+			at(parts...)
+			e.Msg += fmt.Sprintf("; the values of %s (at node %s) are too many decades apart to solve together: check their exponents",
+				eseries.List(parts, ", "), se.Node)
+		} else {
+			at(se.Part)
+			e.Msg += fmt.Sprintf("; check the values around %s for exponents off by many decades", se.Part)
+		}
+	case errors.As(err, &ic):
+		if p, ok := t.outlier(); ok {
+			e.Line, e.Col = p.Pos.Line, p.Pos.Col
+			e.Msg += fmt.Sprintf("; %s (%s) is the value farthest from the rest", p.Name, eseries.FormatUnit(p.Value, eseries.Ohm))
+		}
+	case errors.As(err, &oe):
+		switch {
+		case oe.Part != "":
+			at(oe.Part)
+		case oe.Node != "":
+			at(t.partsOn([]string{oe.Node})...)
+		default:
+			if p, ok := t.largestSource(); ok {
+				e.Line, e.Col = p.Pos.Line, p.Pos.Col
+				e.Msg += fmt.Sprintf("; %s (%g) is the largest source", p.Name, p.Value)
+			}
+		}
 	}
 	return e
+}
+
+// ConditionError is NetworkError for a failure in condition ci, naming the
+// condition when the template has more than one the user can see.
+func (t *Template) ConditionError(ci int, err error) *Error {
+	e := t.NetworkError(err)
+	if e == nil {
+		return nil
+	}
+	visible := 0
+	for _, c := range t.Conditions {
+		if !c.Hidden {
+			visible++
+		}
+	}
+	if ci >= 0 && ci < len(t.Conditions) && (visible > 1 || t.Conditions[ci].Hidden) {
+		e.Msg = fmt.Sprintf("condition %q: %s", t.Conditions[ci].Name, e.Msg)
+	}
+	return e
+}
+
+// outlier returns the fixed resistor whose value lies farthest, in
+// decades, from the geometric mean of the fixed resistors, when that is
+// more than three decades: a spread that alone explains a lost pivot.
+func (t *Template) outlier() (PartSpec, bool) {
+	var sum float64
+	var rs []PartSpec
+	for _, p := range t.Parts {
+		if p.Kind == solver.Resistor && !p.Free && p.Value > 0 {
+			sum += math.Log10(p.Value)
+			rs = append(rs, p)
+		}
+	}
+	if len(rs) == 0 {
+		return PartSpec{}, false
+	}
+	mean := sum / float64(len(rs))
+	best := rs[0]
+	for _, p := range rs[1:] {
+		if math.Abs(math.Log10(p.Value)-mean) > math.Abs(math.Log10(best.Value)-mean) {
+			best = p
+		}
+	}
+	return best, math.Abs(math.Log10(best.Value)-mean) > 3
+}
+
+// largestSource returns the independent source of largest magnitude.
+func (t *Template) largestSource() (PartSpec, bool) {
+	var best PartSpec
+	found := false
+	for _, p := range t.Parts {
+		if (p.Kind == solver.VoltageSource || p.Kind == solver.CurrentSource) && (!found || math.Abs(p.Value) > math.Abs(best.Value)) {
+			best, found = p, true
+		}
+	}
+	return best, found
 }
 
 // partsOn returns, in part order, the names of the parts with a terminal on

@@ -103,7 +103,11 @@ func TestNetworkErrorPlaces(t *testing.T) {
 		{&solver.DuplicatePartError{Name: "R2"}, `net.yaml: duplicate part name "R2"; give each part its own name`},
 		{&solver.PartError{Index: 1, Name: "R2", Reason: "terminal to has no node"}, "net.yaml:4:5: part R2: terminal to has no node"},
 		{&solver.ValueError{Part: "R1", Kind: solver.Resistor, Value: 0}, "net.yaml:3:5: resistor R1 has unusable resistance 0"},
-		{&solver.IllConditionedError{Cond: 1e20}, "net.yaml: network is ill-conditioned"},
+		{&solver.IllConditionedError{Cond: 1e20}, "net.yaml: network is ill-conditioned"}, // equal values: no part to blame
+		{&solver.SingularError{Unknown: "voltage of node a", Node: "a"}, "net.yaml:3:5: singular network: no pivot for the voltage of node a; the values of R1, R2 (at node a) are too many decades apart"},
+		{&solver.SingularError{Unknown: "current of voltage source R2", Part: "R2"}, "net.yaml:4:5: singular network: no pivot for the current of voltage source R2; check the values around R2"},
+		{&solver.OverflowError{Quantity: "power of resistor R2", Part: "R2"}, "net.yaml:4:5: the power of resistor R2 is too large to compute"},
+		{&solver.OverflowError{Quantity: "voltage of node a", Node: "a"}, "net.yaml:3:5: the voltage of node a is too large to compute"},
 	} {
 		if got := tpl.NetworkError(c.err).Error(); !strings.HasPrefix(got, c.want) {
 			t.Errorf("got  %s\nwant %s", got, c.want)

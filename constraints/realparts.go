@@ -15,28 +15,50 @@ import (
 // `tolerance`, `tcr` and `package` on parts and in `choose`,
 // `limits.max_package` and the `ambient` temperature range.
 
-// ParseTCR reads a temperature coefficient: "100ppm", "100 ppm/K",
-// "50ppm/°C" or "0.01%/°C". It returns the coefficient per °C (100ppm gives
-// 1e-4). A bare number is refused: the unit is what tells ppm from percent.
+// ParseTCR reads a temperature coefficient: "100ppm", "±100 ppm/K",
+// "50ppm/°C", "0.01%/°C", or 0. It returns the coefficient's size per °C
+// (100ppm gives 1e-4). A bare number other than 0 is refused: the unit is
+// what tells ppm from percent.
+//
+// A TCR is used as the band a datasheet states (±100 ppm/K): the value may
+// drift either way by that much. A negative coefficient ("-100ppm": some
+// thick-film and carbon parts fall with temperature) is therefore read as
+// the band of its size, which contains it; the worst case is then
+// conservative rather than wrong.
 func ParseTCR(text string) (float64, error) {
 	s := strings.TrimSpace(text)
+	if s == "0" || s == "±0" || s == "+0" || s == "-0" {
+		return 0, nil // no unit needed: zero is zero in ppm and in percent
+	}
 	for _, suf := range []string{"/°C", "/ºC", "/degC", "/C", "/K"} {
 		if rest, ok := strings.CutSuffix(s, suf); ok {
 			s = strings.TrimSpace(rest)
 			break
 		}
 	}
+	for _, sign := range []string{"±", "+/-", "+-", "-", "+"} {
+		if rest, ok := strings.CutPrefix(s, sign); ok {
+			s = strings.TrimSpace(rest)
+			break
+		}
+	}
 	if rest, ok := strings.CutSuffix(strings.ToLower(s), "ppm"); ok {
 		v, err := strconv.ParseFloat(strings.TrimSpace(rest), 64)
-		if err != nil || v < 0 || v > 1e5 {
-			return 0, fmt.Errorf("cannot read %q as a temperature coefficient such as 100ppm", text)
+		if err != nil || !(v >= 0) {
+			return 0, fmt.Errorf("cannot read %s as a temperature coefficient such as 100ppm", eseries.Quote(text))
+		}
+		if v > 1e5 {
+			return 0, fmt.Errorf("%s is above 100000 ppm/°C (10 %%/°C), far beyond any resistor; write it like 100ppm", eseries.Quote(text))
 		}
 		return v * 1e-6, nil
 	}
-	if q, err := eseries.Parse(s); err == nil && q.Unit == eseries.Percent && q.Value >= 0 && q.Value <= 0.1 {
+	if q, err := eseries.Parse(s); err == nil && q.Unit == eseries.Percent {
+		if !(q.Value >= 0 && q.Value <= 0.1) {
+			return 0, fmt.Errorf("%s is above 10 %%/°C, far beyond any resistor; write it like 0.01%%/°C", eseries.Quote(text))
+		}
 		return q.Value, nil
 	}
-	return 0, fmt.Errorf("cannot read %q as a temperature coefficient; write it like 100ppm or 0.01%%/°C", text)
+	return 0, fmt.Errorf("cannot read %s as a temperature coefficient; write it like 100ppm or 0.01%%/°C", eseries.Quote(text))
 }
 
 // realPart reads `tolerance`, `tcr` and `package` of a part.
@@ -53,14 +75,14 @@ func (d *decoder) realPart(p *PartSpec, byName map[string]entry, path, ctx strin
 		}
 		if q, err := eseries.Parse(e.val.Value); e.val.Kind == yaml.ScalarNode && err == nil && q.Unit == eseries.Percent {
 			if q.Value <= 0 || q.Value >= 1 {
-				d.errorf(e.val, tp, "%s: must be above 0%% and below 100%%, got %s", tctx, e.val.Value)
+				d.errorf(e.val, tp, "%s: must be above 0%% and below 100%%, got %s", tctx, eseries.Clip(e.val.Value))
 			} else {
 				p.Tolerance, p.TolRelative = q.Value, true
 			}
 		} else if v, ok := d.positive(e.val, tp, tctx, unit); ok {
 			p.Tolerance = v
 			if p.Kind == solver.Resistor && p.Value > 0 && v >= p.Value {
-				d.errorf(e.val, tp, "%s: ±%s is as large as the value itself", tctx, e.val.Value)
+				d.errorf(e.val, tp, "%s: ±%s is as large as the value itself", tctx, eseries.Clip(e.val.Value))
 			}
 		}
 	}
@@ -86,7 +108,7 @@ func (d *decoder) realChoice(c *Choice, byName map[string]entry, path, ctx strin
 		case e.val.Kind != yaml.ScalarNode || err != nil || q.Unit != eseries.Percent:
 			d.errorf(e.val, tp, "%s: expected a percentage such as 1%%, got %s", tctx, describe(e.val))
 		case q.Value <= 0 || q.Value >= 1:
-			d.errorf(e.val, tp, "%s: must be above 0%% and below 100%%, got %s", tctx, e.val.Value)
+			d.errorf(e.val, tp, "%s: must be above 0%% and below 100%%, got %s", tctx, eseries.Clip(e.val.Value))
 		default:
 			c.Tolerance = q.Value
 		}

@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"strings"
 
 	"github.com/ohmfit/ohmfit/solver"
 )
@@ -219,10 +218,12 @@ func Compile(t *Template) (*Problem, error) {
 // trial solves every condition once with each free position at the
 // geometric middle of its range: values off by many decades (a source of
 // 1e300 V) overflow there too, and are better refused now, with the
-// solver's own explanation, than turned into infinite powers later.
+// solver's own explanation at the part at fault, than turned into infinite
+// powers later. A network without free parts has only this one answer, so
+// any failure to solve it is refused here.
 func (p *Problem) trial() error {
 	t := p.Template
-	for ci, cond := range t.Conditions {
+	for ci := range t.Conditions {
 		c, err := t.ConditionCircuit(ci)
 		if err != nil {
 			return err
@@ -232,9 +233,11 @@ func (p *Problem) trial() error {
 			c.Parts[i].Value = math.Sqrt(ch.Min * ch.Max)
 		}
 		if _, err := solver.Analyze(c); err != nil {
+			// An overflow at the middle of the ranges is one everywhere; any
+			// failure of a network without free parts is its only answer.
 			var oe *solver.OverflowError
-			if errors.As(err, &oe) {
-				return fmt.Errorf("constraints: condition %q: %s", cond.Name, strings.TrimPrefix(err.Error(), "solver: "))
+			if errors.As(err, &oe) || len(p.Free) == 0 {
+				return t.ConditionError(ci, err)
 			}
 		}
 	}

@@ -46,7 +46,8 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 		case hasR && hasB:
 			r, ok1 := d.positive(r25.val, joinKey(path, "r25"), label(ctx, "r25"), eseries.Ohm)
 			b, ok2 := d.positive(beta.val, joinKey(path, "beta"), label(ctx, "beta"), eseries.NoUnit)
-			if !ok1 || !ok2 {
+			if !ok1 || !ok2 || !d.within(r25.val, joinKey(path, "r25"), label(ctx, "r25"), r, r25Range) ||
+				!d.within(beta.val, joinKey(path, "beta"), label(ctx, "beta"), b, betaRange) {
 				return false
 			}
 			p.Sensor = sensors.Beta{R25: r, Beta: b}
@@ -61,7 +62,7 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 			return false
 		}
 		r, ok := d.positive(r0.val, joinKey(path, "r0"), label(ctx, "r0"), eseries.Ohm)
-		if !ok {
+		if !ok || !d.within(r0.val, joinKey(path, "r0"), label(ctx, "r0"), r, r0Range) {
 			return false
 		}
 		m := sensors.IEC60751(r)
@@ -81,6 +82,71 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 	}
 	p.Value = v
 	return true
+}
+
+// paramRange is the usual range of a sensor parameter, for refusing a
+// value no real part has (a typo, or the wrong unit).
+type paramRange struct {
+	lo, hi float64
+	unit   eseries.Unit
+	what   string // what the range is, for the message
+}
+
+// Usual ranges of sensor parameters (common practice, no source): NTC
+// datasheets give B from about 2000 to 5000 K and R25 from 100 Ω to 1 MΩ;
+// platinum sensors are Pt10 to Pt10000. The bounds leave a margin.
+var (
+	betaRange = paramRange{1000, 10000, eseries.NoUnit, "K, the usual range of an NTC's B constant (common practice, no source)"}
+	r25Range  = paramRange{1, 100e6, eseries.Ohm, "Ω, the usual range of an NTC's resistance at 25 °C (common practice, no source)"}
+	r0Range   = paramRange{1, 100e3, eseries.Ohm, "Ω, the usual range of a platinum sensor's resistance at 0 °C, Pt10 to Pt10000 (common practice, no source)"}
+)
+
+// within reports v inside r, reporting it at n otherwise.
+func (d *decoder) within(n *yaml.Node, path, ctx string, v float64, r paramRange) bool {
+	if v >= r.lo && v <= r.hi {
+		return true
+	}
+	lo, hi := eseries.Format(r.lo), eseries.Format(r.hi)
+	if r.unit == eseries.NoUnit {
+		lo, hi = strconv.FormatFloat(r.lo, 'g', -1, 64), strconv.FormatFloat(r.hi, 'g', -1, 64)
+	}
+	d.errorf(n, path, "%s: %s lies outside %s … %s %s; check the value and its unit", ctx, eseries.Clip(n.Value), lo, hi, r.what)
+	return false
+}
+
+// checkSensorRanges refuses a condition whose temperature lies outside the
+// range of a sensor part's model (an RTD at −250 °C, an NTC at −270 °C),
+// at the condition (or the target whose derivative added it).
+func (d *decoder) checkSensorRanges() {
+	t := d.t
+	for _, c := range t.Conditions {
+		for _, p := range t.Parts {
+			if p.Sensor == nil {
+				continue
+			}
+			r, err := p.Sensor.Resistance(c.Temperature)
+			if err == nil && r >= MinMagnitude && r <= MaxMagnitude {
+				continue
+			}
+			at := c.Pos
+			what := fmt.Sprintf("condition %q", c.Name)
+			if c.Hidden {
+				for _, tg := range t.Targets {
+					if (tg.Kind == Sensitivity || tg.Kind == Resolution) && math.Abs(math.Abs(c.Temperature-tg.At)-HalfStep) < 1e-9 {
+						at, what = tg.Pos, fmt.Sprintf("the %s target at %g °C", tg.Kind, tg.At)
+						break
+					}
+				}
+			}
+			why := fmt.Sprintf("its model gives no usable resistance at %g °C", c.Temperature)
+			if err != nil {
+				why = strings.TrimPrefix(strings.TrimPrefix(err.Error(), sensors.ErrRange.Error()+": "), "sensors: ")
+			}
+			d.errorf(&yaml.Node{Line: at.Line, Column: at.Col}, "conditions",
+				"%s: part %q: %s; keep the temperatures within the sensor's range", what, p.Name, why)
+			return
+		}
+	}
 }
 
 // numbers reads a list of exactly k plain numbers.
@@ -142,9 +208,9 @@ func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
 
 // temperature reads a temperature in °C: a plain number (85, -20, 25.5).
 func (d *decoder) temperature(n *yaml.Node, path, ctx string) (float64, bool) {
-	v, ok := d.value(n, path, ctx, eseries.NoUnit)
+	v, ok := d.number(n, path, ctx, eseries.NoUnit)
 	if ok && !(v > -sensors.ZeroCelsius && v < 1e4) {
-		d.errorf(n, path, "%s: %s °C is not a temperature a circuit meets", ctx, n.Value)
+		d.errorf(n, path, "%s: %s °C is not a temperature a circuit meets", ctx, eseries.Clip(n.Value))
 		return 0, false
 	}
 	return v, ok

@@ -18,7 +18,9 @@ func Format(v float64) string { return FormatSig(v, 4) }
 
 // FormatSig is Format with sig significant digits; sig is clamped to 1..17
 // (17 digits always suffice to tell two float64 apart). Prefixes run from p
-// to G: smaller or larger values keep the end prefix ("0.001p", "1000G").
+// to G: values a little beyond keep the end prefix ("0.001p", "1000G"), and
+// values further out are written with an exponent ("1.5e15", "2e-18"), so
+// that no figure grows into a long row of zeros.
 // NaN and infinities are written "NaN", "Inf" and "-Inf", which Parse refuses.
 func FormatSig(v float64, sig int) string {
 	mant, prefix := engParts(v, sig)
@@ -68,8 +70,19 @@ func engParts(v float64, sig int) (string, string) {
 	digits, exp := sigDigits(v, sig)
 	e3 := floorDiv(exp, 3) * 3
 	e3 = min(max(e3, -12), 9)
+	if pos := exp - e3 + 1; pos > maxWhole || pos < -maxLeadingZeros {
+		return sign + placePoint(digits, 1) + "e" + strconv.Itoa(exp), ""
+	}
 	return sign + placePoint(digits, exp-e3+1), engPrefix[e3]
 }
+
+// Beyond the end prefixes, at most maxWhole digits stand before the point
+// ("1000G") and maxLeadingZeros zeros after it ("0.001p"); further out the
+// exponent form is shorter and easier to read.
+const (
+	maxWhole        = 4
+	maxLeadingZeros = 2
+)
 
 // sigDigits rounds v > 0 to sig significant digits and returns them with
 // the decimal exponent of the first: 4700, 4 -> "4700", 3.

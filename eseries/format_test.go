@@ -33,9 +33,16 @@ func TestFormat(t *testing.T) {
 		{9.9996e-10, "1n"}, // and from pico to nano
 		{4.7e-6, "4.7u"},
 		{1e-12, "1p"},
-		{1e-15, "0.001p"}, // below the smallest prefix
-		{1e12, "1000G"},   // above the largest
-		{1.5e15, "1500000G"},
+		{1e-15, "0.001p"},  // below the smallest prefix
+		{1e12, "1000G"},    // above the largest
+		{1.5e15, "1.5e15"}, // far above: an exponent, not a row of zeros
+		{9999e9, "9999G"},  // the last that keeps the prefix
+		{9999.6e9, "1e13"}, // rounding carries into the exponent form
+		{1e21, "1e21"},     // a caution's absurd power
+		{-2.5e-18, "-2.5e-18"},
+		{1e-16, "1e-16"},
+		{5e-324, "4.941e-324"},
+		{1.797e308, "1.797e308"},
 		{12, "12"},
 		{0.001, "1m"},
 		{math.NaN(), "NaN"},
@@ -179,7 +186,8 @@ func TestCodeErrors(t *testing.T) {
 // FuzzRoundTrip checks Parse(Format(v)) within Format's 4 digits, and that
 // Code, where it gives a code, is read back by Parse to the same rounding.
 func FuzzRoundTrip(f *testing.F) {
-	for _, v := range []float64{4700, 0.47, 2.2e6, 1, 999.96, 1e-15, 1e12, -30100, 0.80033, 5e-324} {
+	for _, v := range []float64{4700, 0.47, 2.2e6, 1, 999.96, 1e-15, 1e12, -30100, 0.80033, 5e-324,
+		1e21, 1.5e15, 9999.6e9, 1e-16, -2.5e-18, 1.797e308} {
 		f.Add(v)
 	}
 	f.Fuzz(func(t *testing.T, v float64) {
@@ -197,6 +205,15 @@ func FuzzRoundTrip(f *testing.F) {
 		}
 		if rel := math.Abs(got-v) / math.Abs(v); rel > 5e-4 {
 			t.Fatalf("Parse(Format(%v) = %q) = %v, relative error %g", v, s, got, rel)
+		}
+		// Four digits, a point, a sign and an exponent or prefix: never a
+		// row of zeros ("-1.235e-308" is the longest form).
+		if len(s) > 11 {
+			t.Fatalf("Format(%v) = %q: %d characters", v, s, len(s))
+		}
+		// The form for people reads back the same way, unit and all.
+		if w, err := ParseAs(FormatUnit(v, Watt), Watt); err != nil || w != got {
+			t.Fatalf("Parse(FormatUnit(%v, W) = %q) = %v, %v; want %v", v, FormatUnit(v, Watt), w, err, got)
 		}
 		c, err := Code(v)
 		if v < 0 {

@@ -66,7 +66,7 @@ type ParseError struct {
 
 // Error returns e.g. `eseries: cannot read value "4.7x": unknown suffix "x"`.
 func (e *ParseError) Error() string {
-	return ErrSyntax.Error() + " " + strconv.Quote(e.Text) + ": " + e.Reason
+	return ErrSyntax.Error() + " " + Quote(e.Text) + ": " + e.Reason
 }
 
 // Unwrap returns ErrSyntax, so errors.Is(err, ErrSyntax) holds.
@@ -165,7 +165,7 @@ func parse(text string) (Quantity, string) {
 			return Quantity{}, reason
 		}
 		if rest != "" {
-			return Quantity{}, "a percentage takes a plain number, not " + strconv.Quote(rest)
+			return Quantity{}, "a percentage takes a plain number, not " + Quote(rest)
 		}
 		v, reason := n.value(-2, neg)
 		return Quantity{Value: v, Unit: Percent}, reason
@@ -222,7 +222,7 @@ func parseMagnitude(s string, neg bool) (float64, string) {
 	case '.', 'e', 'E', '+', '-', '0', '1', '2', '3', '4', '5', '6', '7', '8', '9':
 		return 0, "malformed number"
 	}
-	return 0, "unknown suffix " + strconv.Quote(suffix)
+	return 0, "unknown suffix " + Quote(suffix)
 }
 
 // parseCode reads an IEC 60062 code such as 4k7, R47 or 100R. ok reports

@@ -78,7 +78,7 @@ func (sol *Solution) checkFinite() error {
 	bad := func(x float64) bool { return math.IsNaN(x) || math.IsInf(x, 0) }
 	for _, n := range sol.Nodes {
 		if bad(n.Volts) {
-			return &OverflowError{Quantity: "voltage of node " + n.Name}
+			return &OverflowError{Quantity: "voltage of node " + n.Name, Node: n.Name}
 		}
 	}
 	for _, p := range sol.Parts {
@@ -87,7 +87,7 @@ func (sol *Solution) checkFinite() error {
 			x    float64
 		}{{"voltage", p.Volts}, {"current", p.Amps}, {"power", p.Watts}} {
 			if bad(q.x) {
-				return &OverflowError{Quantity: q.what + " of " + p.Kind.String() + " " + p.Name}
+				return &OverflowError{Quantity: q.what + " of " + p.Kind.String() + " " + p.Name, Part: p.Name}
 			}
 		}
 	}

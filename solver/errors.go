@@ -121,6 +121,9 @@ func (e *OpAmpFeedbackError) Unwrap() error { return ErrSingular }
 // usable pivot.
 type SingularError struct {
 	Unknown string // e.g. `node "fb"`, `current of voltage source "V1"`
+	// Node or Part is the unknown's owner: the node of a voltage, the
+	// source or op-amp of a branch current (the other is "").
+	Node, Part string
 }
 
 // Error names the fault in an engineer's words.
@@ -153,6 +156,9 @@ func (e *IllConditionedError) Unwrap() error { return ErrSingular }
 // such result, e.g. "voltage of node out".
 type OverflowError struct {
 	Quantity string
+	// Node or Part is where the quantity belongs (both "" for the total
+	// resistor power).
+	Node, Part string
 }
 
 // Error names the fault in an engineer's words.

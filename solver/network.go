@@ -316,6 +316,20 @@ func (net *Network) UnknownName(i int) string {
 	panic("solver: unknown without an owner") // unreachable: every branch row has a part
 }
 
+// unknownOwner returns the node of voltage unknown i, or the part whose
+// branch current unknown i is.
+func (net *Network) unknownOwner(i int) (node, part string) {
+	if i >= 0 && i < net.nodeUnknownOff {
+		return net.nodes[i+1], ""
+	}
+	for p, r := range net.pRow {
+		if r == i {
+			return "", net.parts[p].Name
+		}
+	}
+	return "", ""
+}
+
 // Edges returns the graph's edges: resistors, then voltage sources, then
 // current sources, then op-amps, each kind in the caller's order.
 func (net *Network) Edges() []Edge { return append([]Edge(nil), net.edges...) }

@@ -200,7 +200,8 @@ func (s *Solver) factor() error {
 			}
 		}
 		if !(pmax > tol) { // also true for NaN
-			return &SingularError{Unknown: s.net.UnknownName(k)}
+			node, part := s.net.unknownOwner(k)
+			return &SingularError{Unknown: s.net.UnknownName(k), Node: node, Part: part}
 		}
 		s.piv[k] = p
 		rk := a[k*n : k*n+n]

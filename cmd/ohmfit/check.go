@@ -203,7 +203,7 @@ func runCheck(o *checkOptions, st *variation.Settings, amb constraints.Ambient) 
 	}
 	cp, err := constraints.Compile(t)
 	if err != nil {
-		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+		return templateError(t, err)
 	}
 	var opts []synth.Option
 	if len(cp.Free) > 0 {
@@ -219,7 +219,7 @@ func runCheck(o *checkOptions, st *variation.Settings, amb constraints.Ambient) 
 	st.KeepSamples = o.Plot != ""
 	rep, err := variation.Check(d, st)
 	if err != nil {
-		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), strings.TrimPrefix(err.Error(), "variation: "))
+		return templateError(t, err)
 	}
 	inputs := inputFiles(t)
 	err = redirect(o.Output, inputs, &o.Out, func() error {

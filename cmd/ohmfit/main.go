@@ -138,7 +138,7 @@ func oneLine(s string) string {
 // trimPackage drops a library's "eseries: " style prefix from a message:
 // users know the program, not its packages.
 func trimPackage(s string) string {
-	for _, p := range []string{"eseries: ", "solver: ", "constraints: ", "synth: "} {
+	for _, p := range []string{"eseries: ", "solver: ", "constraints: ", "synth: ", "variation: "} {
 		if rest, ok := strings.CutPrefix(s, p); ok {
 			return rest
 		}

@@ -25,7 +25,7 @@ type engTicks struct{ unit eseries.Unit }
 
 // Ticks places gonum's default ticks and relabels the major ones.
 func (e engTicks) Ticks(lo, hi float64) []plot.Tick {
-	ts := plot.DefaultTicks{}.Ticks(lo, hi)
+	ts := safeTicks(lo, hi)
 	// Four significant digits, or more when a narrow range would give two
 	// ticks the same label.
 	for sig := 4; sig <= 9; sig++ {
@@ -59,7 +59,7 @@ type percentTicks struct{}
 
 // Ticks places gonum's default ticks and writes them as percentages.
 func (percentTicks) Ticks(lo, hi float64) []plot.Tick {
-	ts := plot.DefaultTicks{}.Ticks(lo, hi)
+	ts := safeTicks(lo, hi)
 	for i := range ts {
 		if ts[i].Label != "" {
 			ts[i].Label = strings.TrimSuffix(strings.TrimRight(fmt.Sprintf("%.4f", 100*ts[i].Value), "0"), ".") + "%"
@@ -228,6 +228,7 @@ func plotHistograms(w io.Writer, path string, t *constraints.Template, rep *vari
 func savePlots(w io.Writer, path string, plots []*plot.Plot, width, height vg.Length) error {
 	grid := make([][]*plot.Plot, len(plots))
 	for i, p := range plots {
+		fixAxes(p)
 		grid[i] = []*plot.Plot{p}
 	}
 	tiles := draw.Tiles{Rows: len(plots), Cols: 1, PadY: vg.Points(12), PadTop: vg.Points(6), PadBottom: vg.Points(6), PadLeft: vg.Points(6), PadRight: vg.Points(12)}

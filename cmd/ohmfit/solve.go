@@ -140,11 +140,7 @@ func analyzeAll(t *constraints.Template) ([]conditionResult, error) {
 		}
 		sol, err := solver.Analyze(c)
 		if err != nil {
-			e := t.NetworkError(err)
-			if len(t.Conditions) > 1 {
-				e.Msg = fmt.Sprintf("condition %q: %s", cond.Name, e.Msg)
-			}
-			return nil, templateError(t, e)
+			return nil, templateError(t, t.ConditionError(ci, err))
 		}
 		results = append(results, conditionResult{name: cond.Name, sol: sol})
 	}

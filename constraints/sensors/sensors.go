@@ -26,12 +26,29 @@ type Beta struct {
 	Beta float64 // B constant, kelvin
 }
 
-// Resistance returns R(T); it needs T above absolute zero.
-func (m Beta) Resistance(celsius float64) (float64, error) {
-	t := celsius + ZeroCelsius
-	if !(t > 0) || math.IsInf(t, 0) {
-		return 0, fmt.Errorf("%w: %g °C is not above absolute zero", ErrRange, celsius)
+// NTCMin and NTCMax bound the temperatures, in °C, at which an NTC
+// thermistor model is used: the operating range of common NTC parts, epoxy
+// to glass-encapsulated (common practice, no source). The Beta equation in
+// particular is a fit around 25 °C and means little far outside it.
+const (
+	NTCMin = -80.0
+	NTCMax = 300.0
+)
+
+// ntcRange refuses a temperature outside NTCMin … NTCMax.
+func ntcRange(celsius float64) error {
+	if !(celsius >= NTCMin && celsius <= NTCMax) {
+		return fmt.Errorf("%w: %g °C is outside the NTC thermistor range %g … %g °C", ErrRange, celsius, NTCMin, NTCMax)
 	}
+	return nil
+}
+
+// Resistance returns R(T) within NTCMin … NTCMax.
+func (m Beta) Resistance(celsius float64) (float64, error) {
+	if err := ntcRange(celsius); err != nil {
+		return 0, err
+	}
+	t := celsius + ZeroCelsius
 	return m.R25 * math.Exp(m.Beta*(1/t-1/(25+ZeroCelsius))), nil
 }
 
@@ -47,14 +64,14 @@ func (m SteinhartHart) Temperature(r float64) float64 {
 	return 1/(m.A+m.B*x+m.C*x*x*x) - ZeroCelsius
 }
 
-// Resistance solves the equation for R: a cubic in x = ln R,
+// Resistance solves the equation for R, within NTCMin … NTCMax: a cubic in x = ln R,
 // C·x³ + B·x + (A − 1/T) = 0, which for a thermistor (B, C ≥ 0) has one real
 // root, given by Cardano's formula.
 func (m SteinhartHart) Resistance(celsius float64) (float64, error) {
-	t := celsius + ZeroCelsius
-	if !(t > 0) || math.IsInf(t, 0) {
-		return 0, fmt.Errorf("%w: %g °C is not above absolute zero", ErrRange, celsius)
+	if err := ntcRange(celsius); err != nil {
+		return 0, err
 	}
+	t := celsius + ZeroCelsius
 	if m.B <= 0 {
 		return 0, fmt.Errorf("sensors: Steinhart–Hart B must be positive, got %g", m.B)
 	}

@@ -153,3 +153,21 @@ func ExampleBeta_Resistance() {
 	fmt.Printf("10k B3950 at 85 °C: %.0f Ω\n", r)
 	// Output: 10k B3950 at 85 °C: 1087 Ω
 }
+
+// An NTC model is not used outside the parts' operating range, nor below
+// absolute zero (where the Beta equation would still give a number).
+func TestNTCRange(t *testing.T) {
+	models := []Model{Beta{R25: 10e3, Beta: 3950}, SteinhartHart{A: 1.129e-3, B: 2.341e-4, C: 8.775e-8}}
+	for _, m := range models {
+		for _, c := range []float64{-270, -273.15, -300, NTCMin - 1, NTCMax + 1, math.NaN(), math.Inf(1)} {
+			if _, err := m.Resistance(c); !errors.Is(err, ErrRange) {
+				t.Errorf("%T at %g °C: %v, want ErrRange", m, c, err)
+			}
+		}
+		for _, c := range []float64{NTCMin, 25, NTCMax} {
+			if r, err := m.Resistance(c); err != nil || !(r > 0) {
+				t.Errorf("%T at %g °C: %g, %v", m, c, r, err)
+			}
+		}
+	}
+}

@@ -153,7 +153,9 @@ type Report struct {
 	hazards []string // the ratings.Watch cautions on the node potentials
 }
 
-// ErrUnsolvable is wrapped when the nominal network cannot be solved.
+// ErrUnsolvable is wrapped when a network with its parts moved within their
+// tolerances cannot be solved. (A nominal network that cannot be solved
+// gives the template's *constraints.Error, at the part at fault.)
 var ErrUnsolvable = errors.New("variation: the network cannot be solved")
 
 // Check analyses the design with real parts.
@@ -182,7 +184,8 @@ func Check(d *Design, set *Settings) (*Report, error) {
 	for ci := range p.Conditions {
 		d.setValues(s, ci, zero)
 		if err := s.Solve(); err != nil {
-			return nil, fmt.Errorf("%w in condition %q: %v", ErrUnsolvable, p.Conditions[ci].Name, err)
+			// The template's terms: the part at fault and what to change.
+			return nil, t.ConditionError(ci, err)
 		}
 		for ti, pr := range p.Probes {
 			if !p.Applies[ti][ci] || p.Conditions[ci].Hidden {
