@@ -60,22 +60,22 @@ func (h *hazards) observe(cond string, nodes []solver.NodeVoltage, parts []solve
 // a machine-readable result).
 func (h *hazards) write(w io.Writer) {
 	if h.volts > ratings.ES1VoltsDC {
-		fmt.Fprintln(w, "ohmfit: "+ratings.HazardCaution(h.voltsWhere, h.volts))
+		cautionLine(w, ratings.HazardCaution(h.voltsWhere, h.volts))
 	}
 	maxV := 0.0
 	for _, p := range ratings.Packages {
 		maxV = math.Max(maxV, p.Volts)
 	}
 	if h.across > maxV {
-		fmt.Fprintf(w, "ohmfit: CAUTION: %s has %s across it, above the working voltage of every package in the table (%s at most); "+
-			"use a high-voltage resistor or several in series, each within its rating, and run `ohmfit check` on the design.\n",
-			h.acrossPart, eseries.FormatUnit(h.across, eseries.Volt), eseries.FormatUnit(maxV, eseries.Volt))
+		cautionLine(w, fmt.Sprintf("%s has %s across it, above the working voltage of every package in the table (%s at most); "+
+			"use a high-voltage resistor or several in series, each within its rating, and run `ohmfit check` on the design.",
+			h.acrossPart, eseries.FormatUnit(h.across, eseries.Volt), eseries.FormatUnit(maxV, eseries.Volt)))
 	}
 	if pkg, max := largestPackage(); h.watts > max {
-		fmt.Fprintf(w, "ohmfit: CAUTION: %s dissipates %s, more than a %s carries at half its rating; "+
+		cautionLine(w, fmt.Sprintf("%s dissipates %s, more than a %s carries at half its rating; "+
 			"no single common chip or leaded resistor is enough. Use a power resistor rated for it with its "+
-			"derating curve, or spread the power, and run `ohmfit check` on the design.\n",
-			h.wattsPart, eseries.FormatUnit(h.watts, eseries.Watt), pkg.Name)
+			"derating curve, or spread the power, and run `ohmfit check` on the design.",
+			h.wattsPart, eseries.FormatUnit(h.watts, eseries.Watt), pkg.Name))
 	}
 }
 

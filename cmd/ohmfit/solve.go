@@ -61,7 +61,7 @@ volts, amps and watts at full precision:
 		},
 	}
 	cmd.Flags().StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table or json")
-	cmd.Flags().StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically; never over an input file)")
+	cmd.Flags().StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically, through a symbolic link to its target; never over an input file)")
 	return cmd
 }
 
@@ -89,7 +89,11 @@ func runSolve(o *solveOptions) error {
 		h.observe(r.name, r.sol.Nodes, r.sol.Parts)
 	}
 	h.write(o.ErrOut)
-	return redirect(o.Output, inputFiles(t), &o.Out, func() error { return renderSolve(o, t, results) })
+	outs, err := newOutputs(inputFiles(t), &o.Out, o.Output)
+	if err != nil {
+		return err
+	}
+	return outs.finish(renderSolve(o, t, results))
 }
 
 // renderSolve writes the analysis in the chosen format.
