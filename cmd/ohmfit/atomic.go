@@ -133,6 +133,9 @@ func stageFile(path string, inputs []string, write func(io.Writer) error) (stage
 		return stagedFile{}, badInputf("cannot write %s: %w", path, trimPathErr(err))
 	}
 	s := stagedFile{path: path, target: target, tmp: tmp.Name()}
+	if stageHook != nil {
+		stageHook(s.tmp)
+	}
 	ok := false
 	defer func() {
 		if !ok {
@@ -156,6 +159,10 @@ func stageFile(path string, inputs []string, write func(io.Writer) error) (stage
 	ok = true
 	return s, nil
 }
+
+// stageHook, when set, runs as each temporary file is created. Only tests
+// set it, to hold a write open while they send the process a signal.
+var stageHook func(tmp string)
 
 // writeTarget is the file a write to path replaces: path itself, or for a
 // symbolic link the file at the end of its chain of links (which need not

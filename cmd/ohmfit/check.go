@@ -229,7 +229,10 @@ func checkDesign(o *checkOptions, outs *outputs, t *constraints.Template, st *va
 	}
 	if n := len(rep.Failures); n > 0 {
 		msg := rep.Failures[0]
-		if n > 1 {
+		switch {
+		case n == 2:
+			msg += " (and 1 more hard limit broken; see the report)"
+		case n > 2:
 			msg += fmt.Sprintf(" (and %d more hard limits broken; see the report)", n-1)
 		}
 		return &exitError{code: ExitNoSolution, err: errors.New(msg)}

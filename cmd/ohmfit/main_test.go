@@ -127,6 +127,11 @@ func TestGolden(t *testing.T) {
 		{"combine-err-parts", []string{"combine", "4.32k", "--max-parts", "4"}, ExitBadInput},
 		{"combine-err-value", []string{"combine", "0"}, ExitBadInput},
 		{"combine-err-code", []string{"combine", "4k7k"}, ExitBadInput},
+		{"combine-err-negative", []string{"combine", "-4.7k"}, ExitBadInput},
+		{"fit-err-top-huge", []string{"fit", "example:feedback", "--top", "99999999999"}, ExitBadInput},
+		{"fit-err-time-unit", []string{"fit", "example:feedback", "--time-limit", "5"}, ExitBadInput},
+		{"fit-err-time-limit", []string{"fit", "example:feedback", "--time-limit", "1ns", "--workers", "1"}, ExitBadInput},
+		{"fit-err-same-output", []string{"fit", "example:divider", "-o", "same.csv", "--bom", "same.csv"}, ExitBadInput},
 
 		// real parts: check, and fit's --check and --robust
 		// A ±3 % band that 1 % parts leave at a corner: the report, and exit 1.
