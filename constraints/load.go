@@ -12,6 +12,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"syscall"
 	"unicode"
 	"unicode/utf8"
 
@@ -62,12 +63,20 @@ func Parse(file string, data []byte) (*Template, error) {
 }
 
 // readFile reads a regular file of at most MaxFileSize bytes. The size is
-// checked before reading so a huge or endless file costs nothing.
+// checked before reading so a huge or endless file costs nothing. The file's
+// type is checked before it is opened, and it is opened without blocking:
+// opening a FIFO (or a device) could otherwise wait forever for a writer.
 func readFile(path string) ([]byte, *Error) {
 	fail := func(msg string, err error) ([]byte, *Error) {
 		return nil, &Error{File: path, Msg: msg, Err: err}
 	}
-	f, err := os.Open(path)
+	notRegular := func(fi fs.FileInfo) ([]byte, *Error) {
+		return fail(fmt.Sprintf("not a regular file (%s); a template or stock file is a plain text file", fileKind(fi.Mode())), nil)
+	}
+	if fi, err := os.Stat(path); err == nil && !fi.Mode().IsRegular() {
+		return notRegular(fi)
+	}
+	f, err := os.OpenFile(path, os.O_RDONLY|syscall.O_NONBLOCK, 0)
 	if err != nil {
 		return fail("cannot open: "+pathCause(err), err)
 	}
@@ -77,7 +86,7 @@ func readFile(path string) ([]byte, *Error) {
 		return fail("cannot read: "+pathCause(err), err)
 	}
 	if !fi.Mode().IsRegular() {
-		return fail("not a regular file", nil)
+		return notRegular(fi) // replaced between the two looks
 	}
 	tooBig := fmt.Sprintf("file is larger than %d MiB; this is not a template", MaxFileSize>>20)
 	if fi.Size() > MaxFileSize {
@@ -92,6 +101,21 @@ func readFile(path string) ([]byte, *Error) {
 		return fail(tooBig, nil)
 	}
 	return data, nil
+}
+
+// fileKind names a file type for a message.
+func fileKind(m fs.FileMode) string {
+	switch {
+	case m.IsDir():
+		return "a directory"
+	case m&fs.ModeNamedPipe != 0:
+		return "a named pipe"
+	case m&fs.ModeSocket != 0:
+		return "a socket"
+	case m&fs.ModeDevice != 0:
+		return "a device"
+	}
+	return "a special file"
 }
 
 // pathCause drops the path an fs error repeats, since Error names the file.
@@ -1149,6 +1173,9 @@ func (d *decoder) stockFile(n *yaml.Node, path, ctx string) ([]float64, string, 
 		}
 		return nil, "", false
 	}
+	// A UTF-8 byte order mark, as some spreadsheets write, is not a value;
+	// templates accept one too.
+	data = bytes.TrimPrefix(data, []byte("\uFEFF"))
 	var vals []float64
 	for i, line := range strings.Split(string(data), "\n") {
 		text, _, _ := strings.Cut(line, "#")

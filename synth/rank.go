@@ -45,8 +45,10 @@ func (r *ranker) compare(a, b *Candidate) int {
 	return 0
 }
 
-// topList keeps the best n candidates seen, in rank order. Its storage is
-// allocated once; offering a candidate does not allocate.
+// topList keeps the best n candidates seen, in rank order. Its storage grows
+// with the candidates kept, never beyond n+1 of them, so asking for a long
+// list costs only what is found; once the list is full, offering a
+// candidate does not allocate.
 type topList struct {
 	r     *ranker
 	n     int
@@ -56,7 +58,7 @@ type topList struct {
 }
 
 func newTopList(r *ranker, n, positions int) *topList {
-	t := &topList{r: r, n: n, items: make([]*Candidate, 0, n+1)}
+	t := &topList{r: r, n: n, items: make([]*Candidate, 0, min(n+1, 64))}
 	// The list allocates at most n+1 candidates over its life: n kept and one spare.
 	t.spare = &Candidate{Opt: make([]int32, positions)}
 	return t

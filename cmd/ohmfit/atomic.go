@@ -5,57 +5,278 @@ import (
 	"bytes"
 	"errors"
 	"io"
+	"io/fs"
 	"os"
+	"os/signal"
 	"path/filepath"
+	"sync"
+	"syscall"
+	"time"
 )
 
-// writeAtomic writes a file through a temporary file in the same directory
-// and a rename, so a reader never sees half a file and a failed write leaves
-// any old file as it was. It refuses to write over any of inputs (the
-// template, stock files): an output path that names an input, by path or as
-// the same file on disk, is an error.
+// outputs is everything one run writes: its standard output and its
+// files (-o, --bom, --plot). They are written all or none. Each file is
+// first written whole to a temporary file beside its target (stage), and
+// standard output goes to a buffer; only when the command has succeeded
+// are the files renamed into place, together, and then the buffer printed
+// (finish). A run that fails on bad input, or is stopped by a signal while
+// writing, leaves no file and prints nothing on standard output.
+//
+// A path that is a symbolic link is written through: its target is
+// replaced, atomically, and the link is kept. No output may name an input
+// of the run, another output, or an existing file that is not a regular
+// file.
+type outputs struct {
+	inputs []string
+	out    *io.Writer // the command's stdout, pointed at buf while it runs
+	saved  io.Writer  // the real standard output
+	toFile string     // -o FILE; "" for standard output
+	buf    bytes.Buffer
+	staged []stagedFile
+}
+
+// stagedFile is an output written to a temporary file, not yet in place.
+type stagedFile struct {
+	path   string // as the user named it, for messages
+	target string // the file the rename replaces (the link's target for a symlink)
+	tmp    string
+}
+
+// newOutputs checks the run's output paths ("" for none) before anything
+// runs, so that a long run is not wasted on an output it may not write, and
+// redirects *out to a buffer. toFile is -o's path.
+func newOutputs(inputs []string, out *io.Writer, toFile string, files ...string) (*outputs, error) {
+	paths := append([]string{toFile}, files...)
+	var named []string
+	for _, p := range paths {
+		if p == "" {
+			continue
+		}
+		if err := outputAllowed(p, inputs); err != nil {
+			return nil, err
+		}
+		named = append(named, p)
+	}
+	if err := outputsDistinct(named); err != nil {
+		return nil, err
+	}
+	o := &outputs{inputs: inputs, out: out, saved: *out, toFile: toFile}
+	*out = &o.buf
+	return o, nil
+}
+
+// stage writes one output file to a temporary file beside its target. The
+// file appears under its name only at finish.
+func (o *outputs) stage(path string, write func(io.Writer) error) error {
+	s, err := stageFile(path, o.inputs, write)
+	if err != nil {
+		return err
+	}
+	o.staged = append(o.staged, s)
+	return nil
+}
+
+// finish ends the run that returned err: on success (or on exit 1, whose
+// result is still a result) it stages -o's file, renames every staged file
+// into place and prints the buffered standard output; on any other error
+// it removes the staged files and prints nothing.
+func (o *outputs) finish(err error) error {
+	*o.out = o.saved
+	var ee *exitError
+	if err != nil && !(errors.As(err, &ee) && ee.code == ExitNoSolution) {
+		discard(o.staged)
+		return err
+	}
+	if o.toFile != "" {
+		if serr := o.stage(o.toFile, func(w io.Writer) error { _, e := w.Write(o.buf.Bytes()); return e }); serr != nil {
+			discard(o.staged)
+			return serr
+		}
+	}
+	if cerr := commit(o.staged); cerr != nil {
+		return cerr
+	}
+	if o.toFile == "" {
+		// A failed write here is seen and reported by run's stdoutWriter.
+		_, _ = o.saved.Write(o.buf.Bytes())
+	}
+	return err
+}
+
+// writeAtomic writes one file as outputs does: through a temporary file
+// and a rename, never over an input, through a symbolic link to its
+// target. A failed write leaves any old file as it was.
 func writeAtomic(path string, inputs []string, write func(io.Writer) error) error {
 	if err := outputAllowed(path, inputs); err != nil {
 		return err
 	}
-	abs, err := filepath.Abs(path)
+	s, err := stageFile(path, inputs, write)
 	if err != nil {
-		return badInputf("%s: %w", path, err)
+		return err
+	}
+	return commit([]stagedFile{s})
+}
+
+// stageFile writes path's future contents to a temporary file in its
+// target's directory, with the target's permissions when it exists.
+func stageFile(path string, inputs []string, write func(io.Writer) error) (stagedFile, error) {
+	target, err := writeTarget(path)
+	if err != nil {
+		return stagedFile{}, err
 	}
 	mode := os.FileMode(0o644)
-	if fi, err := os.Stat(path); err == nil {
+	if fi, err := os.Stat(target); err == nil {
 		mode = fi.Mode().Perm() // replacing a file keeps its permissions
 	}
-	dir := filepath.Dir(abs)
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(abs)+".*.tmp")
+	tmp, err := createTemp(filepath.Dir(target), "."+filepath.Base(target)+".*.tmp")
 	if err != nil {
-		return badInputf("cannot write %s: %w", path, trimPathErr(err))
+		return stagedFile{}, badInputf("cannot write %s: %w", path, trimPathErr(err))
+	}
+	s := stagedFile{path: path, target: target, tmp: tmp.Name()}
+	if stageHook != nil {
+		stageHook(s.tmp)
 	}
 	ok := false
 	defer func() {
 		if !ok {
 			tmp.Close()
-			os.Remove(tmp.Name())
+			discard([]stagedFile{s})
 		}
 	}()
 	bw := bufio.NewWriter(tmp)
 	if err := write(bw); err != nil {
-		return badInputf("cannot write %s: %w", path, err)
+		return s, badInputf("cannot write %s: %w", path, err)
 	}
 	if err := bw.Flush(); err != nil {
-		return badInputf("cannot write %s: %w", path, trimPathErr(err))
+		return s, badInputf("cannot write %s: %w", path, trimPathErr(err))
 	}
 	if err := tmp.Chmod(mode); err != nil {
-		return badInputf("cannot write %s: %w", path, trimPathErr(err))
+		return s, badInputf("cannot write %s: %w", path, trimPathErr(err))
 	}
 	if err := tmp.Close(); err != nil {
-		return badInputf("cannot write %s: %w", path, trimPathErr(err))
-	}
-	if err := os.Rename(tmp.Name(), abs); err != nil {
-		return badInputf("cannot write %s: %w", path, trimPathErr(err))
+		return s, badInputf("cannot write %s: %w", path, trimPathErr(err))
 	}
 	ok = true
+	return s, nil
+}
+
+// stageHook, when set, runs as each temporary file is created. Only tests
+// set it, to hold a write open while they send the process a signal.
+var stageHook func(tmp string)
+
+// writeTarget is the file a write to path replaces: path itself, or for a
+// symbolic link the file at the end of its chain of links (which need not
+// exist yet), as an absolute path.
+func writeTarget(path string) (string, error) {
+	abs, err := filepath.Abs(path)
+	if err != nil {
+		return "", badInputf("%s: %w", path, err)
+	}
+	for range 40 { // the usual limit on a chain of links
+		fi, err := os.Lstat(abs)
+		if err != nil || fi.Mode()&fs.ModeSymlink == 0 {
+			return abs, nil
+		}
+		dest, err := os.Readlink(abs)
+		if err != nil {
+			return "", badInputf("cannot write %s: %w", path, trimPathErr(err))
+		}
+		if !filepath.IsAbs(dest) {
+			dest = filepath.Join(filepath.Dir(abs), dest)
+		}
+		abs = dest
+	}
+	return "", badInputf("cannot write %s: too many symbolic links", path)
+}
+
+// commit renames the staged files into place. It holds the temporary-file
+// lock throughout, so that a signal arriving meanwhile waits until every
+// file is in place: the set lands whole.
+func commit(files []stagedFile) error {
+	temps.Lock()
+	defer temps.Unlock()
+	for i, s := range files {
+		if err := os.Rename(s.tmp, s.target); err != nil {
+			for _, rest := range files[i:] {
+				os.Remove(rest.tmp)
+				temps.drop(rest.tmp)
+			}
+			return badInputf("cannot write %s: %w", s.path, trimPathErr(err))
+		}
+		temps.drop(s.tmp)
+	}
 	return nil
+}
+
+// discard removes staged files that will not be committed.
+func discard(files []stagedFile) {
+	temps.Lock()
+	defer temps.Unlock()
+	for _, s := range files {
+		os.Remove(s.tmp)
+		temps.drop(s.tmp)
+	}
+}
+
+// temps are the temporary files that exist now. While there are any, an
+// interrupt (Ctrl-C) or SIGTERM removes them before the process ends, so
+// that a run stopped while drawing a large plot leaves nothing behind.
+var temps = tempFiles{names: map[string]bool{}}
+
+type tempFiles struct {
+	sync.Mutex
+	names map[string]bool
+	sig   chan os.Signal
+}
+
+// createTemp creates a temporary file and registers it for removal on a
+// signal.
+func createTemp(dir, pattern string) (*os.File, error) {
+	temps.Lock()
+	defer temps.Unlock()
+	f, err := os.CreateTemp(dir, pattern)
+	if err != nil {
+		return nil, err
+	}
+	if len(temps.names) == 0 {
+		temps.sig = make(chan os.Signal, 1)
+		signal.Notify(temps.sig, os.Interrupt, syscall.SIGTERM)
+		go removeOnSignal(temps.sig)
+	}
+	temps.names[f.Name()] = true
+	return f, nil
+}
+
+// drop forgets a temporary file that was renamed or removed; the caller
+// holds the lock. With none left, signals get their usual meaning back.
+func (t *tempFiles) drop(name string) {
+	if !t.names[name] {
+		return
+	}
+	delete(t.names, name)
+	if len(t.names) == 0 {
+		signal.Stop(t.sig)
+		close(t.sig)
+		t.sig = nil
+	}
+}
+
+// removeOnSignal waits for a signal on ch; when one comes it removes every
+// temporary file and ends the process as that signal would have.
+func removeOnSignal(ch chan os.Signal) {
+	sig, ok := <-ch
+	if !ok {
+		return
+	}
+	temps.Lock() // held to the end: no rename may follow
+	for name := range temps.names {
+		os.Remove(name)
+	}
+	signal.Reset(sig)
+	if p, err := os.FindProcess(os.Getpid()); err == nil && p.Signal(sig) == nil {
+		time.Sleep(time.Second) // the signal ends the process meanwhile
+	}
+	os.Exit(int(ExitBadInput))
 }
 
 // trimPathErr drops the temporary file's name from an fs error, keeping
@@ -70,8 +291,7 @@ func trimPathErr(err error) error {
 
 // outputAllowed refuses an output path that names one of inputs (the
 // template, stock files), by path or as the same file on disk, or that
-// exists and is not a regular file. Commands call it before they start, so
-// that a long run is not wasted on an output it may not write.
+// exists and is not a regular file.
 func outputAllowed(path string, inputs []string) error {
 	if path == "" {
 		return badInputf("no output file named")
@@ -97,47 +317,48 @@ func outputAllowed(path string, inputs []string) error {
 	if statErr == nil && !out.Mode().IsRegular() {
 		return badInputf("%s exists and is not a regular file", path)
 	}
-	if fi, err := os.Stat(filepath.Dir(abs)); err != nil || !fi.IsDir() {
+	target, err := writeTarget(path)
+	if err != nil {
+		return err
+	}
+	if fi, err := os.Stat(filepath.Dir(target)); err != nil || !fi.IsDir() {
 		return badInputf("cannot write %s: its directory does not exist", path)
 	}
 	return nil
 }
 
-// redirect runs a command with its standard output captured when path is
-// set, then writes what it printed to path atomically. Nothing is written
-// when the command fails with bad input; a run that found no solution still
-// writes its (empty) result, as stdout would have shown it.
-func redirect(path string, inputs []string, out *io.Writer, run func() error) error {
-	if path == "" {
-		return run()
+// outputsDistinct refuses two outputs that would land on one file: the
+// same path however spelt, one a symbolic link to the other, or two names
+// (hard links) of one file. One of them would silently be lost.
+func outputsDistinct(paths []string) error {
+	type key struct {
+		path string
+		fi   fs.FileInfo
 	}
-	if err := outputAllowed(path, inputs); err != nil {
-		return err
-	}
-	var buf bytes.Buffer
-	saved := *out
-	*out = &buf
-	err := run()
-	*out = saved
-	var ee *exitError
-	if err != nil && !(errors.As(err, &ee) && ee.code == ExitNoSolution) {
-		return err
-	}
-	if werr := writeAtomic(path, inputs, func(w io.Writer) error { _, e := w.Write(buf.Bytes()); return e }); werr != nil {
-		return werr
-	}
-	return err
-}
-
-// outputsAllowed applies outputAllowed to each named output path ("" for
-// none), before a run starts.
-func outputsAllowed(inputs []string, paths ...string) error {
-	for _, p := range paths {
-		if p == "" {
-			continue
-		}
-		if err := outputAllowed(p, inputs); err != nil {
+	keys := make([]key, len(paths))
+	for i, p := range paths {
+		t, err := writeTarget(p)
+		if err != nil {
 			return err
+		}
+		// Resolve links in the directory too, so a/x and b/x with b a link
+		// to a are seen as one file even before x exists.
+		if dir, err := filepath.EvalSymlinks(filepath.Dir(t)); err == nil {
+			t = filepath.Join(dir, filepath.Base(t))
+		}
+		keys[i].path = t
+		keys[i].fi, _ = os.Stat(t)
+	}
+	for i := range keys {
+		for j := range i {
+			same := keys[i].path == keys[j].path ||
+				(keys[i].fi != nil && keys[j].fi != nil && os.SameFile(keys[i].fi, keys[j].fi))
+			switch {
+			case same && paths[i] == paths[j]:
+				return badInputf("%s is named for two outputs; give each output its own file", paths[i])
+			case same:
+				return badInputf("%s and %s are the same file; give each output its own", paths[j], paths[i])
+			}
 		}
 	}
 	return nil

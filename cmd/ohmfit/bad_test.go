@@ -41,7 +41,7 @@ func TestBadInputs(t *testing.T) {
 			}
 			want := ""
 			if first, _, _ := strings.Cut(string(data), "\n"); strings.HasPrefix(first, "# want: ") {
-				want = "ohmfit: " + f + ":" + strings.TrimPrefix(first, "# want: ")
+				want = errorLabel + f + ":" + strings.TrimPrefix(first, "# want: ")
 			} else if !strings.HasPrefix(rel, "raw") {
 				t.Fatalf("first line %q does not start with \"# want: \"", first)
 			}

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"fmt"
 	"io"
 
 	"github.com/ohmfit/ohmfit/constraints"
@@ -60,7 +59,7 @@ func watchSolution(w *ratings.Watch, t *constraints.Template, free []int, opts [
 // with a machine-readable result).
 func writeCautions(out io.Writer, w *ratings.Watch) {
 	for _, c := range w.Cautions() {
-		fmt.Fprintln(out, "ohmfit: "+c)
+		cautionLine(out, c)
 	}
 }
 

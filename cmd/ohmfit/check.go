@@ -18,6 +18,9 @@ import (
 	"github.com/spf13/cobra"
 )
 
+// maxSamples bounds --samples: more would take long and tell nothing new.
+const maxSamples = 10_000_000
+
 // realFlags are the settings of an analysis with real parts, shared by
 // `check` and `fit --check`.
 type realFlags struct {
@@ -31,7 +34,7 @@ type realFlags struct {
 // bindRealFlags adds the analysis flags to a command.
 func bindRealFlags(cmd *cobra.Command, r *realFlags) {
 	f := cmd.Flags()
-	f.IntVar(&r.Samples, "samples", variation.DefaultSamples, "Monte Carlo samples (`N`; 0: none)")
+	countVar(f, &r.Samples, "samples", variation.DefaultSamples, 0, maxSamples, "Monte Carlo samples (`N`, at most 10,000,000; 0: none)")
 	f.Uint64Var(&r.Seed, "seed", 1, "Monte Carlo seed (`N`); the same seed gives the same numbers")
 	f.StringVar(&r.Dist, "dist", "uniform", "`DIST`ribution of each part within its tolerance: uniform, or normal with tolerance = 3σ")
 	f.StringVar(&r.Ambient, "ambient", "", "ambient range in °C as `MIN..MAX` (e.g. -20..70), spreading each resistor by its TCR; overrides the template's ambient")
@@ -43,14 +46,8 @@ func bindRealFlags(cmd *cobra.Command, r *realFlags) {
 func (r *realFlags) settings(cmd *cobra.Command) (*variation.Settings, constraints.Ambient, error) {
 	st := &variation.Settings{Samples: r.Samples, Seed: r.Seed}
 	var amb constraints.Ambient
-	if r.Samples < 0 {
-		return nil, amb, usagef(cmd.CommandPath(), "--samples must be 0 or more, not %d", r.Samples)
-	}
 	if r.Samples == 0 {
 		st.Samples = -1
-	}
-	if r.Samples > 10_000_000 {
-		return nil, amb, usagef(cmd.CommandPath(), "--samples above 10,000,000 would take long and tell nothing new")
 	}
 	switch r.Dist {
 	case "uniform":
@@ -142,8 +139,13 @@ the answer of --rank (default 1) is checked.
 
 FILE is a template file, or example:NAME for a built-in example.
 
-Exit status: 0 done; 1 a part needs a package above --max-package (or the
-template's limits.max_package); 2 bad input.`,
+Exit status, for a script to gate a design on:
+  0  every hard limit (tolerance, min, max) holds over the whole worst-case
+     range, and every part fits its package limit
+  1  a hard limit fails in the worst case, or a part needs a package above
+     --max-package (or the template's limits.max_package); the report is
+     still written, and stderr says what broke ("ohmfit: not met: …")
+  2  bad usage or bad input; nothing is written`,
 		Example: `  # a valued design, with a ±1 % reference and 0 … 70 °C ambient
   ohmfit check my-divider.yaml --ambient 0..70
 
@@ -154,9 +156,6 @@ template's limits.max_package); 2 bad input.`,
 			o.File = args[0]
 			if err := checkFormat(cmd, o.Format, "table", "json"); err != nil {
 				return err
-			}
-			if o.Rank < 1 {
-				return usagef(cmd.CommandPath(), "--rank must be at least 1, not %d", o.Rank)
 			}
 			st, amb, err := o.realFlags.settings(cmd)
 			if err != nil {
@@ -170,10 +169,10 @@ template's limits.max_package); 2 bad input.`,
 	}
 	f := cmd.Flags()
 	f.StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table or json")
-	f.IntVar(&o.Rank, "rank", 1, "for a template with free resistors, which fitted answer to check (`N`)")
+	countVar(f, &o.Rank, "rank", 1, 1, maxListed, "for a template with free resistors, which fitted answer to check (`N`)")
 	f.StringVar(&o.BOM, "bom", "", "also write a bill of materials to `FILE.csv`")
 	f.StringVar(&o.Plot, "plot", "", "also draw the Monte Carlo histograms to `FILE.svg` or FILE.png")
-	f.StringVarP(&o.Output, "output", "o", "", "write the report to `FILE` instead of standard output (atomically; never over an input file)")
+	f.StringVarP(&o.Output, "output", "o", "", "write the report to `FILE` instead of standard output (atomically, through a symbolic link to its target; never over an input file)")
 	bindRealFlags(cmd, &o.realFlags)
 	return cmd
 }
@@ -198,9 +197,15 @@ func runCheck(o *checkOptions, st *variation.Settings, amb constraints.Ambient) 
 	if err != nil {
 		return err
 	}
-	if err := outputsAllowed(inputFiles(t), o.BOM, o.Plot); err != nil {
+	outs, err := newOutputs(inputFiles(t), &o.Out, o.Output, o.BOM, o.Plot)
+	if err != nil {
 		return err
 	}
+	return outs.finish(checkDesign(o, outs, t, st, amb))
+}
+
+// checkDesign fits when needed, analyses and renders, staging the files.
+func checkDesign(o *checkOptions, outs *outputs, t *constraints.Template, st *variation.Settings, amb constraints.Ambient) error {
 	cp, err := constraints.Compile(t)
 	if err != nil {
 		return templateError(t, err)
@@ -221,28 +226,33 @@ func runCheck(o *checkOptions, st *variation.Settings, amb constraints.Ambient) 
 	if err != nil {
 		return templateError(t, err)
 	}
-	inputs := inputFiles(t)
-	err = redirect(o.Output, inputs, &o.Out, func() error {
-		if o.Format == "json" {
-			return writeJSON(o.Out, checkJSON(t, d, rep))
-		}
-		return writeCheckTable(o.Out, t, d, rep)
-	})
+	if o.Format == "json" {
+		err = writeJSON(o.Out, checkJSON(t, d, rep))
+	} else {
+		err = writeCheckTable(o.Out, t, d, rep)
+	}
 	if err != nil {
 		return err
 	}
 	if o.BOM != "" {
-		if err := writeAtomic(o.BOM, inputs, func(w io.Writer) error { return writeBOM(w, d, rep) }); err != nil {
+		if err := outs.stage(o.BOM, func(w io.Writer) error { return writeBOM(w, d, rep) }); err != nil {
 			return err
 		}
 	}
 	if o.Plot != "" {
-		if err := writeAtomic(o.Plot, inputs, func(w io.Writer) error { return plotHistograms(w, o.Plot, t, rep) }); err != nil {
+		if err := outs.stage(o.Plot, func(w io.Writer) error { return plotHistograms(w, o.Plot, t, rep) }); err != nil {
 			return err
 		}
 	}
-	if len(rep.Failures) > 0 {
-		return &exitError{code: ExitNoSolution, err: errors.New(strings.Join(rep.Failures, "; "))}
+	if n := len(rep.Failures); n > 0 {
+		msg := rep.Failures[0]
+		switch {
+		case n == 2:
+			msg += " (and 1 more hard limit broken; see the report)"
+		case n > 2:
+			msg += fmt.Sprintf(" (and %d more hard limits broken; see the report)", n-1)
+		}
+		return &exitError{code: ExitNoSolution, err: errors.New(msg)}
 	}
 	return nil
 }
@@ -278,7 +288,7 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 	if !res.Status.Exhaustive() {
 		proven = " (found by the heuristic, not proven best)"
 	}
-	fmt.Fprintf(o.ErrOut, "ohmfit: %s has resistors to choose; checking fit's answer %d%s: %s\n", t.File, o.Rank, proven, strings.Join(desc, ", "))
+	notef(o.ErrOut, "%s has resistors to choose; checking fit's answer %d%s: %s", t.File, o.Rank, proven, strings.Join(desc, ", "))
 	return sol.Options, nil
 }
 

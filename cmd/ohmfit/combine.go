@@ -48,17 +48,12 @@ JSON output (--format json):
 
   # 1.5 ohm for a current shunt from E12 parts, up to three of them
   ohmfit combine 1R5 --series E12 --min 1 --max 100 --max-parts 3`,
-		Args: argsExactly(1, "one argument, the resistance to make"),
+		Args:        argsExactly(1, "one argument, the resistance to make"),
+		Annotations: map[string]string{negativeArgNote: "a resistance cannot be negative; give VALUE as a positive resistance like 4.7k"},
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Value = args[0]
 			if err := checkFormat(cmd, o.Format, "table", "json"); err != nil {
 				return err
-			}
-			if o.MaxParts < 1 || o.MaxParts > 3 {
-				return usagef(cmd.CommandPath(), "--max-parts must be 1, 2 or 3, not %d", o.MaxParts)
-			}
-			if o.Top < 1 {
-				return usagef(cmd.CommandPath(), "--top must be at least 1, not %d", o.Top)
 			}
 			return runCombine(o)
 		},
@@ -67,8 +62,8 @@ JSON output (--format json):
 	f.StringVar(&o.Series, "series", "E24", "`SERIES` to take parts from (E3 … E192)")
 	f.StringVar(&o.Min, "min", "10", "smallest part to use (`R`)")
 	f.StringVar(&o.Max, "max", "10M", "largest part to use (`R`)")
-	f.IntVar(&o.MaxParts, "max-parts", 2, "most parts to combine (`N`: 1, 2 or 3)")
-	f.IntVar(&o.Top, "top", 10, "how many ways to show (`N`)")
+	countVar(f, &o.MaxParts, "max-parts", 2, 1, 3, "most parts to combine (`N`: 1, 2 or 3)")
+	countVar(f, &o.Top, "top", 10, 1, maxListed, "how many ways to show (`N`, at most 10,000)")
 	f.StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table or json")
 	return cmd
 }

@@ -99,7 +99,12 @@ is the same as ` + "`ohmfit fit`" + `'s. The series defaults to E24 and the valu
 				return err
 			}
 			o.searchOptions.Series = "" // already the template's series
-			return redirect(o.Output, nil, &o.Out, func() error { return runSearch(&o.searchOptions, t) })
+			outs, err := newOutputs(nil, &o.Out, o.Output)
+			if err != nil {
+				return err
+			}
+			o.outs = outs
+			return outs.finish(runSearch(&o.searchOptions, t))
 		},
 	}
 	f := cmd.Flags()

@@ -35,19 +35,20 @@ type searchOptions struct {
 	Out, ErrOut io.Writer
 	ErrIsTTY    bool     // stderr is a terminal: show a progress bar
 	real        *fitReal // fit's real-parts flags; nil for divider and feedback
+	outs        *outputs // where the run's output files are staged
 }
 
 // bindSearchFlags adds the shared search flags to a command.
 func bindSearchFlags(cmd *cobra.Command, o *searchOptions) {
 	f := cmd.Flags()
-	f.IntVar(&o.Top, "top", 10, "how many ranked answers to show (`N`)")
+	countVar(f, &o.Top, "top", 10, 1, maxListed, "how many ranked answers to show (`N`, at most 10,000)")
 	f.StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table, json or csv")
 	f.StringVar(&o.Series, "series", "", "use this `SERIES` (E3 … E192) for every position, overriding the template")
-	f.DurationVar(&o.TimeLimit, "time-limit", 0, "stop after this long (e.g. 30s) and show the best found so far, marked not proven")
-	f.IntVar(&o.Workers, "workers", 0, "goroutines to search with (`N`; 0: one per core); the answer does not depend on it")
+	durationVar(f, &o.TimeLimit, "time-limit", "stop after this long (`D`, e.g. 30s) and show the best found so far, marked not proven")
+	countVar(f, &o.Workers, "workers", 0, 0, maxWorkers, "goroutines to search with (`N`; 0: one per core); the answer does not depend on it")
 	f.StringVar(&o.Method, "method", "auto", "`METHOD`: bound (branch and bound over value boxes, proven best), exhaustive (every row, proven best), heuristic (relax and snap), or auto (branch and bound where its bounds apply, else exhaustive when the space allows)")
 	f.BoolVarP(&o.Quiet, "quiet", "q", false, "no progress bar")
-	f.StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically; never over an input file)")
+	f.StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically, through a symbolic link to its target; never over an input file)")
 	f.StringVar(&o.Tradeoffs, "tradeoffs", "", "also list the trade-off front: every answer with goal error up to `E` (e.g. 1%) that nothing beats on error, power and parts at once")
 }
 
@@ -55,15 +56,6 @@ func bindSearchFlags(cmd *cobra.Command, o *searchOptions) {
 func checkSearchFlags(cmd *cobra.Command, o *searchOptions) error {
 	if err := checkFormat(cmd, o.Format, "table", "json", "csv"); err != nil {
 		return err
-	}
-	if o.Top < 1 {
-		return usagef(cmd.CommandPath(), "--top must be at least 1, not %d", o.Top)
-	}
-	if o.Workers < 0 {
-		return usagef(cmd.CommandPath(), "--workers must be 0 or more, not %d", o.Workers)
-	}
-	if o.TimeLimit < 0 {
-		return usagef(cmd.CommandPath(), "--time-limit must not be negative")
 	}
 	switch o.Method {
 	case "auto", "exhaustive", "bound", "heuristic":
@@ -165,10 +157,12 @@ JSON output (--format json):
 			if err != nil {
 				return err
 			}
-			if err := outputsAllowed(inputFiles(t), o.fitReal.BOM, o.fitReal.Plot); err != nil {
+			outs, err := newOutputs(inputFiles(t), &o.Out, o.Output, o.fitReal.BOM, o.fitReal.Plot)
+			if err != nil {
 				return err
 			}
-			return redirect(o.Output, inputFiles(t), &o.Out, func() error { return runSearch(&o.searchOptions, t) })
+			o.outs = outs
+			return outs.finish(runSearch(&o.searchOptions, t))
 		},
 	}
 	bindSearchFlags(cmd, &o.searchOptions)
@@ -216,7 +210,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 			method = synth.BranchBound{}
 		case rows > synth.DefaultMaxRows && p.Space() <= synth.MaxSpace && set.Shards <= 1:
 			method = synth.Relax{}
-			fmt.Fprintf(o.ErrOut, "ohmfit: %.3g rows is too many to prove the best answer (budget %.3g), and a sweep-wide goal has no box bound; searching heuristically\n", rows, float64(synth.DefaultMaxRows))
+			notef(o.ErrOut, "%.3g rows is too many to prove the best answer (budget %.3g), and a sweep-wide goal has no box bound; searching heuristically", rows, float64(synth.DefaultMaxRows))
 		case set.Shards > 1:
 			set.MaxRows = math.Inf(1)
 		}
@@ -242,11 +236,22 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 		}
 		return err
 	}
+	if len(res.Solutions) == 0 && res.Stats.Evaluated == 0 {
+		// Nothing was looked at: "no candidate meets the hard limits" would
+		// be a claim about candidates never seen.
+		switch res.Status {
+		case synth.TimeLimit:
+			return badInputf("the time limit of %v ran out before any candidate was evaluated, so there is nothing to show; "+
+				"allow more time (--time-limit 10s, say) or leave the limit out", o.TimeLimit)
+		case synth.Interrupted:
+			return badInputf("interrupted before any candidate was evaluated, so there is nothing to show")
+		}
+	}
 	switch res.Status {
 	case synth.Interrupted:
-		fmt.Fprintln(o.ErrOut, "ohmfit: interrupted; showing the best found so far (not proven)")
+		notef(o.ErrOut, "interrupted; showing the best found so far (not proven)")
 	case synth.TimeLimit:
-		fmt.Fprintf(o.ErrOut, "ohmfit: time limit of %v reached; showing the best found so far (not proven)\n", o.TimeLimit)
+		notef(o.ErrOut, "time limit of %v reached; showing the best found so far (not proven)", o.TimeLimit)
 	}
 	if len(res.Solutions) > 0 {
 		writeCautions(o.ErrOut, solutionWatch(p, res.Solutions[0]))

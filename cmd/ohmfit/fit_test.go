@@ -16,6 +16,10 @@ import (
 // test can run it as a real process and send it a real interrupt.
 func TestMain(m *testing.M) {
 	if os.Getenv("OHMFIT_TEST_MAIN") == "1" {
+		if os.Getenv("OHMFIT_TEST_STALL_WRITES") == "1" {
+			// Hold every output write open, as a long plot would.
+			stageHook = func(string) { time.Sleep(time.Hour) }
+		}
 		os.Exit(int(run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr)))
 	}
 	os.Exit(m.Run())

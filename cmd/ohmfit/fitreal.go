@@ -29,18 +29,15 @@ const checkedAnswers = 3
 // bindFitRealFlags adds the real-parts flags to fit.
 func bindFitRealFlags(cmd *cobra.Command, r *fitReal) {
 	f := cmd.Flags()
-	f.BoolVar(&r.Check, "check", false, fmt.Sprintf("also check the top %d answers with real parts (worst case, Monte Carlo, ratings; see `ohmfit help check`)", checkedAnswers))
+	f.BoolVar(&r.Check, "check", false, fmt.Sprintf("also check the top %d answers with real parts (worst case, Monte Carlo, ratings; see ohmfit help check)", checkedAnswers))
 	f.BoolVar(&r.Robust, "robust", false, fmt.Sprintf("rank by worst-case error with real tolerances: re-ranks the %d best answers by nominal error (not proven over the whole space)", variation.RerankPool))
 	f.StringVar(&r.BOM, "bom", "", "write the bill of materials of one answer (see --bom-rank) to `FILE.csv`")
-	f.IntVar(&r.BOMRank, "bom-rank", 1, "the answer (`N`) whose bill of materials --bom writes and --plot highlights")
+	countVar(f, &r.BOMRank, "bom-rank", 1, 1, maxListed, "the answer (`N`) whose bill of materials --bom writes and --plot highlights")
 	f.StringVar(&r.Plot, "plot", "", "draw error against power for the answers to `FILE.svg` or FILE.png")
 }
 
 // validate checks the flags.
 func (r *fitReal) validate(cmd *cobra.Command) error {
-	if r.BOMRank < 1 {
-		return usagef(cmd.CommandPath(), "--bom-rank must be at least 1, not %d", r.BOMRank)
-	}
 	return checkOutputFlags(cmd, r.BOM, r.Plot)
 }
 
@@ -70,7 +67,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result) 
 		if err != nil {
 			return err
 		}
-		fmt.Fprintf(o.ErrOut, "ohmfit: --robust: the %d best answers by nominal error re-ranked by worst-case error (tolerances and TCR together); answers outside them were not considered\n", len(all))
+		notef(o.ErrOut, "--robust: the %d best answers by nominal error re-ranked by worst-case error (tolerances and TCR together); answers outside them were not considered", len(all))
 	}
 	shown := *res
 	shown.Solutions = all[:min(len(all), o.Top)]
@@ -125,7 +122,6 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result) 
 			return badInputf("--bom-rank %d: the fit has only %d answers", r.BOMRank, len(all))
 		}
 	}
-	inputs := inputFiles(t)
 	if r.BOM != "" {
 		s := all[r.BOMRank-1]
 		d, err := variation.NewDesign(p.Problem, s.Options, o.Series, constraints.Ambient{})
@@ -136,7 +132,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result) 
 		if err != nil {
 			return badInputf("%s%s", filePrefix(t, constraints.Pos{}), strings.TrimPrefix(err.Error(), "variation: "))
 		}
-		if err := writeAtomic(r.BOM, inputs, func(w io.Writer) error { return writeBOM(w, d, rep) }); err != nil {
+		if err := o.outs.stage(r.BOM, func(w io.Writer) error { return writeBOM(w, d, rep) }); err != nil {
 			return err
 		}
 	}
@@ -148,7 +144,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result) 
 			f.Rank = 0 // not a ranked answer: never the one ringed
 			pts = append(pts, f)
 		}
-		if err := writeAtomic(r.Plot, inputs, func(w io.Writer) error { return plotPareto(w, r.Plot, p, pts, r.BOMRank) }); err != nil {
+		if err := o.outs.stage(r.Plot, func(w io.Writer) error { return plotPareto(w, r.Plot, p, pts, r.BOMRank) }); err != nil {
 			return err
 		}
 	}

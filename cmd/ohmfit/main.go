@@ -32,15 +32,42 @@ func main() { os.Exit(int(run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr))) }
 // run executes one command line and reports how it went. It prints every
 // error itself, as one line on stderr, so nothing else needs to.
 func run(args []string, stdin io.Reader, stdout, stderr io.Writer) ExitCode {
-	root := newRootCmd(stdin, stdout, stderr)
+	out := &stdoutWriter{w: stdout}
+	root := newRootCmd(stdin, out, stderr)
 	root.SetArgs(args)
 	err := root.Execute()
+	if out.err != nil {
+		// The result did not reach its reader (a full disk, a closed
+		// file): whatever else happened, the run failed.
+		err = badInputf("cannot write to standard output: %s", trimPathErr(out.err))
+	}
 	if err == nil {
 		return ExitOK
 	}
 	code := exitCodeOf(err)
-	fmt.Fprintln(stderr, "ohmfit: "+oneLine(message(err)))
+	label := errorLabel
+	if code == ExitNoSolution {
+		label = notMetLabel
+	}
+	stderrLine(stderr, label, message(err))
 	return code
+}
+
+// stdoutWriter passes writes to standard output and keeps the first error.
+// It reports success to its callers, so that no library prints its own
+// version of the failure; run reports it once, with exit status 2.
+type stdoutWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (s *stdoutWriter) Write(p []byte) (int, error) {
+	if s.err == nil {
+		if _, err := s.w.Write(p); err != nil {
+			s.err = err
+		}
+	}
+	return len(p), nil
 }
 
 // exitError attaches an exit code to an error a command returns.
@@ -107,7 +134,7 @@ func isSolverError(err error) bool {
 		errors.As(err, &ve) || errors.As(err, &oe) || errors.As(err, &de) || errors.As(err, &pe) || errors.As(err, &se)
 }
 
-// message is the text printed after "ohmfit: ". Usage errors end with a
+// message is the text printed after the line's label. Usage errors end with a
 // pointer to the help of the command that was being run.
 func message(err error) string {
 	var ue *usageError

@@ -127,12 +127,19 @@ func TestGolden(t *testing.T) {
 		{"combine-err-parts", []string{"combine", "4.32k", "--max-parts", "4"}, ExitBadInput},
 		{"combine-err-value", []string{"combine", "0"}, ExitBadInput},
 		{"combine-err-code", []string{"combine", "4k7k"}, ExitBadInput},
+		{"combine-err-negative", []string{"combine", "-4.7k"}, ExitBadInput},
+		{"fit-err-top-huge", []string{"fit", "example:feedback", "--top", "99999999999"}, ExitBadInput},
+		{"fit-err-time-unit", []string{"fit", "example:feedback", "--time-limit", "5"}, ExitBadInput},
+		{"fit-err-time-limit", []string{"fit", "example:feedback", "--time-limit", "1ns", "--workers", "1"}, ExitBadInput},
+		{"fit-err-same-output", []string{"fit", "example:divider", "-o", "same.csv", "--bom", "same.csv"}, ExitBadInput},
 
 		// real parts: check, and fit's --check and --robust
-		{"check-divider", []string{"check", "testdata/check-divider.yaml", "--samples", "2000", "--seed", "3"}, ExitOK},
-		{"check-divider-json", []string{"check", "testdata/check-divider.yaml", "--samples", "500", "--dist", "normal", "--format", "json"}, ExitOK},
+		// A ±3 % band that 1 % parts leave at a corner: the report, and exit 1.
+		{"check-divider", []string{"check", "testdata/check-divider.yaml", "--samples", "2000", "--seed", "3"}, ExitNoSolution},
+		{"check-divider-json", []string{"check", "testdata/check-divider.yaml", "--samples", "500", "--dist", "normal", "--format", "json"}, ExitNoSolution},
+		{"check-pass", []string{"check", "testdata/check-pass.yaml", "--samples", "500"}, ExitOK},
 		{"check-hv-package", []string{"check", "testdata/check-hv.yaml", "--samples", "500", "--max-package", "0603"}, ExitNoSolution},
-		{"check-fitted", []string{"check", "example:feedback", "--samples", "1000", "--ambient", "0..70"}, ExitOK},
+		{"check-fitted", []string{"check", "example:feedback", "--samples", "1000", "--ambient", "0..70"}, ExitNoSolution},
 		{"check-err-dist", []string{"check", "testdata/check-divider.yaml", "--dist", "gauss"}, ExitBadInput},
 		{"check-err-ambient", []string{"check", "testdata/check-divider.yaml", "--ambient", "70..0"}, ExitBadInput},
 		{"check-err-package", []string{"check", "testdata/check-divider.yaml", "--max-package", "0604"}, ExitBadInput},
@@ -157,9 +164,10 @@ func TestGolden(t *testing.T) {
 			if code != tc.code {
 				t.Errorf("exit code %d, want %d (stderr: %q)", code, tc.code, errOut)
 			}
-			if code != ExitOK && strings.Count(errOut, "\n") != 1 {
+			if code == ExitBadInput && strings.Count(errOut, "\n") != 1 {
 				t.Errorf("stderr should be exactly one line, got %q", errOut)
 			}
+			checkLabels(t, code, errOut)
 			golden(t, tc.name, fmt.Sprintf("$ ohmfit %s\nexit %d\n--- stdout\n%s--- stderr\n%s",
 				strings.Join(tc.args, " "), code, out, errOut))
 		})
@@ -290,6 +298,40 @@ func TestPowerBalance(t *testing.T) {
 			if math.Abs(sum) > 1e-12*r.sol.ResistorPower {
 				t.Errorf("%s, %s: watts absorbed sum to %g, want 0 (resistors %g)", file, r.name, sum, r.sol.ResistorPower)
 			}
+		}
+	}
+}
+
+// checkLabels checks the promise of the stderr labels: every line carries
+// one of them, and the last line of a failed run says how it failed (error:
+// for exit 2, not met: for exit 1), while a successful run has neither.
+func checkLabels(t *testing.T, code ExitCode, stderr string) {
+	t.Helper()
+	if stderr == "" {
+		if code != ExitOK {
+			t.Errorf("exit %d with nothing on stderr", code)
+		}
+		return
+	}
+	lines := strings.Split(strings.TrimSuffix(stderr, "\n"), "\n")
+	for i, l := range lines {
+		var label string
+		for _, lb := range []string{errorLabel, notMetLabel, cautionLabel, noteLabel} {
+			if strings.HasPrefix(l, lb) {
+				label = lb
+			}
+		}
+		last := i == len(lines)-1
+		switch {
+		case label == "":
+			t.Errorf("stderr line without a label: %q", l)
+		case label == errorLabel && !(last && code == ExitBadInput):
+			t.Errorf("exit %d: error line %q", code, l)
+		case label == notMetLabel && !(last && code == ExitNoSolution):
+			t.Errorf("exit %d: not-met line %q", code, l)
+		case last && code == ExitBadInput && label != errorLabel,
+			last && code == ExitNoSolution && label != notMetLabel:
+			t.Errorf("exit %d ends with %q", code, l)
 		}
 	}
 }

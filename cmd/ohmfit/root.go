@@ -114,9 +114,7 @@ A template is a small YAML file; ` + "`ohmfit examples`" + ` lists the built-in 
 	root.SetVersionTemplate("ohmfit {{.Version}}\n")
 	root.SetHelpTemplate(helpTemplate)
 	root.SetUsageTemplate(usageTemplate)
-	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
-		return &usageError{cmd: c.CommandPath(), err: err}
-	})
+	root.SetFlagErrorFunc(flagError)
 	root.CompletionOptions.HiddenDefaultCmd = true
 	root.Flags().BoolP("version", "v", false, "print the version and exit")
 	root.PersistentFlags().BoolP("help", "h", false, "show help for the command")

@@ -64,7 +64,7 @@ volts, amps and watts at full precision:
 		},
 	}
 	cmd.Flags().StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table or json")
-	cmd.Flags().StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically; never over an input file)")
+	cmd.Flags().StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically, through a symbolic link to its target; never over an input file)")
 	return cmd
 }
 
@@ -92,7 +92,11 @@ func runSolve(o *solveOptions) error {
 		watchSolution(&w, t, nil, nil, r.name, r.sol)
 	}
 	writeCautions(o.ErrOut, &w)
-	return redirect(o.Output, inputFiles(t), &o.Out, func() error { return renderSolve(o, t, results) })
+	outs, err := newOutputs(inputFiles(t), &o.Out, o.Output)
+	if err != nil {
+		return err
+	}
+	return outs.finish(renderSolve(o, t, results))
 }
 
 // renderSolve writes the analysis in the chosen format.
@@ -179,7 +183,7 @@ func writeSolveTable(w io.Writer, t *constraints.Template, results []conditionRe
 		fmt.Fprintf(&b, "%s\n", t.Name)
 	}
 	for _, r := range results {
-		fmt.Fprintf(&b, "\n-- condition: %s --\n\n", r.name)
+		fmt.Fprintf(&b, "\nIn condition %s:\n\n", r.name)
 
 		vs, as, ws := scales(r.sol)
 		nodes := table{indent: "  ", cols: []column{{gap: 3}, {right: true, gap: 1}, {gap: 2}, {}}}
@@ -203,7 +207,7 @@ func writeSolveTable(w io.Writer, t *constraints.Template, results []conditionRe
 			{right: true, gap: 1}, {gap: 3},
 			{right: true, gap: 1}, {},
 		}}
-		parts.add("part", "type", "voltage", "", "current", "", "power (passive signs: a delivering source reads negative)")
+		parts.add("part", "type", "voltage", "", "current", "", "power")
 		delivered, opamps := 0.0, false
 		for j, p := range r.sol.Parts {
 			v, vu := splitUnit(eseries.FormatUnit(tidy(p.Volts, vs), eseries.Volt))
@@ -226,6 +230,7 @@ func writeSolveTable(w io.Writer, t *constraints.Template, results []conditionRe
 		if opamps {
 			who = "sources and op-amp outputs deliver"
 		}
+		b.WriteString("  (passive signs: current into a part's first terminal, power absorbed; a delivering source reads negative)\n")
 		fmt.Fprintf(&b, "\n  resistors dissipate %s; %s %s\n",
 			eseries.FormatUnit(r.sol.ResistorPower, eseries.Watt), who, eseries.FormatUnit(delivered, eseries.Watt))
 	}

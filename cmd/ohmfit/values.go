@@ -109,7 +109,7 @@ func runValues(o *valuesOptions) error {
 	}
 	if len(vals) == 0 {
 		// Not an error: the range is valid, it just falls between two values.
-		fmt.Fprintf(o.ErrOut, "no %s value lies between %s and %s\n", s.Name, eseries.Format(lo), eseries.Format(hi))
+		notef(o.ErrOut, "no %s value lies between %s and %s", s.Name, eseries.Format(lo), eseries.Format(hi))
 		return nil
 	}
 	var b strings.Builder
@@ -197,11 +197,24 @@ func readValue(flag, text string, want eseries.Unit) (float64, error) {
 	if err != nil {
 		var pe *eseries.ParseError
 		if errors.As(err, &pe) {
-			return 0, badInputf("%s: cannot read %q: %s", flag, text, pe.Reason)
+			return 0, badInputf("%s: cannot read %s (%s); want %s", flag, quoteValue(text), pe.Reason, valueExample(want))
 		}
-		return 0, badInputf("%s: %s", flag, trimPackage(err.Error()))
+		return 0, badInputf("%s: %s; want %s", flag, trimPackage(err.Error()), valueExample(want))
 	}
 	return v, nil
+}
+
+// valueExample says how a value in unit u is written, for a message.
+func valueExample(u eseries.Unit) string {
+	switch u {
+	case eseries.Ohm:
+		return "a resistance like 4700, 4.7k, 4k7 or 4.7kΩ"
+	case eseries.Volt:
+		return "a voltage like 3.3, 3.3V or 800m"
+	case eseries.Amp:
+		return "a current like 100u, 100µA or 1m"
+	}
+	return "a number like 4700, 4.7k or 4k7"
 }
 
 // percent writes a fraction as a signed percentage with three significant

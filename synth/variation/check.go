@@ -147,7 +147,7 @@ type Report struct {
 	MaxSpan          ratings.Span // the nodes, their potentials and where
 	Warnings         []string
 	Cautions         []string
-	Failures         []string // hard limits broken (a package above MaxPackage)
+	Failures         []string // hard limits broken: a target outside them in the worst case, a package above MaxPackage
 	WorstErrorDesign float64  // largest WorstError over goals
 
 	hazards []string // the ratings.Watch cautions on the node potentials
@@ -691,7 +691,7 @@ func (d *Design) warn(r *Report, st *Settings) {
 			if g.Condition == SweepCondition {
 				where = "over the sweep"
 			}
-			r.Warnings = append(r.Warnings, fmt.Sprintf("%s %s leaves its limits in the worst case: %s … %s against %s … %s",
+			r.Failures = append(r.Failures, fmt.Sprintf("%s %s leaves its limits in the worst case: %s … %s against %s … %s",
 				g.Label, where, num(g.WorstMin, u), num(g.WorstMax, u), num(lo, u), num(hi, u)))
 		}
 	}
