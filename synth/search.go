@@ -134,6 +134,11 @@ const (
 	Interrupted               // the context was cancelled; best found so far
 	Heuristic                 // a method that does not cover the whole space ran
 	NoFeasible                // the whole space was covered and nothing met the hard limits
+	// Partial marks a list re-ranked among part of the space by a caller
+	// (fit --robust re-ranks a pool of the best answers by worst case)
+	// whose ranking could not be proven over the rest. No search method
+	// returns it.
+	Partial
 )
 
 // String returns a short lower-case name of the status.
@@ -149,6 +154,8 @@ func (s Status) String() string {
 		return "heuristic"
 	case NoFeasible:
 		return "no feasible design"
+	case Partial:
+		return "partial"
 	}
 	return "unknown"
 }

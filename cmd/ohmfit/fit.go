@@ -256,7 +256,14 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	if len(res.Solutions) > 0 {
 		writeCautions(o.ErrOut, solutionWatch(p, res.Solutions[0]))
 	}
-	if err := o.real.render(o, p, res); err != nil {
+	// --robust may need the search again with a larger list to prove its
+	// ranking.
+	again := func(top int) (*synth.Result, error) {
+		s := *set
+		s.Top, s.Progress = top, &synth.Progress{}
+		return synth.Search(ctx, p, &s, method)
+	}
+	if err := o.real.render(o, p, res, set.Top, again); err != nil {
 		return err
 	}
 	if len(res.Solutions) == 0 {
@@ -416,6 +423,8 @@ func summaryLine(p *synth.Problem, res *synth.Result) string {
 		verdict = "not proven (time limit)"
 	case synth.Interrupted:
 		verdict = "not proven (interrupted)"
+	case synth.Partial:
+		verdict = "not proven (ranked among part of the space)"
 	}
 	noun := "candidates"
 	if st.Space == 1 {

@@ -30,7 +30,7 @@ const checkedAnswers = 3
 func bindFitRealFlags(cmd *cobra.Command, r *fitReal) {
 	f := cmd.Flags()
 	f.BoolVar(&r.Check, "check", false, fmt.Sprintf("also check the top %d answers with real parts (worst case, Monte Carlo, ratings; see ohmfit help check)", checkedAnswers))
-	f.BoolVar(&r.Robust, "robust", false, fmt.Sprintf("rank by worst-case error with real tolerances: re-ranks the %d best answers by nominal error (not proven over the whole space)", variation.RerankPool))
+	f.BoolVar(&r.Robust, "robust", false, fmt.Sprintf("rank by worst-case error with real tolerances: re-ranks the %d best answers by nominal error, widening the list up to %d until no answer left out could enter those shown; the summary says when that proof does not close", variation.RerankPool, variation.RerankPoolMax))
 	f.StringVar(&r.BOM, "bom", "", "write the bill of materials of one answer (see --bom-rank) to `FILE.csv`")
 	countVar(f, &r.BOMRank, "bom-rank", 1, 1, maxListed, "the answer (`N`) whose bill of materials --bom writes and --plot highlights")
 	f.StringVar(&r.Plot, "plot", "", "draw error against power for the answers to `FILE.svg` or FILE.png")
@@ -54,22 +54,39 @@ func (r *fitReal) adjust(set *synth.Settings) {
 
 // render renders the search result, first re-ranked when --robust, and then
 // does what the other flags ask. Without flags it is renderFit.
-func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result) error {
+func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, searched int, again func(top int) (*synth.Result, error)) error {
 	if r == nil || (!r.Check && !r.Robust && r.BOM == "" && r.Plot == "") {
 		return renderFit(o, p, res)
 	}
 	t := p.Template
 	all := res.Solutions
 	var robust []variation.Robust
+	var proof *variation.RobustRanking
 	if r.Robust && len(all) > 0 {
 		var err error
-		all, robust, err = variation.Rerank(p, all, o.Series, constraints.Ambient{})
+		proof, res, err = variation.RankRobust(p, res, searched, o.Top, o.Series, constraints.Ambient{}, again)
 		if err != nil {
 			return err
 		}
-		notef(o.ErrOut, "--robust: the %d best answers by nominal error re-ranked by worst-case error (tolerances and TCR together); answers outside them were not considered", len(all))
+		all, robust = proof.Solutions, proof.Robust
+		verdict := "not proven over the whole space"
+		if proof.Proven {
+			verdict = "proven"
+		}
+		notef(o.ErrOut, "--robust: the %d best answers by nominal rank re-ranked by worst-case error (tolerances and TCR together); %s: %s",
+			proof.Pool, verdict, proof.Reason)
 	}
 	shown := *res
+	if proof != nil {
+		// The summary and JSON speak of the ranking shown, not of the
+		// nominal search under it.
+		shown.Bound = 0
+		if proof.Proven {
+			shown.Status = synth.Proven
+		} else {
+			shown.Status = synth.Partial
+		}
+	}
 	shown.Solutions = all[:min(len(all), o.Top)]
 	var checks []object
 	var reports []*variation.Report
