@@ -146,8 +146,8 @@ Exit status, for a script to gate a design on:
      --max-package (or the template's limits.max_package); the report is
      still written, and stderr says what broke ("ohmfit: not met: …")
   2  bad usage or bad input; nothing is written`,
-		Example: `  # a valued design, with a ±1 % reference and 0 … 70 °C ambient
-  ohmfit check my-divider.yaml --ambient 0..70
+		Example: `  # the built-in bench network, every value known, over 0 … 70 °C ambient
+  ohmfit check example:bias-bench --ambient 0..70
 
   # the built-in feedback example, fitted then checked, as JSON
   ohmfit check example:feedback --format json --seed 7`,

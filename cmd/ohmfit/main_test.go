@@ -139,7 +139,7 @@ func TestGolden(t *testing.T) {
 		{"check-divider-json", []string{"check", "testdata/check-divider.yaml", "--samples", "500", "--dist", "normal", "--format", "json"}, ExitNoSolution},
 		{"check-pass", []string{"check", "testdata/check-pass.yaml", "--samples", "500"}, ExitOK},
 		{"check-hv-package", []string{"check", "testdata/check-hv.yaml", "--samples", "500", "--max-package", "0603"}, ExitNoSolution},
-		{"check-fitted", []string{"check", "example:feedback", "--samples", "1000", "--ambient", "0..70"}, ExitNoSolution},
+		{"check-fitted", []string{"check", "example:feedback", "--samples", "1000", "--ambient", "0..70"}, ExitOK},
 		{"check-err-dist", []string{"check", "testdata/check-divider.yaml", "--dist", "gauss"}, ExitBadInput},
 		{"check-err-ambient", []string{"check", "testdata/check-divider.yaml", "--ambient", "70..0"}, ExitBadInput},
 		{"check-err-package", []string{"check", "testdata/check-divider.yaml", "--max-package", "0604"}, ExitBadInput},

@@ -27,7 +27,7 @@ again across the shards, Pareto marks taken again over the merged list),
 was, and "bound" the smallest of the shards' bounds. Every shard 1..N of the
 same search must be given, each once.`,
 		Example: `  # four shards, e.g. as the tasks of a job array, then one result
-  for k in 1 2 3 4; do ohmfit fit net.yaml --shard $k/4 --format json -o part-$k.json; done
+  for k in 1 2 3 4; do ohmfit fit example:gain-stage --shard $k/4 --format json -o part-$k.json; done
   ohmfit merge part-*.json`,
 		Args: func(cmd *cobra.Command, args []string) error {
 			if len(args) == 0 {

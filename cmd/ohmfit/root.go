@@ -94,7 +94,7 @@ the goals written in a template, and analyses networks whose values are known.
 A template is a small YAML file; ` + "`ohmfit examples`" + ` lists the built-in ones.`,
 		Example: `  ohmfit values E96 --near 4.32k
   ohmfit examples
-  ohmfit solve my-divider.yaml`,
+  ohmfit solve example:bias-bench`,
 		Version:       versionString(),
 		SilenceUsage:  true,
 		SilenceErrors: true,

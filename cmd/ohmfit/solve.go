@@ -50,10 +50,10 @@ volts, amps and watts at full precision:
      "nodes": {"gnd": 0, "mid": 4.05},
      "parts": {"R1": {"volts": 7.95, "amps": 0.00135, "watts": 0.0107}}}]}`,
 		Example: `  # the bias bench as built, at both ends of the rail's range
-  ohmfit solve bias-bench.yaml
+  ohmfit solve example:bias-bench
 
   # the same numbers for a script
-  ohmfit solve bias-bench.yaml --format json`,
+  ohmfit solve example:bias-bench --format json`,
 		Args: argsExactly(1, "one argument, the template file"),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.File = args[0]

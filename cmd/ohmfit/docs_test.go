@@ -1,0 +1,158 @@
+package main
+
+import (
+	"bytes"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"strings"
+	"testing"
+
+	"github.com/spf13/cobra"
+)
+
+// The documentation is part of what the program promises: every example in
+// every --help must run as written, and every `$ ohmfit …` block in the
+// README must print what the README shows.
+
+// scoredCount matches the candidate count in a summary line; with several
+// workers the count of candidates scored before the proof closes varies
+// from run to run, as the README says.
+var scoredCount = regexp.MustCompile(`[0-9,]+ scored by`)
+
+// normaliseRun blanks what varies between runs: search times and how many
+// candidates were scored on the way to the same proven answer.
+func normaliseRun(s string) string {
+	return scoredCount.ReplaceAllString(normaliseTiming(s), "N scored by")
+}
+
+// readmeBlock is one `$ ohmfit …` block of the README with the output shown
+// under it.
+type readmeBlock struct {
+	line int
+	args []string
+	want string
+}
+
+// readmeBlocks finds every fenced block that starts with `$ ohmfit`.
+func readmeBlocks(t *testing.T, text string) []readmeBlock {
+	t.Helper()
+	var out []readmeBlock
+	lines := strings.Split(text, "\n")
+	for i := 0; i < len(lines); i++ {
+		if lines[i] != "```" || i+1 >= len(lines) || !strings.HasPrefix(lines[i+1], "$ ohmfit ") {
+			continue
+		}
+		b := readmeBlock{line: i + 2, args: strings.Fields(strings.TrimPrefix(lines[i+1], "$ ohmfit "))}
+		var want []string
+		for i += 2; i < len(lines) && lines[i] != "```"; i++ {
+			want = append(want, lines[i])
+		}
+		b.want = strings.Join(want, "\n") + "\n"
+		out = append(out, b)
+	}
+	return out
+}
+
+// TestREADMECommands runs every `$ ohmfit …` block of the README from the
+// repository root and compares its standard output with the README's. Files
+// a block writes (--bom, --plot, -o) go to a temporary directory, so the
+// test never touches a tracked file.
+func TestREADMECommands(t *testing.T) {
+	root, err := filepath.Abs(filepath.Join("..", ".."))
+	if err != nil {
+		t.Fatal(err)
+	}
+	text, err := os.ReadFile(filepath.Join(root, "README.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	blocks := readmeBlocks(t, string(text))
+	if len(blocks) < 10 {
+		t.Fatalf("found %d `$ ohmfit` blocks in README.md; the tour has more", len(blocks))
+	}
+	tmp := t.TempDir()
+	t.Chdir(root)
+	for _, b := range blocks {
+		t.Run(strings.Join(b.args, " "), func(t *testing.T) {
+			args := append([]string(nil), b.args...)
+			for i := 0; i+1 < len(args); i++ {
+				switch args[i] {
+				case "--bom", "--plot", "-o", "--output":
+					args[i+1] = filepath.Join(tmp, filepath.Base(args[i+1]))
+				}
+			}
+			var out, errOut bytes.Buffer
+			code := run(args, strings.NewReader(""), &out, &errOut)
+			if code == ExitBadInput {
+				t.Fatalf("README.md:%d: exit 2: %s", b.line, errOut.String())
+			}
+			if got := normaliseRun(out.String()); got != normaliseRun(b.want) {
+				t.Errorf("README.md:%d: output differs\n--- got\n%s--- README\n%s", b.line, out.String(), b.want)
+			}
+		})
+	}
+}
+
+// helpExamples lists every command of the tree with the command lines its
+// Example text gives (comments and blank lines left out).
+func helpExamples(root *cobra.Command) map[string][]string {
+	out := map[string][]string{}
+	var walk func(c *cobra.Command)
+	walk = func(c *cobra.Command) {
+		for _, l := range strings.Split(c.Example, "\n") {
+			l = strings.TrimSpace(l)
+			if l != "" && !strings.HasPrefix(l, "#") {
+				out[c.CommandPath()] = append(out[c.CommandPath()], l)
+			}
+		}
+		for _, s := range c.Commands() {
+			walk(s)
+		}
+	}
+	walk(root)
+	return out
+}
+
+// TestHelpExamplesRun builds the binary and runs every example of every
+// command's help with bash, as a user would paste it, in an empty
+// directory (one per command, so a line can use the file an earlier line
+// wrote). Each must exit 0.
+func TestHelpExamplesRun(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the binary; skipped under -short")
+	}
+	if _, err := exec.LookPath("bash"); err != nil {
+		t.Skip("no bash to run the examples with")
+	}
+	bin := t.TempDir()
+	build := exec.Command("go", "build", "-o", filepath.Join(bin, "ohmfit"), ".")
+	if out, err := build.CombinedOutput(); err != nil {
+		t.Fatalf("go build: %v\n%s", err, out)
+	}
+	root := newRootCmd(strings.NewReader(""), &bytes.Buffer{}, &bytes.Buffer{})
+	examples := helpExamples(root)
+	if len(examples) < 8 {
+		t.Fatalf("only %d commands have examples", len(examples))
+	}
+	for path, lines := range examples {
+		t.Run(path, func(t *testing.T) {
+			dir := t.TempDir()
+			for _, l := range lines {
+				cmd := exec.Command("bash", "-c", l)
+				cmd.Dir = dir
+				cmd.Env = append(os.Environ(), "PATH="+bin+string(os.PathListSeparator)+os.Getenv("PATH"))
+				var stdout, stderr bytes.Buffer
+				cmd.Stdout, cmd.Stderr = &stdout, &stderr
+				if err := cmd.Run(); err != nil {
+					t.Errorf("%q: %v\n%s", l, err, stderr.String())
+					continue
+				}
+				if stdout.Len() == 0 && !strings.Contains(l, ">") && !strings.Contains(l, " -o ") {
+					t.Errorf("%q printed nothing", l)
+				}
+			}
+		})
+	}
+}
