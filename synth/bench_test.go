@@ -18,22 +18,10 @@ targets:
 choose: {series: E192, min: 1, max: 10M}
 `
 
+// benchSearch times the default method.
 func benchSearch(b *testing.B, p *synth.Problem, workers int) {
 	b.Helper()
-	set := &synth.Settings{Workers: workers, MaxRows: 1e9}
-	var res *synth.Result
-	for b.Loop() {
-		var err error
-		res, err = synth.Search(context.Background(), p, set, nil)
-		if err != nil {
-			b.Fatal(err)
-		}
-	}
-	if res.Status != synth.Proven {
-		b.Fatalf("status %v", res.Status)
-	}
-	b.ReportMetric(float64(res.Stats.Evaluated), "scored/op")
-	b.ReportMetric(float64(res.Stats.Solves), "solves/op")
+	benchMethod(b, p, workers, nil)
 }
 
 // Two positions, E192 over 1 Ω … 10 MΩ each: 1345² ≈ 1.8 million pairs.
@@ -104,6 +92,7 @@ func BenchmarkBranchBound(b *testing.B) {
 	}
 }
 
+// benchMethod times one method and checks that it proved its answer.
 func benchMethod(b *testing.B, p *synth.Problem, workers int, m synth.Method) {
 	b.Helper()
 	set := &synth.Settings{Workers: workers, MaxRows: 1e12}

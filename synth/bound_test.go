@@ -180,27 +180,7 @@ func TestBranchBoundSweepMatchesBruteForce(t *testing.T) {
 	if testing.Short() {
 		t.Skip("long comparison")
 	}
-	base := `ohmfit: 1
-name: sweep
-parts:
-  - {name: V1, type: voltage-source, plus: vcc, minus: gnd, volts: 3.3}
-  - {name: R1, type: resistor, from: vcc, to: s}
-  - {name: RT1, type: ntc, from: s, to: gnd, r25: 10k, beta: 3950}
-  - {name: R2, type: resistor, from: s, to: gnd}
-  - {name: PT, type: rtd, from: vcc, to: x, r0: 1000}
-  - {name: R3, type: resistor, from: x, to: gnd}
-  - {name: ADC1, type: adc, in: s, ref: 3.3, bits: 10}
-sweep: {temperature: [-10, 10, 25, 40, 60]}
-targets:
-  - {code: ADC1, curve: {-10: 800, 25: 512, 60: 200}, tolerance: 30%}
-  - {linearity: s, max: 3.7}
-  - {sensitivity: s, at: 40, min: 28m}
-  - {resolution: ADC1, at: 60, max: 0.18}
-  - {voltage: x, min: 0.2}
-limits: {supply_power_max: 46u}
-on_fraction: 5%
-choose: {series: E6, min: 1k, max: 1M}
-`
+	base := sensorSweep
 	for _, rank := range []string{"", "rank: [power, error]\n"} {
 		p := problemFromYAML(t, base+rank, "")
 		compareMethodWithBrute(t, p, 6, 2, bb)
@@ -296,26 +276,7 @@ choose: {series: E12, min: 100, max: 1M}
 // The same list, to the last digit, for 1, 2 and 8 workers, on a space big
 // enough that the workers' bars differ as they go.
 func TestBranchBoundWorkersDeterministic(t *testing.T) {
-	p := problemFromYAML(t, loadedDividerYAML("E96"), "")
-	var first string
-	for _, w := range []int{1, 2, 8} {
-		res, err := synth.Search(context.Background(), p, &synth.Settings{Top: 20, Workers: w}, bb)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if res.Status != synth.Proven {
-			t.Fatalf("status %v", res.Status)
-		}
-		var b strings.Builder
-		for _, s := range res.Solutions {
-			fmt.Fprintf(&b, "%v %v %.17g %.17g\n", s.Values(), s.Options, s.Score.Error, s.Score.Power)
-		}
-		if first == "" {
-			first = b.String()
-		} else if b.String() != first {
-			t.Fatalf("workers=%d gave a different list:\n%s\nvs\n%s", w, b.String(), first)
-		}
-	}
+	sameForWorkers(t, problemFromYAML(t, loadedDividerYAML("E96"), ""), bb)
 }
 
 // Against the rows method on spaces too large for the plain enumeration:

@@ -194,12 +194,21 @@ func abs(x float64) float64 {
 
 // The same input gives the same list for 1, 2 and 8 workers.
 func TestWorkersDeterministic(t *testing.T) {
-	p := problemFromYAML(t, loadedDividerYAML("E24"), "")
+	sameForWorkers(t, problemFromYAML(t, loadedDividerYAML("E24"), ""), nil)
+}
+
+// sameForWorkers checks that a method gives the same top 20, to the last
+// digit, for 1, 2 and 8 workers, and that the list is proven.
+func sameForWorkers(t *testing.T, p *synth.Problem, m synth.Method) {
+	t.Helper()
 	var first string
 	for _, w := range []int{1, 2, 8} {
-		res, err := synth.Search(context.Background(), p, &synth.Settings{Top: 20, Workers: w}, nil)
+		res, err := synth.Search(context.Background(), p, &synth.Settings{Top: 20, Workers: w}, m)
 		if err != nil {
 			t.Fatal(err)
+		}
+		if res.Status != synth.Proven {
+			t.Fatalf("workers=%d: status %v", w, res.Status)
 		}
 		var b strings.Builder
 		for _, s := range res.Solutions {
@@ -329,12 +338,9 @@ func TestFrontMatchesBruteForce(t *testing.T) {
 	}
 }
 
-// A sensor network over a temperature sweep: goals in ADC codes at three
-// temperatures, linearity, sensitivity and resolution limits, a duty-cycled
-// supply, and both the error-first and the power-lean ranking — against the
-// plain enumeration.
-func TestSensorSweepMatchesBruteForce(t *testing.T) {
-	base := `ohmfit: 1
+// sensorSweep is a sensor network over a temperature sweep, shared by the
+// comparisons of every method with the plain enumeration.
+const sensorSweep = `ohmfit: 1
 name: sweep
 parts:
   - {name: V1, type: voltage-source, plus: vcc, minus: gnd, volts: 3.3}
@@ -355,6 +361,13 @@ limits: {supply_power_max: 46u}
 on_fraction: 5%
 choose: {series: E6, min: 1k, max: 1M}
 `
+
+// A sensor network over a temperature sweep: goals in ADC codes at three
+// temperatures, linearity, sensitivity and resolution limits, a duty-cycled
+// supply, and both the error-first and the power-lean ranking — against the
+// plain enumeration.
+func TestSensorSweepMatchesBruteForce(t *testing.T) {
+	base := sensorSweep
 	for _, rank := range []string{"", "rank: [power, error]\n"} {
 		p := problemFromYAML(t, base+rank, "")
 		compareWithBrute(t, p, 6, 2)

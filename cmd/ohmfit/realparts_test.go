@@ -72,15 +72,7 @@ func TestCheckBOMAndPlot(t *testing.T) {
 			t.Errorf("%s is not PNG", img)
 		}
 	}
-	f, err := os.Open(bom)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	rows, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	rows := readCSV(t, bom)
 	if strings.Join(rows[0], ",") != strings.Join(bomHeader, ",") {
 		t.Errorf("header %q", rows[0])
 	}
@@ -113,8 +105,8 @@ func TestFitPlotAndBOM(t *testing.T) {
 	}
 }
 
-// bomRows reads a BOM file into one map per line, keyed by the header.
-func bomRows(t *testing.T, path string) []map[string]string {
+// readCSV reads a whole CSV file.
+func readCSV(t *testing.T, path string) [][]string {
 	t.Helper()
 	f, err := os.Open(path)
 	if err != nil {
@@ -125,6 +117,13 @@ func bomRows(t *testing.T, path string) []map[string]string {
 	if err != nil {
 		t.Fatal(err)
 	}
+	return rows
+}
+
+// bomRows reads a BOM file into one map per line, keyed by the header.
+func bomRows(t *testing.T, path string) []map[string]string {
+	t.Helper()
+	rows := readCSV(t, path)
 	var out []map[string]string
 	for _, r := range rows[1:] {
 		m := map[string]string{}
