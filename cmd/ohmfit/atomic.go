@@ -234,14 +234,19 @@ type tempFiles struct {
 func createTemp(dir, pattern string) (*os.File, error) {
 	temps.Lock()
 	defer temps.Unlock()
-	f, err := os.CreateTemp(dir, pattern)
-	if err != nil {
-		return nil, err
-	}
-	if len(temps.names) == 0 {
+	// Catch the signals before the file exists: a signal in between
+	// would otherwise end the process with the file left behind.
+	if len(temps.names) == 0 && temps.sig == nil {
 		temps.sig = make(chan os.Signal, 1)
 		signal.Notify(temps.sig, os.Interrupt, syscall.SIGTERM)
 		go removeOnSignal(temps.sig)
+	}
+	f, err := os.CreateTemp(dir, pattern)
+	if err != nil {
+		if len(temps.names) == 0 {
+			temps.release()
+		}
+		return nil, err
 	}
 	temps.names[f.Name()] = true
 	return f, nil
@@ -255,10 +260,16 @@ func (t *tempFiles) drop(name string) {
 	}
 	delete(t.names, name)
 	if len(t.names) == 0 {
-		signal.Stop(t.sig)
-		close(t.sig)
-		t.sig = nil
+		t.release()
 	}
+}
+
+// release gives signals their usual meaning back; the caller holds the
+// lock.
+func (t *tempFiles) release() {
+	signal.Stop(t.sig)
+	close(t.sig)
+	t.sig = nil
 }
 
 // removeOnSignal waits for a signal on ch; when one comes it removes every
