@@ -181,6 +181,11 @@ func TestTinyTimeLimit(t *testing.T) {
 // limits hold at every corner exits 0; one that leaves them exits 1 with
 // the broken limit on stderr, and still writes its report.
 func TestCheckExitStatus(t *testing.T) {
+	// --rank picks among fitted answers; a design with every value given
+	// has none to pick from.
+	if _, stderr, code := runCLI(t, "check", "example:bias-bench", "--rank", "2"); code != ExitBadInput || !strings.Contains(stderr, "one design") {
+		t.Errorf("check a valued design --rank 2: exit %d, %q", code, stderr)
+	}
 	for _, c := range []struct {
 		file string
 		code ExitCode

@@ -211,6 +211,9 @@ func checkDesign(o *checkOptions, outs *outputs, t *constraints.Template, st *va
 		return templateError(t, err)
 	}
 	var opts []synth.Option
+	if len(cp.Free) == 0 && o.Rank != 1 {
+		return badInputf("--rank %d: %s has every value given, so there is one design to check and no fitted answers to choose from", o.Rank, t.File)
+	}
 	if len(cp.Free) > 0 {
 		opts, err = fitForCheck(o, cp)
 		if err != nil {

@@ -308,6 +308,9 @@ func showProgress(w io.Writer, pr *synth.Progress, done chan struct{}) {
 // noSolutionMessage says which hard limit nothing could meet.
 func noSolutionMessage(p *synth.Problem, res *synth.Result) string {
 	scope := "no candidate meets the hard limits"
+	if res.Shards > 1 {
+		scope = fmt.Sprintf("no candidate in shard %d/%d meets the hard limits (the other shards may hold some; merge them)", res.Shard, res.Shards)
+	}
 	if !res.Status.Exhaustive() {
 		scope = "no candidate found meets the hard limits (the search was not exhaustive)"
 	}
@@ -426,6 +429,15 @@ func summaryLine(p *synth.Problem, res *synth.Result) string {
 	case synth.Partial:
 		verdict = "not proven (ranked among part of the space)"
 	}
+	if res.Shards > 1 {
+		// A shard proves its own part only; the whole needs ohmfit merge.
+		switch res.Status {
+		case synth.Proven:
+			verdict = fmt.Sprintf("proven best within shard %d/%d only; merge the shards for the whole space", res.Shard, res.Shards)
+		case synth.NoFeasible:
+			verdict = fmt.Sprintf("proven: nothing in shard %d/%d meets the hard limits", res.Shard, res.Shards)
+		}
+	}
 	noun := "candidates"
 	if st.Space == 1 {
 		noun = "candidate"
@@ -454,8 +466,8 @@ func parseShard(s string) (k, n int, err error) {
 	a, b, ok := strings.Cut(s, "/")
 	k, err1 := strconv.Atoi(a)
 	n, err2 := strconv.Atoi(b)
-	if !ok || err1 != nil || err2 != nil || n < 1 || k < 1 || k > n {
-		return 0, 0, fmt.Errorf("want K/N with 1 <= K <= N (e.g. 2/8), not %q", s)
+	if !ok || err1 != nil || err2 != nil || n < 1 || k < 1 || k > n || n > maxListed {
+		return 0, 0, fmt.Errorf("want K/N with 1 <= K <= N <= 10,000 (e.g. 2/8), not %q", s)
 	}
 	return k, n, nil
 }
@@ -592,7 +604,9 @@ func errorText(e float64) string {
 func fitJSON(p *synth.Problem, res *synth.Result) object {
 	doc := object{
 		{"name", p.Template.Name},
-		{"exhaustive", res.Status.Exhaustive()},
+		// A shard proves its own part only: the whole is exhaustive once
+		// ohmfit merge has every shard. Its status says how the shard ended.
+		{"exhaustive", res.Status.Exhaustive() && res.Shards <= 1},
 		{"status", res.Status.String()},
 		{"method", res.Stats.Method},
 		{"space", res.Stats.Space},

@@ -73,8 +73,11 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 		if proof.Proven {
 			verdict = "proven"
 		}
-		notef(o.ErrOut, "--robust: the %d best answers by nominal rank re-ranked by worst-case error (tolerances and TCR together); %s: %s",
-			proof.Pool, verdict, proof.Reason)
+		what := fmt.Sprintf("the %d best answers by nominal rank", proof.Pool)
+		if proof.Pool == 1 {
+			what = "the one answer"
+		}
+		notef(o.ErrOut, "--robust: %s re-ranked by worst-case error (tolerances and TCR together); %s: %s", what, verdict, proof.Reason)
 	}
 	shown := *res
 	if proof != nil {

@@ -48,19 +48,18 @@ same search must be given, each once.`,
 
 // shardDoc is what merge reads of one shard's result.
 type shardDoc struct {
-	file       string
-	Name       string            `json:"name"`
-	Exhaustive bool              `json:"exhaustive"`
-	Status     string            `json:"status"`
-	Method     string            `json:"method"`
-	Space      float64           `json:"space"`
-	Evaluated  int64             `json:"evaluated"`
-	Solves     int64             `json:"solves"`
-	Bound      *float64          `json:"bound"`
-	Shard      string            `json:"shard"`
-	Rank       []string          `json:"rank"`
-	Top        int               `json:"top"`
-	Solutions  []json.RawMessage `json:"solutions"`
+	file      string
+	Name      string            `json:"name"`
+	Status    string            `json:"status"`
+	Method    string            `json:"method"`
+	Space     float64           `json:"space"`
+	Evaluated int64             `json:"evaluated"`
+	Solves    int64             `json:"solves"`
+	Bound     *float64          `json:"bound"`
+	Shard     string            `json:"shard"`
+	Rank      []string          `json:"rank"`
+	Top       int               `json:"top"`
+	Solutions []json.RawMessage `json:"solutions"`
 }
 
 // mergedSolution is one answer with what ranks it.
@@ -140,8 +139,11 @@ func mergeShardFiles(files []string) (object, error) {
 	var evaluated, solves int64
 	bound := math.Inf(1)
 	for _, d := range docs {
-		exhaustive = exhaustive && d.Exhaustive
-		if !d.Exhaustive && status == "" {
+		// A shard's own "exhaustive" is false (it covers part of the
+		// space); its status says whether that part was proven.
+		covered := d.Status == synth.Proven.String() || d.Status == synth.NoFeasible.String()
+		exhaustive = exhaustive && covered
+		if !covered && status == "" {
 			status = d.Status
 		}
 		evaluated += d.Evaluated

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/ohmfit/ohmfit/constraints"
@@ -43,6 +44,9 @@ func TestShardMergeMatchesWholeRun(t *testing.T) {
 					var d doc
 					if err := json.Unmarshal([]byte(out), &d); err != nil {
 						t.Fatal(err)
+					}
+					if n > 1 && d.Exhaustive {
+						t.Errorf("shard %d/%d says exhaustive: true, but it covers part of the space only", k, n)
 					}
 					sum += d.Evaluated
 					f := filepath.Join(dir, fmt.Sprintf("s%d.json", k))
@@ -122,5 +126,18 @@ func TestBoundLine(t *testing.T) {
 		if got != c.want {
 			t.Errorf("%v bound %g: %q, want %q", c.status, c.bound, got, c.want)
 		}
+	}
+}
+
+// TestShardSummarySaysShard: a shard's table never claims the whole space,
+// and a shard with nothing feasible says the others may hold some.
+func TestShardSummarySaysShard(t *testing.T) {
+	out, _, code := runCLI(t, "fit", "example:gain-stage", "--shard", "2/4", "--top", "1")
+	if code != ExitOK || strings.Contains(out, "whole space") && !strings.Contains(out, "merge the shards") || !strings.Contains(out, "within shard 2/4") {
+		t.Errorf("exit %d, summary:\n%s", code, out)
+	}
+	_, errOut, code := runCLI(t, "fit", "example:divider", "--shard", "1/9999")
+	if code != ExitNoSolution || !strings.Contains(errOut, "no candidate in shard 1/9999") {
+		t.Errorf("exit %d, stderr %q", code, errOut)
 	}
 }
