@@ -67,11 +67,27 @@ func Parse(file string, data []byte) (*Template, error) {
 // type is checked before it is opened, and it is opened without blocking:
 // opening a FIFO (or a device) could otherwise wait forever for a writer.
 func readFile(path string) ([]byte, *Error) {
+	return readLimited(path, MaxFileSize, "a template")
+}
+
+// ReadFile reads an input file the way templates are read: a regular file
+// only (a FIFO or device is refused without blocking), of at most limit
+// bytes; what names the kind of file for the message ("a shard result").
+// Its errors name the file and say what is wrong in plain words.
+func ReadFile(path string, limit int64, what string) ([]byte, error) {
+	data, err := readLimited(path, limit, what)
+	if err != nil {
+		return nil, err
+	}
+	return data, nil
+}
+
+func readLimited(path string, limit int64, what string) ([]byte, *Error) {
 	fail := func(msg string, err error) ([]byte, *Error) {
 		return nil, &Error{File: path, Msg: msg, Err: err}
 	}
 	notRegular := func(fi fs.FileInfo) ([]byte, *Error) {
-		return fail(fmt.Sprintf("not a regular file (%s); a template or stock file is a plain text file", fileKind(fi.Mode())), nil)
+		return fail(fmt.Sprintf("not a regular file (%s); ohmfit reads plain text files", fileKind(fi.Mode())), nil)
 	}
 	if fi, err := os.Stat(path); err == nil && !fi.Mode().IsRegular() {
 		return notRegular(fi)
@@ -88,16 +104,16 @@ func readFile(path string) ([]byte, *Error) {
 	if !fi.Mode().IsRegular() {
 		return notRegular(fi) // replaced between the two looks
 	}
-	tooBig := fmt.Sprintf("file is larger than %d MiB; this is not a template", MaxFileSize>>20)
-	if fi.Size() > MaxFileSize {
+	tooBig := fmt.Sprintf("file is larger than %d MiB; this is not %s", limit>>20, what)
+	if fi.Size() > limit {
 		return fail(tooBig, nil)
 	}
 	// The limit also covers a file that grows between Stat and read.
-	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
+	data, err := io.ReadAll(io.LimitReader(f, limit+1))
 	if err != nil {
 		return fail("cannot read: "+pathCause(err), err)
 	}
-	if len(data) > MaxFileSize {
+	if int64(len(data)) > limit {
 		return fail(tooBig, nil)
 	}
 	return data, nil

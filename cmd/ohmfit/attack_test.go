@@ -510,6 +510,8 @@ func TestNonRegularInputs(t *testing.T) {
 		{[]string{"check", fifo}, "named pipe"},
 		{[]string{"fit", tpl}, "named pipe"},
 		{[]string{"solve", dir}, "directory"},
+		{[]string{"merge", fifo}, "named pipe"},
+		{[]string{"merge", dir}, "directory"},
 	} {
 		done := make(chan struct{})
 		go func() {
