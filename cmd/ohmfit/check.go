@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
+	"os/signal"
 	"strconv"
 	"strings"
 
@@ -268,11 +270,17 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 	if err != nil {
 		return nil, badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
 	}
-	var m synth.Method = synth.Rows{}
-	if synth.RowCount(p) > synth.DefaultMaxRows {
-		m = synth.Relax{}
+	set := &synth.Settings{Top: o.Rank}
+	m, note, err := synth.Choose("auto", p, set)
+	if err != nil {
+		return nil, err
 	}
-	res, err := synth.Search(context.Background(), p, &synth.Settings{Top: o.Rank}, m)
+	if note != "" {
+		notef(o.ErrOut, "%s", note)
+	}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	res, err := synth.Search(ctx, p, set, m)
 	if err != nil {
 		return nil, badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
 	}
@@ -288,8 +296,11 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 		desc = append(desc, dm.Name+" "+positionText(sol.Options[k]))
 	}
 	proven := ""
-	if !res.Status.Exhaustive() {
+	switch res.Status {
+	case synth.Heuristic:
 		proven = " (found by the heuristic, not proven best)"
+	case synth.Interrupted:
+		proven = " (the search was interrupted; not proven best)"
 	}
 	notef(o.ErrOut, "%s has resistors to choose; checking fit's answer %d%s: %s", t.File, o.Rank, proven, strings.Join(desc, ", "))
 	return sol.Options, nil

@@ -9,6 +9,7 @@ import (
 	"math"
 	"os"
 	"os/signal"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -57,9 +58,7 @@ func checkSearchFlags(cmd *cobra.Command, o *searchOptions) error {
 	if err := checkFormat(cmd, o.Format, "table", "json", "csv"); err != nil {
 		return err
 	}
-	switch o.Method {
-	case "auto", "exhaustive", "bound", "heuristic":
-	default:
+	if !slices.Contains(synth.MethodNames, o.Method) {
 		return usagef(cmd.CommandPath(), "--method must be auto, bound, exhaustive or heuristic, not %q", o.Method)
 	}
 	if o.Shard != "" {
@@ -194,28 +193,12 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	if o.Shard != "" {
 		set.Shard, set.Shards, _ = parseShard(o.Shard)
 	}
-	var method synth.Method = synth.Rows{}
-	switch o.Method {
-	case "heuristic":
-		method = synth.Relax{}
-	case "bound":
-		method = synth.BranchBound{}
-	case "auto":
-		// Branch and bound wherever its corner bounds cover every goal and
-		// the space is more than one of its leaves (below that it would
-		// only run the rows method once).
-		rows := synth.RowCount(p)
-		switch {
-		case synth.BranchBound{}.Applies(p) && (rows > 2048 || set.Shards > 1):
-			method = synth.BranchBound{}
-		case rows > synth.DefaultMaxRows && p.Space() <= synth.MaxSpace && set.Shards <= 1:
-			method = synth.Relax{}
-			notef(o.ErrOut, "%.3g rows is too many to prove the best answer (budget %.3g), and a sweep-wide goal has no box bound; searching heuristically", rows, float64(synth.DefaultMaxRows))
-		case set.Shards > 1:
-			set.MaxRows = math.Inf(1)
-		}
-	case "exhaustive":
-		set.MaxRows = math.Inf(1)
+	method, note, err := synth.Choose(o.Method, p, set)
+	if err != nil {
+		return err // the flag was checked against synth.MethodNames
+	}
+	if note != "" {
+		notef(o.ErrOut, "%s", note)
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
