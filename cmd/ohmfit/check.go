@@ -278,6 +278,7 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 	if note != "" {
 		notef(o.ErrOut, "%s", note)
 	}
+	reach := warnLimitReach(o.ErrOut, p)
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 	res, err := synth.Search(ctx, p, set, m)
@@ -286,7 +287,7 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 	}
 	if len(res.Solutions) < o.Rank {
 		if len(res.Solutions) == 0 {
-			return nil, &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res))}
+			return nil, &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res, reach))}
 		}
 		return nil, badInputf("--rank %d: the fit has only %d answers", o.Rank, len(res.Solutions))
 	}

@@ -200,6 +200,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	if note != "" {
 		notef(o.ErrOut, "%s", note)
 	}
+	reach := warnLimitReach(o.ErrOut, p)
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 	done := make(chan struct{})
@@ -250,7 +251,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 		return err
 	}
 	if len(res.Solutions) == 0 {
-		return &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res))}
+		return &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res, reach))}
 	}
 	return nil
 }
@@ -288,8 +289,48 @@ func showProgress(w io.Writer, pr *synth.Progress, done chan struct{}) {
 	}
 }
 
-// noSolutionMessage says which hard limit nothing could meet.
-func noSolutionMessage(p *synth.Problem, res *synth.Result) string {
+// warnLimitReach proves, before a search, which hard limits no candidate
+// can break (a limit that cannot shape the answer is most often a typo or a
+// unit slip) and warns of each; it returns every finding, for
+// noSolutionMessage to name a limit that every candidate breaks.
+func warnLimitReach(w io.Writer, p *synth.Problem) []synth.LimitReach {
+	reach := synth.ReachLimits(p)
+	for _, r := range reach {
+		if !r.Never {
+			continue
+		}
+		if r.Target == len(p.Template.Targets) {
+			warnf(w, "supply_power_max %s can never be broken: no candidate in the space draws more than %s, so the limit does not shape the answer",
+				eseries.FormatUnit(p.Template.Limits.SupplyPowerMax, eseries.Watt), eseries.FormatUnit(r.Hi, eseries.Watt))
+			continue
+		}
+		tg := p.Template.Targets[r.Target]
+		u := tg.Kind.Unit()
+		warnf(w, "%s %s (line %d) can never be broken: every candidate in the space reads between %s and %s in every condition, so the limit does not shape the answer; check its value and unit",
+			tg.Label(), describeLimit(tg), tg.Pos.Line, eseries.FormatUnit(r.Lo, u), eseries.FormatUnit(r.Hi, u))
+	}
+	return reach
+}
+
+// noSolutionMessage says which hard limit nothing could meet: one that
+// reach proves every candidate breaks, or else the one that rejected the
+// most candidates.
+func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitReach) string {
+	t := p.Template
+	for _, r := range reach {
+		if !r.Always {
+			continue
+		}
+		cond := p.Conditions[r.Condition].Name
+		if r.Target == len(t.Targets) {
+			return fmt.Sprintf("no candidate can meet the hard limits: every candidate in the space draws more than supply_power_max %s in condition %q; raise that limit or the values' minimum",
+				eseries.FormatUnit(t.Limits.SupplyPowerMax, eseries.Watt), cond)
+		}
+		tg := t.Targets[r.Target]
+		u := tg.Kind.Unit()
+		return fmt.Sprintf("no candidate can meet the hard limits: every candidate in the space breaks %s %s (line %d) in condition %q, where it reads between %s and %s; widen that limit, the value ranges or the series",
+			tg.Label(), describeLimit(tg), tg.Pos.Line, cond, eseries.FormatUnit(r.Lo, u), eseries.FormatUnit(r.Hi, u))
+	}
 	scope := "no candidate meets the hard limits"
 	if res.Shards > 1 {
 		scope = fmt.Sprintf("no candidate in shard %d/%d meets the hard limits (the other shards may hold some; merge them)", res.Shard, res.Shards)
@@ -301,7 +342,6 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result) string {
 	if b == nil {
 		return scope
 	}
-	t := p.Template
 	cond := p.Conditions[b.Condition].Name
 	if b.Target == len(t.Targets) {
 		return fmt.Sprintf("%s; most were rejected by supply_power_max %s in condition %q", scope,
