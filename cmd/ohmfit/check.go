@@ -1,13 +1,10 @@
 package main
 
 import (
-	"context"
 	"errors"
 	"fmt"
 	"io"
 	"math"
-	"os"
-	"os/signal"
 	"strconv"
 	"strings"
 
@@ -279,9 +276,10 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 		notef(o.ErrOut, "%s", note)
 	}
 	reach := warnLimitReach(o.ErrOut, p)
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
+	ctx, searched, release := searchInterrupt()
+	defer release()
 	res, err := synth.Search(ctx, p, set, m)
+	searched()
 	if err != nil {
 		return nil, badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
 	}

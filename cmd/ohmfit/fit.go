@@ -1,14 +1,11 @@
 package main
 
 import (
-	"context"
 	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
 	"math"
-	"os"
-	"os/signal"
 	"slices"
 	"strconv"
 	"strings"
@@ -117,7 +114,7 @@ around it) where neither can prove the result; the summary line names the
 method, and the result says when it is not proven. A result stopped by
 --time-limit or Ctrl-C says how far from proven it is: "nothing better than
 X can exist" (JSON "bound"). Ctrl-C stops a search and prints the best found
-so far.
+so far; once the search is over (--check, --robust) it ends the run at once.
 
 --shard K/N searches only the K-th of N disjoint parts of the space; the
 JSON results of all N parts, combined by "ohmfit merge", are the result of
@@ -201,8 +198,8 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 		notef(o.ErrOut, "%s", note)
 	}
 	reach := warnLimitReach(o.ErrOut, p)
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
+	ctx, searched, release := searchInterrupt()
+	defer release()
 	done := make(chan struct{})
 	if o.ErrIsTTY && !o.Quiet {
 		go showProgress(o.ErrOut, set.Progress, done)
@@ -210,6 +207,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 		close(done)
 	}
 	res, err := synth.Search(ctx, p, set, method)
+	searched()
 	if o.ErrIsTTY && !o.Quiet {
 		done <- struct{}{}
 		<-done
