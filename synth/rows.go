@@ -495,15 +495,46 @@ func (w *rowWorker) scoreOption(i int) {
 			errMax = e
 		}
 	}
-	w.offer(i, errMax, powMax)
+	w.offer(i, errMax, powMax, false)
 }
 
-func (w *rowWorker) offer(i int, errMax, powMax float64) {
+// rescoreSlack is how far, at most, the update formula's goal error (in
+// absolute terms) and power (relative) may be off by rounding. A
+// candidate that could enter the list within it is scored again with full
+// solves before it is offered: exact ties (decade-scaled copies of one
+// ratio) differ in the update formula by more than the contract's tie
+// tolerance, and would otherwise be ranked by rounding instead of by power.
+const rescoreSlack = 1e-9
+
+// offer offers option i of the row, scored errMax and powMax, to the
+// worker's lists. exact says the scores come from full solves; otherwise a
+// candidate that could be kept is scored again with full solves first.
+func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
 	copy(w.cand.Opt, w.cur)
 	w.cand.Opt[w.j] = int32(i)
 	parts := 0
 	for k, d := range w.p.Domains {
 		parts += d.Options[w.cand.Opt[k]].Count
+	}
+	if !exact {
+		w.cand.Error, w.cand.Power, w.cand.Parts = max(0, errMax-rescoreSlack), powMax*(1-rescoreSlack), parts
+		top := !w.top.full() || w.top.r.less(&w.cand, w.top.worst())
+		front := w.front != nil && errMax <= w.frontCap+rescoreSlack
+		if !top && !front {
+			return
+		}
+		for k, d := range w.p.Domains {
+			w.free[k] = d.Options[w.cand.Opt[k]].Value
+		}
+		w.stats.Solves += int64(w.nc)
+		if err := w.p.Evaluate(w.s, w.free, w.sc); err != nil {
+			return
+		}
+		if !w.sc.Feasible {
+			w.viol[w.sc.ViolatedTarget*w.nc+w.sc.ViolatedCondition]++
+			return
+		}
+		errMax, powMax = w.sc.Error, w.sc.Power
 	}
 	w.cand.Error, w.cand.Power, w.cand.Parts = errMax, powMax, parts
 	w.top.offer(&w.cand)
@@ -530,7 +561,7 @@ func (w *rowWorker) slowRow(lo, hi int) {
 			w.viol[w.sc.ViolatedTarget*w.nc+w.sc.ViolatedCondition]++
 			continue
 		}
-		w.offer(i, w.sc.Error, w.sc.Power)
+		w.offer(i, w.sc.Error, w.sc.Power, true)
 	}
 }
 
@@ -552,12 +583,14 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 	}
 	switch primary {
 	case constraints.ByError:
+		// The update formula's rounding (rescoreSlack) is allowed for, so
+		// that an exact tie of the threshold is scored, not cut.
 		t := math.Inf(1)
 		if worst != nil {
-			t = widen(worst.Error)
+			t = widen(worst.Error) + rescoreSlack
 		}
 		if w.frontCap > 0 {
-			t = math.Max(t, widen(w.frontCap))
+			t = math.Max(t, widen(w.frontCap)+rescoreSlack)
 		}
 		if math.IsInf(t, 1) {
 			return full
@@ -571,7 +604,7 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 		if worst == nil {
 			return full
 		}
-		a, b, ok := w.powerRange(lo, hi, widen(worst.Power))
+		a, b, ok := w.powerRange(lo, hi, widen(worst.Power)*(1+rescoreSlack))
 		if !ok {
 			return full
 		}
@@ -581,7 +614,7 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 		}
 		if w.frontCap > 0 {
 			// The front also wants low-error options the power bound drops.
-			c, d := w.goalRange(lo, hi, widen(w.frontCap))
+			c, d := w.goalRange(lo, hi, widen(w.frontCap)+rescoreSlack)
 			out = unionRange(out, c, d)
 		}
 		return out
