@@ -77,6 +77,10 @@ type PartSpec struct {
 	// is the resistance at ReferenceCelsius.
 	Sensor     sensors.Model
 	SensorType string // "ntc" or "rtd"
+	// Dissipation is a sensor's dissipation constant in W/K (`dissipation:
+	// 1.5mW/K`): the power that raises it one kelvin above its
+	// surroundings. Zero means not given.
+	Dissipation float64
 }
 
 // ADC is an analog-to-digital converter input (`type: adc`): an ideal,
@@ -106,6 +110,7 @@ const (
 	Linearity                     // largest deviation of a node's voltage from the straight line through the ends of the temperature sweep, in °C of reading
 	Sensitivity                   // |dV/dT| of a node at a temperature, volts per °C
 	Resolution                    // °C per ADC step at a temperature
+	SelfHeating                   // a sensor's temperature rise above its surroundings, °C: its power over its dissipation constant
 )
 
 // Target is one requirement on one quantity. A target with HasEquals is a
@@ -113,7 +118,7 @@ const (
 type Target struct {
 	Kind  TargetKind
 	Nodes []string // Voltage: 1 or 2 nodes; Ratio and Resistance: exactly 2
-	Part  string   // Current and Power
+	Part  string   // Current, Power and SelfHeating
 
 	HasEquals bool
 	Equals    float64

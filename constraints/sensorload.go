@@ -20,8 +20,8 @@ import (
 // sensorKeys are the keys of each sensor part type beyond name, type, from
 // and to; all are optional to the generic check and validated here.
 var sensorKeys = map[string][]string{
-	"ntc": {"r25", "beta", "steinhart", "tolerance", "package"},
-	"rtd": {"r0", "coefficients", "tolerance", "package"},
+	"ntc": {"r25", "beta", "steinhart", "tolerance", "package", "dissipation"},
+	"rtd": {"r0", "coefficients", "tolerance", "package", "dissipation"},
 }
 
 // sensorModel reads an ntc or rtd part's model and sets its Value to the
@@ -75,6 +75,11 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 		}
 		p.Sensor = m
 	}
+	if e, ok := byName["dissipation"]; ok {
+		if p.Dissipation, ok = d.dissipation(e.val, joinKey(path, "dissipation"), label(ctx, "dissipation")); !ok {
+			return false
+		}
+	}
 	v, err := p.Sensor.Resistance(ReferenceCelsius)
 	if err != nil || !(v > 0) || math.IsInf(v, 0) {
 		d.errorf(n, path, "%s: the model gives no usable resistance at %g °C", ctx, ReferenceCelsius)
@@ -82,6 +87,41 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 	}
 	p.Value = v
 	return true
+}
+
+// dissipation reads a dissipation constant: `1.5mW/K`, `1.5 mW/K`, or a
+// value in watts per kelvin without the unit (`1.5m`).
+func (d *decoder) dissipation(n *yaml.Node, path, ctx string) (float64, bool) {
+	if n.Kind != yaml.ScalarNode || isNull(n) {
+		d.errorf(n, path, "%s: expected a dissipation constant such as 1.5mW/K, got %s", ctx, describe(n))
+		return 0, false
+	}
+	text := strings.TrimSpace(n.Value)
+	for _, per := range []string{"/K", "/°C"} {
+		if strings.HasSuffix(text, per) {
+			text = strings.TrimSuffix(text, per)
+			if !strings.HasSuffix(text, "W") {
+				d.errorf(n, path, "%s: expected watts per kelvin such as 1.5mW/K, got %s", ctx, eseries.Quote(n.Value))
+				return 0, false
+			}
+			break
+		}
+	}
+	v, err := eseries.ParseAs(text, eseries.Watt)
+	if err != nil {
+		d.errorf(n, path, "%s: expected a dissipation constant such as 1.5mW/K, got %s", ctx, eseries.Quote(n.Value))
+		return 0, false
+	}
+	if !(v > 0) {
+		d.errorf(n, path, "%s: must be positive, got %s", ctx, eseries.Clip(n.Value))
+		return 0, false
+	}
+	if v < dissipationRange.lo || v > dissipationRange.hi {
+		d.errorf(n, path, "%s: %s lies outside %s … %s W/K, %s; check the value and its unit (mW/K is written 1.5mW/K)", ctx, eseries.Clip(n.Value),
+			eseries.Format(dissipationRange.lo), eseries.Format(dissipationRange.hi), dissipationRange.what)
+		return 0, false
+	}
+	return v, true
 }
 
 // paramRange is the usual range of a sensor parameter, for refusing a
@@ -99,6 +139,11 @@ var (
 	betaRange = paramRange{1000, 10000, eseries.NoUnit, "K, the usual range of an NTC's B constant (common practice, no source)"}
 	r25Range  = paramRange{1, 100e6, eseries.Ohm, "Ω, the usual range of an NTC's resistance at 25 °C (common practice, no source)"}
 	r0Range   = paramRange{1, 100e3, eseries.Ohm, "Ω, the usual range of a platinum sensor's resistance at 0 °C, Pt10 to Pt10000 (common practice, no source)"}
+	// Datasheets give dissipation constants from about 0.5 mW/K (a bare
+	// bead in still air) to tens of mW/K (a probe in a stirred liquid or a
+	// large disc): the bounds leave a decade of margin each side, and catch
+	// a constant written in W/K that meant mW/K.
+	dissipationRange = paramRange{10e-6, 1, eseries.NoUnit, "the usual range of a sensor's dissipation constant (common practice, no source)"}
 )
 
 // within reports v inside r, reporting it at n otherwise.
@@ -432,6 +477,23 @@ func (d *decoder) checkSensors() {
 	for _, r := range d.adcRefs {
 		if !slices.Contains(adcNames, r.name) {
 			d.errorf(r.n, r.key, "target names ADC %q, which is not in parts%s", r.name, suggest(r.name, adcNames))
+		}
+	}
+	for _, r := range d.heatRefs {
+		i, ok := t.Part(r.name)
+		var names []string
+		for _, p := range t.Parts {
+			if p.Sensor != nil {
+				names = append(names, p.Name)
+			}
+		}
+		switch {
+		case !ok:
+			d.errorf(r.n, r.key, "self_heating names part %q, which is not in parts%s", r.name, suggest(r.name, names))
+		case t.Parts[i].Sensor == nil:
+			d.errorf(r.n, r.key, "self_heating names part %q, which is not a sensor; it goes with an ntc or rtd part", r.name)
+		case t.Parts[i].Dissipation == 0:
+			d.errorf(r.n, r.key, "self_heating names %s %q, which has no dissipation constant; give the part `dissipation:` from its datasheet (e.g. dissipation: 1.5mW/K)", t.Parts[i].SensorType, r.name)
 		}
 	}
 	for i := range t.Targets {

@@ -404,6 +404,9 @@ func writeCheckTable(w io.Writer, t *constraints.Template, d *variation.Design, 
 	if err := writePartTable(&b, d, rep); err != nil {
 		return err
 	}
+	if err := writeHeatingTable(&b, rep); err != nil {
+		return err
+	}
 	writeNotes(&b, rep)
 	_, err := io.WriteString(w, b.String())
 	return err
@@ -507,6 +510,32 @@ func writePartTable(b *strings.Builder, d *variation.Design, rep *variation.Repo
 	return nil
 }
 
+// writeHeatingTable writes each sensor's self-heating per condition, when
+// a sensor has a dissipation constant.
+func writeHeatingTable(b *strings.Builder, rep *variation.Report) error {
+	if len(rep.Heating) == 0 {
+		return nil
+	}
+	b.WriteString("\n  self-heating at nominal values: rise = P/δ at the condition's temperature; reading error = how far the sensor\n")
+	b.WriteString("  settles above it (fixed point of T = T0 + P(T)/δ), which is what a reading from it is off by\n\n")
+	tb := table{indent: "  ", cols: []column{{gap: 3}, {gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {right: true}}}
+	tb.add("sensor", "condition", "power", "rise", "reading error", "steps")
+	for _, h := range rep.Heating {
+		read := "does not settle"
+		if h.Converged {
+			read = celsius(h.ReadingError)
+		}
+		tb.add(h.Part, h.CondName, eseries.FormatUnit(h.Watts, eseries.Watt), celsius(h.Rise), read, strconv.Itoa(h.Steps))
+	}
+	return tb.write(b)
+}
+
+// celsius writes a temperature difference with four significant digits
+// and no SI prefix: "0.06787 °C".
+func celsius(v float64) string {
+	return strconv.FormatFloat(v, 'g', 4, 64) + " °C"
+}
+
 // writeNotes writes the warnings, cautions and hard failures.
 func writeNotes(b *strings.Builder, rep *variation.Report) {
 	b.WriteString("\n  load is worst-case power over rated power; packages carry at most 50% (derating, common practice).\n")
@@ -601,7 +630,12 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 	if rep.Samples > 0 {
 		mc = object{{"samples", rep.Samples}, {"seed", rep.Seed}, {"distribution", rep.Distribution.String()}, {"yield", rep.Yield}}
 	}
-	return object{
+	var heating []object
+	for _, h := range rep.Heating {
+		heating = append(heating, object{{"sensor", h.Part}, {"condition", h.CondName}, {"watts", h.Watts}, {"rise", h.Rise},
+			{"reading_error", finite(h.ReadingError)}, {"steps", h.Steps}, {"converged", h.Converged}})
+	}
+	doc := object{
 		{"name", t.Name},
 		{"worst_case", object{{"method", rep.Method}, {"corners", rep.Corners}}},
 		{"monte_carlo", mc},
@@ -614,6 +648,12 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 		{"cautions", nonNilStrings(rep.Cautions)},
 		{"failures", nonNilStrings(rep.Failures)},
 	}
+	if len(heating) > 0 {
+		// Only for a design whose sensors have a dissipation constant,
+		// after the other keys.
+		doc = append(doc, member{"self_heating", heating})
+	}
+	return doc
 }
 
 func nonNilStrings(s []string) []string {

@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"strconv"
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/ratings"
@@ -128,12 +129,15 @@ type SensorLoad struct {
 
 // Report is the outcome of Check.
 type Report struct {
-	Method       string // MethodCorners or MethodLinearised
-	Corners      int    // solves per condition spent on the worst case
-	Parts        []Varied
-	Goals        []Goal
-	Ratings      []Rating // resistors only
-	Sensors      []SensorLoad
+	Method  string // MethodCorners or MethodLinearised
+	Corners int    // solves per condition spent on the worst case
+	Parts   []Varied
+	Goals   []Goal
+	Ratings []Rating // resistors only
+	Sensors []SensorLoad
+	// Heating is each sensor's self-heating per condition, for sensors
+	// with a dissipation constant (see Design.SelfHeating); nil otherwise.
+	Heating      []Heating
 	Samples      int
 	Seed         uint64
 	Distribution Distribution
@@ -353,6 +357,12 @@ func Check(d *Design, set *Settings) (*Report, error) {
 	r.hazards = rt.watch.Cautions()
 	r.Ratings = rt.ratings(&st, t, r)
 	r.Sensors = rt.sensors()
+	heating, err := d.SelfHeating()
+	if err != nil {
+		return nil, err
+	}
+	r.Heating = heating
+	r.Warnings = append(r.Warnings, heatingWarnings(r.Heating)...)
 	d.warn(r, &st)
 	return r, nil
 }
@@ -378,14 +388,19 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			nodeW[pr.B] -= pr.Scale
 		case constraints.Current:
 			partW[pr.Part] = pr.Sign
-		case constraints.Power:
-			// Watts = (V(from) - V(to))·Amps along the part's edge.
+		case constraints.Power, constraints.SelfHeating:
+			// Watts = (V(from) - V(to))·Amps along the part's edge; a
+			// rise is watts times 1/δ.
+			k := 1.0
+			if pr.Kind == constraints.SelfHeating {
+				k = pr.Scale
+			}
 			for _, e := range net.Edges() {
 				if e.Part == pr.Part {
 					i := s.Amps(pr.Part)
-					nodeW[e.From] += i
-					nodeW[e.To] -= i
-					partW[pr.Part] = s.Voltage(e.From) - s.Voltage(e.To)
+					nodeW[e.From] += k * i
+					nodeW[e.To] -= k * i
+					partW[pr.Part] = k * (s.Voltage(e.From) - s.Voltage(e.To))
 				}
 			}
 		case constraints.Ratio:
@@ -691,8 +706,17 @@ func (d *Design) warn(r *Report, st *Settings) {
 			if g.Condition == SweepCondition {
 				where = "over the sweep"
 			}
+			f := func(v float64) string { return num(v, u) }
+			if tg.Kind == constraints.SelfHeating {
+				f = func(v float64) string {
+					if math.IsInf(v, 0) {
+						return num(v, u)
+					}
+					return strconv.FormatFloat(v, 'g', 4, 64) + " °C"
+				}
+			}
 			r.Failures = append(r.Failures, fmt.Sprintf("%s %s leaves its limits in the worst case: %s … %s against %s … %s",
-				g.Label, where, num(g.WorstMin, u), num(g.WorstMax, u), num(lo, u), num(hi, u)))
+				g.Label, where, f(g.WorstMin), f(g.WorstMax), f(lo), f(hi)))
 		}
 	}
 	if r.Samples > 0 && r.Yield < 1 {
