@@ -77,6 +77,12 @@ type PartSpec struct {
 	// is the resistance at ReferenceCelsius.
 	Sensor     sensors.Model
 	SensorType string // "ntc" or "rtd"
+	// BetaTolerance is an NTC's tolerance on its B constant as a fraction
+	// (`beta_tolerance: 1%`); zero means not given (B is taken as exact).
+	BetaTolerance float64
+	// Class is an RTD's IEC 60751 tolerance class (`class: A`), one of
+	// sensors.Classes; "" when not given.
+	Class string
 	// Dissipation is a sensor's dissipation constant in W/K (`dissipation:
 	// 1.5mW/K`): the power that raises it one kelvin above its
 	// surroundings. Zero means not given.

@@ -20,8 +20,8 @@ import (
 // sensorKeys are the keys of each sensor part type beyond name, type, from
 // and to; all are optional to the generic check and validated here.
 var sensorKeys = map[string][]string{
-	"ntc": {"r25", "beta", "steinhart", "tolerance", "package", "dissipation"},
-	"rtd": {"r0", "coefficients", "tolerance", "package", "dissipation"},
+	"ntc": {"r25", "beta", "steinhart", "tolerance", "beta_tolerance", "package", "dissipation"},
+	"rtd": {"r0", "coefficients", "tolerance", "class", "package", "dissipation"},
 }
 
 // sensorModel reads an ntc or rtd part's model and sets its Value to the
@@ -38,6 +38,10 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 			d.errorf(sh.key, joinKey(path, "steinhart"), "%s: give either r25 and beta or steinhart, not both", ctx)
 			return false
 		case hasSH:
+			if e, ok := byName["beta_tolerance"]; ok {
+				d.errorf(e.key, joinKey(path, "beta_tolerance"), "%s: beta_tolerance goes with r25 and beta; a Steinhart–Hart model has no B constant", ctx)
+				return false
+			}
 			c, ok := d.numbers(sh.val, joinKey(path, "steinhart"), label(ctx, "steinhart"), 3, "[1.129e-3, 2.341e-4, 8.775e-8]")
 			if !ok {
 				return false
@@ -51,6 +55,13 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 				return false
 			}
 			p.Sensor = sensors.Beta{R25: r, Beta: b}
+			if e, ok := byName["beta_tolerance"]; ok {
+				bt, ok := d.fraction(e.val, joinKey(path, "beta_tolerance"), label(ctx, "beta_tolerance"), "1%")
+				if !ok {
+					return false
+				}
+				p.BetaTolerance = bt
+			}
 		default:
 			d.missingf(n, joinKey(path, "r25"), "%s: a thermistor needs r25 and beta (e.g. r25: 10k, beta: 3950) or steinhart: [A, B, C]", ctx)
 			return false
@@ -74,6 +85,23 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 			m.A, m.B, m.C = c[0], c[1], c[2]
 		}
 		p.Sensor = m
+		if e, ok := byName["class"]; ok {
+			cpath := joinKey(path, "class")
+			if t, has := byName["tolerance"]; has {
+				d.errorf(t.key, joinKey(path, "tolerance"), "%s: give class or tolerance, not both (the class is the tolerance)", ctx)
+				return false
+			}
+			var names []string
+			for _, c := range sensors.Classes {
+				names = append(names, c.Name)
+			}
+			c, ok := sensors.LookupClass(e.val.Value)
+			if e.val.Kind != yaml.ScalarNode || !ok {
+				d.errorf(e.val, cpath, "%s: expected an IEC 60751 class, one of %s, got %s", label(ctx, "class"), strings.Join(names, ", "), describe(e.val))
+				return false
+			}
+			p.Class = c.Name
+		}
 	}
 	if e, ok := byName["dissipation"]; ok {
 		if p.Dissipation, ok = d.dissipation(e.val, joinKey(path, "dissipation"), label(ctx, "dissipation")); !ok {
@@ -87,6 +115,18 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 	}
 	p.Value = v
 	return true
+}
+
+// fraction reads a percentage above 0 % and below 100 % (`1%`) or the
+// same as a plain fraction (`0.01`).
+func (d *decoder) fraction(n *yaml.Node, path, ctx, example string) (float64, bool) {
+	if n.Kind == yaml.ScalarNode && !isNull(n) {
+		if q, err := eseries.Parse(n.Value); err == nil && (q.Unit == eseries.Percent || q.Unit == eseries.NoUnit) && q.Value > 0 && q.Value < 1 {
+			return q.Value, true
+		}
+	}
+	d.errorf(n, path, "%s: expected a percentage above 0%% and below 100%% such as %s, got %s", ctx, example, describe(n))
+	return 0, false
 }
 
 // dissipation reads a dissipation constant: `1.5mW/K`, `1.5 mW/K`, or a

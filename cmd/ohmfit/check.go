@@ -325,6 +325,9 @@ func inputFiles(t *constraints.Template) []string {
 
 // tolText shows a part's tolerance: "1%" or "±10 mV".
 func tolText(v variation.Varied) string {
+	if v.Class != "" {
+		return "class " + v.Class
+	}
 	if v.Tol == 0 {
 		return "exact"
 	}
@@ -474,6 +477,9 @@ func writePartTable(b *strings.Builder, d *variation.Design, rep *variation.Repo
 	tb.add("part", "value", "tolerance", "TCR", "worst power", "worst volts", "package", "load", "verdict")
 	var models []string
 	for j, v := range rep.Parts {
+		if v.Extra() {
+			continue // a sensor's B or class terms: on the sensor's line
+		}
 		if sl, ok := sensed[v.Name]; ok {
 			pkg := v.Package
 			if pkg == "" {
@@ -481,8 +487,12 @@ func writePartTable(b *strings.Builder, d *variation.Design, rep *variation.Repo
 			}
 			tb.add(v.Name, eseries.FormatUnit(v.Nominal, eseries.Ohm), tolText(v), "-",
 				eseries.FormatUnit(sl.Watts, eseries.Watt), eseries.FormatUnit(sl.Volts, eseries.Volt), pkg, "-", "sensor")
-			models = append(models, fmt.Sprintf("  %s is an %s, %s, ±%s (%s): its datasheet rates it, not the package table.\n",
-				v.Name, variation.SensorKind(v.Sensor), d.SensorSpec(j), eseries.FormatUnit(v.Tol, eseries.Percent), v.TolFrom))
+			tol := fmt.Sprintf(", ±%s (%s)", eseries.FormatUnit(v.Tol, eseries.Percent), v.TolFrom)
+			if v.Class != "" {
+				tol = "" // the class is in the model
+			}
+			models = append(models, fmt.Sprintf("  %s is an %s, %s%s: its datasheet rates it, not the package table.\n",
+				v.Name, variation.SensorKind(v.Sensor), d.SensorSpec(j), tol))
 			continue
 		}
 		r, ok := rated[v.Name]
@@ -597,16 +607,27 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 	}
 	parts, sources := []object{}, []object{}
 	for j, v := range rep.Parts {
+		if v.Extra() {
+			continue // a sensor's B or class terms: on the sensor's object
+		}
 		base := object{{"name", v.Name}, {"value", v.Nominal}, {"tolerance", v.Tol}, {"tolerance_relative", v.Relative}, {"tolerance_from", v.TolFrom}}
 		if sl, ok := sensed[v.Name]; ok {
 			var pkg any
 			if v.Package != "" {
 				pkg = v.Package
 			}
-			parts = append(parts, append(base,
+			obj := append(base,
 				member{"position", v.Position}, member{"type", v.Sensor}, member{"model", d.SensorSpec(j)},
 				member{"watts", sl.Watts}, member{"nominal_watts", sl.NominalWatts}, member{"volts", sl.Volts},
-				member{"package", pkg}))
+				member{"package", pkg})
+			ps := t.Parts[v.Part]
+			if ps.BetaTolerance > 0 {
+				obj = append(obj, member{"beta_tolerance", ps.BetaTolerance})
+			}
+			if ps.Class != "" {
+				obj = append(obj, member{"class", ps.Class})
+			}
+			parts = append(parts, obj)
 			continue
 		}
 		r, ok := rated[v.Name]

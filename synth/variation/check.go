@@ -77,11 +77,13 @@ type Stats struct {
 // derivative at nominal values (every part at its value, no tolerance, no
 // TCR drift). x is the physical part's value: its ohms (each part of a pair
 // on its own), a source's volts or amps, and for a thermistor or RTD its R25
-// or R0, which scales its resistance at every temperature alike.
+// or R0, which scales its resistance at every temperature alike; for a
+// sensor's extra entry (Varied.Extra) its B in kelvin, or its class error's
+// offset (°C) or slope (°C/°C).
 type Sensitivity struct {
 	Part       string
 	Absolute   float64 // dX/dx, in the target's unit per the part's unit; NaN when it cannot be computed
-	Normalised float64 // (dX/X)/(dx/x); NaN when X is 0
+	Normalised float64 // (dX/X)/(dx/x); NaN when X is 0, or x is (a class error's terms)
 }
 
 // Goal is one target in one condition.
@@ -199,7 +201,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 			if err != nil {
 				return nil, err
 			}
-			sens, err := d.sensitivities(s, pr, x, zero)
+			sens, err := d.sensitivities(s, ci, pr, x, zero)
 			if err != nil {
 				return nil, err
 			}
@@ -369,7 +371,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 
 // sensitivities returns the target's sensitivity to each varied part at the
 // solver's current solution, by the adjoint method.
-func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64, dev []float64) ([]Sensitivity, error) {
+func (d *Design) sensitivities(s *solver.Solver, ci int, pr constraints.Probe, x float64, dev []float64) ([]Sensitivity, error) {
 	net := s.Network()
 	nn, np := len(net.Nodes()), len(d.Problem.Template.Parts)
 	grad := make([]float64, np)
@@ -424,6 +426,11 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			if v.combine == constraints.Parallel {
 				g *= (pos / xj) * (pos / xj)
 			}
+		} else if v.Extra() {
+			// Per unit of the sensor's parameter (its B, its class
+			// error's offset or slope), through dR/dx in this condition.
+			g *= d.paramSlope(j, ci, pos)
+			xj = v.Nominal
 		} else {
 			xj = pos
 			if v.Sensor != "" {
@@ -434,7 +441,7 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			}
 		}
 		n := math.NaN()
-		if x != 0 {
+		if x != 0 && xj != 0 {
 			n = g * xj / x
 		}
 		out[j] = Sensitivity{Part: v.Name, Absolute: g, Normalised: n}
@@ -616,7 +623,7 @@ func newRatingTracker(d *Design, net *solver.Network) *ratingTracker {
 func (rt *ratingTracker) observe(s *solver.Solver, ci int, dev []float64) {
 	isNominal := !slices.ContainsFunc(dev, func(v float64) bool { return v != 0 })
 	for j, v := range rt.d.Parts {
-		if v.Kind != solver.Resistor {
+		if v.Kind != solver.Resistor || v.Extra() {
 			continue
 		}
 		vo, w := rt.d.physical(s, j, dev)
@@ -675,7 +682,7 @@ func (rt *ratingTracker) ratings(st *Settings, t *constraints.Template, r *Repor
 func (rt *ratingTracker) sensors() []SensorLoad {
 	var out []SensorLoad
 	for j, v := range rt.d.Parts {
-		if v.Sensor != "" {
+		if v.Sensor != "" && !v.Extra() {
 			out = append(out, SensorLoad{Part: v.Name, NominalWatts: rt.nominal[j], Watts: rt.watts[j], Volts: rt.volts[j]})
 		}
 	}
@@ -823,7 +830,7 @@ func (d *Design) derivedSensitivities(s *solver.Solver, ti int, x float64) []Sen
 		} else {
 			out[j].Absolute = slope
 		}
-		if x != 0 {
+		if x != 0 && v.Nominal != 0 {
 			out[j].Normalised = out[j].Absolute * v.Nominal / x
 		}
 	}
