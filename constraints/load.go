@@ -1417,6 +1417,11 @@ func (d *decoder) crossCheck() {
 			c.Set = append(c.Set, Setting{Part: s.part, Value: v})
 		}
 	}
+	if len(d.errs) == 0 {
+		// Last, so that no check above counts them as the user's parts
+		// (an ADC's node is connected only by what the user wires to it).
+		d.addADCLoads()
+	}
 }
 
 // checkDangling reports a node that only one part touches and no target

@@ -87,16 +87,32 @@ type PartSpec struct {
 	// 1.5mW/K`): the power that raises it one kelvin above its
 	// surroundings. Zero means not given.
 	Dissipation float64
+
+	// ADC is set on the parts ohmfit adds for an ADC's input (`input:`, a
+	// resistor from its node to ground, and `leakage:`, a current source
+	// from its node to ground): the ADC's name. They load the node in every
+	// solve; they are no parts to buy or to vary, and are exact.
+	ADC string
 }
 
-// ADC is an analog-to-digital converter input (`type: adc`): an ideal,
-// unloading input whose reading targets can be written in codes.
+// ADC is an analog-to-digital converter input (`type: adc`) whose reading
+// targets can be written in codes: ideal and unloading unless it has an
+// input resistance or a leakage current, which the loader adds as parts
+// (see PartSpec.ADC).
 type ADC struct {
 	Name string
 	Node string  // the node it reads, against ground
 	Ref  float64 // full-scale reference, volts
 	Bits int
 	Pos  Pos
+	// Input is the input's resistance to ground in ohms (`input: 1M`);
+	// zero means none (an ideal input).
+	Input float64
+	// Leakage is the current the input draws out of the node, in amps
+	// (`leakage: 100n`; negative when it drives current into the node);
+	// HasLeakage says it was given.
+	Leakage    float64
+	HasLeakage bool
 }
 
 // Step is the voltage of one code step: Ref / 2^Bits.

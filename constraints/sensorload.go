@@ -9,6 +9,7 @@ import (
 
 	"github.com/ohmfit/ohmfit/constraints/sensors"
 	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/solver"
 	"gopkg.in/yaml.v3"
 )
 
@@ -253,7 +254,7 @@ func (d *decoder) numbers(n *yaml.Node, path, ctx string, k int, example string)
 
 // adc reads `{name: ADC1, type: adc, in: node, ref: 3.3, bits: 12}`.
 func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
-	byName, _ := d.fields(n, path, ctx, []string{"name", "type", "in", "ref", "bits", "max_source"})
+	byName, _ := d.fields(n, path, ctx, []string{"name", "type", "in", "ref", "bits", "max_source", "input", "leakage"})
 	for _, k := range []string{"name", "in", "ref", "bits"} {
 		if _, ok := byName[k]; !ok {
 			d.missingf(n, joinKey(path, k), "%s: missing key %q for an adc (e.g. {name: ADC1, type: adc, in: sense, ref: 3.3, bits: 12})", ctx, k)
@@ -288,7 +289,41 @@ func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
 		}
 		d.t.Targets = append(d.t.Targets, Target{Kind: Resistance, Nodes: []string{a.Node, d.t.Ground}, HasMax: true, Max: max, Pos: Pos{e.val.Line, e.val.Column}})
 	}
+	if e, ok := byName["input"]; ok {
+		if a.Input, ok = d.positive(e.val, joinKey(path, "input"), label(ctx, "input"), eseries.Ohm); !ok {
+			return a, nil, false
+		}
+	}
+	if e, ok := byName["leakage"]; ok {
+		if a.Leakage, ok = d.value(e.val, joinKey(path, "leakage"), label(ctx, "leakage"), eseries.Amp); !ok {
+			return a, nil, false
+		}
+		a.HasLeakage = true
+	}
 	return a, byName["name"].val, true
+}
+
+// addADCLoads adds, once every name is checked, the parts that model each
+// ADC's input: its resistance and its leakage, each from its node to
+// ground, named "ADC1:input" and "ADC1:leakage" and placed at the ADC.
+func (d *decoder) addADCLoads() {
+	t := d.t
+	for _, a := range t.ADCs {
+		add := func(suffix string, p solver.Part) {
+			p.Name, p.From, p.To = a.Name+suffix, a.Node, t.Ground
+			if _, dup := t.Part(p.Name); dup {
+				d.errorf(&yaml.Node{Line: a.Pos.Line, Column: a.Pos.Col}, "parts", "part name %q is taken; ohmfit names the part that models the input of ADC %q so: rename one", p.Name, a.Name)
+				return
+			}
+			t.Parts = append(t.Parts, PartSpec{Part: p, Pos: a.Pos, ADC: a.Name})
+		}
+		if a.Input > 0 {
+			add(":input", solver.Part{Kind: solver.Resistor, Value: a.Input})
+		}
+		if a.HasLeakage {
+			add(":leakage", solver.Part{Kind: solver.CurrentSource, Value: a.Leakage})
+		}
+	}
 }
 
 // temperature reads a temperature in °C: a plain number (85, -20, 25.5).

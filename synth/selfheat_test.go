@@ -67,3 +67,27 @@ func TestSelfHeatingLimitMatchesBruteForce(t *testing.T) {
 		}
 	}
 }
+
+// An ADC's input resistance and leakage load its node in the search as in
+// the plain enumeration (which sees them as the resistor and current source
+// the loader adds, through its own gonum MNA): a loaded divider with a
+// goal on the tap and the settling limit, by each method.
+func TestADCLoadMatchesBruteForce(t *testing.T) {
+	const text = `ohmfit: 1
+parts:
+  - {name: V1, type: voltage-source, plus: vcc, minus: gnd, volts: 5}
+  - {name: R1, type: resistor, from: vcc, to: s}
+  - {name: R2, type: resistor, from: s, to: gnd}
+  - {name: ADC1, type: adc, in: s, ref: 3.3, bits: 12, max_source: 50k, input: 200k, leakage: 2u}
+targets:
+  - {voltage: s, equals: 1.8, tolerance: 2%}
+  - {code: ADC1, min: 2000}
+choose: {series: E24, min: 1k, max: 1M}
+`
+	for _, rank := range []string{"", "rank: [power, error]\n"} {
+		p := problemFromYAML(t, text+rank, "")
+		for _, m := range []synth.Method{nil, bb} {
+			compareMethodWithBrute(t, p, 6, 2, m)
+		}
+	}
+}

@@ -115,6 +115,9 @@ func NewDesign(p *constraints.Problem, options []synth.Option, series string, am
 		free[i] = k
 	}
 	for i, ps := range t.Parts {
+		if ps.ADC != "" {
+			continue // an ADC's input: exact, and no part to buy
+		}
 		switch ps.Kind {
 		case solver.OpAmp:
 			continue

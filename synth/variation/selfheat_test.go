@@ -85,3 +85,40 @@ parts:
 		t.Errorf("no warning of the runaway in %q", r.Warnings)
 	}
 }
+
+// check solves with the ADC's input load (Thevenin: the 10k/10k divider
+// from 3.3 V is 1.65 V behind 5 kΩ; an input of 45 kΩ reads
+// 1.65·45/(5 + 45) = 1.485 V, and a leakage of 10 µA out of the node takes
+// a further 10 µA·(5k∥45k) = 45 mV by superposition), and the parts that
+// model the input are neither varied nor on the BOM.
+func TestCheckSeesADCLoad(t *testing.T) {
+	d := design(t, `ohmfit: 1
+parts:
+  - {name: V1, type: voltage-source, plus: vcc, minus: gnd, volts: 3.3}
+  - {name: R1, type: resistor, from: vcc, to: s, value: 10k, tolerance: 1%}
+  - {name: R2, type: resistor, from: s, to: gnd, value: 10k, tolerance: 1%}
+  - {name: ADC1, type: adc, in: s, ref: 3.3, bits: 12, input: 45k, leakage: 10u}
+targets:
+  - {voltage: s, min: 0}
+`)
+	r, err := Check(d, &Settings{Samples: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := 1.65*45/50 - 10e-6*4.5e3
+	if g := r.Goals[0]; math.Abs(g.Nominal-want) > 1e-12 {
+		t.Errorf("nominal %.15g V, closed form %.15g V", g.Nominal, want)
+	}
+	for _, v := range d.Parts {
+		if strings.HasPrefix(v.Name, "ADC1") {
+			t.Errorf("%s is varied as a part", v.Name)
+		}
+	}
+	for _, l := range BOM(d, r) {
+		for _, n := range l.Designators {
+			if strings.HasPrefix(n, "ADC1") {
+				t.Errorf("%s is on the BOM", n)
+			}
+		}
+	}
+}
