@@ -58,8 +58,23 @@ func TestSelfHeatingLimitMatchesBruteForce(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if len(res.Solutions) > 0 {
-				firsts[fmt.Sprint(res.Solutions[0].Values())] = true
+			if len(res.Solutions) == 0 {
+				continue
+			}
+			first := res.Solutions[0]
+			firsts[fmt.Sprint(first.Values())] = true
+			if res.Status != synth.Proven {
+				t.Errorf("limit %s: status %v, want proven", limit, res.Status)
+			}
+			if rank != "" {
+				// The leanest design that keeps the sensor cool: no
+				// candidate of the enumeration that meets every limit
+				// draws less power.
+				for _, c := range bruteForce(t, p) {
+					if c.power < first.Score.Power*(1-1e-12) {
+						t.Errorf("limit %s: %v draws %g W, less than the first answer's %g W", limit, c.vals, c.power, first.Score.Power)
+					}
+				}
 			}
 		}
 		if len(firsts) < 2 {
