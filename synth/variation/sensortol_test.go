@@ -111,3 +111,34 @@ func TestBOMSensorTolerance(t *testing.T) {
 		t.Errorf("RTD line %+v", rtd)
 	}
 }
+
+// A sensor without a tolerance is assumed ±1 % with a warning, whatever
+// else it carries: an NTC with only a B tolerance still has its R25
+// assumed; an RTD with a class needs no assumption (the class is its
+// tolerance) and gets no warning.
+func TestSensorAssumedToleranceWithNewKeys(t *testing.T) {
+	d := design(t, `ohmfit: 1
+parts:
+  - {name: I1, type: current-source, from: gnd, to: s, amps: 100u, tolerance: 1%}
+  - {name: RT1, type: ntc, from: s, to: gnd, r25: 10k, beta: 3950, beta_tolerance: 1%}
+  - {name: I2, type: current-source, from: gnd, to: x, amps: 1m, tolerance: 1%}
+  - {name: PT, type: rtd, from: x, to: gnd, r0: 100, class: AA}
+targets:
+  - {voltage: s, min: 0}
+`)
+	w := strings.Join(d.Warnings(), "\n")
+	if !strings.Contains(w, "RT1: an NTC thermistor without a tolerance; assumed ±1%") {
+		t.Errorf("no assumed-R25 warning for RT1 in %q", w)
+	}
+	if strings.Contains(w, "PT") {
+		t.Errorf("a warning for the classed RTD: %q", w)
+	}
+	for _, v := range d.Parts {
+		if v.Name == "PT" && (v.TolFrom != "class" || v.Tol != 0) {
+			t.Errorf("PT: tolerance %g from %q, want the class's", v.Tol, v.TolFrom)
+		}
+		if v.Name == "RT1" && v.TolFrom != "assumed" {
+			t.Errorf("RT1: tolerance from %q, want assumed", v.TolFrom)
+		}
+	}
+}
