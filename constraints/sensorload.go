@@ -158,8 +158,8 @@ func (d *decoder) dissipation(n *yaml.Node, path, ctx string) (float64, bool) {
 		return 0, false
 	}
 	if v < dissipationRange.lo || v > dissipationRange.hi {
-		d.errorf(n, path, "%s: %s lies outside %s … %s W/K, %s; check the value and its unit (mW/K is written 1.5mW/K)", ctx, eseries.Clip(n.Value),
-			eseries.Format(dissipationRange.lo), eseries.Format(dissipationRange.hi), dissipationRange.what)
+		d.errorf(n, path, "%s: %s lies outside %s/K … %s/K, %s; check the value and its unit (mW/K is written 1.5mW/K)", ctx, eseries.Clip(n.Value),
+			eseries.FormatUnit(dissipationRange.lo, eseries.Watt), eseries.FormatUnit(dissipationRange.hi, eseries.Watt), dissipationRange.what)
 		return 0, false
 	}
 	return v, true

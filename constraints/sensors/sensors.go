@@ -208,7 +208,7 @@ func Slope(m Model, celsius float64) (float64, error) {
 	lo, hi := celsius-h, celsius+h
 	rlo, err := m.Resistance(lo)
 	if err != nil {
-		lo, rlo = celsius, 0
+		lo = celsius
 		if rlo, err = m.Resistance(lo); err != nil {
 			return 0, err
 		}
