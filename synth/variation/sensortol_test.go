@@ -142,3 +142,62 @@ targets:
 		}
 	}
 }
+
+// The adjoint sensitivities to a sensor's extra parameters (B, class
+// offset and slope) and of self-heating targets against central finite
+// differences of full solves, in conditions away from 25 °C.
+func TestSensorParamSensitivities(t *testing.T) {
+	d := design(t, `ohmfit: 1
+parts:
+  - {name: V1, type: voltage-source, plus: vcc, minus: gnd, volts: 3.3}
+  - {name: R1, type: resistor, from: vcc, to: s, value: 10k, tolerance: 1%}
+  - {name: RT1, type: ntc, from: s, to: gnd, r25: 10k, beta: 3950, tolerance: 2%, beta_tolerance: 1%, dissipation: 2mW/K}
+  - {name: R2, type: resistor, from: vcc, to: x, value: 1k, tolerance: 1%}
+  - {name: PT, type: rtd, from: x, to: gnd, r0: 100, class: B, dissipation: 3mW/K}
+conditions:
+  - {name: cold, temperature: -25}
+  - {name: hot, temperature: 70}
+targets:
+  - {voltage: s, min: 0}
+  - {voltage: x, min: 0}
+  - {self_heating: RT1, max: 1}
+  - {self_heating: PT, max: 1}
+`)
+	r, err := Check(d, &Settings{Samples: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := d.Problem.Network.NewSolver()
+	// Sensitivities are at nominal values without TCR drift: hold every
+	// coefficient at zero, as a Monte Carlo draw of zero would.
+	d.tcrDraw = make([]float64, len(d.Parts))
+	read := func(g Goal, dev []float64) float64 {
+		d.setValues(s, g.Condition, dev)
+		if err := s.Solve(); err != nil {
+			t.Fatal(err)
+		}
+		x, err := d.Problem.Probes[g.Target].Read(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return x
+	}
+	for _, g := range r.Goals {
+		for j, v := range d.Parts {
+			const h = 1e-6
+			dev := make([]float64, len(d.Parts))
+			dev[j] = h
+			up := read(g, dev)
+			dev[j] = -h
+			down := read(g, dev)
+			fd := (up - down) / (2 * h) // per unit of dev
+			if v.Relative {
+				fd /= v.Nominal // dev is dx/x
+			}
+			a := g.Sens[j].Absolute
+			if math.Abs(fd-a) > 1e-5*math.Max(math.Abs(fd), 1e-12) {
+				t.Errorf("%s in %s: d/d%s adjoint %.9g, finite difference %.9g", g.Label, g.CondName, v.Name, a, fd)
+			}
+		}
+	}
+}
