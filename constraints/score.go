@@ -73,8 +73,8 @@ func (t Target) Meets(v float64) bool {
 type Probe struct {
 	Kind  TargetKind
 	A, B  int     // node indices (B is ground for a single-node voltage)
-	Part  int     // part index for Current and Power
-	Scale float64 // Code: codes per volt (2^bits / ref)
+	Part  int     // part index for Current, Power and SelfHeating
+	Scale float64 // Code: codes per volt (2^bits / ref); SelfHeating: kelvin per watt (1 / dissipation constant)
 	// Sign turns the solver's current of the part (along its edge) into
 	// what a current target reads: CurrentSign of the part's kind.
 	Sign float64
@@ -107,6 +107,12 @@ func (p Probe) Read(s *solver.Solver) (float64, error) {
 		return p.Sign * s.Amps(p.Part), nil
 	case Power:
 		return s.Watts(p.Part), nil
+	case SelfHeating:
+		// The rise is P/δ with P the power the sensor takes while the
+		// network is on (not averaged over on_fraction: a reading is taken
+		// while it is powered, and the steady rise under constant power
+		// bounds the rise after any on-time).
+		return s.Watts(p.Part) * p.Scale, nil
 	case Ratio:
 		d := s.Voltage(p.B)
 		if d == 0 {
@@ -177,6 +183,9 @@ func Compile(t *Template) (*Problem, error) {
 		pr, err := probeFor(net, tg)
 		if err != nil {
 			return nil, err
+		}
+		if tg.Kind == SelfHeating {
+			pr.Scale = 1 / t.Parts[pr.Part].Dissipation
 		}
 		if tg.Kind == Code {
 			for _, a := range t.ADCs {
@@ -255,7 +264,7 @@ func probeFor(net *solver.Network, t Target) (Probe, error) {
 	}
 	var err error
 	switch t.Kind {
-	case Current, Power:
+	case Current, Power, SelfHeating:
 		i, ok := net.PartIndex(t.Part)
 		if !ok {
 			return pr, fmt.Errorf("constraints: target %s names unknown part %q", t.Label(), t.Part)

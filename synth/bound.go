@@ -455,7 +455,7 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 		switch pr.Kind {
 		case constraints.Ratio:
 			w.ratios = append(w.ratios, ti)
-		case constraints.Power:
+		case constraints.Power, constraints.SelfHeating:
 			for k, q := range w.pparts {
 				if q == pr.Part {
 					w.pslot[ti] = k
@@ -926,6 +926,14 @@ func (w *bbWorker) enclose(ti, c int) (float64, float64, bool) {
 		ilo, ihi := padded(w.ilo[s], w.ihi[s])
 		lo, hi := product(vlo, vhi, ilo, ihi)
 		return lo, hi, true
+	case constraints.SelfHeating:
+		// The part's power range scaled by 1/δ > 0.
+		s := w.pslot[ti]*nc + c
+		vlo, vhi := padded(w.vlo[s], w.vhi[s])
+		ilo, ihi := padded(w.ilo[s], w.ihi[s])
+		lo, hi := product(vlo, vhi, ilo, ihi)
+		k := p.Probes[ti].Scale
+		return lo * k, hi * k, true
 	}
 	return 0, 0, false
 }

@@ -304,6 +304,10 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 				case constraints.Power:
 					i, _ := tp.Part(tg.Part)
 					v = ps.watts(i)
+				case constraints.SelfHeating:
+					// Temperature rise = P / δ (the dissipation constant's definition).
+					i, _ := tp.Part(tg.Part)
+					v = ps.watts(i) / tp.Parts[i].Dissipation
 				case constraints.Resistance:
 					v = ps.resistance(tg.Nodes[0], tg.Nodes[1])
 				}

@@ -411,16 +411,23 @@ func (w *rowWorker) probe(rc *rowCond, ti int, s, g float64) float64 {
 	case constraints.Current:
 		return pr.Sign * w.amps(rc, pr.Part, s, g) // constraints.CurrentSign, set in the probe
 	case constraints.Power:
-		e := w.edges[pr.Part]
-		if e.Kind == solver.OpAmp {
-			return -(rc.x0[e.To] - rc.w[e.To]*s) * w.amps(rc, pr.Part, s, g)
-		}
-		return ((rc.x0[e.From] - rc.w[e.From]*s) - (rc.x0[e.To] - rc.w[e.To]*s)) * w.amps(rc, pr.Part, s, g)
+		return w.watts(rc, pr.Part, s, g)
+	case constraints.SelfHeating:
+		return w.watts(rc, pr.Part, s, g) * pr.Scale // P/δ, as Probe.Read
 	case constraints.Resistance:
 		dg := g - rc.g0
 		return rc.r0[ti] - dg*rc.rc[ti]/(1+dg*rc.z)
 	}
 	return math.NaN()
+}
+
+// watts is the power part i absorbs.
+func (w *rowWorker) watts(rc *rowCond, i int, s, g float64) float64 {
+	e := w.edges[i]
+	if e.Kind == solver.OpAmp {
+		return -(rc.x0[e.To] - rc.w[e.To]*s) * w.amps(rc, i, s, g)
+	}
+	return ((rc.x0[e.From] - rc.w[e.From]*s) - (rc.x0[e.To] - rc.w[e.To]*s)) * w.amps(rc, i, s, g)
 }
 
 // amps is the current through part i along its edge.

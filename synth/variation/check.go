@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"strconv"
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/ratings"
@@ -76,11 +77,13 @@ type Stats struct {
 // derivative at nominal values (every part at its value, no tolerance, no
 // TCR drift). x is the physical part's value: its ohms (each part of a pair
 // on its own), a source's volts or amps, and for a thermistor or RTD its R25
-// or R0, which scales its resistance at every temperature alike.
+// or R0, which scales its resistance at every temperature alike; for a
+// sensor's extra entry (Varied.Extra) its B in kelvin, or its class error's
+// offset (°C) or slope (°C/°C).
 type Sensitivity struct {
 	Part       string
 	Absolute   float64 // dX/dx, in the target's unit per the part's unit; NaN when it cannot be computed
-	Normalised float64 // (dX/X)/(dx/x); NaN when X is 0
+	Normalised float64 // (dX/X)/(dx/x); NaN when X is 0, or x is (a class error's terms)
 }
 
 // Goal is one target in one condition.
@@ -128,12 +131,15 @@ type SensorLoad struct {
 
 // Report is the outcome of Check.
 type Report struct {
-	Method       string // MethodCorners or MethodLinearised
-	Corners      int    // solves per condition spent on the worst case
-	Parts        []Varied
-	Goals        []Goal
-	Ratings      []Rating // resistors only
-	Sensors      []SensorLoad
+	Method  string // MethodCorners or MethodLinearised
+	Corners int    // solves per condition spent on the worst case
+	Parts   []Varied
+	Goals   []Goal
+	Ratings []Rating // resistors only
+	Sensors []SensorLoad
+	// Heating is each sensor's self-heating per condition, for sensors
+	// with a dissipation constant (see Design.SelfHeating); nil otherwise.
+	Heating      []Heating
 	Samples      int
 	Seed         uint64
 	Distribution Distribution
@@ -195,7 +201,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 			if err != nil {
 				return nil, err
 			}
-			sens, err := d.sensitivities(s, pr, x, zero)
+			sens, err := d.sensitivities(s, ci, pr, x, zero)
 			if err != nil {
 				return nil, err
 			}
@@ -353,13 +359,19 @@ func Check(d *Design, set *Settings) (*Report, error) {
 	r.hazards = rt.watch.Cautions()
 	r.Ratings = rt.ratings(&st, t, r)
 	r.Sensors = rt.sensors()
+	heating, err := d.SelfHeating()
+	if err != nil {
+		return nil, err
+	}
+	r.Heating = heating
+	r.Warnings = append(r.Warnings, heatingWarnings(r.Heating)...)
 	d.warn(r, &st)
 	return r, nil
 }
 
 // sensitivities returns the target's sensitivity to each varied part at the
 // solver's current solution, by the adjoint method.
-func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64, dev []float64) ([]Sensitivity, error) {
+func (d *Design) sensitivities(s *solver.Solver, ci int, pr constraints.Probe, x float64, dev []float64) ([]Sensitivity, error) {
 	net := s.Network()
 	nn, np := len(net.Nodes()), len(d.Problem.Template.Parts)
 	grad := make([]float64, np)
@@ -378,14 +390,19 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			nodeW[pr.B] -= pr.Scale
 		case constraints.Current:
 			partW[pr.Part] = pr.Sign
-		case constraints.Power:
-			// Watts = (V(from) - V(to))·Amps along the part's edge.
+		case constraints.Power, constraints.SelfHeating:
+			// Watts = (V(from) - V(to))·Amps along the part's edge; a
+			// rise is watts times 1/δ.
+			k := 1.0
+			if pr.Kind == constraints.SelfHeating {
+				k = pr.Scale
+			}
 			for _, e := range net.Edges() {
 				if e.Part == pr.Part {
 					i := s.Amps(pr.Part)
-					nodeW[e.From] += i
-					nodeW[e.To] -= i
-					partW[pr.Part] = s.Voltage(e.From) - s.Voltage(e.To)
+					nodeW[e.From] += k * i
+					nodeW[e.To] -= k * i
+					partW[pr.Part] = k * (s.Voltage(e.From) - s.Voltage(e.To))
 				}
 			}
 		case constraints.Ratio:
@@ -409,6 +426,11 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			if v.combine == constraints.Parallel {
 				g *= (pos / xj) * (pos / xj)
 			}
+		} else if v.Extra() {
+			// Per unit of the sensor's parameter (its B, its class
+			// error's offset or slope), through dR/dx in this condition.
+			g *= d.paramSlope(j, ci, pos)
+			xj = v.Nominal
 		} else {
 			xj = pos
 			if v.Sensor != "" {
@@ -419,7 +441,7 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			}
 		}
 		n := math.NaN()
-		if x != 0 {
+		if x != 0 && xj != 0 {
 			n = g * xj / x
 		}
 		out[j] = Sensitivity{Part: v.Name, Absolute: g, Normalised: n}
@@ -601,7 +623,7 @@ func newRatingTracker(d *Design, net *solver.Network) *ratingTracker {
 func (rt *ratingTracker) observe(s *solver.Solver, ci int, dev []float64) {
 	isNominal := !slices.ContainsFunc(dev, func(v float64) bool { return v != 0 })
 	for j, v := range rt.d.Parts {
-		if v.Kind != solver.Resistor {
+		if v.Kind != solver.Resistor || v.Extra() {
 			continue
 		}
 		vo, w := rt.d.physical(s, j, dev)
@@ -660,7 +682,7 @@ func (rt *ratingTracker) ratings(st *Settings, t *constraints.Template, r *Repor
 func (rt *ratingTracker) sensors() []SensorLoad {
 	var out []SensorLoad
 	for j, v := range rt.d.Parts {
-		if v.Sensor != "" {
+		if v.Sensor != "" && !v.Extra() {
 			out = append(out, SensorLoad{Part: v.Name, NominalWatts: rt.nominal[j], Watts: rt.watts[j], Volts: rt.volts[j]})
 		}
 	}
@@ -691,8 +713,17 @@ func (d *Design) warn(r *Report, st *Settings) {
 			if g.Condition == SweepCondition {
 				where = "over the sweep"
 			}
+			f := func(v float64) string { return num(v, u) }
+			if tg.Kind == constraints.SelfHeating {
+				f = func(v float64) string {
+					if math.IsInf(v, 0) {
+						return num(v, u)
+					}
+					return strconv.FormatFloat(v, 'g', 4, 64) + " °C"
+				}
+			}
 			r.Failures = append(r.Failures, fmt.Sprintf("%s %s leaves its limits in the worst case: %s … %s against %s … %s",
-				g.Label, where, num(g.WorstMin, u), num(g.WorstMax, u), num(lo, u), num(hi, u)))
+				g.Label, where, f(g.WorstMin), f(g.WorstMax), f(lo), f(hi)))
 		}
 	}
 	if r.Samples > 0 && r.Yield < 1 {
@@ -799,7 +830,7 @@ func (d *Design) derivedSensitivities(s *solver.Solver, ti int, x float64) []Sen
 		} else {
 			out[j].Absolute = slope
 		}
-		if x != 0 {
+		if x != 0 && v.Nominal != 0 {
 			out[j].Normalised = out[j].Absolute * v.Nominal / x
 		}
 	}
