@@ -224,6 +224,7 @@ func checkDesign(o *checkOptions, outs *outputs, t *constraints.Template, st *va
 		return err
 	}
 	st.KeepSamples = o.Plot != ""
+	phase("checking")
 	rep, err := variation.Check(d, st)
 	if err != nil {
 		return templateError(t, err)

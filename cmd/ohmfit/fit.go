@@ -206,6 +206,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	} else {
 		close(done)
 	}
+	watchSearch(ctx, set.Progress)
 	res, err := synth.Search(ctx, p, set, method)
 	searched()
 	if o.ErrIsTTY && !o.Quiet {

@@ -4,9 +4,12 @@ import (
 	"bytes"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"math"
 	"os"
 	"os/exec"
+	"path/filepath"
+	"slices"
 	"strings"
 	"syscall"
 	"testing"
@@ -17,6 +20,15 @@ import (
 // test can run it as a real process and send it a real interrupt.
 func TestMain(m *testing.M) {
 	if os.Getenv("OHMFIT_TEST_MAIN") == "1" {
+		if f := os.Getenv("OHMFIT_TEST_PHASE_FILE"); f != "" {
+			// Tell the test which phase the run is in.
+			phaseHook = func(name string) {
+				if fh, err := os.OpenFile(f, os.O_APPEND|os.O_WRONLY|os.O_CREATE, 0o600); err == nil {
+					fmt.Fprintln(fh, name)
+					fh.Close()
+				}
+			}
+		}
 		if os.Getenv("OHMFIT_TEST_STALL_WRITES") == "1" {
 			// Hold every output write open, as a long plot would.
 			stageHook = func(string) { time.Sleep(time.Hour) }
@@ -126,32 +138,44 @@ func TestInterruptEveryCommand(t *testing.T) {
 		t.Skip("runs long commands")
 	}
 	cases := []struct {
-		name string
-		args []string
-		stop bool // the search stops and prints its best so far
+		name  string
+		args  []string
+		phase string // the phase to send the signal in (see phaseHook)
 	}{
-		{"fit", []string{"fit", "testdata/big.yaml", "--method", "exhaustive", "--top", "3"}, true},
-		{"divider", []string{"divider", "--vin", "12", "--vout", "2.5", "--series", "E192", "--combine", "any", "--method", "exhaustive", "--tradeoffs", "50%", "--top", "3"}, true},
-		{"feedback", []string{"feedback", "--vref", "0.7", "--vout", "3.3", "--series", "E192", "--combine", "any", "--method", "exhaustive", "--tradeoffs", "50%", "--top", "3"}, true},
-		{"fit --check, in the check", []string{"fit", "testdata/long-sweep.yaml", "--check"}, false},
-		{"check valued", []string{"check", "testdata/check-pass.yaml", "--samples", "10000000"}, false},
-		{"check after its search", []string{"check", "example:divider", "--samples", "10000000"}, false},
+		{"fit", []string{"fit", "testdata/big.yaml", "--method", "exhaustive", "--top", "3"}, "searching"},
+		{"divider", []string{"divider", "--vin", "12", "--vout", "2.5", "--series", "E192", "--combine", "any", "--method", "exhaustive", "--tradeoffs", "50%", "--top", "3"}, "searching"},
+		{"feedback", []string{"feedback", "--vref", "0.7", "--vout", "3.3", "--series", "E192", "--combine", "any", "--method", "exhaustive", "--tradeoffs", "50%", "--top", "3"}, "searching"},
+		{"fit --check, in the check", []string{"fit", "testdata/long-sweep.yaml", "--check"}, "checking"},
+		{"check valued", []string{"check", "testdata/check-pass.yaml", "--samples", "10000000"}, "checking"},
+		{"check after its search", []string{"check", "example:divider", "--samples", "10000000"}, "checking"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			cmd := exec.Command(os.Args[0], c.args...)
-			cmd.Env = append(os.Environ(), "OHMFIT_TEST_MAIN=1")
+			phases := filepath.Join(t.TempDir(), "phases")
+			cmd.Env = append(os.Environ(), "OHMFIT_TEST_MAIN=1", "OHMFIT_TEST_PHASE_FILE="+phases)
 			var out, errOut bytes.Buffer
 			cmd.Stdout, cmd.Stderr = &out, &errOut
 			if err := cmd.Start(); err != nil {
 				t.Fatal(err)
 			}
-			time.Sleep(700 * time.Millisecond) // into the long part (not a timing claim)
+			done := make(chan error, 1)
+			go func() { done <- cmd.Wait() }()
+			// Wait until the run is in the phase (a condition, not a time).
+			for {
+				seen, _ := os.ReadFile(phases)
+				if slices.Contains(strings.Fields(string(seen)), c.phase) {
+					break
+				}
+				select {
+				case err := <-done:
+					t.Fatalf("ended (%v) before the %s phase; phases %q, stderr %s", err, c.phase, seen, errOut.String())
+				case <-time.After(5 * time.Millisecond):
+				}
+			}
 			if err := cmd.Process.Signal(syscall.SIGINT); err != nil {
 				t.Fatal(err)
 			}
-			done := make(chan error, 1)
-			go func() { done <- cmd.Wait() }()
 			var err error
 			select {
 			case err = <-done:
@@ -162,7 +186,7 @@ func TestInterruptEveryCommand(t *testing.T) {
 			if strings.Contains(errOut.String(), "goroutine") {
 				t.Errorf("stack trace: %s", errOut.String())
 			}
-			if c.stop {
+			if c.phase == "searching" {
 				if err != nil {
 					t.Fatalf("%v; stderr: %s", err, errOut.String())
 				}

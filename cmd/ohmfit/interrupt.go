@@ -5,6 +5,9 @@ import (
 	"os"
 	"os/signal"
 	"sync/atomic"
+	"time"
+
+	"github.com/ohmfit/ohmfit/synth"
 )
 
 // searchInterrupt gives Ctrl-C its meaning around a search. While the
@@ -43,5 +46,35 @@ func searchInterrupt() (ctx context.Context, searched, release func()) {
 		}
 		cancel()
 	}
-	return ctx, func() { after.Store(true) }, release
+	return ctx, func() { after.Store(true); phase("searched") }, release
+}
+
+// phaseHook, when set, is told as a run enters each long phase:
+// "searching" once the search has finished its first row or box,
+// "searched" when it is over, "checking" as a real-parts check begins.
+// Only tests set it, to send a signal in a known phase.
+var phaseHook func(name string)
+
+// phase tells phaseHook, if any, that the run entered a phase.
+func phase(name string) {
+	if phaseHook != nil {
+		phaseHook(name)
+	}
+}
+
+// watchSearch tells phaseHook once the search has made progress. It does
+// nothing without a hook.
+func watchSearch(ctx context.Context, pr *synth.Progress) {
+	if phaseHook == nil || pr == nil {
+		return
+	}
+	go func() {
+		for ctx.Err() == nil {
+			if done, _ := pr.Fraction(); done > 0 {
+				phase("searching")
+				return
+			}
+			time.Sleep(time.Millisecond)
+		}
+	}()
 }
