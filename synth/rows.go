@@ -190,7 +190,7 @@ type rowWorker struct {
 	frontCap float64    // goal error bound of the trade-off front; 0: none kept
 	front    *frontList // the worker's trade-off front, nil when none is kept
 
-	points  []float64 // node voltages the sweep-wide targets read
+	points  *constraints.Points // node voltages the sweep-wide targets read
 	derived []int     // targets that are sweep-wide
 
 	// bar, when not nil, is a candidate known to rank among the best the
@@ -235,7 +235,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		w.frontCap = set.FrontErrorCap
 		w.front = &frontList{r: r}
 	}
-	w.points = make([]float64, p.Points)
+	w.points = p.NewPoints()
 	for ti, dp := range p.Derived {
 		if dp != nil {
 			w.derived = append(w.derived, ti)
@@ -481,18 +481,14 @@ func (w *rowWorker) scoreOption(i int) {
 				errMax = e
 			}
 		}
-		if p.PointSlots != nil {
-			for _, ps := range p.PointSlots[c] {
-				w.points[ps.Index] = rc.x0[ps.Node] - rc.w[ps.Node]*s
-			}
-		}
+		w.points.GatherUpdated(c, rc.x0, rc.w, s)
 	}
 	// Sweep-wide targets (linearity, sensitivity, resolution) read the
 	// node voltages of several conditions; none is monotone along a row, so
 	// they are only checked here, never used to cut a row.
 	for _, ti := range w.derived {
 		dp := p.Derived[ti]
-		v := p.DerivedValue(ti, w.points)
+		v := w.points.Derived(ti)
 		tg := &p.Template.Targets[ti]
 		if !tg.Meets(v) {
 			w.viol[ti*w.nc+dp.Conds[0]]++

@@ -468,7 +468,7 @@ func (d *Design) monteCarlo(s *solver.Solver, r *Report, st *Settings, rt *ratin
 		}
 		byCond[g.Condition] = append(byCond[g.Condition], gi)
 	}
-	points := make([]float64, p.Points)
+	points := p.NewPoints()
 	dev := make([]float64, len(d.Parts))
 	good := 0
 	if d.conditionTemperatures() {
@@ -526,7 +526,7 @@ func (d *Design) monteCarlo(s *solver.Solver, r *Report, st *Settings, rt *ratin
 			}
 		}
 		for _, gi := range sweep {
-			x := p.DerivedValue(r.Goals[gi].Target, points)
+			x := points.Derived(r.Goals[gi].Target)
 			vals[gi][k] = x
 			if !t.Targets[r.Goals[gi].Target].Meets(x) {
 				ok = false
@@ -764,17 +764,12 @@ const SweepCondition = -1
 
 // gatherPoints records, after condition ci was solved, the node voltages the
 // sweep-wide targets read in it (NaN when the solve failed).
-func (d *Design) gatherPoints(s *solver.Solver, ci int, solved bool, points []float64) {
-	p := d.Problem
+func (d *Design) gatherPoints(s *solver.Solver, ci int, solved bool, points *constraints.Points) {
 	if solved {
-		p.GatherPoints(ci, s, points)
+		points.Gather(ci, s)
 		return
 	}
-	if p.PointSlots != nil {
-		for _, ps := range p.PointSlots[ci] {
-			points[ps.Index] = math.NaN()
-		}
-	}
+	points.Fail(ci)
 }
 
 // derivedAt computes sweep-wide target ti with the parts at deviation dev,
@@ -782,7 +777,7 @@ func (d *Design) gatherPoints(s *solver.Solver, ci int, solved bool, points []fl
 func (d *Design) derivedAt(s *solver.Solver, ti int, dev []float64) (float64, error) {
 	p := d.Problem
 	dp := p.Derived[ti]
-	points := make([]float64, p.Points)
+	points := p.NewPoints()
 	for _, ci := range dp.Conds {
 		d.setValues(s, ci, dev)
 		if err := s.Solve(); err != nil {
@@ -790,7 +785,7 @@ func (d *Design) derivedAt(s *solver.Solver, ti int, dev []float64) (float64, er
 		}
 		d.gatherPoints(s, ci, true, points)
 	}
-	return p.DerivedValue(ti, points), nil
+	return points.Derived(ti), nil
 }
 
 // derivedSensitivities differentiates a sweep-wide target numerically: a
