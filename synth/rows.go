@@ -191,7 +191,7 @@ type rowWorker struct {
 	front    *frontList // the worker's trade-off front, nil when none is kept
 
 	points  *constraints.Points // node voltages the sweep-wide targets read
-	derived []int     // targets that are sweep-wide
+	derived []int               // targets that are sweep-wide
 
 	// bar, when not nil, is a candidate known to rank among the best the
 	// search keeps (BranchBound's shared list): options that cannot beat it
