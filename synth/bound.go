@@ -176,7 +176,7 @@ func (m BranchBound) run(ctx context.Context, p *Problem, set *Settings, st *run
 	}
 	sh := newBBShared(p, set, st, float64(leaf))
 	if set.Progress != nil {
-		set.Progress.total.Store(int64(p.Space()))
+		set.Progress.start(int64(p.Space()), "candidates")
 	}
 	workers := max(1, set.Workers)
 	st.stats.Workers = workers

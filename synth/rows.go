@@ -65,7 +65,7 @@ func (Rows) run(ctx context.Context, p *Problem, set *Settings, st *runState) er
 		first, last = (k-1)*rows/n, k*rows/n
 	}
 	if set.Progress != nil {
-		set.Progress.total.Store(last - first)
+		set.Progress.start(last-first, "rows")
 	}
 	workers := set.Workers
 	if int64(workers) > (last-first+rowChunk-1)/rowChunk {

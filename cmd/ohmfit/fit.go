@@ -271,7 +271,7 @@ func showProgress(w io.Writer, pr *synth.Progress, done chan struct{}) {
 			done <- struct{}{}
 			return
 		case <-tick.C:
-			d, n := pr.Fraction()
+			d, n := pr.Counts()
 			if n == 0 {
 				continue
 			}
@@ -282,7 +282,7 @@ func showProgress(w io.Writer, pr *synth.Progress, done chan struct{}) {
 			if d > 0 {
 				eta = roundDuration(time.Duration(float64(time.Since(start)) * float64(n-d) / float64(d))).String()
 			}
-			fmt.Fprintf(w, "\r\033[K  searching [%s] %3.0f%%  %s of %s rows, about %s left", bar, 100*f, count(float64(d)), count(float64(n)), eta)
+			fmt.Fprintf(w, "\r\033[K  searching [%s] %3.0f%%  %s of %s %s, about %s left", bar, 100*f, count(float64(d)), count(float64(n)), pr.Unit(), eta)
 			shown = true
 		}
 	}

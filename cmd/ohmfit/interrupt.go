@@ -70,7 +70,7 @@ func watchSearch(ctx context.Context, pr *synth.Progress) {
 	}
 	go func() {
 		for ctx.Err() == nil {
-			if done, _ := pr.Fraction(); done > 0 {
+			if done, _ := pr.Counts(); done > 0 {
 				phase("searching")
 				return
 			}

@@ -164,7 +164,10 @@ type Report struct {
 // gives the template's *constraints.Error, at the part at fault.)
 var ErrUnsolvable = errors.New("variation: the network cannot be solved")
 
-// Check analyses the design with real parts.
+// Check analyses the design with real parts. It uses d as scratch while it
+// runs (the TCR draws of the worst case and the Monte Carlo) and leaves it
+// as it found it, so one Design must not be checked from two goroutines at
+// once; give each its own NewDesign.
 func Check(d *Design, set *Settings) (*Report, error) {
 	var st Settings
 	if set != nil {
