@@ -183,6 +183,20 @@ const (
 	Any                     // one part, or two in series or in parallel
 )
 
+// ParallelOf is the parallel law for two resistances, 1/R = 1/a + 1/b: the
+// one place ohmfit writes it.
+func ParallelOf(a, b float64) float64 { return a * b / (a + b) }
+
+// Join returns the resistance of two parts a and b joined as c says:
+// ParallelOf for Parallel, the sum otherwise (a pair is never Single or Any
+// once chosen; a lone part is not joined).
+func (c Combine) Join(a, b float64) float64 {
+	if c == Parallel {
+		return ParallelOf(a, b)
+	}
+	return a + b
+}
+
 // Choice says where a free position's values come from.
 type Choice struct {
 	Series string    // "E24" etc.; "" when Stock is used

@@ -397,11 +397,7 @@ func (d *Design) setValues(s *solver.Solver, c int, dev []float64) {
 		case 2:
 			a := d.Parts[idx[0]].Nominal * d.factor(idx[0], c, dev)
 			b := d.Parts[idx[1]].Nominal * d.factor(idx[1], c, dev)
-			if d.Parts[idx[0]].combine == constraints.Parallel {
-				s.SetValue(i, a*b/(a+b))
-			} else {
-				s.SetValue(i, a+b)
-			}
+			s.SetValue(i, d.Parts[idx[0]].combine.Join(a, b))
 		}
 	}
 }
