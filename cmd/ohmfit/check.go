@@ -506,7 +506,7 @@ func writePartTable(b *strings.Builder, d *variation.Design, rep *variation.Repo
 		}
 		tb.add(v.Name, eseries.FormatUnit(v.Nominal, eseries.Ohm), tolText(v), ppm(v.TCR),
 			eseries.FormatUnit(r.Watts, eseries.Watt), eseries.FormatUnit(r.Volts, eseries.Volt), pkg,
-			strconv.FormatFloat(100*r.Load.PowerFraction, 'f', 0, 64)+"%", r.Verdict)
+			strconv.FormatFloat(100*r.Load.PowerFraction, 'f', 0, 64)+"%", string(r.Verdict))
 	}
 	if err := tb.write(b); err != nil {
 		return err

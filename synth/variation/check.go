@@ -116,7 +116,7 @@ type Rating struct {
 	Rated        float64 // rated watts of Package
 	MaxVolts     float64 // working voltage of Package
 	Load         ratings.Load
-	Verdict      string // ratings.Load.Verdict, or "no package fits"
+	Verdict      ratings.Verdict // Load.Verdict(), or ratings.VerdictNoPackage
 }
 
 // SensorLoad is a thermistor's or RTD's largest power and voltage. The
@@ -665,7 +665,7 @@ func (rt *ratingTracker) ratings(st *Settings, t *constraints.Template, r *Repor
 		rg.Load = pkg.LoadOf(rg.Watts, rg.Volts)
 		rg.Verdict = rg.Load.Verdict()
 		if rg.Chosen && !rg.Fits {
-			rg.Verdict = "no package fits"
+			rg.Verdict = ratings.VerdictNoPackage
 		}
 		if maxPkg != "" {
 			switch {
@@ -734,16 +734,16 @@ func (d *Design) warn(r *Report, st *Settings) {
 	}
 	for _, rg := range r.Ratings {
 		switch rg.Verdict {
-		case "overload", "no package fits":
+		case ratings.VerdictOverload, ratings.VerdictNoPackage:
 			r.Warnings = append(r.Warnings, fmt.Sprintf("%s overloads its %s: %s against %s rated, %s against %s",
 				rg.Part, rg.Package, eseries.FormatUnit(rg.Watts, eseries.Watt), eseries.FormatUnit(rg.Rated, eseries.Watt),
 				eseries.FormatUnit(rg.Volts, eseries.Volt), eseries.FormatUnit(rg.MaxVolts, eseries.Volt)))
 			r.Cautions = append(r.Cautions, ratings.RatingCaution(rg.Part, rg.Package, rg.Load))
-		case "derating":
+		case ratings.VerdictDerating:
 			r.Warnings = append(r.Warnings, fmt.Sprintf("%s runs above half the rating of its %s (%.0f%%); half is the usual derating",
 				rg.Part, rg.Package, 100*rg.Load.PowerFraction))
 			r.Cautions = append(r.Cautions, ratings.RatingCaution(rg.Part, rg.Package, rg.Load))
-		case "near":
+		case ratings.VerdictNear:
 			r.Cautions = append(r.Cautions, ratings.RatingCaution(rg.Part, rg.Package, rg.Load))
 		}
 	}
