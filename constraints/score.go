@@ -299,11 +299,22 @@ type Score struct {
 	// Values[t*len(Conditions)+c]; NaN where the target does not apply.
 	Values []float64
 	// Violated names the first hard limit the candidate fails (target index,
-	// condition index), or -1, -1. Target index len(Targets) is supply_power_max.
+	// condition index), or -1, -1. Problem.SupplyLimit stands for
+	// supply_power_max.
 	ViolatedTarget, ViolatedCondition int
 
 	points *Points // node voltages the derived probes read
 }
+
+// SupplyLimit is the index that stands for the supply_power_max limit
+// wherever an index names the hard limit a candidate breaks
+// (Score.ViolatedTarget, synth.Violation, synth.LimitReach): one past the
+// targets, which take 0 … len(Targets)-1.
+func (p *Problem) SupplyLimit() int { return len(p.Probes) }
+
+// IsSupplyLimit reports whether limit index i names supply_power_max
+// rather than a target.
+func (p *Problem) IsSupplyLimit(i int) bool { return i == len(p.Probes) }
 
 // NewScore returns a Score sized for the problem, to be reused across calls.
 func (p *Problem) NewScore() *Score {
@@ -346,7 +357,7 @@ func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, afte
 		}
 		if lim := p.Template.Limits.SupplyPowerMax; lim > 0 && pw > lim && !Same(pw, lim) && sc.Feasible {
 			sc.Feasible = false
-			sc.ViolatedTarget, sc.ViolatedCondition = len(p.Probes), ci
+			sc.ViolatedTarget, sc.ViolatedCondition = p.SupplyLimit(), ci
 		}
 		for ti, pr := range p.Probes {
 			k := ti*nc + ci

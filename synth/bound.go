@@ -851,7 +851,7 @@ func (w *bbWorker) bound(b *box, worst *Candidate) {
 		pw = math.Max(pw, sum*(1-boundSlack)) * p.OnFraction
 		b.power = math.Max(b.power, pw)
 		if lim > 0 && pw > lim && !constraints.Same(pw, lim) {
-			b.infeasible, b.violTarget, b.violCond = true, len(p.Probes), c
+			b.infeasible, b.violTarget, b.violCond = true, p.SupplyLimit(), c
 		}
 	}
 }

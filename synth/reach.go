@@ -10,7 +10,7 @@ import (
 // as proven by the corner bounds of BranchBound (see its doc comment for
 // why a quantity's range over a box is spanned by the box's corners).
 type LimitReach struct {
-	// Target is the index into Template.Targets; len(Targets) means the
+	// Target is the index into Template.Targets, or Problem.SupplyLimit for the
 	// supply_power_max limit.
 	Target int
 	// Never is true when no candidate in the space breaks the limit, in any
@@ -98,7 +98,7 @@ func ReachLimits(p *Problem) []LimitReach {
 		}
 	}
 	if lim := p.Template.Limits.SupplyPowerMax; lim > 0 {
-		supply := len(p.Probes)
+		supply := p.SupplyLimit()
 		if root.infeasible && root.violTarget == supply {
 			out = append(out, LimitReach{Target: supply, Always: true, Condition: root.violCond, Lo: math.NaN(), Hi: math.NaN()})
 		} else if up, ok := w.powerCeiling(steady); ok && up <= lim {

@@ -463,7 +463,7 @@ func (w *rowWorker) scoreOption(i int) {
 				powMax = pw
 			}
 			if w.lim > 0 && pw > w.lim && !constraints.Same(pw, w.lim) {
-				w.viol[len(p.Probes)*w.nc+c]++
+				w.viol[p.SupplyLimit()*w.nc+c]++
 				return
 			}
 		}
@@ -669,7 +669,7 @@ func (w *rowWorker) hardLimits(lo, hi int) (int, int) {
 			nlo, nhi := w.bisect(lo, hi, math.Inf(-1), w.lim, rc, -1)
 			if nlo > nhi {
 				if counting {
-					w.viol[len(p.Probes)*w.nc+c] += int64(hi - lo + 1)
+					w.viol[p.SupplyLimit()*w.nc+c] += int64(hi - lo + 1)
 				}
 				return 1, 0
 			}

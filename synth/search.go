@@ -216,7 +216,7 @@ func (s *Solution) Values() []float64 {
 // Violation says which hard limit blocked the most candidates, for the
 // message when nothing is feasible.
 type Violation struct {
-	Target    int // index into Template.Targets; len(Targets) means supply_power_max
+	Target    int // index into Template.Targets, or Problem.SupplyLimit
 	Condition int // index into Problem.Conditions
 	Count     int64
 }

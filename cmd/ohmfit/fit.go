@@ -298,7 +298,7 @@ func warnLimitReach(w io.Writer, p *synth.Problem) []synth.LimitReach {
 		if !r.Never {
 			continue
 		}
-		if r.Target == len(p.Template.Targets) {
+		if p.IsSupplyLimit(r.Target) {
 			warnf(w, "supply_power_max %s can never be broken: no candidate in the space draws more than %s, so the limit does not shape the answer",
 				eseries.FormatUnit(p.Template.Limits.SupplyPowerMax, eseries.Watt), eseries.FormatUnit(r.Hi, eseries.Watt))
 			continue
@@ -321,7 +321,7 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitR
 			continue
 		}
 		cond := p.Conditions[r.Condition].Name
-		if r.Target == len(t.Targets) {
+		if p.IsSupplyLimit(r.Target) {
 			return fmt.Sprintf("no candidate can meet the hard limits: every candidate in the space draws more than supply_power_max %s in condition %q; raise that limit or the values' minimum",
 				eseries.FormatUnit(t.Limits.SupplyPowerMax, eseries.Watt), cond)
 		}
@@ -342,7 +342,7 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitR
 		return scope
 	}
 	cond := p.Conditions[b.Condition].Name
-	if b.Target == len(t.Targets) {
+	if p.IsSupplyLimit(b.Target) {
 		return fmt.Sprintf("%s; most were rejected by supply_power_max %s in condition %q", scope,
 			eseries.FormatUnit(t.Limits.SupplyPowerMax, eseries.Watt), cond)
 	}
