@@ -180,21 +180,46 @@ func Check(d *Design, set *Settings) (*Report, error) {
 		st.MaxCornerParts = DefaultMaxCornerParts
 	}
 	p := d.Problem
-	t := p.Template
 	s := p.Network.NewSolver()
 	s.SetRefinement(true) // the figures people read, to full accuracy
 	r := &Report{Parts: d.Parts, Seed: st.Seed, Distribution: st.Distribution, Ambient: d.ambient}
 	r.Warnings = append(r.Warnings, d.warnings...)
-	nc := len(p.Conditions)
-	nv := len(d.Parts)
-	zero := make([]float64, nv)
+	if err := d.nominal(s, r); err != nil {
+		return nil, err
+	}
+	rt := newRatingTracker(d, p.Network)
+	d.worstCase(s, r, &st, rt)
+	if st.Samples > 0 {
+		r.Samples = st.Samples
+		d.monteCarlo(s, r, &st, rt)
+	}
+	span := rt.watch.Span()
+	r.MaxVolts = span.Volts
+	r.MaxSpan = span
+	r.hazards = rt.watch.Cautions()
+	r.Ratings = rt.ratings(&st, p.Template, r)
+	r.Sensors = rt.sensors()
+	heating, err := d.SelfHeating()
+	if err != nil {
+		return nil, err
+	}
+	r.Heating = heating
+	r.Warnings = append(r.Warnings, heatingWarnings(r.Heating)...)
+	d.warn(r, &st)
+	return r, nil
+}
 
-	// Nominal values and sensitivities.
+// nominal adds one goal to r per target and condition, with its nominal
+// value and sensitivities, and one per sweep-wide target.
+func (d *Design) nominal(s *solver.Solver, r *Report) error {
+	p := d.Problem
+	t := p.Template
+	zero := make([]float64, len(d.Parts))
 	for ci := range p.Conditions {
 		d.setValues(s, ci, zero)
 		if err := s.Solve(); err != nil {
 			// The template's terms: the part at fault and what to change.
-			return nil, t.ConditionError(ci, err)
+			return t.ConditionError(ci, err)
 		}
 		for ti, pr := range p.Probes {
 			if !p.Applies[ti][ci] || p.Conditions[ci].Hidden {
@@ -202,11 +227,11 @@ func Check(d *Design, set *Settings) (*Report, error) {
 			}
 			x, err := pr.Read(s)
 			if err != nil {
-				return nil, err
+				return err
 			}
 			sens, err := d.sensitivities(s, ci, pr, x, zero)
 			if err != nil {
-				return nil, err
+				return err
 			}
 			tg := t.Targets[ti]
 			lo, hi := tg.Band()
@@ -225,7 +250,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 		}
 		x, err := d.derivedAt(s, ti, zero)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		tg := t.Targets[ti]
 		lo, hi := tg.Band()
@@ -233,9 +258,19 @@ func Check(d *Design, set *Settings) (*Report, error) {
 			Nominal: x, WorstMin: x, WorstMax: x, Sens: d.derivedSensitivities(s, ti, x),
 			HasBand: !math.IsInf(lo, -1) || !math.IsInf(hi, 1)})
 	}
+	return nil
+}
 
-	// Worst case.
-	rt := newRatingTracker(d, p.Network)
+// worstCase widens every goal of r to its worst-case range, over every
+// corner of the varied parts or, with more than st.MaxCornerParts of them,
+// over the two corners the linearised sensitivities point to; the rating
+// tracker sees every network solved. It then sets each goal's verdict and
+// worst error.
+func (d *Design) worstCase(s *solver.Solver, r *Report, st *Settings, rt *ratingTracker) {
+	p := d.Problem
+	t := p.Template
+	nv := len(d.Parts)
+	zero := make([]float64, nv)
 	var varying []int
 	for j := range d.Parts {
 		if d.varies(j) {
@@ -259,7 +294,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 			g.WorstMax = math.Max(g.WorstMax, x)
 		}
 	}
-	byCond := make([][]int, nc)
+	byCond := make([][]int, len(p.Conditions))
 	var sweep []int // goals of sweep-wide targets
 	for gi, g := range r.Goals {
 		if g.Condition == SweepCondition {
@@ -350,26 +385,6 @@ func Check(d *Design, set *Settings) (*Report, error) {
 			r.WorstErrorDesign = math.Max(r.WorstErrorDesign, g.WorstError)
 		}
 	}
-
-	// Monte Carlo.
-	if st.Samples > 0 {
-		r.Samples = st.Samples
-		d.monteCarlo(s, r, &st, rt)
-	}
-	span := rt.watch.Span()
-	r.MaxVolts = span.Volts
-	r.MaxSpan = span
-	r.hazards = rt.watch.Cautions()
-	r.Ratings = rt.ratings(&st, t, r)
-	r.Sensors = rt.sensors()
-	heating, err := d.SelfHeating()
-	if err != nil {
-		return nil, err
-	}
-	r.Heating = heating
-	r.Warnings = append(r.Warnings, heatingWarnings(r.Heating)...)
-	d.warn(r, &st)
-	return r, nil
 }
 
 // sensitivities returns the target's sensitivity to each varied part at the
