@@ -530,7 +530,7 @@ func (d *decoder) number(n *yaml.Node, path, ctx string, unit eseries.Unit) (flo
 	}
 	v, err := eseries.ParseAs(n.Value, unit)
 	if err != nil {
-		d.wrapf(n, path, err, "%s: %s", ctx, strings.TrimPrefix(err.Error(), "eseries: "))
+		d.wrapf(n, path, err, "%s: %s", ctx, Message(err))
 		return 0, false
 	}
 	return v, true
@@ -1213,7 +1213,7 @@ func (d *decoder) stockFile(n *yaml.Node, path, ctx string) ([]float64, string, 
 		}
 		v, err := eseries.ParseAs(text, eseries.Ohm)
 		if err != nil {
-			return fail(strings.TrimPrefix(err.Error(), "eseries: "), err)
+			return fail(Message(err), err)
 		}
 		if v <= 0 {
 			return fail(fmt.Sprintf("stock value %s is not positive", eseries.Clip(text)), nil)

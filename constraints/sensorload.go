@@ -226,7 +226,7 @@ func (d *decoder) checkSensorRanges() {
 			}
 			why := fmt.Sprintf("its model gives no usable resistance at %g °C", c.Temperature)
 			if err != nil {
-				why = strings.TrimPrefix(strings.TrimPrefix(err.Error(), sensors.ErrRange.Error()+": "), "sensors: ")
+				why = Message(err)
 			}
 			d.errorf(&yaml.Node{Line: at.Line, Column: at.Col}, "conditions",
 				"%s: part %q: %s; keep the temperatures within the sensor's range", what, p.Name, why)

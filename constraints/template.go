@@ -46,7 +46,7 @@ func (t *Template) ConditionValues(ci int) ([]float64, error) {
 		}
 		r, err := ps.Sensor.Resistance(cond.Temperature)
 		if err != nil {
-			return nil, fmt.Errorf("constraints: part %s in condition %q: %s", ps.Name, cond.Name, strings.TrimPrefix(err.Error(), "sensors: "))
+			return nil, &Error{Msg: fmt.Sprintf("part %s in condition %q: %s", ps.Name, cond.Name, Message(err)), Err: err}
 		}
 		vals[i] = r
 	}

@@ -67,7 +67,7 @@ func (r *realFlags) settings(cmd *cobra.Command) (*variation.Settings, constrain
 	if r.MaxPackage != "" {
 		p, err := ratings.Lookup(r.MaxPackage)
 		if err != nil {
-			return nil, amb, usagef(cmd.CommandPath(), "--max-package: %s", strings.TrimPrefix(err.Error(), "ratings: "))
+			return nil, amb, usagef(cmd.CommandPath(), "--max-package: %s", constraints.Message(err))
 		}
 		st.MaxPackage = p.Name
 	}
@@ -266,7 +266,7 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 	t := cp.Template
 	p, err := synth.NewProblem(cp, "")
 	if err != nil {
-		return nil, badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+		return nil, templateError(t, err)
 	}
 	set := &synth.Settings{Top: o.Rank}
 	m, note, err := synth.Choose("auto", p, set)
@@ -282,7 +282,7 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 	res, err := synth.Search(ctx, p, set, m)
 	searched()
 	if err != nil {
-		return nil, badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+		return nil, templateError(t, err)
 	}
 	if len(res.Solutions) < o.Rank {
 		if len(res.Solutions) == 0 {

@@ -176,7 +176,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	}
 	p, err := synth.NewProblem(cp, o.Series)
 	if err != nil {
-		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+		return templateError(t, err)
 	}
 	set := &synth.Settings{Top: o.Top, Workers: o.Workers, TimeLimit: o.TimeLimit, Progress: &synth.Progress{}}
 	o.real.adjust(set)
@@ -215,7 +215,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	}
 	if err != nil {
 		if errors.Is(err, synth.ErrSpaceTooLarge) || errors.Is(err, synth.ErrTooManyRows) {
-			return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+			return templateError(t, err)
 		}
 		return err
 	}

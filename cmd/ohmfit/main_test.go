@@ -316,6 +316,13 @@ func checkLabels(t *testing.T, code ExitCode, stderr string) {
 	}
 	lines := strings.Split(strings.TrimSuffix(stderr, "\n"), "\n")
 	for i, l := range lines {
+		// Library errors reach people through constraints.Message, without
+		// the package names Go errors carry.
+		for _, pkg := range []string{"eseries: ", "solver: ", "constraints: ", "sensors: ", "ratings: ", "synth: ", "variation: ", "board: "} {
+			if strings.Contains(l, pkg) {
+				t.Errorf("stderr shows a package name %q: %q", pkg, l)
+			}
+		}
 		var label string
 		for _, lb := range []string{errorLabel, notMetLabel, cautionLabel, warningLabel, noteLabel} {
 			if strings.HasPrefix(l, lb) {

@@ -64,7 +64,7 @@ func Lookup(name string) (Package, error) {
 			return p, nil
 		}
 	}
-	return Package{}, fmt.Errorf("ratings: unknown package %q; packages are %s", name, strings.Join(Names(), " "))
+	return Package{}, errorf(nil, "unknown package %q; packages are %s", name, strings.Join(Names(), " "))
 }
 
 // Names lists the package names in table order.

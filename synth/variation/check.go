@@ -799,7 +799,7 @@ func (d *Design) derivedAt(s *solver.Solver, ti int, dev []float64) (float64, er
 	for _, ci := range dp.Conds {
 		d.setValues(s, ci, dev)
 		if err := s.Solve(); err != nil {
-			return math.NaN(), fmt.Errorf("%w in condition %q: %v", ErrUnsolvable, p.Conditions[ci].Name, err)
+			return math.NaN(), errorf(ErrUnsolvable, "the network cannot be solved in condition %q: %v", p.Conditions[ci].Name, err)
 		}
 		d.gatherPoints(s, ci, true, points)
 	}

@@ -104,7 +104,7 @@ type Design struct {
 func NewDesign(p *constraints.Problem, options []synth.Option, series string, ambient constraints.Ambient) (*Design, error) {
 	t := p.Template
 	if len(options) != len(p.Free) {
-		return nil, fmt.Errorf("variation: %d free positions but %d options", len(p.Free), len(options))
+		return nil, errorf(nil, "%d free positions but %d options", len(p.Free), len(options))
 	}
 	d := &Design{Problem: p, Options: options, position: make([][]int, len(t.Parts)), ambient: t.Ambient}
 	if ambient.Set {
