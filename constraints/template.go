@@ -26,6 +26,12 @@ func (t *Template) Circuit() solver.Circuit {
 // order: the fixed values, the condition's settings, and each sensor's
 // resistance at the condition's temperature. Free parts hold 0.
 func (t *Template) ConditionValues(ci int) ([]float64, error) {
+	return t.ValuesAt(ci, t.Conditions[ci].Temperature)
+}
+
+// ValuesAt is ConditionValues with every sensor at celsius instead of the
+// condition's own temperature: for a curve drawn between the conditions.
+func (t *Template) ValuesAt(ci int, celsius float64) ([]float64, error) {
 	cond := t.Conditions[ci]
 	vals := make([]float64, len(t.Parts))
 	for i, ps := range t.Parts {
@@ -44,7 +50,7 @@ func (t *Template) ConditionValues(ci int) ([]float64, error) {
 		if ps.Sensor == nil {
 			continue
 		}
-		r, err := ps.Sensor.Resistance(cond.Temperature)
+		r, err := ps.Sensor.Resistance(celsius)
 		if err != nil {
 			return nil, &Error{Msg: fmt.Sprintf("part %s in condition %q: %s", ps.Name, cond.Name, Message(err)), Err: err}
 		}
