@@ -438,12 +438,9 @@ func writeGoalTable(b *strings.Builder, t *constraints.Template, rep *variation.
 	for _, g := range rep.Goals {
 		tg := t.Targets[g.Target]
 		u := tg.Kind.Unit()
-		limit := "-"
+		limit := wordNoLimit
 		if g.HasBand {
-			limit = "ok"
-			if !g.InBand {
-				limit = "OUT"
-			}
+			limit = verdictWord(g.InBand)
 		}
 		row := []string{g.Label, g.CondName, preciseUnit(g.Nominal, u), preciseUnit(g.WorstMin, u), preciseUnit(g.WorstMax, u), limit}
 		if rep.Samples > 0 {
@@ -549,7 +546,7 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 			m = append(m, member{"goal", tg.Equals}, member{"worst_error", finite(g.WorstError)})
 		}
 		lo, hi := tg.Band()
-		m = append(m, member{"min", finite(lo)}, member{"max", finite(hi)}, member{"within_limits", !g.HasBand || g.InBand})
+		m = append(m, member{"min", finite(lo)}, member{"max", finite(hi)}, member{"pass", !g.HasBand || g.InBand})
 		if rep.Samples > 0 {
 			mc := g.MonteCarlo
 			m = append(m, member{"monte_carlo", object{{"mean", finite(mc.Mean)}, {"sigma", finite(mc.Sigma)},
@@ -589,7 +586,7 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 			member{"position", v.Position}, member{"type", variation.TypeResistor}, member{"series", v.Series}, member{"tcr", v.TCR},
 			member{"watts", r.Watts}, member{"nominal_watts", r.NominalWatts}, member{"volts", r.Volts},
 			member{"package", r.Package}, member{"package_chosen", r.Chosen},
-			member{"rated_watts", r.Rated}, member{"max_volts", r.MaxVolts},
+			member{"rated_watts", r.Rated}, member{"rated_volts", r.MaxVolts},
 			member{"power_fraction", r.Load.PowerFraction}, member{"voltage_fraction", r.Load.VoltageFraction},
 			member{"verdict", r.Verdict}))
 	}
@@ -609,7 +606,7 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 		{"goals", goals},
 		{"parts", parts},
 		{"sources", sources},
-		{"max_volts", rep.MaxVolts},
+		{"span_volts", rep.MaxVolts}, // the largest voltage between two nodes
 		{"warnings", nonNilStrings(rep.Warnings)},
 		{"cautions", nonNilStrings(rep.Cautions)},
 		{"failures", nonNilStrings(rep.Failures)},

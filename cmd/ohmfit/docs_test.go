@@ -19,12 +19,12 @@ import (
 // scoredCount matches the candidate count in a summary line; with several
 // workers the count of candidates scored before the proof closes varies
 // from run to run, as the README says.
-var scoredCount = regexp.MustCompile(`[0-9,]+ scored by`)
+var scoredCount = regexp.MustCompile(`evaluated [0-9,]+, solves [0-9,]+`)
 
 // normaliseRun blanks what varies between runs: search times and how many
 // candidates were scored on the way to the same proven answer.
 func normaliseRun(s string) string {
-	return scoredCount.ReplaceAllString(normaliseTiming(s), "N scored by")
+	return scoredCount.ReplaceAllString(normaliseTiming(s), "evaluated N, solves N")
 }
 
 // readmeBlock is one `$ ohmfit …` block of the README with the output shown

@@ -50,7 +50,7 @@ func bindSearchFlags(cmd *cobra.Command, o *searchOptions) {
 	f.StringVar(&o.Method, "method", "auto", "`METHOD`: bound (branch and bound over value boxes, proven best), exhaustive (every row, proven best), heuristic (relax and snap), or auto (branch and bound where its bounds apply, else exhaustive when the space allows)")
 	f.BoolVarP(&o.Quiet, "quiet", "q", false, "no progress bar")
 	f.StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically, through a symbolic link to its target; never over an input file)")
-	f.StringVar(&o.Tradeoffs, "tradeoffs", "", "also list the trade-off front: every answer with goal error up to `E` (e.g. 1%) that nothing beats on error, power and parts at once")
+	f.StringVar(&o.Tradeoffs, "tradeoffs", "", "also list the "+wordFront+": every answer with goal error up to `ERROR` (1% or 0.01) that nothing beats on error, power and count at once")
 }
 
 // checkSearchFlags validates the shared flags.
@@ -129,7 +129,7 @@ Exit status: 0 with answers, 1 when nothing meets the hard limits (the message
 names the limit that rejected the most candidates), 2 for bad input.
 
 JSON output (--format json):
-  {"name": "...", "exhaustive": true, "status": "proven", "method": "rows",
+  {"name": "...", "exhaustive": true, "status": "proven", "method": "exhaustive",
    "space": 83521, "evaluated": 1234, "solves": 2468, "bound": 0.00041,
    "solutions": [
      {"rank": 1, "values": {"R1": 30100, "R2": 9530},
@@ -184,11 +184,11 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	set := &synth.Settings{Top: o.Top, Workers: o.Workers, TimeLimit: o.TimeLimit, Progress: &synth.Progress{}}
 	o.real.adjust(set)
 	if o.Tradeoffs != "" {
-		q, err := eseries.Parse(o.Tradeoffs)
-		if err != nil || !(q.Value > 0) || (q.Unit != eseries.Percent && q.Unit != eseries.NoUnit) {
-			return badInputf("--tradeoffs: want a goal error like 1%% or 0.01, not %q", o.Tradeoffs)
+		v, err := parseErrorCap(o.Tradeoffs)
+		if err != nil {
+			return err
 		}
-		set.FrontErrorCap = q.Value
+		set.FrontErrorCap = v
 	}
 	if o.Shard != "" {
 		set.Shard, set.Shards, _ = parseShard(o.Shard)
@@ -399,16 +399,13 @@ func goalColumns(p *synth.Problem) []goalColumn {
 // summaryLine describes the search in one line.
 func summaryLine(p *synth.Problem, res *synth.Result) string {
 	st := res.Stats
-	verdict := "proven best over the whole space"
+	// The verdict leads with the status token JSON "status" carries.
+	verdict := "best over the whole space"
 	switch res.Status {
 	case synth.NoFeasible:
-		verdict = "proven: nothing meets the hard limits"
-	case synth.Heuristic:
-		verdict = "not proven (heuristic)"
-	case synth.TimeLimit:
-		verdict = "not proven (time limit)"
-	case synth.Interrupted:
-		verdict = "not proven (interrupted)"
+		verdict = "proven that nothing meets the hard limits"
+	case synth.Heuristic, synth.TimeLimit, synth.Interrupted:
+		verdict = "not proven"
 	case synth.Partial:
 		verdict = "not proven (ranked among part of the space)"
 	}
@@ -416,17 +413,15 @@ func summaryLine(p *synth.Problem, res *synth.Result) string {
 		// A shard proves its own part only; the whole needs ohmfit merge.
 		switch res.Status {
 		case synth.Proven:
-			verdict = fmt.Sprintf("proven best within shard %d/%d only; merge the shards for the whole space", res.Shard, res.Shards)
+			verdict = fmt.Sprintf("best within shard %d/%d only; merge the shards for the whole space", res.Shard, res.Shards)
 		case synth.NoFeasible:
-			verdict = fmt.Sprintf("proven: nothing in shard %d/%d meets the hard limits", res.Shard, res.Shards)
+			verdict = fmt.Sprintf("proven that nothing in shard %d/%d meets the hard limits", res.Shard, res.Shards)
 		}
 	}
-	noun := "candidates"
-	if st.Space == 1 {
-		noun = "candidate"
-	}
-	return fmt.Sprintf("%s %s (%s); %s scored by %s in %s; %s",
-		count(st.Space), noun, p.DescribeSpace(), count(float64(st.Evaluated)), st.Method, roundDuration(st.Elapsed), verdict)
+	// The same words as the JSON keys: space, method, evaluated, solves, status.
+	return fmt.Sprintf("space %s (%s); method %s: evaluated %s, solves %s, in %s; %s: %s",
+		count(st.Space), p.DescribeSpace(), st.Method, count(float64(st.Evaluated)), count(float64(st.Solves)),
+		roundDuration(st.Elapsed), res.Status, verdict)
 }
 
 // boundLine says how far from proven a result is that is not proven, when
@@ -502,15 +497,15 @@ func writeFitTable(w io.Writer, p *synth.Problem, res *synth.Result) error {
 		pareto = pareto || s.Pareto
 	}
 	if pareto {
-		b.WriteString("\n  * Pareto-optimal in this list: nothing here beats it on error, power and parts at once.\n")
+		b.WriteString("\n  * Pareto-optimal in this list: nothing here beats it on error, power and count at once.\n")
 	}
 	if res.Front != nil {
 		scope := "proven over the whole space"
 		if !res.Status.Exhaustive() {
 			scope = "among the candidates scored; not proven"
 		}
-		fmt.Fprintf(&b, "\nTrade-offs: every answer with goal error up to %s that nothing beats on error, power and parts at once (%s)\n\n",
-			errorText(res.FrontCap), scope)
+		fmt.Fprintf(&b, "\n%s: every answer with goal error up to %s that nothing beats on error, power and count at once (%s)\n\n",
+			capitalise(wordFront), errorText(res.FrontCap), scope)
 		if err := solutionTable(&b, p, res.Front, goals, false); err != nil {
 			return err
 		}
@@ -532,7 +527,7 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 		head = append(head, d.Name)
 		tb.cols = append(tb.cols, column{gap: 3})
 	}
-	head = append(head, "error", "power", "parts")
+	head = append(head, "error", "power", wordCount)
 	tb.cols = append(tb.cols, column{right: true, gap: 3}, column{right: true, gap: 3}, column{right: true, gap: 3})
 	for _, g := range goals {
 		head = append(head, g.label)
@@ -729,4 +724,26 @@ func preciseSig(v float64, u eseries.Unit, sig int) string {
 		prefix = "µ"
 	}
 	return s + " " + prefix + u.String()
+}
+
+// parseErrorCap reads a goal-error bound: a percentage (5%) or a fraction
+// (0.05). A bare number above 1 is refused: "5" would mean 500 %, and is
+// far more likely a percentage without its sign.
+func parseErrorCap(s string) (float64, error) {
+	q, err := eseries.Parse(s)
+	if err != nil || !(q.Value > 0) || (q.Unit != eseries.Percent && q.Unit != eseries.NoUnit) {
+		return 0, badInputf("--tradeoffs: want a goal error like 1%% or 0.01, not %q", s)
+	}
+	if q.Unit == eseries.NoUnit && q.Value > 1 {
+		return 0, badInputf("--tradeoffs %s would mean %s; write %s%% for a percentage, or a fraction up to 1", s, eseries.FormatUnit(q.Value, eseries.Percent), s)
+	}
+	return q.Value, nil
+}
+
+// capitalise upper-cases the first letter of a heading word.
+func capitalise(s string) string {
+	if s == "" {
+		return s
+	}
+	return strings.ToUpper(s[:1]) + s[1:]
 }

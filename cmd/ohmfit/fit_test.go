@@ -104,7 +104,7 @@ func TestFitTimeLimit(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &doc); err != nil {
 		t.Fatal(err)
 	}
-	if doc.Exhaustive || doc.Status != "time limit" || len(doc.Solutions) == 0 {
+	if doc.Exhaustive || doc.Status != "time-limit" || len(doc.Solutions) == 0 {
 		t.Fatalf("exhaustive %v, status %q, %d solutions", doc.Exhaustive, doc.Status, len(doc.Solutions))
 	}
 	if !strings.Contains(errOut, "time limit") {
@@ -137,7 +137,7 @@ func TestFitInterrupt(t *testing.T) {
 		cmd.Process.Kill()
 		t.Fatal("the search did not stop after an interrupt")
 	}
-	if !strings.Contains(out.String(), "not proven (interrupted)") || !strings.Contains(out.String(), "1*") {
+	if !strings.Contains(out.String(), "interrupted: not proven") || !strings.Contains(out.String(), "1*") {
 		t.Errorf("stdout should show the best so far, marked not proven:\n%s", out.String())
 	}
 	if !strings.Contains(errOut.String(), "interrupted") || strings.Contains(errOut.String(), "goroutine") {

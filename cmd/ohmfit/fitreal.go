@@ -114,7 +114,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 		if robust != nil {
 			rb := make([]object, len(shown.Solutions))
 			for i, s := range shown.Solutions {
-				rb[i] = object{{"rank", s.Rank}, {"worst_error", finite(robust[i].WorstError)}, {"within_limits", robust[i].InBand}, {"method", robust[i].Method}}
+				rb[i] = object{{"rank", s.Rank}, {"worst_error", finite(robust[i].WorstError)}, {"pass", robust[i].InBand}, {"worst_case", robust[i].Method}}
 			}
 			doc = append(doc, member{"robust", rb})
 		}
@@ -180,11 +180,7 @@ func writeRealTables(w io.Writer, p *synth.Problem, sols []synth.Solution, robus
 		tb := table{indent: "  ", cols: []column{{right: true, gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {}}}
 		tb.add("rank", "worst error", "nominal error", "limits at every corner")
 		for i, s := range sols {
-			in := "kept"
-			if !robust[i].InBand {
-				in = "broken"
-			}
-			tb.add(strconv.Itoa(s.Rank), errorText(robust[i].WorstError), errorText(s.Score.Error), in)
+			tb.add(strconv.Itoa(s.Rank), errorText(robust[i].WorstError), errorText(s.Score.Error), verdictWord(robust[i].InBand))
 		}
 		if err := tb.write(&b); err != nil {
 			return err
@@ -195,12 +191,11 @@ func writeRealTables(w io.Writer, p *synth.Problem, sols []synth.Solution, robus
 		tb := table{indent: "  ", cols: []column{{right: true, gap: 3}, {right: true, gap: 3}, {gap: 3}, {right: true, gap: 3}, {gap: 3}, {}}}
 		tb.add("rank", "worst error", "limits", "MC yield", "packages", "notes")
 		for i, rep := range reports {
-			lim := "kept"
+			pass := true
 			for _, g := range rep.Goals {
-				if g.HasBand && !g.InBand {
-					lim = "broken"
-				}
+				pass = pass && (!g.HasBand || g.InBand)
 			}
+			lim := verdictWord(pass)
 			var pk []string
 			for _, rg := range rep.Ratings {
 				pk = append(pk, rg.Part+" "+rg.Package)

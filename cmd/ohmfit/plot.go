@@ -151,7 +151,7 @@ func paretoPlot(p *synth.Problem, sols []synth.Solution, chosen int) (*plot.Plot
 		ln.LineStyle.Color = color.RGBA{R: 120, G: 120, B: 120, A: 255}
 		ln.LineStyle.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
 		pl.Add(ln)
-		pl.Legend.Add("Pareto front", ln)
+		pl.Legend.Add(wordFront, ln)
 	}
 	for _, q := range pts {
 		if q.rank != chosen {

@@ -96,7 +96,7 @@ func TestFitPlotAndBOM(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, errOut)
 	}
 	b, err := os.ReadFile(filepath.Join(dir, "front.svg"))
-	if err != nil || !strings.Contains(string(b), "Pareto front") {
+	if err != nil || !strings.Contains(string(b), wordFront) {
 		t.Errorf("plot: %v, legend missing", err)
 	}
 	c, err := os.ReadFile(filepath.Join(dir, "bom.csv"))

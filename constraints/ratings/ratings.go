@@ -122,7 +122,7 @@ func (p Package) LoadOf(watts, volts float64) Load {
 	return Load{PowerFraction: math.Abs(watts) / p.Watts, VoltageFraction: math.Abs(volts) / p.Volts}
 }
 
-// Verdict classes a load: "ok", "near" (above Near of the derated power or
+// Verdict classes a load: "pass", "near" (above Near of the derated power or
 // of the voltage limit), "derating" (beyond the derated power but within
 // the rating), "overload" (beyond the rated power or the voltage limit).
 func (l Load) Verdict() string {
@@ -134,7 +134,7 @@ func (l Load) Verdict() string {
 	case l.PowerFraction > Near*Derating || l.VoltageFraction > Near:
 		return "near"
 	}
-	return "ok"
+	return "pass"
 }
 
 // RatingCaution is the caution printed when a part runs near or beyond its
