@@ -29,9 +29,9 @@ type FloatingError struct {
 // Error names the fault in an engineer's words.
 func (e *FloatingError) Error() string {
 	if len(e.Nodes) == 1 {
-		return fmt.Sprintf("solver: node %s has no DC path to ground", e.Nodes[0])
+		return fmt.Sprintf("solver: node %s is cut off from ground: no chain of resistors or sources reaches ground from it", e.Nodes[0])
 	}
-	return fmt.Sprintf("solver: nodes %s have no DC path to ground", strings.Join(e.Nodes, ", "))
+	return fmt.Sprintf("solver: nodes %s are cut off from ground: no chain of resistors or sources reaches ground from them", strings.Join(e.Nodes, ", "))
 }
 
 // Unwrap returns ErrSingular.
@@ -51,7 +51,7 @@ func (e *SourceLoopError) Error() string {
 	if len(e.Sources) == 1 {
 		return fmt.Sprintf("solver: op-amp %s drives its output straight into ground", names)
 	}
-	return fmt.Sprintf("solver: %s form a loop of voltage sources and op-amp outputs "+
+	return fmt.Sprintf("solver: %s close a ring of fixed voltages, nothing but voltage sources and op-amp outputs "+
 		"(an ideal op-amp output is a voltage source against ground)", names)
 }
 
@@ -69,7 +69,7 @@ type InputLoopError struct {
 
 // Error names the fault in an engineer's words.
 func (e *InputLoopError) Error() string {
-	return fmt.Sprintf("solver: %s form a loop of voltage sources and op-amp inputs "+
+	return fmt.Sprintf("solver: %s close a ring of fixed voltages through op-amp inputs "+
 		"(an ideal op-amp's inputs sit at equal voltage)", strings.Join(e.Parts, ", "))
 }
 

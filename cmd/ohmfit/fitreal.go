@@ -13,7 +13,7 @@ import (
 	"github.com/spf13/cobra"
 )
 
-// fitReal holds fit's real-parts flags: --check, --robust, --bom, --bom-rank
+// fitReal holds fit's real-parts flags: --check, --robust, --bom, --rank
 // and --plot. A nil *fitReal (divider, feedback) does nothing.
 type fitReal struct {
 	Check   bool
@@ -31,8 +31,11 @@ func bindFitRealFlags(cmd *cobra.Command, r *fitReal) {
 	f := cmd.Flags()
 	f.BoolVar(&r.Check, "check", false, fmt.Sprintf("also check the top %d answers with real parts (worst case, Monte Carlo, ratings; see ohmfit help check)", checkedAnswers))
 	f.BoolVar(&r.Robust, "robust", false, fmt.Sprintf("rank by worst-case error with real tolerances: re-ranks the %d best answers by nominal error, widening the list up to %d until no answer left out could enter those shown; the summary says when that proof does not close", variation.RerankPool, variation.RerankPoolMax))
-	f.StringVar(&r.BOM, "bom", "", "write the bill of materials of one answer (see --bom-rank) to `FILE.csv`")
-	countVar(f, &r.BOMRank, "bom-rank", 1, 1, maxListed, "the answer (`N`) whose bill of materials --bom writes and --plot highlights")
+	f.StringVar(&r.BOM, "bom", "", "write the bill of materials of one answer (see --rank) to `FILE.csv`")
+	countVar(f, &r.BOMRank, "rank", 1, 1, maxListed, "which answer (`N`): the one whose bill of materials --bom writes and --plot highlights")
+	// --bom-rank was the flag's first name; scripts that use it still work.
+	countVar(f, &r.BOMRank, "bom-rank", 1, 1, maxListed, "old name of --rank")
+	_ = f.MarkHidden("bom-rank")
 	f.StringVar(&r.Plot, "plot", "", "draw error against power for the answers to `FILE.svg` or FILE.png")
 }
 
@@ -139,7 +142,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 	}
 	if r.BOM != "" || r.Plot != "" {
 		if r.BOMRank > len(all) {
-			return badInputf("--bom-rank %d: the fit has only %d answers", r.BOMRank, len(all))
+			return badInputf("--rank %d: the fit has only %d answers", r.BOMRank, len(all))
 		}
 	}
 	if r.BOM != "" {

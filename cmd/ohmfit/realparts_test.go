@@ -91,7 +91,7 @@ func TestCheckBOMAndPlot(t *testing.T) {
 // rank 2.
 func TestFitPlotAndBOM(t *testing.T) {
 	dir := t.TempDir()
-	_, errOut, code := runCLI(t, "fit", "example:divider", "--workers", "1", "--plot", filepath.Join(dir, "front.svg"), "--bom", filepath.Join(dir, "bom.csv"), "--bom-rank", "2")
+	_, errOut, code := runCLI(t, "fit", "example:divider", "--workers", "1", "--plot", filepath.Join(dir, "front.svg"), "--bom", filepath.Join(dir, "bom.csv"), "--rank", "2")
 	if code != ExitOK {
 		t.Fatalf("exit %d: %s", code, errOut)
 	}
@@ -102,6 +102,27 @@ func TestFitPlotAndBOM(t *testing.T) {
 	c, err := os.ReadFile(filepath.Join(dir, "bom.csv"))
 	if err != nil || !strings.Contains(string(c), "3K6") {
 		t.Errorf("bom for rank 2 (3.6k, 8.2k): %q, %v", c, err)
+	}
+}
+
+// TestFitBOMRankAlias: --bom-rank, the old name of fit's --rank, still
+// picks the same answer, and is hidden from the help.
+func TestFitBOMRankAlias(t *testing.T) {
+	dir := t.TempDir()
+	for _, name := range []string{"--rank", "--bom-rank"} {
+		t.Run(name, func(t *testing.T) {
+			bom := filepath.Join(dir, name[2:]+".csv")
+			if _, errOut, code := runCLI(t, "fit", "example:divider", "--workers", "1", "--bom", bom, name, "2"); code != ExitOK {
+				t.Fatalf("exit %d: %s", code, errOut)
+			}
+			if c, err := os.ReadFile(bom); err != nil || !strings.Contains(string(c), "3K6") {
+				t.Errorf("bom for rank 2 (3.6k, 8.2k): %q, %v", c, err)
+			}
+		})
+	}
+	help, _, _ := runCLI(t, "fit", "--help")
+	if strings.Contains(help, "bom-rank") || !strings.Contains(help, "--rank N") {
+		t.Errorf("fit --help should show --rank N and hide --bom-rank:\n%s", help)
 	}
 }
 
