@@ -38,7 +38,7 @@ func bindRealFlags(cmd *cobra.Command, r *realFlags) {
 	f := cmd.Flags()
 	countVar(f, &r.Samples, "samples", variation.DefaultSamples, 0, maxSamples, "Monte Carlo samples (`N`, at most 10,000,000; 0: none)")
 	f.Uint64Var(&r.Seed, "seed", 1, "Monte Carlo seed (`N`); the same seed gives the same numbers")
-	f.StringVar(&r.Dist, "dist", "uniform", "`DIST`ribution of each part within its tolerance: uniform, or normal with tolerance = 3σ")
+	f.StringVar(&r.Dist, "dist", "uniform", "how each part spreads within its tolerance (`DISTRIBUTION`): uniform, or normal with tolerance = 3σ")
 	f.StringVar(&r.Ambient, "ambient", "", "ambient range in °C as `MIN..MAX` (e.g. -20..70), spreading each resistor by its TCR; overrides the template's ambient")
 	f.StringVar(&r.MaxPackage, "max-package", "", "largest resistor `PACKAGE` allowed (e.g. 0805); a part that needs more fails the run (exit 1)")
 }

@@ -6,10 +6,12 @@ import (
 	"os/exec"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strings"
 	"testing"
 
 	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
 )
 
 // The documentation is part of what the program promises: every example in
@@ -155,4 +157,76 @@ func TestHelpExamplesRun(t *testing.T) {
 			}
 		})
 	}
+}
+
+// TestCompletion asks the completion machinery what it offers, as the
+// shell scripts do (the hidden __complete command), and checks the help
+// of the completion command itself.
+func TestCompletion(t *testing.T) {
+	cases := []struct {
+		args      []string
+		want, not []string
+	}{
+		{[]string{"__complete", "fit", "example:"}, []string{"example:feedback", "example:bias-bench"}, nil},
+		{[]string{"__complete", "check", "ex"}, []string{"example:bias-bench"}, nil},
+		{[]string{"__complete", "examples", ""}, []string{"feedback"}, nil},
+		{[]string{"__complete", "fit", "x.yaml", "--series", ""}, []string{"E24", "E192"}, nil},
+		{[]string{"__complete", "values", ""}, []string{"E3", "E96"}, nil},
+		{[]string{"__complete", "fit", "x.yaml", "--format", ""}, []string{"table", "json", "csv"}, nil},
+		{[]string{"__complete", "check", "x.yaml", "--format", ""}, []string{"table", "json"}, []string{"csv"}},
+		{[]string{"__complete", "fit", "x.yaml", "--method", ""}, []string{"auto", "bound", "exhaustive", "heuristic"}, nil},
+		{[]string{"__complete", "completion", ""}, []string{"bash", "zsh", "fish", "powershell"}, nil},
+		{[]string{"help", "completion", "bash"}, []string{"press Tab", "ohmfit completion bash > ohmfit.bash"}, []string{"autocompletion", "Generate the"}},
+		{[]string{"completion", "bash"}, []string{"bash completion"}, nil},
+	}
+	for _, c := range cases {
+		t.Run(strings.Join(c.args, " "), func(t *testing.T) {
+			out, errOut, code := runCLI(t, c.args...)
+			if code != ExitOK {
+				t.Fatalf("exit %d: %s", code, errOut)
+			}
+			lines := strings.Split(out, "\n")
+			for _, w := range c.want {
+				if !slices.ContainsFunc(lines, func(l string) bool { return strings.Contains(l, w) }) {
+					t.Errorf("missing %q in\n%s", w, out)
+				}
+			}
+			for _, w := range c.not {
+				if slices.Contains(lines, w) || (len(w) > 4 && strings.Contains(out, w)) {
+					t.Errorf("%q should not be offered:\n%s", w, out)
+				}
+			}
+		})
+	}
+	if _, errOut, code := runCLI(t, "help", "completion", "bsh"); code != ExitBadInput || !strings.Contains(errOut, `did you mean "bash"`) {
+		t.Errorf("help completion bsh: exit %d, %q", code, errOut)
+	}
+}
+
+// placeholder is what a flag's help shows for its value: upper case, with
+// digits and the punctuation of FILE.csv, K/N and MIN..MAX.
+var placeholder = regexp.MustCompile(`^[A-Z][A-Z0-9]*([./][A-Za-z0-9.]+)*$`)
+
+// TestFlagPlaceholders walks every flag of every command: the word its help
+// shows for the value is an upper-case placeholder, and no backtick is left
+// in the text (cobra turns the first backticked word into the placeholder,
+// so a second one would print garbled).
+func TestFlagPlaceholders(t *testing.T) {
+	root := newRootCmd(strings.NewReader(""), &bytes.Buffer{}, &bytes.Buffer{})
+	var walk func(c *cobra.Command)
+	walk = func(c *cobra.Command) {
+		c.Flags().VisitAll(func(f *pflag.Flag) {
+			name, usage := pflag.UnquoteUsage(f)
+			if f.Value.Type() != "bool" && !placeholder.MatchString(name) {
+				t.Errorf("%s --%s: placeholder %q is not an upper-case word", c.CommandPath(), f.Name, name)
+			}
+			if strings.Contains(usage, "`") {
+				t.Errorf("%s --%s: a backtick is left in %q", c.CommandPath(), f.Name, usage)
+			}
+		})
+		for _, s := range c.Commands() {
+			walk(s)
+		}
+	}
+	walk(root)
 }

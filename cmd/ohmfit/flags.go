@@ -74,7 +74,7 @@ func (d *durationValue) String() string {
 }
 
 // Type is the word the help shows for the value.
-func (d *durationValue) Type() string { return "D" }
+func (d *durationValue) Type() string { return "DURATION" }
 
 // Set reads a duration such as 30s or 1h30m.
 func (d *durationValue) Set(s string) error {
