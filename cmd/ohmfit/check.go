@@ -80,6 +80,7 @@ func (r *realFlags) settings(cmd *cobra.Command) (*variation.Settings, constrain
 // checkOptions are the inputs of `ohmfit check`.
 type checkOptions struct {
 	File   string
+	In     io.Reader // standard input, read for the FILE "-"
 	Format string
 	Rank   int
 	BOM    string
@@ -139,7 +140,8 @@ the part you buy governs. ohmfit is a first check, not a safety assessment.
 A template with resistors still to choose is first fitted like ` + "`ohmfit fit`" + `, and
 the answer of --rank (default 1) is checked.
 
-FILE is a template file, or example:NAME for a built-in example.
+FILE is a template file, example:NAME for a built-in example, or - to read
+the template from standard input.
 
 Exit status, for a script to gate a design on:
   0  every hard limit (tolerance, min, max) holds over the whole worst-case
@@ -166,6 +168,7 @@ Exit status, for a script to gate a design on:
 			if err := checkOutputFlags(cmd, o.BOM, o.Plot); err != nil {
 				return err
 			}
+			o.In = cmd.InOrStdin()
 			return runCheck(o, st, amb)
 		},
 	}
@@ -195,7 +198,7 @@ func checkOutputFlags(cmd *cobra.Command, bom, plot string) error {
 
 // runCheck loads, fits when needed, analyses and renders.
 func runCheck(o *checkOptions, st *variation.Settings, amb constraints.Ambient) error {
-	t, err := loadTemplate(o.File)
+	t, err := loadTemplate(o.File, o.In)
 	if err != nil {
 		return err
 	}
@@ -309,7 +312,7 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 // inputFiles lists the files a run read, which outputs must not replace.
 func inputFiles(t *constraints.Template) []string {
 	files := []string{}
-	if !strings.HasPrefix(t.File, examplePrefix) {
+	if !strings.HasPrefix(t.File, examplePrefix) && t.File != constraints.StdinName {
 		files = append(files, t.File)
 	}
 	if f := t.Choose.Default.StockFile; f != "" {

@@ -123,7 +123,8 @@ so far.
 JSON results of all N parts, combined by "ohmfit merge", are the result of
 one whole run.
 
-FILE is a template file, or example:NAME for a built-in example.
+FILE is a template file, example:NAME for a built-in example, or - to read
+the template from standard input.
 
 Exit status: 0 with answers, 1 when nothing meets the hard limits (the message
 names the limit that rejected the most candidates), 2 for bad input.
@@ -152,7 +153,7 @@ JSON output (--format json):
 			if err := o.fitReal.validate(cmd); err != nil {
 				return err
 			}
-			t, err := loadTemplate(o.File)
+			t, err := loadTemplate(o.File, cmd.InOrStdin())
 			if err != nil {
 				return err
 			}

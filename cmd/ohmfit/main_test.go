@@ -191,7 +191,7 @@ func TestExampleVerbatim(t *testing.T) {
 			if code != ExitOK || errOut != "" || out != string(want) {
 				t.Errorf("exit %d, stderr %q, stdout differs from the stored text: %v", code, errOut, out != string(want))
 			}
-			if _, err := loadTemplate(examplePrefix + name); err != nil {
+			if _, err := loadTemplate(examplePrefix+name, nil); err != nil {
 				t.Errorf("example does not load: %v", err)
 			}
 		})
@@ -284,7 +284,7 @@ func TestTidy(t *testing.T) {
 // outputs deliver (Tellegen's theorem), in every condition.
 func TestPowerBalance(t *testing.T) {
 	for _, file := range []string{"testdata/bench.yaml", "testdata/preamp.yaml", "testdata/bridge-balanced.yaml"} {
-		tpl, err := loadTemplate(file)
+		tpl, err := loadTemplate(file, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
