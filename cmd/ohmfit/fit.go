@@ -17,6 +17,7 @@ import (
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/ohmfit/ohmfit/synth"
+	"github.com/ohmfit/ohmfit/synth/variation"
 	"github.com/spf13/cobra"
 )
 
@@ -343,7 +344,7 @@ func renderFit(o *searchOptions, p *synth.Problem, res *synth.Result) error {
 	case "json":
 		return writeJSON(o.Out, fitJSON(p, res))
 	case "csv":
-		return writeFitCSV(o.Out, p, res)
+		return writeFitCSV(o.Out, p, res, nil)
 	}
 	return writeFitTable(o.Out, p, res)
 }
@@ -366,8 +367,12 @@ type goalColumn struct {
 	label        string
 }
 
-// goalColumns lists the goals to show beside each answer: every goal in
-// every condition it applies to, while that is at most four columns.
+// maxGoalColumns is how many goal columns the table shows; beyond that it
+// shows none and says where to see them (JSON and CSV carry them all).
+const maxGoalColumns = 5
+
+// goalColumns lists the goals shown beside each answer: every goal in
+// every condition it applies to (and every sweep-wide figure).
 func goalColumns(p *synth.Problem) []goalColumn {
 	var cols []goalColumn
 	multi := len(p.Conditions) > 1
@@ -390,9 +395,6 @@ func goalColumns(p *synth.Problem) []goalColumn {
 			}
 			cols = append(cols, goalColumn{ti, ci, label})
 		}
-	}
-	if len(cols) > 5 {
-		return nil
 	}
 	return cols
 }
@@ -490,8 +492,15 @@ func writeFitTable(w io.Writer, p *synth.Problem, res *synth.Result) error {
 		return err
 	}
 	goals := goalColumns(p)
+	hidden := 0
+	if len(goals) > maxGoalColumns {
+		hidden, goals = len(goals), nil
+	}
 	if err := solutionTable(&b, p, res.Solutions, goals, true); err != nil {
 		return err
+	}
+	if hidden > 0 {
+		fmt.Fprintf(&b, "\n  %d goal values (goals × conditions) are too many for the table; --format csv or --format json lists them all.\n", hidden)
 	}
 	pareto := false
 	for _, s := range res.Solutions {
@@ -661,34 +670,87 @@ func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 }
 
 // writeFitCSV writes one row per answer: rank, each position's effective
-// value, realisation and parts, then error, power and part count.
-func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result) error {
+// value, realisation and parts, then error, power, part count, the Pareto
+// mark and every goal value the table would show (all of them, however
+// many). With --robust (robust not nil) the worst-case error and pass/fail
+// follow; with --tradeoffs the front's answers follow the ranked ones, told
+// apart by the last column, list ("top" or "front"). Numbers are plain, in
+// SI base units (ohms, volts, amps, watts; errors as fractions), with the
+// same keys as the JSON output where there is one.
+func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result, robust []variation.Robust) error {
 	cw := csv.NewWriter(w)
+	goals := goalColumns(p)
 	head := []string{"rank"}
 	for _, d := range p.Domains {
-		head = append(head, d.Name, d.Name+" combine", d.Name+" parts")
+		head = append(head, d.Name, d.Name+"_combine", d.Name+"_parts")
 	}
 	head = append(head, "error", "power", "part_count", "pareto")
+	for _, g := range goals {
+		head = append(head, csvName(g.label))
+	}
+	if robust != nil {
+		head = append(head, "worst_error", "pass")
+	}
+	if res.Front != nil {
+		head = append(head, "list")
+	}
 	if err := cw.Write(head); err != nil {
 		return err
 	}
-	for _, s := range res.Solutions {
-		row := []string{strconv.Itoa(s.Rank)}
-		for _, o := range s.Options {
-			var ps []string
-			for _, v := range o.PartValues() {
-				ps = append(ps, eseries.Format(v))
+	nc := len(p.Conditions)
+	write := func(sols []synth.Solution, list string, robust []variation.Robust, blank bool) error {
+		for i, s := range sols {
+			row := []string{strconv.Itoa(s.Rank)}
+			for _, o := range s.Options {
+				var ps []string
+				for _, v := range o.PartValues() {
+					ps = append(ps, csvNumber(v))
+				}
+				row = append(row, csvNumber(o.Value), o.Combine.String(), strings.Join(ps, " "))
 			}
-			row = append(row, strconv.FormatFloat(o.Value, 'g', -1, 64), o.Combine.String(), strings.Join(ps, " "))
+			row = append(row, csvNumber(s.Score.Error), csvNumber(s.Score.Power), strconv.Itoa(s.Parts), strconv.FormatBool(s.Pareto))
+			for _, g := range goals {
+				row = append(row, csvNumber(s.Score.Values[g.target*nc+g.cond]))
+			}
+			switch {
+			case robust != nil:
+				row = append(row, csvNumber(robust[i].WorstError), strconv.FormatBool(robust[i].InBand))
+			case blank:
+				row = append(row, "", "") // the front's worst cases are not computed
+			}
+			if list != "" {
+				row = append(row, list)
+			}
+			if err := cw.Write(row); err != nil {
+				return err
+			}
 		}
-		row = append(row, strconv.FormatFloat(s.Score.Error, 'g', -1, 64), strconv.FormatFloat(s.Score.Power, 'g', -1, 64),
-			strconv.Itoa(s.Parts), strconv.FormatBool(s.Pareto))
-		if err := cw.Write(row); err != nil {
+		return nil
+	}
+	list := ""
+	if res.Front != nil {
+		list = "top"
+	}
+	if err := write(res.Solutions, list, robust, false); err != nil {
+		return err
+	}
+	if res.Front != nil {
+		if err := write(res.Front, "front", nil, robust != nil); err != nil {
 			return err
 		}
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// csvNumber writes a number for a script: the shortest form that reads back
+// exactly, in SI base units.
+func csvNumber(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+// csvName turns a table heading into a CSV header without spaces:
+// "voltage fb @cold" becomes "voltage_fb@cold".
+func csvName(label string) string {
+	return strings.ReplaceAll(strings.ReplaceAll(label, " @", "@"), " ", "_")
 }
 
 // quantityText writes a target's value with its unit: five significant

@@ -41,6 +41,11 @@ func bindFitRealFlags(cmd *cobra.Command, r *fitReal) {
 
 // validate checks the flags.
 func (r *fitReal) validate(cmd *cobra.Command) error {
+	if r.Check && changed(cmd.Flags(), "format") && cmd.Flags().Lookup("format").Value.String() == "csv" {
+		// A check report is a set of tables of different shapes; one CSV
+		// cannot hold them.
+		return usagef(cmd.CommandPath(), "--check has no CSV form: use --format json (or table), or ohmfit check --rank N --format json on the fitted template")
+	}
 	return checkOutputFlags(cmd, r.BOM, r.Plot)
 }
 
@@ -125,6 +130,10 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 			doc = append(doc, member{"checks", checks})
 		}
 		if err := writeJSON(o.Out, doc); err != nil {
+			return err
+		}
+	case "csv":
+		if err := writeFitCSV(o.Out, p, &shown, robust); err != nil {
 			return err
 		}
 	default:
