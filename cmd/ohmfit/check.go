@@ -438,14 +438,24 @@ func writeGoalTable(b *strings.Builder, t *constraints.Template, rep *variation.
 	}
 	tb.cols[len(tb.cols)-1].gap = 0
 	tb.add(head...)
+	// Two rows on one quantity in one condition (a goal and a separate
+	// limit on it) would read alike: those say which is which.
+	seen := map[[2]string]int{}
+	for _, g := range rep.Goals {
+		seen[[2]string{g.Label, g.CondName}]++
+	}
 	for _, g := range rep.Goals {
 		tg := t.Targets[g.Target]
 		u := tg.Kind.Unit()
+		label := g.Label
+		if seen[[2]string{g.Label, g.CondName}] > 1 {
+			label += " (" + targetKind(tg.HasEquals) + ")"
+		}
 		limit := wordNoLimit
 		if g.HasBand {
 			limit = verdictWord(g.InBand)
 		}
-		row := []string{g.Label, g.CondName, preciseUnit(g.Nominal, u), preciseUnit(g.WorstMin, u), preciseUnit(g.WorstMax, u), limit}
+		row := []string{label, g.CondName, preciseUnit(g.Nominal, u), preciseUnit(g.WorstMin, u), preciseUnit(g.WorstMax, u), limit}
 		if rep.Samples > 0 {
 			mc := g.MonteCarlo
 			row = append(row, preciseUnit(mc.Mean, u), eseries.FormatUnit(mc.Sigma, u), preciseUnit(mc.Low, u), preciseUnit(mc.High, u), yieldText(mc.Yield))
@@ -543,7 +553,7 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 		for _, s := range g.Sens {
 			sens = append(sens, member{s.Part, finite(s.Normalised)})
 		}
-		m := object{{"target", g.Label}, {"condition", g.CondName}, {"nominal", g.Nominal},
+		m := object{{"target", g.Label}, {"kind", targetKind(tg.HasEquals)}, {"condition", g.CondName}, {"nominal", g.Nominal},
 			{"worst_min", g.WorstMin}, {"worst_max", g.WorstMax}}
 		if tg.HasEquals {
 			m = append(m, member{"goal", tg.Equals}, member{"worst_error", finite(g.WorstError)})

@@ -646,7 +646,7 @@ func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 					name = "sweep" // one figure over the temperature conditions
 				}
 				v := s.Score.Values[ti*nc+ci]
-				m := object{{"target", tg.Label()}, {"condition", name}, {"value", v}}
+				m := object{{"target", tg.Label()}, {"kind", targetKind(tg.HasEquals)}, {"condition", name}, {"value", v}}
 				if tg.HasEquals {
 					m = append(m, member{"goal", tg.Equals}, member{"error", tg.GoalError(v)})
 				}

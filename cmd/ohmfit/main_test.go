@@ -107,6 +107,7 @@ func TestGolden(t *testing.T) {
 		{"fit-many-goals-csv", []string{"fit", "testdata/many-goals.yaml", "--top", "2", "--format", "csv", "--workers", "1"}, ExitOK},
 		{"fit-tradeoffs-robust-csv", []string{"fit", "example:divider", "--top", "2", "--tradeoffs", "1%", "--robust", "--format", "csv", "--workers", "1"}, ExitOK},
 		{"fit-err-check-csv", []string{"fit", "example:feedback", "--check", "--format", "csv"}, ExitBadInput},
+		{"check-goal-and-limit", []string{"check", "testdata/check-goal-and-limit.yaml", "--samples", "0"}, ExitOK},
 		{"fit-tradeoffs-fraction", []string{"divider", "--vin", "5", "--vout", "3.3", "--series", "E96", "--tradeoffs", "0.005", "--top", "3", "--workers", "1"}, ExitOK},
 		{"fit-battery-sense", []string{"fit", "example:battery-sense", "--top", "3", "--workers", "1"}, ExitOK},
 		{"fit-battery-sense-json", []string{"fit", "example:battery-sense", "--top", "1", "--format", "json", "--workers", "1"}, ExitOK},

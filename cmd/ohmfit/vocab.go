@@ -17,7 +17,19 @@ const (
 	// wordCount heads the column of physical resistors an answer uses
 	// (JSON part_count; the rank key "parts").
 	wordCount = "count"
+	// wordGoal and wordLimit tell a target with equals (a goal, ranked by
+	// its error) from one with only min/max (a limit, pass or fail).
+	wordGoal  = "goal"
+	wordLimit = "limit"
 )
+
+// targetKind is wordGoal or wordLimit for a target.
+func targetKind(hasEquals bool) string {
+	if hasEquals {
+		return wordGoal
+	}
+	return wordLimit
+}
 
 // verdictWord is wordPass or wordFail.
 func verdictWord(ok bool) string {
