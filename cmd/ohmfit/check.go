@@ -446,7 +446,6 @@ func writeGoalTable(b *strings.Builder, t *constraints.Template, rep *variation.
 	}
 	for _, g := range rep.Goals {
 		tg := t.Targets[g.Target]
-		u := tg.Kind.Unit()
 		label := g.Label
 		if seen[[2]string{g.Label, g.CondName}] > 1 {
 			label += " (" + targetKind(tg.HasEquals) + ")"
@@ -455,10 +454,11 @@ func writeGoalTable(b *strings.Builder, t *constraints.Template, rep *variation.
 		if g.HasBand {
 			limit = verdictWord(g.InBand)
 		}
-		row := []string{label, g.CondName, preciseUnit(g.Nominal, u), preciseUnit(g.WorstMin, u), preciseUnit(g.WorstMax, u), limit}
+		k := tg.Kind
+		row := []string{label, g.CondName, k.Format(g.Nominal), k.Format(g.WorstMin), k.Format(g.WorstMax), limit}
 		if rep.Samples > 0 {
 			mc := g.MonteCarlo
-			row = append(row, preciseUnit(mc.Mean, u), eseries.FormatUnit(mc.Sigma, u), preciseUnit(mc.Low, u), preciseUnit(mc.High, u), yieldText(mc.Yield))
+			row = append(row, k.Format(mc.Mean), k.FormatSig(mc.Sigma, 4), k.Format(mc.Low), k.Format(mc.High), yieldText(mc.Yield))
 		}
 		tb.add(row...)
 	}

@@ -3,9 +3,11 @@ package main
 import (
 	"fmt"
 	"io"
+	"math"
 	"strconv"
 	"strings"
 
+	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/ohmfit/ohmfit/synth"
 	"github.com/spf13/cobra"
@@ -175,12 +177,12 @@ func arrangementText(c synth.Combination) string {
 	return f[0]
 }
 
-// signedError shows (value - target)/target as a signed percentage, "0" for
-// an exact hit.
+// signedError shows (value - target)/target as a signed percentage in the
+// error columns' format, "0%" for an exact hit.
 func signedError(v, target float64) string {
 	e := (v - target) / target
-	if e == 0 || (e < 1e-12 && e > -1e-12) {
-		return "0"
+	if math.Abs(e) <= constraints.TieRelative {
+		return "0%"
 	}
 	return percent(e)
 }

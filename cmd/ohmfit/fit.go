@@ -572,20 +572,15 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 	return tb.write(b)
 }
 
-// errorText shows a goal error as a percentage with three significant
-// digits, in ppm below 0.01 % where a percentage would need a row of zeros,
-// in plain exponent form below 0.1 ppm, and an exact hit (within rounding)
-// as "0".
+// errorText shows a goal error in the one format every error column uses:
+// a percentage with three significant digits and no exponent ("1.31%",
+// "0.00399%"), and an exact hit (within the contract's 1e-12 tie
+// tolerance) as "0%".
 func errorText(e float64) string {
-	switch {
-	case e <= 1e-12:
-		return "0"
-	case e >= 1e-4:
-		return strings.TrimPrefix(percent(e), "+")
-	case e >= 1e-7:
-		return strconv.FormatFloat(e*1e6, 'g', 3, 64) + " ppm"
+	if e <= constraints.TieRelative {
+		return "0%"
 	}
-	return strconv.FormatFloat(e, 'e', 2, 64)
+	return strings.TrimPrefix(percent(e), "+")
 }
 
 // fitJSON builds the contract's JSON document for a search.
@@ -753,42 +748,12 @@ func csvName(label string) string {
 	return strings.ReplaceAll(strings.ReplaceAll(label, " @", "@"), " ", "_")
 }
 
-// quantityText writes a target's value with its unit: five significant
-// digits for electrical quantities, codes with one decimal, °C figures with
-// four digits.
-func quantityText(v float64, k constraints.TargetKind) string {
-	switch k {
-	case constraints.Code:
-		return strconv.FormatFloat(v, 'f', 1, 64)
-	case constraints.Sensitivity:
-		return eseries.FormatUnit(v, eseries.Volt) + "/°C"
-	}
-	if u := k.UnitText(); u != "" {
-		return eseries.FormatSig(v, 4) + " " + u
-	}
-	return preciseUnit(v, k.Unit())
-}
-
-// preciseUnit is FormatUnit with five significant digits, for goal values
-// that sit close to their goal: "595.99 mV" rather than "596 mV".
-func preciseUnit(v float64, u eseries.Unit) string { return preciseSig(v, u, 5) }
+// quantityText writes a target's value with its unit (constraints'
+// TargetKind.Format, the one rule for every command).
+func quantityText(v float64, k constraints.TargetKind) string { return k.Format(v) }
 
 // preciseSig is FormatUnit with sig significant digits.
-func preciseSig(v float64, u eseries.Unit, sig int) string {
-	s := eseries.FormatSig(v, sig)
-	if u == eseries.NoUnit || u == eseries.Percent {
-		return s
-	}
-	prefix := ""
-	if n := len(s); n > 0 && strings.ContainsRune("pnumkMG", rune(s[n-1])) {
-		s, prefix = s[:n-1], s[n-1:]
-	}
-	if prefix == "u" {
-		prefix = "µ"
-	}
-	return s + " " + prefix + u.String()
-}
-
+func preciseSig(v float64, u eseries.Unit, sig int) string { return eseries.FormatUnitSig(v, u, sig) }
 // parseErrorCap reads a goal-error bound: a percentage (5%) or a fraction
 // (0.05). A bare number above 1 is refused: "5" would mean 500 %, and is
 // far more likely a percentage without its sign.

@@ -686,13 +686,13 @@ func (d *Design) warn(r *Report, st *Settings) {
 		if g.HasBand && !g.InBand {
 			tg := d.Problem.Template.Targets[g.Target]
 			lo, hi := tg.Band()
-			u := tg.Kind.Unit()
+			k := tg.Kind
 			where := fmt.Sprintf("in %q", g.CondName)
 			if g.Condition == SweepCondition {
 				where = "over the sweep"
 			}
 			r.Failures = append(r.Failures, fmt.Sprintf("%s %s leaves its limits in the worst case: %s … %s against %s … %s",
-				g.Label, where, num(g.WorstMin, u), num(g.WorstMax, u), num(lo, u), num(hi, u)))
+				g.Label, where, k.Format(g.WorstMin), k.Format(g.WorstMax), k.Format(lo), k.Format(hi)))
 		}
 	}
 	if r.Samples > 0 && r.Yield < 1 {
@@ -716,16 +716,6 @@ func (d *Design) warn(r *Report, st *Settings) {
 	r.Cautions = append(r.hazards, r.Cautions...)
 }
 
-// num formats a value with its unit for messages.
-func num(v float64, u eseries.Unit) string {
-	switch {
-	case math.IsInf(v, 1):
-		return "∞"
-	case math.IsInf(v, -1):
-		return "-∞"
-	}
-	return eseries.FormatUnit(v, u)
-}
 
 // SweepCondition is the Condition of a Goal for a sweep-wide target
 // (linearity, sensitivity, resolution), which reads several conditions.
