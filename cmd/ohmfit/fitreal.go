@@ -7,7 +7,6 @@ import (
 	"strings"
 
 	"github.com/ohmfit/ohmfit/constraints"
-	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/ohmfit/ohmfit/synth"
 	"github.com/ohmfit/ohmfit/synth/variation"
 	"github.com/spf13/cobra"
@@ -246,10 +245,13 @@ func paretoPoints(sols []synth.Solution) []paretoPoint {
 	return pts
 }
 
-// unitLabel is an axis label with a unit: "power (W)".
-func unitLabel(name string, u eseries.Unit) string {
-	if u == eseries.NoUnit {
-		return name
+// axisLabel names a plot axis of a target's values. The ticks carry SI
+// units with their prefixes ("691 mV"), so the label names no unit of its
+// own, which would contradict them ("(V)" over mV ticks); a unit eseries
+// has no symbol for (°C, V/°C) follows the name.
+func axisLabel(name string, k constraints.TargetKind) string {
+	if u := k.UnitText(); u != "" {
+		return name + ", " + u
 	}
-	return name + " (" + u.String() + ")"
+	return name
 }

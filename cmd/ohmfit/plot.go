@@ -189,7 +189,7 @@ func plotHistograms(w io.Writer, path string, t *constraints.Template, rep *vari
 		u := tg.Kind.Unit()
 		pl := plot.New()
 		pl.Title.Text = fmt.Sprintf("%s, %s: %d samples, yield %s", g.Label, g.CondName, len(vals), yieldText(g.MonteCarlo.Yield))
-		pl.X.Label.Text = unitLabel(g.Label, u)
+		pl.X.Label.Text = axisLabel(g.Label, tg.Kind)
 		pl.Y.Label.Text = "samples"
 		pl.X.Tick.Marker = engTicks{u}
 		h, err := plotter.NewHist(vals, 50)

@@ -246,3 +246,21 @@ func TestFitBOMSensor(t *testing.T) {
 		t.Errorf("lines %v, want %v", types, want)
 	}
 }
+
+// TestHistogramAxisLabel: a histogram's axis label names no unit of its
+// own, since its ticks carry SI units with prefixes ("691 mV"); a label
+// "(V)" over mV ticks would misread by a factor of a thousand.
+func TestHistogramAxisLabel(t *testing.T) {
+	svg := filepath.Join(t.TempDir(), "mc.svg")
+	if _, errOut, code := runCLI(t, "check", "example:feedback", "--samples", "200", "--plot", svg); code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	b, err := os.ReadFile(svg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := string(b)
+	if !strings.Contains(s, ">voltage fb<") || strings.Contains(s, "voltage fb (V)") || !strings.Contains(s, " mV<") {
+		t.Errorf("want the label \"voltage fb\" over mV ticks; the SVG has %d bytes", len(s))
+	}
+}
