@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -10,6 +11,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/ohmfit/ohmfit/synth"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
 )
@@ -229,4 +231,71 @@ func TestFlagPlaceholders(t *testing.T) {
 		}
 	}
 	walk(root)
+}
+
+// TestGlossaryCoversOutput holds the template reference to the output: every
+// status a search can end with is in its status list, every --method word
+// and every JSON key that carries a number (or a pass/fail) is named there in
+// backticks, so a key added without its unit fails here.
+func TestGlossaryCoversOutput(t *testing.T) {
+	text, err := os.ReadFile(filepath.Join("..", "..", "constraints", "README.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	doc := string(text)
+	for s := synth.Proven; s <= synth.Partial; s++ {
+		if !strings.Contains(doc, "| `"+s.String()+"` |") {
+			t.Errorf("status %q is not in the status list", s)
+		}
+	}
+	for _, m := range synth.MethodNames {
+		if !strings.Contains(doc, "`"+m+"`") {
+			t.Errorf("--method %s is not in the glossary", m)
+		}
+	}
+	// Keys whose members are names (of parts, positions, nodes), not keys.
+	named := map[string]bool{"values": true, "parts": true, "combine": true, "nodes": true, "sensitivities": true}
+	runs := [][]string{
+		{"fit", "example:feedback", "--top", "2", "--tradeoffs", "1%", "--format", "json", "--workers", "1"},
+		{"fit", "example:feedback", "--top", "2", "--robust", "--check", "--format", "json", "--workers", "1"},
+		{"check", "example:battery-sense", "--samples", "50", "--format", "json"},
+		{"check", "testdata/check-divider.yaml", "--samples", "50", "--ambient", "0..70", "--format", "json"},
+		{"solve", "example:bias-bench", "--format", "json"},
+		{"combine", "1R5", "--max-parts", "3", "--series", "E12", "--min", "1", "--max", "100", "--format", "json"},
+		{"values", "E24", "--near", "4.32k", "--format", "json"},
+	}
+	for _, args := range runs {
+		t.Run(strings.Join(args, " "), func(t *testing.T) {
+			out, errOut, code := runCLI(t, args...)
+			if code == ExitBadInput {
+				t.Fatalf("exit 2: %s", errOut)
+			}
+			var v any
+			if err := json.Unmarshal([]byte(out), &v); err != nil {
+				t.Fatal(err)
+			}
+			var walk func(parent string, v any)
+			walk = func(parent string, v any) {
+				switch x := v.(type) {
+				case map[string]any:
+					for k, m := range x {
+						if !named[parent] {
+							switch m.(type) {
+							case float64, bool:
+								if !strings.Contains(doc, "`"+k+"`") && !strings.Contains(doc, "."+k+"`") {
+									t.Errorf("JSON key %q (in %q) is not in constraints/README.md", k, parent)
+								}
+							}
+						}
+						walk(k, m)
+					}
+				case []any:
+					for _, m := range x {
+						walk(parent+"[]", m) // a list of records, not of names
+					}
+				}
+			}
+			walk("", v)
+		})
+	}
 }

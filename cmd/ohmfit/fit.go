@@ -48,7 +48,7 @@ func bindSearchFlags(cmd *cobra.Command, o *searchOptions) {
 	f.StringVar(&o.Series, "series", "", "use this `SERIES` (E3 … E192) for every position, overriding the template")
 	durationVar(f, &o.TimeLimit, "time-limit", "stop after this long (`DURATION`, e.g. 30s) and show the best found so far, marked not proven")
 	countVar(f, &o.Workers, "workers", 0, 0, maxWorkers, "goroutines to search with (`N`; 0: one per core); the answer does not depend on it")
-	f.StringVar(&o.Method, "method", "auto", "`METHOD`: bound (branch and bound over value boxes, proven best), exhaustive (every row, proven best), heuristic (relax and snap), or auto (branch and bound where its bounds apply, else exhaustive when the space allows)")
+	f.StringVar(&o.Method, "method", "auto", "`METHOD`: bound (branch and bound over value boxes, proven best), exhaustive (every row, proven best), heuristic (a relaxation, then the standard values around it; not proven), or auto (branch and bound where its bounds apply, else exhaustive when the space allows)")
 	f.BoolVarP(&o.Quiet, "quiet", "q", false, "no progress bar")
 	f.StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically, through a symbolic link to its target; never over an input file)")
 	f.StringVar(&o.Tradeoffs, "tradeoffs", "", "also list the "+wordFront+": every answer with goal error up to `ERROR` (1% or 0.01) that nothing beats on error, power and count at once")
@@ -107,15 +107,16 @@ so the same input always gives the same list. An answer marked * is
 Pareto-optimal in the list: no other answer is as good in error, power and
 part count and better in one.
 
-Two methods prove their list best over the whole space. Branch and bound
-(method bound) bounds boxes of values from their corners and rules out every
-box that cannot hold a better answer; the rows method (method exhaustive)
-scores every combination of all positions but one. Method auto uses branch
-and bound where its bounds cover every goal (every goal but a sweep-wide one)
-and the space is larger than one of its boxes, the rows method otherwise, and
-a heuristic (a continuous relaxation, then a search of the standard values
-around it) where neither can prove the result; the summary line names the
-method, and the result says when it is not proven. A result stopped by
+Two methods prove their list best over the whole space. Method bound
+(branch and bound) bounds boxes of values from their corners and rules out
+every box that cannot hold a better answer; method exhaustive scores every
+row, a combination of all positions but one, and every value of the last
+along it. Method auto uses bound where its bounds cover every goal (every
+goal but a sweep-wide one) and the space is larger than one of its boxes,
+exhaustive otherwise, and heuristic (a continuous relaxation, then a search
+of the standard values around it) where neither can prove the result. The
+summary line uses the JSON's words: space, method, evaluated, solves and the
+status (proven, infeasible, heuristic, time-limit, interrupted or partial). A result stopped by
 --time-limit or Ctrl-C says how far from proven it is: "nothing better than
 X can exist" (JSON "bound"). Ctrl-C stops a search and prints the best found
 so far.
