@@ -755,6 +755,7 @@ func quantityText(v float64, k constraints.TargetKind) string { return k.Format(
 
 // preciseSig is FormatUnit with sig significant digits.
 func preciseSig(v float64, u eseries.Unit, sig int) string { return eseries.FormatUnitSig(v, u, sig) }
+
 // parseErrorCap reads a goal-error bound: a percentage (5%) or a fraction
 // (0.05). A bare number above 1 is refused: "5" would mean 500 %, and is
 // far more likely a percentage without its sign.

@@ -716,7 +716,6 @@ func (d *Design) warn(r *Report, st *Settings) {
 	r.Cautions = append(r.hazards, r.Cautions...)
 }
 
-
 // SweepCondition is the Condition of a Goal for a sweep-wide target
 // (linearity, sensitivity, resolution), which reads several conditions.
 const SweepCondition = -1
