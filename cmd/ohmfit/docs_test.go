@@ -7,6 +7,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"regexp"
+	"runtime"
 	"slices"
 	"strings"
 	"testing"
@@ -297,5 +298,15 @@ func TestGlossaryCoversOutput(t *testing.T) {
 			}
 			walk("", v)
 		})
+	}
+}
+
+// TestVersionFromBuildInfo: --version reads the binary's build information
+// (the Go release it was built with, the module version or VCS revision
+// when the build recorded them) rather than a hard-coded string.
+func TestVersionFromBuildInfo(t *testing.T) {
+	out, _, code := runCLI(t, "--version")
+	if code != ExitOK || !strings.HasPrefix(out, "ohmfit ") || !strings.Contains(out, runtime.Version()) {
+		t.Errorf("--version: exit %d, %q; want \"ohmfit VERSION (%s…)\"", code, out, runtime.Version())
 	}
 }
