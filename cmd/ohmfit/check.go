@@ -522,7 +522,7 @@ func writeNotes(b *strings.Builder, rep *variation.Report) {
 	b.WriteString("\n  load is worst-case power over rated power; packages carry at most 50% (derating, common practice).\n")
 	b.WriteString("  Ratings are typical thick-film figures from memory: check the datasheet of the part you buy.\n")
 	for _, f := range rep.Failures {
-		fmt.Fprintf(b, "\nFAILS: %s\n", f)
+		fmt.Fprintf(b, "\n%s: %s\n", wordFail, f)
 	}
 	if len(rep.Warnings) > 0 {
 		b.WriteString("\nwarnings:\n")

@@ -121,7 +121,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 		if robust != nil {
 			rb := make([]object, len(shown.Solutions))
 			for i, s := range shown.Solutions {
-				rb[i] = object{{"rank", s.Rank}, {"worst_error", finite(robust[i].WorstError)}, {"pass", robust[i].InBand}, {"worst_case", robust[i].Method}}
+				rb[i] = object{{"rank", s.Rank}, {"worst_error", finite(robust[i].WorstError)}, {"pass", robust[i].InBand}, {"worst_case", object{{"method", robust[i].Method}}}}
 			}
 			doc = append(doc, member{"robust", rb})
 		}
