@@ -224,6 +224,7 @@ type decoder struct {
 	setRefs      []setRef
 	curveRefs    []curveRef
 	adcRefs      []partRef
+	heatRefs     []partRef // self_heating targets: the sensor each names
 }
 
 func (d *decoder) errorf(n *yaml.Node, key, format string, args ...any) {
@@ -929,6 +930,9 @@ func (d *decoder) target(n *yaml.Node, path string, i int) {
 		case Code, Resolution:
 			tg.ADC = name
 			d.adcRefs = append(d.adcRefs, partRef{name, q.val, qpath})
+		case SelfHeating:
+			tg.Part = name
+			d.heatRefs = append(d.heatRefs, partRef{name, q.val, qpath})
 		default: // Linearity, Sensitivity
 			tg.Nodes = []string{name}
 			d.nodeRefs = append(d.nodeRefs, nodeRef{name, q.val, qpath})
@@ -1442,6 +1446,11 @@ func (d *decoder) crossCheck() {
 			c := &t.Conditions[s.cond]
 			c.Set = append(c.Set, Setting{Part: s.part, Value: v})
 		}
+	}
+	if len(d.errs) == 0 {
+		// Last, so that no check above counts them as the user's parts
+		// (an ADC's node is connected only by what the user wires to it).
+		d.addADCLoads()
 	}
 }
 

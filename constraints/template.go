@@ -139,6 +139,8 @@ func (k TargetKind) UnitText() string {
 		return "V/°C"
 	case Resolution:
 		return "°C/step"
+	case SelfHeating:
+		return "°C"
 	}
 	return ""
 }
@@ -180,7 +182,7 @@ func (k TargetKind) Derived() bool {
 // "current R1", "power R1", "ratio fb/out", "resistance out-gnd".
 func (t Target) Label() string {
 	switch t.Kind {
-	case Current, Power:
+	case Current, Power, SelfHeating:
 		return t.Kind.String() + " " + t.Part
 	case Code:
 		return t.Kind.String() + " " + t.ADC
@@ -227,7 +229,7 @@ func (k RankKey) String() string {
 
 // Spellings, indexed by the constants they name.
 var (
-	targetKeys   = []string{"voltage", "current", "power", "ratio", "resistance", "code", "linearity", "sensitivity", "resolution"}
+	targetKeys   = []string{"voltage", "current", "power", "ratio", "resistance", "code", "linearity", "sensitivity", "resolution", "self_heating"}
 	combineNames = []string{"single", "series", "parallel", "any"}
 	rankNames    = []string{"error", "power", "parts"}
 )

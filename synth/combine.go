@@ -322,8 +322,8 @@ func (c *combiner) sorted() []Combination {
 	return out
 }
 
-// par is the parallel law, 1/R = 1/x + 1/y.
-func par(x, y float64) float64 { return x * y / (x + y) }
+// par is the parallel law (constraints.ParallelOf).
+func par(x, y float64) float64 { return constraints.ParallelOf(x, y) }
 
 func combLess(a, b Combination) bool {
 	if !constraints.Same(a.Error, b.Error) {

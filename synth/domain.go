@@ -113,7 +113,7 @@ func BuildDomain(part int, name string, c constraints.Choice) (Domain, error) {
 				opts = append(opts, Option{Value: a + b, Parts: [2]float64{b, a}, Count: 2, Combine: constraints.Series})
 			}
 			if parallel {
-				opts = append(opts, Option{Value: a * b / (a + b), Parts: [2]float64{b, a}, Count: 2, Combine: constraints.Parallel})
+				opts = append(opts, Option{Value: constraints.ParallelOf(a, b), Parts: [2]float64{b, a}, Count: 2, Combine: constraints.Parallel})
 			}
 		}
 	}

@@ -116,11 +116,29 @@ const MaxSpace = 1e15
 // from any goroutine.
 type Progress struct {
 	done, total atomic.Int64
+	unit        atomic.Pointer[string]
 }
 
-// Fraction returns rows done and rows in all.
-func (p *Progress) Fraction() (done, total int64) {
+// Counts returns the work done and the work in all, in Unit;
+// done/total is the fraction done.
+func (p *Progress) Counts() (done, total int64) {
 	return p.done.Load(), p.total.Load()
+}
+
+// Unit names what Counts counts: "rows" (the exhaustive method),
+// "candidates" (branch and bound) or "starts" (the heuristic); "" before
+// the search has begun.
+func (p *Progress) Unit() string {
+	if u := p.unit.Load(); u != nil {
+		return *u
+	}
+	return ""
+}
+
+// start sets the total and its unit, before any work is counted.
+func (p *Progress) start(total int64, unit string) {
+	p.unit.Store(&unit)
+	p.total.Store(total)
 }
 
 // Status says how a search ended. It is not an error: stopping at a limit is
@@ -199,7 +217,7 @@ func (s *Solution) Values() []float64 {
 // Violation says which hard limit blocked the most candidates, for the
 // message when nothing is feasible.
 type Violation struct {
-	Target    int // index into Template.Targets; len(Targets) means supply_power_max
+	Target    int // index into Template.Targets, or Problem.SupplyLimit
 	Condition int // index into Problem.Conditions
 	Count     int64
 }

@@ -261,6 +261,8 @@ func TestGlossaryCoversOutput(t *testing.T) {
 		{"fit", "example:feedback", "--top", "2", "--robust", "--check", "--format", "json", "--workers", "1"},
 		{"check", "example:battery-sense", "--samples", "50", "--format", "json"},
 		{"check", "testdata/check-divider.yaml", "--samples", "50", "--ambient", "0..70", "--format", "json"},
+		{"check", "testdata/check-heated.yaml", "--samples", "50", "--format", "json"},
+		{"check", "example:cold-chain", "--samples", "50", "--format", "json"},
 		{"solve", "example:bias-bench", "--format", "json"},
 		{"combine", "1R5", "--max-parts", "3", "--series", "E12", "--min", "1", "--max", "100", "--format", "json"},
 		{"values", "E24", "--near", "4.32k", "--format", "json"},

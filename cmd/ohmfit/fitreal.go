@@ -106,6 +106,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 			if err != nil {
 				return err
 			}
+			phase("checking")
 			rep, err := variation.Check(d, &variation.Settings{Seed: 1})
 			if err != nil {
 				return badInputf("%s%s", filePrefix(t, constraints.Pos{}), strings.TrimPrefix(err.Error(), "variation: "))

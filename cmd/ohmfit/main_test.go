@@ -116,6 +116,7 @@ func TestGolden(t *testing.T) {
 		{"fit-hazard", []string{"fit", "testdata/hv-fit.yaml", "--top", "1", "--workers", "1"}, ExitOK},
 		{"fit-err-overflow", []string{"fit", "testdata/overflow.yaml"}, ExitBadInput},
 		{"fit-none", []string{"fit", "testdata/impossible.yaml"}, ExitNoSolution},
+		{"fit-never-binds", []string{"fit", "testdata/never-binds.yaml", "--top", "2"}, ExitOK},
 		{"fit-err-series", []string{"fit", "example:feedback", "--series", "E25"}, ExitBadInput},
 		{"fit-err-top", []string{"fit", "example:feedback", "--top", "0"}, ExitBadInput},
 		{"fit-err-method", []string{"fit", "example:feedback", "--method", "fast"}, ExitBadInput},
@@ -323,7 +324,7 @@ func checkLabels(t *testing.T, code ExitCode, stderr string) {
 	lines := strings.Split(strings.TrimSuffix(stderr, "\n"), "\n")
 	for i, l := range lines {
 		var label string
-		for _, lb := range []string{errorLabel, notMetLabel, cautionLabel, noteLabel} {
+		for _, lb := range []string{errorLabel, notMetLabel, cautionLabel, warningLabel, noteLabel} {
 			if strings.HasPrefix(l, lb) {
 				label = lb
 			}

@@ -166,3 +166,59 @@ func (m RTD) Resistance(celsius float64) (float64, error) {
 	}
 	return m.R0 * f, nil
 }
+
+// Class is a platinum sensor's tolerance class: the largest deviation of
+// its temperature from the standard curve's, ±(Offset + Slope·|t|) °C at
+// t °C.
+type Class struct {
+	Name   string  // "AA", "A", "B" or "C"
+	Offset float64 // °C
+	Slope  float64 // °C per °C of |t|
+}
+
+// Classes are the IEC 60751 tolerance classes of platinum sensors, values
+// from memory: AA ±(0.1 + 0.0017·|t|), A ±(0.15 + 0.002·|t|),
+// B ±(0.3 + 0.005·|t|), C ±(0.6 + 0.01·|t|) °C.
+var Classes = []Class{
+	{"AA", 0.1, 0.0017},
+	{"A", 0.15, 0.002},
+	{"B", 0.3, 0.005},
+	{"C", 0.6, 0.01},
+}
+
+// LookupClass returns the class of that name.
+func LookupClass(name string) (Class, bool) {
+	for _, c := range Classes {
+		if c.Name == name {
+			return c, true
+		}
+	}
+	return Class{}, false
+}
+
+// Tolerance returns the class's temperature tolerance at t °C, ± that many °C.
+func (c Class) Tolerance(celsius float64) float64 {
+	return c.Offset + c.Slope*math.Abs(celsius)
+}
+
+// Slope returns dR/dT of a model at t °C in ohms per °C, by a central
+// difference of 1 m°C (one-sided at the ends of the model's range).
+func Slope(m Model, celsius float64) (float64, error) {
+	const h = 1e-3
+	lo, hi := celsius-h, celsius+h
+	rlo, err := m.Resistance(lo)
+	if err != nil {
+		lo = celsius
+		if rlo, err = m.Resistance(lo); err != nil {
+			return 0, err
+		}
+	}
+	rhi, err := m.Resistance(hi)
+	if err != nil {
+		hi = celsius
+		if rhi, err = m.Resistance(hi); err != nil {
+			return 0, err
+		}
+	}
+	return (rhi - rlo) / (hi - lo), nil
+}
