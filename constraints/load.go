@@ -47,6 +47,26 @@ func Load(path string) (*Template, error) {
 	return Parse(path, data)
 }
 
+// StdinName stands for standard input in messages ("<stdin>:3:5: ...");
+// the FILE argument "-" reads the template from there.
+const StdinName = "<stdin>"
+
+// LoadReader reads a template from r (standard input, say) with the same
+// size limit as a file, and parses it; name stands for the file in messages,
+// and stock files are resolved against the current directory.
+func LoadReader(name string, r io.Reader) (*Template, error) {
+	data, rerr := readAllLimited(name, r, MaxFileSize, "a template")
+	if rerr != nil {
+		return nil, rerr
+	}
+	d := &decoder{file: name, dir: "."}
+	t := d.parse(data)
+	if len(d.errs) > 0 {
+		return nil, d.first()
+	}
+	return t, nil
+}
+
 // Parse parses template text. file is used in messages and, through its
 // directory, to resolve stock files ("" means the current directory). The
 // error, if any, is an *Error for the first problem in file order.
@@ -104,19 +124,29 @@ func readLimited(path string, limit int64, what string) ([]byte, *Error) {
 	if !fi.Mode().IsRegular() {
 		return notRegular(fi) // replaced between the two looks
 	}
-	tooBig := fmt.Sprintf("file is larger than %d MiB; this is not %s", limit>>20, what)
 	if fi.Size() > limit {
-		return fail(tooBig, nil)
+		return fail(tooBigMessage(limit, what), nil)
 	}
 	// The limit also covers a file that grows between Stat and read.
-	data, err := io.ReadAll(io.LimitReader(f, limit+1))
+	return readAllLimited(path, f, limit, what)
+}
+
+// readAllLimited reads r to its end, refusing more than limit bytes; the
+// one reader behind every input file and standard input.
+func readAllLimited(name string, r io.Reader, limit int64, what string) ([]byte, *Error) {
+	data, err := io.ReadAll(io.LimitReader(r, limit+1))
 	if err != nil {
-		return fail("cannot read: "+pathCause(err), err)
+		return nil, &Error{File: name, Msg: "cannot read: " + pathCause(err), Err: err}
 	}
 	if int64(len(data)) > limit {
-		return fail(tooBig, nil)
+		return nil, &Error{File: name, Msg: tooBigMessage(limit, what)}
 	}
 	return data, nil
+}
+
+// tooBigMessage says an input is over its size limit.
+func tooBigMessage(limit int64, what string) string {
+	return fmt.Sprintf("file is larger than %d MiB; this is not %s", limit>>20, what)
 }
 
 // fileKind names a file type for a message.

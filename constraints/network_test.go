@@ -55,7 +55,7 @@ func TestNetworkErrorPlaces(t *testing.T) {
   - {name: R1, type: resistor, from: p, to: gnd, value: 1k}
   - {name: R2, type: resistor, from: o, to: m, value: 1k}
   - {name: U1, type: opamp, plus: p, minus: m, out: o}`,
-			`3:5: V1, U1 form a loop of voltage sources and op-amp inputs`},
+			`3:5: V1, U1 close a ring of fixed voltages through op-amp inputs`},
 		{"input hangs on the other", `
   - {name: V1, type: voltage-source, plus: in, minus: gnd, volts: 1}
   - {name: R1, type: resistor, from: in, to: m, value: 1k}
@@ -67,7 +67,7 @@ func TestNetworkErrorPlaces(t *testing.T) {
   - {name: V1, type: voltage-source, plus: in, minus: gnd, volts: 1}
   - {name: RF, type: resistor, from: o, to: in, value: 1k}
   - {name: U1, type: opamp, plus: x, minus: in, out: o}`,
-			`5:5: node x has no DC path to ground; connect it to the rest of the circuit or to gnd (through a resistor, say), or remove U1`},
+			`5:5: node x is cut off from ground: no chain of resistors or sources reaches ground from it; connect it to the rest of the circuit or to gnd (through a resistor, say), or remove U1`},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -2,6 +2,7 @@ package constraints
 
 import (
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 
@@ -148,6 +149,33 @@ func (k TargetKind) UnitText() string {
 		return "°C"
 	}
 	return ""
+}
+
+// QuantityDigits is how many significant digits output gives a target's
+// value: enough to tell 595.99 mV from its goal of 596 mV.
+const QuantityDigits = 5
+
+// Format writes a value of this kind with its unit for people, the one rule
+// every command's tables and messages use: "699.97 mV", "16.353 mV/°C",
+// "3.3562 °C", codes with one decimal, open bounds as "∞".
+func (k TargetKind) Format(v float64) string { return k.FormatSig(v, QuantityDigits) }
+
+// FormatSig is Format with sig significant digits (a spread such as σ needs
+// fewer than the value it spreads).
+func (k TargetKind) FormatSig(v float64, sig int) string {
+	switch {
+	case math.IsInf(v, 0):
+		return eseries.FormatUnitSig(v, eseries.NoUnit, sig)
+	case k == Code:
+		return strconv.FormatFloat(v, 'f', 1, 64)
+	case k == Sensitivity:
+		return eseries.FormatUnitSig(v, eseries.Volt, sig) + "/°C"
+	}
+	if u := k.UnitText(); u != "" {
+		// No SI prefix before °C: "0.0423 °C/step", not "42.3m °C/step".
+		return strconv.FormatFloat(v, 'g', sig, 64) + " " + u
+	}
+	return eseries.FormatUnitSig(v, k.Unit(), sig)
 }
 
 // Derived reports whether the kind is computed from several conditions at

@@ -44,6 +44,29 @@ func FormatUnit(v float64, u Unit) string {
 	return mant + " " + prefix + u.String()
 }
 
+// FormatUnitSig is FormatUnit with sig significant digits: "595.99 mV"
+// at five rather than "596 mV". Infinities are "∞" and "-∞" (an open bound
+// in a message); NoUnit gives FormatSig(v, sig).
+func FormatUnitSig(v float64, u Unit, sig int) string {
+	switch {
+	case math.IsInf(v, 1):
+		return "∞"
+	case math.IsInf(v, -1):
+		return "-∞"
+	}
+	switch u {
+	case NoUnit:
+		return FormatSig(v, sig)
+	case Percent:
+		return strconv.FormatFloat(v*100, 'g', sig, 64) + "%"
+	}
+	mant, prefix := engParts(v, sig)
+	if prefix == "u" {
+		prefix = "\u00b5"
+	}
+	return mant + " " + prefix + u.String()
+}
+
 // engPrefix holds the prefix for each engineering exponent from -12 to 9.
 var engPrefix = map[int]string{-12: "p", -9: "n", -6: "u", -3: "m", 0: "", 3: "k", 6: "M", 9: "G"}
 

@@ -103,6 +103,33 @@ func TestFormatUnit(t *testing.T) {
 	}
 }
 
+// TestFormatUnitSig: the same engineering form as FormatUnit at any number
+// of significant digits; open bounds read as infinities.
+func TestFormatUnitSig(t *testing.T) {
+	tests := []struct {
+		in   float64
+		u    Unit
+		sig  int
+		want string
+	}{
+		{0.59599, Volt, 5, "595.99 mV"},
+		{0.59599, Volt, 4, "596 mV"},
+		{95.625e-6, Amp, 5, "95.625 µA"},
+		{16.3531e-3, Volt, 4, "16.35 mV"},
+		{1e3, Ohm, 5, "1 kΩ"},
+		{999.996, Ohm, 5, "1 kΩ"}, // rounding carries into the next prefix
+		{0.00399, Percent, 3, "0.399%"},
+		{2.5, NoUnit, 5, "2.5"},
+		{math.Inf(1), Volt, 5, "∞"},
+		{math.Inf(-1), Volt, 5, "-∞"},
+	}
+	for _, tt := range tests {
+		if got := FormatUnitSig(tt.in, tt.u, tt.sig); got != tt.want {
+			t.Errorf("FormatUnitSig(%v, %v, %d) = %q, want %q", tt.in, tt.u, tt.sig, got, tt.want)
+		}
+	}
+}
+
 // TestFormatParseRoundTrip checks that Parse reads Format's and FormatUnit's
 // output back to within half a unit in the 4th significant digit, over
 // random values across the whole prefix range (seeded, so repeatable).

@@ -7,7 +7,7 @@
 // once (Compile), then gives each goroutine a Solver that re-stamps, re-factors
 // and re-solves the same structure for new part values without allocating.
 //
-// Graph faults an engineer can make (a floating node, a loop of voltage
+// Graph faults an engineer can make (a node cut off from ground, a ring of voltage
 // sources, a current source with nowhere to send its current, an op-amp
 // without feedback, a shorted part) are found on the circuit's graph in
 // Compile and reported as typed errors that name the nodes and parts, rather

@@ -29,9 +29,9 @@ type FloatingError struct {
 // Message names the fault in an engineer's words.
 func (e *FloatingError) Message() string {
 	if len(e.Nodes) == 1 {
-		return fmt.Sprintf("node %s has no DC path to ground", e.Nodes[0])
+		return fmt.Sprintf("node %s is cut off from ground: no chain of resistors or sources reaches ground from it", e.Nodes[0])
 	}
-	return fmt.Sprintf("nodes %s have no DC path to ground", strings.Join(e.Nodes, ", "))
+	return fmt.Sprintf("nodes %s are cut off from ground: no chain of resistors or sources reaches ground from them", strings.Join(e.Nodes, ", "))
 }
 
 // Error is Message with the package's name in front.
@@ -54,7 +54,7 @@ func (e *SourceLoopError) Message() string {
 	if len(e.Sources) == 1 {
 		return fmt.Sprintf("op-amp %s drives its output straight into ground", names)
 	}
-	return fmt.Sprintf("%s form a loop of voltage sources and op-amp outputs "+
+	return fmt.Sprintf("%s close a ring of fixed voltages, nothing but voltage sources and op-amp outputs "+
 		"(an ideal op-amp output is a voltage source against ground)", names)
 }
 
@@ -75,7 +75,7 @@ type InputLoopError struct {
 
 // Message names the fault in an engineer's words.
 func (e *InputLoopError) Message() string {
-	return fmt.Sprintf("%s form a loop of voltage sources and op-amp inputs "+
+	return fmt.Sprintf("%s close a ring of fixed voltages through op-amp inputs "+
 		"(an ideal op-amp's inputs sit at equal voltage)", strings.Join(e.Parts, ", "))
 }
 

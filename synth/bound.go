@@ -57,8 +57,8 @@ type BranchBound struct {
 	LeafRows int
 }
 
-// Name returns "branch-and-bound".
-func (BranchBound) Name() string { return "branch-and-bound" }
+// Name returns "bound", the --method word for this method.
+func (BranchBound) Name() string { return "bound" }
 
 var _ Method = BranchBound{}
 

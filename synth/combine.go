@@ -23,8 +23,9 @@ const (
 	ArrParallelSeries                    // (a + b) ∥ c
 )
 
-// String gives the JSON name: "single", "series", "parallel", or a short
-// description of a mixed arrangement.
+// String gives the JSON name, one token: "single", "series", "parallel",
+// "series-3", "parallel-3", "series-parallel" (a + (b ∥ c)) or
+// "parallel-series" ((a + b) ∥ c).
 func (a Arrangement) String() string {
 	switch a {
 	case ArrSingle:
@@ -34,13 +35,13 @@ func (a Arrangement) String() string {
 	case ArrParallel:
 		return "parallel"
 	case ArrSeries3:
-		return "series of three"
+		return "series-3"
 	case ArrParallel3:
-		return "parallel of three"
+		return "parallel-3"
 	case ArrSeriesParallel:
-		return "a + (b parallel c)"
+		return "series-parallel"
 	case ArrParallelSeries:
-		return "(a + b) parallel c"
+		return "parallel-series"
 	}
 	return "unknown"
 }

@@ -94,6 +94,6 @@ choose: {series: E24, min: 1k, max: 100k}
 	fmt.Println(m.Name(), res.Status, v)
 	fmt.Printf("a %.3f V, b %.3f V\n", 5*(v[1]+v[2])/sum, 5*v[2]/sum)
 	// Output:
-	// branch-and-bound proven [36000 36000 18000]
+	// bound proven [36000 36000 18000]
 	// a 3.000 V, b 1.000 V
 }

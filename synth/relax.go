@@ -31,8 +31,8 @@ type Relax struct {
 	Radius int
 }
 
-// Name returns "relax-and-snap".
-func (Relax) Name() string { return "relax-and-snap" }
+// Name returns "heuristic", the --method word for this method.
+func (Relax) Name() string { return "heuristic" }
 
 var _ Method = Relax{}
 

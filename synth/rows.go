@@ -31,8 +31,8 @@ import (
 // option by option with full solves.
 type Rows struct{}
 
-// Name returns "rows".
-func (Rows) Name() string { return "rows" }
+// Name returns "exhaustive", the --method word for this method.
+func (Rows) Name() string { return "exhaustive" }
 
 var _ Method = Rows{}
 

@@ -159,19 +159,20 @@ const (
 	Partial
 )
 
-// String returns a short lower-case name of the status.
+// String returns the status as one lower-case token (no spaces), the word
+// the summary line, JSON "status" and the template reference use.
 func (s Status) String() string {
 	switch s {
 	case Proven:
 		return "proven"
 	case TimeLimit:
-		return "time limit"
+		return "time-limit"
 	case Interrupted:
 		return "interrupted"
 	case Heuristic:
 		return "heuristic"
 	case NoFeasible:
-		return "no feasible design"
+		return "infeasible"
 	case Partial:
 		return "partial"
 	}

@@ -35,7 +35,7 @@ func bindRealFlags(cmd *cobra.Command, r *realFlags) {
 	f := cmd.Flags()
 	countVar(f, &r.Samples, "samples", variation.DefaultSamples, 0, maxSamples, "Monte Carlo samples (`N`, at most 10,000,000; 0: none)")
 	f.Uint64Var(&r.Seed, "seed", 1, "Monte Carlo seed (`N`); the same seed gives the same numbers")
-	f.StringVar(&r.Dist, "dist", "uniform", "`DIST`ribution of each part within its tolerance: uniform, or normal with tolerance = 3σ")
+	f.StringVar(&r.Dist, "dist", "uniform", "how each part spreads within its tolerance (`DISTRIBUTION`): uniform, or normal with tolerance = 3σ")
 	f.StringVar(&r.Ambient, "ambient", "", "ambient range in °C as `MIN..MAX` (e.g. -20..70), spreading each resistor by its TCR; overrides the template's ambient")
 	f.StringVar(&r.MaxPackage, "max-package", "", "largest resistor `PACKAGE` allowed (e.g. 0805); a part that needs more fails the run (exit 1)")
 }
@@ -77,6 +77,7 @@ func (r *realFlags) settings(cmd *cobra.Command) (*variation.Settings, constrain
 // checkOptions are the inputs of `ohmfit check`.
 type checkOptions struct {
 	File   string
+	In     io.Reader // standard input, read for the FILE "-"
 	Format string
 	Rank   int
 	BOM    string
@@ -136,7 +137,8 @@ the part you buy governs. ohmfit is a first check, not a safety assessment.
 A template with resistors still to choose is first fitted like ` + "`ohmfit fit`" + `, and
 the answer of --rank (default 1) is checked.
 
-FILE is a template file, or example:NAME for a built-in example.
+FILE is a template file, example:NAME for a built-in example, or - to read
+the template from standard input.
 
 Exit status, for a script to gate a design on:
   0  every hard limit (tolerance, min, max) holds over the whole worst-case
@@ -163,6 +165,7 @@ Exit status, for a script to gate a design on:
 			if err := checkOutputFlags(cmd, o.BOM, o.Plot); err != nil {
 				return err
 			}
+			o.In = cmd.InOrStdin()
 			return runCheck(o, st, amb)
 		},
 	}
@@ -192,7 +195,7 @@ func checkOutputFlags(cmd *cobra.Command, bom, plot string) error {
 
 // runCheck loads, fits when needed, analyses and renders.
 func runCheck(o *checkOptions, st *variation.Settings, amb constraints.Ambient) error {
-	t, err := loadTemplate(o.File)
+	t, err := loadTemplate(o.File, o.In)
 	if err != nil {
 		return err
 	}
@@ -309,7 +312,7 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 // inputFiles lists the files a run read, which outputs must not replace.
 func inputFiles(t *constraints.Template) []string {
 	files := []string{}
-	if !strings.HasPrefix(t.File, examplePrefix) {
+	if !strings.HasPrefix(t.File, examplePrefix) && t.File != constraints.StdinName {
 		files = append(files, t.File)
 	}
 	if f := t.Choose.Default.StockFile; f != "" {
@@ -441,20 +444,27 @@ func writeGoalTable(b *strings.Builder, t *constraints.Template, rep *variation.
 	}
 	tb.cols[len(tb.cols)-1].gap = 0
 	tb.add(head...)
+	// Two rows on one quantity in one condition (a goal and a separate
+	// limit on it) would read alike: those say which is which.
+	seen := map[[2]string]int{}
+	for _, g := range rep.Goals {
+		seen[[2]string{g.Label, g.CondName}]++
+	}
 	for _, g := range rep.Goals {
 		tg := t.Targets[g.Target]
-		u := tg.Kind.Unit()
-		limit := "-"
-		if g.HasBand {
-			limit = "ok"
-			if !g.InBand {
-				limit = "OUT"
-			}
+		label := g.Label
+		if seen[[2]string{g.Label, g.CondName}] > 1 {
+			label += " (" + targetKind(tg.HasEquals) + ")"
 		}
-		row := []string{g.Label, g.CondName, preciseUnit(g.Nominal, u), preciseUnit(g.WorstMin, u), preciseUnit(g.WorstMax, u), limit}
+		limit := wordNoLimit
+		if g.HasBand {
+			limit = verdictWord(g.InBand)
+		}
+		k := tg.Kind
+		row := []string{label, g.CondName, k.Format(g.Nominal), k.Format(g.WorstMin), k.Format(g.WorstMax), limit}
 		if rep.Samples > 0 {
 			mc := g.MonteCarlo
-			row = append(row, preciseUnit(mc.Mean, u), eseries.FormatUnit(mc.Sigma, u), preciseUnit(mc.Low, u), preciseUnit(mc.High, u), yieldText(mc.Yield))
+			row = append(row, k.Format(mc.Mean), k.FormatSig(mc.Sigma, 4), k.Format(mc.Low), k.Format(mc.High), yieldText(mc.Yield))
 		}
 		tb.add(row...)
 	}
@@ -551,7 +561,7 @@ func writeNotes(b *strings.Builder, rep *variation.Report) {
 	b.WriteString("\n  load is worst-case power over rated power; packages carry at most 50% (derating, common practice).\n")
 	b.WriteString("  Ratings are typical thick-film figures from memory: check the datasheet of the part you buy.\n")
 	for _, f := range rep.Failures {
-		fmt.Fprintf(b, "\nFAILS: %s\n", f)
+		fmt.Fprintf(b, "\n%s: %s\n", wordFail, f)
 	}
 	if len(rep.Warnings) > 0 {
 		b.WriteString("\nwarnings:\n")
@@ -582,13 +592,13 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 		for _, s := range g.Sens {
 			sens = append(sens, member{s.Part, finite(s.Normalised)})
 		}
-		m := object{{"target", g.Label}, {"condition", g.CondName}, {"nominal", g.Nominal},
+		m := object{{"target", g.Label}, {"kind", targetKind(tg.HasEquals)}, {"condition", g.CondName}, {"nominal", g.Nominal},
 			{"worst_min", g.WorstMin}, {"worst_max", g.WorstMax}}
 		if tg.HasEquals {
 			m = append(m, member{"goal", tg.Equals}, member{"worst_error", finite(g.WorstError)})
 		}
 		lo, hi := tg.Band()
-		m = append(m, member{"min", finite(lo)}, member{"max", finite(hi)}, member{"within_limits", !g.HasBand || g.InBand})
+		m = append(m, member{"min", finite(lo)}, member{"max", finite(hi)}, member{"pass", !g.HasBand || g.InBand})
 		if rep.Samples > 0 {
 			mc := g.MonteCarlo
 			m = append(m, member{"monte_carlo", object{{"mean", finite(mc.Mean)}, {"sigma", finite(mc.Sigma)},
@@ -639,7 +649,7 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 			member{"position", v.Position}, member{"type", variation.TypeResistor}, member{"series", v.Series}, member{"tcr", v.TCR},
 			member{"watts", r.Watts}, member{"nominal_watts", r.NominalWatts}, member{"volts", r.Volts},
 			member{"package", r.Package}, member{"package_chosen", r.Chosen},
-			member{"rated_watts", r.Rated}, member{"max_volts", r.MaxVolts},
+			member{"rated_watts", r.Rated}, member{"rated_volts", r.MaxVolts},
 			member{"power_fraction", r.Load.PowerFraction}, member{"voltage_fraction", r.Load.VoltageFraction},
 			member{"verdict", r.Verdict}))
 	}
@@ -664,7 +674,7 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 		{"goals", goals},
 		{"parts", parts},
 		{"sources", sources},
-		{"max_volts", rep.MaxVolts},
+		{"span_volts", rep.MaxVolts}, // the largest voltage between two nodes
 		{"warnings", nonNilStrings(rep.Warnings)},
 		{"cautions", nonNilStrings(rep.Cautions)},
 		{"failures", nonNilStrings(rep.Failures)},

@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"io"
+	"math"
 	"strconv"
 	"strings"
 
@@ -42,8 +43,14 @@ single 4.3k exists. Apart from those, the list is exact at every rank: it is
 the first --top of all singles, pairs and triples ranked this way.
 
 JSON output (--format json):
-  {"target": 4320, "solutions": [{"rank": 1, "value": 4330, "parts": [3900, 430],
-    "combine": "series", "error": 0.0023, "part_count": 2}]}`,
+  {"target": 4320, "series": "E24", "solutions": [{"rank": 1, "value": 4330,
+    "parts": [3900, 430], "combine": "series", "arrangement": {"series": [3900, 430]},
+    "error": 0.0023, "deviation": 0.0023, "part_count": 2}]}
+
+"error" is |value - target| / target, as in fit; "deviation" keeps the sign,
+(value - target) / target, as the table shows it. "arrangement" is the
+circuit as data: a number is one part in ohms, {"series": [...]} and
+{"parallel": [...]} join what they list.`,
 		Example: `  # 4.32k from E24 parts
   ohmfit combine 4.32k
 
@@ -104,14 +111,15 @@ func runCombine(o *combineOptions) error {
 		sols := make([]object, len(combs))
 		for i, c := range combs {
 			sols[i] = object{{"rank", i + 1}, {"value", c.Value}, {"parts", c.Parts},
-				{"combine", c.Arrangement.String()}, {"error", c.Error}, {"part_count", c.Arrangement.Count()}}
+				{"combine", c.Arrangement.String()}, {"arrangement", arrangementData(c)},
+				{"error", c.Error}, {"deviation", (c.Value - target) / target}, {"part_count", c.Arrangement.Count()}}
 		}
 		return writeJSON(o.Out, object{{"target", target}, {"series", s.Name}, {"solutions", sols}})
 	}
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s from %s parts (%s … %s), up to %d parts\n\n", eseries.FormatUnit(target, eseries.Ohm), s.Name, eseries.Format(lo), eseries.Format(hi), o.MaxParts)
 	tb := table{indent: "  ", cols: []column{{right: true, gap: 2}, {gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {}}}
-	tb.add("rank", "parts", "value", "error", "count")
+	tb.add("rank", "arrangement", "value", "deviation", wordCount)
 	for i, c := range combs {
 		tb.add(strconv.Itoa(i+1), arrangementText(c), eseries.Format(c.Value), signedError(c.Value, target), strconv.Itoa(c.Arrangement.Count()))
 	}
@@ -120,6 +128,29 @@ func runCombine(o *combineOptions) error {
 	}
 	_, err = io.WriteString(o.Out, b.String())
 	return err
+}
+
+// arrangementData is an arrangement as nested JSON: a number is one part,
+// {"series": [...]} and {"parallel": [...]} join what they list.
+func arrangementData(c synth.Combination) any {
+	p := c.Parts
+	ser := func(xs ...any) object { return object{{"series", xs}} }
+	par := func(xs ...any) object { return object{{"parallel", xs}} }
+	switch c.Arrangement {
+	case synth.ArrSeries:
+		return ser(p[0], p[1])
+	case synth.ArrParallel:
+		return par(p[0], p[1])
+	case synth.ArrSeries3:
+		return ser(p[0], p[1], p[2])
+	case synth.ArrParallel3:
+		return par(p[0], p[1], p[2])
+	case synth.ArrSeriesParallel:
+		return ser(p[0], par(p[1], p[2]))
+	case synth.ArrParallelSeries:
+		return par(ser(p[0], p[1]), p[2])
+	}
+	return p[0]
 }
 
 // arrangementText draws an arrangement with its values: "3.9k + 430",
@@ -146,12 +177,12 @@ func arrangementText(c synth.Combination) string {
 	return f[0]
 }
 
-// signedError shows (value - target)/target as a signed percentage, "0" for
-// an exact hit.
+// signedError shows (value - target)/target as a signed percentage in the
+// error columns' format, "0%" for an exact hit.
 func signedError(v, target float64) string {
 	e := (v - target) / target
-	if e == 0 || (e < 1e-12 && e > -1e-12) {
-		return "0"
+	if math.Abs(e) <= constraints.TieRelative {
+		return "0%"
 	}
 	return percent(e)
 }

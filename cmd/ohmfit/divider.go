@@ -24,7 +24,7 @@ func bindChoiceFlags(cmd *cobra.Command, c *choiceFlags) {
 	f.StringVar(&c.Min, "min", "1k", "smallest resistor to use (`R`)")
 	f.StringVar(&c.Max, "max", "1M", "largest resistor to use (`R`)")
 	f.StringVar(&c.Combine, "combine", "single", "`HOW` each position is made: single, series, parallel or any (single or a pair)")
-	f.StringVar(&c.Tolerance, "tolerance", "", "hard limit on the output: a percentage (0.5%) or volts (5m); none by default")
+	f.StringVar(&c.Tolerance, "tolerance", "", "hard limit on the output (`TOLERANCE`): a percentage (0.5%) or volts (5m); none by default")
 }
 
 // apply reads the flags into the template's default choice and returns the
@@ -81,7 +81,7 @@ func newDividerCmd(out, errOut io.Writer, errIsTTY bool) *cobra.Command {
 		Long: `Choose R1 (from the input to the output) and R2 (from the output to ground)
 so that the output sits as close as possible to --vout when the input is at
 --vin, optionally with a fixed load from the output to ground and a limit on
-the divider's current. The network is solved like any template; the output
+the divider's current. The network is solved node by node, as fit does; the output
 is the same as ` + "`ohmfit fit`" + `'s. The series defaults to E24 and the values to
 1k … 1M; --series, --min and --max change them.`,
 		Example: `  # 0.8 V from a 3.3 V rail, E96, at most 100 µA
@@ -114,6 +114,7 @@ is the same as ` + "`ohmfit fit`" + `'s. The series defaults to E24 and the valu
 	f.StringVar(&o.MaxCurrent, "max-current", "", "most current the divider may draw through R1 (`I`)")
 	bindChoiceFlags(cmd, &o.choiceFlags)
 	bindSearchFlags(cmd, &o.searchOptions)
+	builtInSeries(cmd)
 	return cmd
 }
 
@@ -183,4 +184,10 @@ func addCurrentLimit(t *constraints.Template, part, text string, positive bool) 
 	}
 	t.Targets = append(t.Targets, tg)
 	return nil
+}
+
+// builtInSeries rewords --series for the commands that build their network
+// from flags, where there is no template to override.
+func builtInSeries(cmd *cobra.Command) {
+	cmd.Flags().Lookup("series").Usage = "take both resistors from this `SERIES` (E3 … E192; default E24)"
 }

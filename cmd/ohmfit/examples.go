@@ -78,7 +78,10 @@ func exampleText(name string) ([]byte, error) {
 
 // loadTemplate reads the template a FILE argument names: a path, or
 // example:NAME for a built-in example.
-func loadTemplate(arg string) (*constraints.Template, error) {
+func loadTemplate(arg string, stdin io.Reader) (*constraints.Template, error) {
+	if arg == "-" && stdin != nil {
+		return constraints.LoadReader(constraints.StdinName, stdin)
+	}
 	name, ok := strings.CutPrefix(arg, examplePrefix)
 	if !ok {
 		return constraints.Load(arg)

@@ -64,6 +64,7 @@ same as ` + "`ohmfit fit`" + `'s.`,
 	f.StringVar(&o.MaxCurrent, "max-current", "", "most current the divider may draw from the output (`I`)")
 	bindChoiceFlags(cmd, &o.choiceFlags)
 	bindSearchFlags(cmd, &o.searchOptions)
+	builtInSeries(cmd)
 	return cmd
 }
 

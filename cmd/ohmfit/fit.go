@@ -14,6 +14,7 @@ import (
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/ohmfit/ohmfit/synth"
+	"github.com/ohmfit/ohmfit/synth/variation"
 	"github.com/spf13/cobra"
 )
 
@@ -42,12 +43,12 @@ func bindSearchFlags(cmd *cobra.Command, o *searchOptions) {
 	countVar(f, &o.Top, "top", 10, 1, maxListed, "how many ranked answers to show (`N`, at most 10,000)")
 	f.StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table, json or csv")
 	f.StringVar(&o.Series, "series", "", "use this `SERIES` (E3 … E192) for every position, overriding the template")
-	durationVar(f, &o.TimeLimit, "time-limit", "stop after this long (`D`, e.g. 30s) and show the best found so far, marked not proven")
+	durationVar(f, &o.TimeLimit, "time-limit", "stop after this long (`DURATION`, e.g. 30s) and show the best found so far, marked not proven")
 	countVar(f, &o.Workers, "workers", 0, 0, maxWorkers, "goroutines to search with (`N`; 0: one per core); the answer does not depend on it")
-	f.StringVar(&o.Method, "method", "auto", "`METHOD`: bound (branch and bound over value boxes, proven best), exhaustive (every row, proven best), heuristic (relax and snap), or auto (branch and bound where its bounds apply, else exhaustive when the space allows)")
+	f.StringVar(&o.Method, "method", "auto", "`METHOD`: bound (branch and bound over value boxes, proven best), exhaustive (every row, proven best), heuristic (a relaxation, then the standard values around it; not proven), or auto (branch and bound where its bounds apply, else exhaustive when the space allows)")
 	f.BoolVarP(&o.Quiet, "quiet", "q", false, "no progress bar")
 	f.StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically, through a symbolic link to its target; never over an input file)")
-	f.StringVar(&o.Tradeoffs, "tradeoffs", "", "also list the trade-off front: every answer with goal error up to `E` (e.g. 1%) that nothing beats on error, power and parts at once")
+	f.StringVar(&o.Tradeoffs, "tradeoffs", "", "also list the "+wordFront+": every answer with goal error up to `ERROR` (1% or 0.01) that nothing beats on error, power and count at once")
 }
 
 // checkSearchFlags validates the shared flags.
@@ -103,15 +104,16 @@ so the same input always gives the same list. An answer marked * is
 Pareto-optimal in the list: no other answer is as good in error, power and
 part count and better in one.
 
-Two methods prove their list best over the whole space. Branch and bound
-(method bound) bounds boxes of values from their corners and rules out every
-box that cannot hold a better answer; the rows method (method exhaustive)
-scores every combination of all positions but one. Method auto uses branch
-and bound where its bounds cover every goal (every goal but a sweep-wide one)
-and the space is larger than one of its boxes, the rows method otherwise, and
-a heuristic (a continuous relaxation, then a search of the standard values
-around it) where neither can prove the result; the summary line names the
-method, and the result says when it is not proven. A result stopped by
+Two methods prove their list best over the whole space. Method bound
+(branch and bound) bounds boxes of values from their corners and rules out
+every box that cannot hold a better answer; method exhaustive scores every
+row, a combination of all positions but one, and every value of the last
+along it. Method auto uses bound where its bounds cover every goal (every
+goal but a sweep-wide one) and the space is larger than one of its boxes,
+exhaustive otherwise, and heuristic (a continuous relaxation, then a search
+of the standard values around it) where neither can prove the result. The
+summary line uses the JSON's words: space, method, evaluated, solves and the
+status (proven, infeasible, heuristic, time-limit, interrupted or partial). A result stopped by
 --time-limit or Ctrl-C says how far from proven it is: "nothing better than
 X can exist" (JSON "bound"). Ctrl-C stops a search and prints the best found
 so far; once the search is over (--check, --robust) it ends the run at once.
@@ -120,13 +122,14 @@ so far; once the search is over (--check, --robust) it ends the run at once.
 JSON results of all N parts, combined by "ohmfit merge", are the result of
 one whole run.
 
-FILE is a template file, or example:NAME for a built-in example.
+FILE is a template file, example:NAME for a built-in example, or - to read
+the template from standard input.
 
 Exit status: 0 with answers, 1 when nothing meets the hard limits (the message
 names the limit that rejected the most candidates), 2 for bad input.
 
 JSON output (--format json):
-  {"name": "...", "exhaustive": true, "status": "proven", "method": "rows",
+  {"name": "...", "exhaustive": true, "status": "proven", "method": "exhaustive",
    "space": 83521, "evaluated": 1234, "solves": 2468, "bound": 0.00041,
    "solutions": [
      {"rank": 1, "values": {"R1": 30100, "R2": 9530},
@@ -149,7 +152,7 @@ JSON output (--format json):
 			if err := o.fitReal.validate(cmd); err != nil {
 				return err
 			}
-			t, err := loadTemplate(o.File)
+			t, err := loadTemplate(o.File, cmd.InOrStdin())
 			if err != nil {
 				return err
 			}
@@ -181,11 +184,11 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	set := &synth.Settings{Top: o.Top, Workers: o.Workers, TimeLimit: o.TimeLimit, Progress: &synth.Progress{}}
 	o.real.adjust(set)
 	if o.Tradeoffs != "" {
-		q, err := eseries.Parse(o.Tradeoffs)
-		if err != nil || !(q.Value > 0) || (q.Unit != eseries.Percent && q.Unit != eseries.NoUnit) {
-			return badInputf("--tradeoffs: want a goal error like 1%% or 0.01, not %q", o.Tradeoffs)
+		v, err := parseErrorCap(o.Tradeoffs)
+		if err != nil {
+			return err
 		}
-		set.FrontErrorCap = q.Value
+		set.FrontErrorCap = v
 	}
 	if o.Shard != "" {
 		set.Shard, set.Shards, _ = parseShard(o.Shard)
@@ -381,7 +384,7 @@ func renderFit(o *searchOptions, p *synth.Problem, res *synth.Result) error {
 	case "json":
 		return writeJSON(o.Out, fitJSON(p, res))
 	case "csv":
-		return writeFitCSV(o.Out, p, res)
+		return writeFitCSV(o.Out, p, res, nil)
 	}
 	return writeFitTable(o.Out, p, res)
 }
@@ -404,8 +407,12 @@ type goalColumn struct {
 	label        string
 }
 
-// goalColumns lists the goals to show beside each answer: every goal in
-// every condition it applies to, while that is at most four columns.
+// maxGoalColumns is how many goal columns the table shows; beyond that it
+// shows none and says where to see them (JSON and CSV carry them all).
+const maxGoalColumns = 5
+
+// goalColumns lists the goals shown beside each answer: every goal in
+// every condition it applies to (and every sweep-wide figure).
 func goalColumns(p *synth.Problem) []goalColumn {
 	var cols []goalColumn
 	multi := len(p.Conditions) > 1
@@ -429,25 +436,19 @@ func goalColumns(p *synth.Problem) []goalColumn {
 			cols = append(cols, goalColumn{ti, ci, label})
 		}
 	}
-	if len(cols) > 5 {
-		return nil
-	}
 	return cols
 }
 
 // summaryLine describes the search in one line.
 func summaryLine(p *synth.Problem, res *synth.Result) string {
 	st := res.Stats
-	verdict := "proven best over the whole space"
+	// The verdict leads with the status token JSON "status" carries.
+	verdict := "best over the whole space"
 	switch res.Status {
 	case synth.NoFeasible:
-		verdict = "proven: nothing meets the hard limits"
-	case synth.Heuristic:
-		verdict = "not proven (heuristic)"
-	case synth.TimeLimit:
-		verdict = "not proven (time limit)"
-	case synth.Interrupted:
-		verdict = "not proven (interrupted)"
+		verdict = "proven that nothing meets the hard limits"
+	case synth.Heuristic, synth.TimeLimit, synth.Interrupted:
+		verdict = "not proven"
 	case synth.Partial:
 		verdict = "not proven (ranked among part of the space)"
 	}
@@ -455,17 +456,15 @@ func summaryLine(p *synth.Problem, res *synth.Result) string {
 		// A shard proves its own part only; the whole needs ohmfit merge.
 		switch res.Status {
 		case synth.Proven:
-			verdict = fmt.Sprintf("proven best within shard %d/%d only; merge the shards for the whole space", res.Shard, res.Shards)
+			verdict = fmt.Sprintf("best within shard %d/%d only; merge the shards for the whole space", res.Shard, res.Shards)
 		case synth.NoFeasible:
-			verdict = fmt.Sprintf("proven: nothing in shard %d/%d meets the hard limits", res.Shard, res.Shards)
+			verdict = fmt.Sprintf("proven that nothing in shard %d/%d meets the hard limits", res.Shard, res.Shards)
 		}
 	}
-	noun := "candidates"
-	if st.Space == 1 {
-		noun = "candidate"
-	}
-	return fmt.Sprintf("%s %s (%s); %s scored by %s in %s; %s",
-		count(st.Space), noun, p.DescribeSpace(), count(float64(st.Evaluated)), st.Method, roundDuration(st.Elapsed), verdict)
+	// The same words as the JSON keys: space, method, evaluated, solves, status.
+	return fmt.Sprintf("space %s (%s); method %s: evaluated %s, solves %s, in %s; %s: %s",
+		count(st.Space), p.DescribeSpace(), st.Method, count(float64(st.Evaluated)), count(float64(st.Solves)),
+		roundDuration(st.Elapsed), res.Status, verdict)
 }
 
 // boundLine says how far from proven a result is that is not proven, when
@@ -533,23 +532,30 @@ func writeFitTable(w io.Writer, p *synth.Problem, res *synth.Result) error {
 		return err
 	}
 	goals := goalColumns(p)
+	hidden := 0
+	if len(goals) > maxGoalColumns {
+		hidden, goals = len(goals), nil
+	}
 	if err := solutionTable(&b, p, res.Solutions, goals, true); err != nil {
 		return err
+	}
+	if hidden > 0 {
+		fmt.Fprintf(&b, "\n  %d goal values (goals × conditions) are too many for the table; --format csv or --format json lists them all.\n", hidden)
 	}
 	pareto := false
 	for _, s := range res.Solutions {
 		pareto = pareto || s.Pareto
 	}
 	if pareto {
-		b.WriteString("\n  * Pareto-optimal in this list: nothing here beats it on error, power and parts at once.\n")
+		b.WriteString("\n  * Pareto-optimal in this list: nothing here beats it on error, power and count at once.\n")
 	}
 	if res.Front != nil {
 		scope := "proven over the whole space"
 		if !res.Status.Exhaustive() {
 			scope = "among the candidates scored; not proven"
 		}
-		fmt.Fprintf(&b, "\nTrade-offs: every answer with goal error up to %s that nothing beats on error, power and parts at once (%s)\n\n",
-			errorText(res.FrontCap), scope)
+		fmt.Fprintf(&b, "\n%s: every answer with goal error up to %s that nothing beats on error, power and count at once (%s)\n\n",
+			capitalise(wordFront), errorText(res.FrontCap), scope)
 		if err := solutionTable(&b, p, res.Front, goals, false); err != nil {
 			return err
 		}
@@ -571,7 +577,7 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 		head = append(head, d.Name)
 		tb.cols = append(tb.cols, column{gap: 3})
 	}
-	head = append(head, "error", "power", "parts")
+	head = append(head, "error", "power", wordCount)
 	tb.cols = append(tb.cols, column{right: true, gap: 3}, column{right: true, gap: 3}, column{right: true, gap: 3})
 	for _, g := range goals {
 		head = append(head, g.label)
@@ -606,20 +612,15 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 	return tb.write(b)
 }
 
-// errorText shows a goal error as a percentage with three significant
-// digits, in ppm below 0.01 % where a percentage would need a row of zeros,
-// in plain exponent form below 0.1 ppm, and an exact hit (within rounding)
-// as "0".
+// errorText shows a goal error in the one format every error column uses:
+// a percentage with three significant digits and no exponent ("1.31%",
+// "0.00399%"), and an exact hit (within the contract's 1e-12 tie
+// tolerance) as "0%".
 func errorText(e float64) string {
-	switch {
-	case e <= 1e-12:
-		return "0"
-	case e >= 1e-4:
-		return strings.TrimPrefix(percent(e), "+")
-	case e >= 1e-7:
-		return strconv.FormatFloat(e*1e6, 'g', 3, 64) + " ppm"
+	if e <= constraints.TieRelative {
+		return "0%"
 	}
-	return strconv.FormatFloat(e, 'e', 2, 64)
+	return strings.TrimPrefix(percent(e), "+")
 }
 
 // fitJSON builds the contract's JSON document for a search.
@@ -680,7 +681,7 @@ func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 					name = "sweep" // one figure over the temperature conditions
 				}
 				v := s.Score.Values[ti*nc+ci]
-				m := object{{"target", tg.Label()}, {"condition", name}, {"value", v}}
+				m := object{{"target", tg.Label()}, {"kind", targetKind(tg.HasEquals)}, {"condition", name}, {"value", v}}
 				if tg.HasEquals {
 					m = append(m, member{"goal", tg.Equals}, member{"error", tg.GoalError(v)})
 				}
@@ -704,29 +705,72 @@ func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 }
 
 // writeFitCSV writes one row per answer: rank, each position's effective
-// value, realisation and parts, then error, power and part count.
-func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result) error {
+// value, realisation and parts, then error, power, part count, the Pareto
+// mark and every goal value the table would show (all of them, however
+// many). With --robust (robust not nil) the worst-case error and pass/fail
+// follow; with --tradeoffs the front's answers follow the ranked ones, told
+// apart by the last column, list ("top" or "front"). Numbers are plain, in
+// SI base units (ohms, volts, amps, watts; errors as fractions), with the
+// same keys as the JSON output where there is one.
+func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result, robust []variation.Robust) error {
 	cw := csv.NewWriter(w)
+	goals := goalColumns(p)
 	head := []string{"rank"}
 	for _, d := range p.Domains {
-		head = append(head, d.Name, d.Name+" combine", d.Name+" parts")
+		head = append(head, d.Name, d.Name+"_combine", d.Name+"_parts")
 	}
 	head = append(head, "error", "power", "part_count", "pareto")
+	for _, g := range goals {
+		head = append(head, csvName(g.label))
+	}
+	if robust != nil {
+		head = append(head, "worst_error", "pass")
+	}
+	if res.Front != nil {
+		head = append(head, "list")
+	}
 	if err := cw.Write(head); err != nil {
 		return err
 	}
-	for _, s := range res.Solutions {
-		row := []string{strconv.Itoa(s.Rank)}
-		for _, o := range s.Options {
-			var ps []string
-			for _, v := range o.PartValues() {
-				ps = append(ps, eseries.Format(v))
+	nc := len(p.Conditions)
+	write := func(sols []synth.Solution, list string, robust []variation.Robust, blank bool) error {
+		for i, s := range sols {
+			row := []string{strconv.Itoa(s.Rank)}
+			for _, o := range s.Options {
+				var ps []string
+				for _, v := range o.PartValues() {
+					ps = append(ps, csvNumber(v))
+				}
+				row = append(row, csvNumber(o.Value), o.Combine.String(), strings.Join(ps, " "))
 			}
-			row = append(row, strconv.FormatFloat(o.Value, 'g', -1, 64), o.Combine.String(), strings.Join(ps, " "))
+			row = append(row, csvNumber(s.Score.Error), csvNumber(s.Score.Power), strconv.Itoa(s.Parts), strconv.FormatBool(s.Pareto))
+			for _, g := range goals {
+				row = append(row, csvNumber(s.Score.Values[g.target*nc+g.cond]))
+			}
+			switch {
+			case robust != nil:
+				row = append(row, csvNumber(robust[i].WorstError), strconv.FormatBool(robust[i].InBand))
+			case blank:
+				row = append(row, "", "") // the front's worst cases are not computed
+			}
+			if list != "" {
+				row = append(row, list)
+			}
+			if err := cw.Write(row); err != nil {
+				return err
+			}
 		}
-		row = append(row, strconv.FormatFloat(s.Score.Error, 'g', -1, 64), strconv.FormatFloat(s.Score.Power, 'g', -1, 64),
-			strconv.Itoa(s.Parts), strconv.FormatBool(s.Pareto))
-		if err := cw.Write(row); err != nil {
+		return nil
+	}
+	list := ""
+	if res.Front != nil {
+		list = "top"
+	}
+	if err := write(res.Solutions, list, robust, false); err != nil {
+		return err
+	}
+	if res.Front != nil {
+		if err := write(res.Front, "front", nil, robust != nil); err != nil {
 			return err
 		}
 	}
@@ -734,38 +778,41 @@ func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result) error {
 	return cw.Error()
 }
 
-// quantityText writes a target's value with its unit: five significant
-// digits for electrical quantities, codes with one decimal, °C figures with
-// four digits.
-func quantityText(v float64, k constraints.TargetKind) string {
-	switch k {
-	case constraints.Code:
-		return strconv.FormatFloat(v, 'f', 1, 64)
-	case constraints.Sensitivity:
-		return eseries.FormatUnit(v, eseries.Volt) + "/°C"
-	}
-	if u := k.UnitText(); u != "" {
-		return eseries.FormatSig(v, 4) + " " + u
-	}
-	return preciseUnit(v, k.Unit())
+// csvNumber writes a number for a script: the shortest form that reads back
+// exactly, in SI base units.
+func csvNumber(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+// csvName turns a table heading into a CSV header without spaces:
+// "voltage fb @cold" becomes "voltage_fb@cold".
+func csvName(label string) string {
+	return strings.ReplaceAll(strings.ReplaceAll(label, " @", "@"), " ", "_")
 }
 
-// preciseUnit is FormatUnit with five significant digits, for goal values
-// that sit close to their goal: "595.99 mV" rather than "596 mV".
-func preciseUnit(v float64, u eseries.Unit) string { return preciseSig(v, u, 5) }
+// quantityText writes a target's value with its unit (constraints'
+// TargetKind.Format, the one rule for every command).
+func quantityText(v float64, k constraints.TargetKind) string { return k.Format(v) }
 
 // preciseSig is FormatUnit with sig significant digits.
-func preciseSig(v float64, u eseries.Unit, sig int) string {
-	s := eseries.FormatSig(v, sig)
-	if u == eseries.NoUnit || u == eseries.Percent {
+func preciseSig(v float64, u eseries.Unit, sig int) string { return eseries.FormatUnitSig(v, u, sig) }
+
+// parseErrorCap reads a goal-error bound: a percentage (5%) or a fraction
+// (0.05). A bare number above 1 is refused: "5" would mean 500 %, and is
+// far more likely a percentage without its sign.
+func parseErrorCap(s string) (float64, error) {
+	q, err := eseries.Parse(s)
+	if err != nil || !(q.Value > 0) || (q.Unit != eseries.Percent && q.Unit != eseries.NoUnit) {
+		return 0, badInputf("--tradeoffs: want a goal error like 1%% or 0.01, not %q", s)
+	}
+	if q.Unit == eseries.NoUnit && q.Value > 1 {
+		return 0, badInputf("--tradeoffs %s would mean %s; write %s%% for a percentage, or a fraction up to 1", s, eseries.FormatUnit(q.Value, eseries.Percent), s)
+	}
+	return q.Value, nil
+}
+
+// capitalise upper-cases the first letter of a heading word.
+func capitalise(s string) string {
+	if s == "" {
 		return s
 	}
-	prefix := ""
-	if n := len(s); n > 0 && strings.ContainsRune("pnumkMG", rune(s[n-1])) {
-		s, prefix = s[:n-1], s[n-1:]
-	}
-	if prefix == "u" {
-		prefix = "µ"
-	}
-	return s + " " + prefix + u.String()
+	return strings.ToUpper(s[:1]) + s[1:]
 }

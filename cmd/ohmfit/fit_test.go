@@ -14,6 +14,8 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"github.com/ohmfit/ohmfit/constraints"
 )
 
 // TestMain lets the test binary act as the ohmfit command when asked, so a
@@ -117,7 +119,7 @@ func TestFitTimeLimit(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &doc); err != nil {
 		t.Fatal(err)
 	}
-	if doc.Exhaustive || doc.Status != "time limit" || len(doc.Solutions) == 0 {
+	if doc.Exhaustive || doc.Status != "time-limit" || len(doc.Solutions) == 0 {
 		t.Fatalf("exhaustive %v, status %q, %d solutions", doc.Exhaustive, doc.Status, len(doc.Solutions))
 	}
 	if !strings.Contains(errOut, "time limit") {
@@ -190,7 +192,7 @@ func TestInterruptEveryCommand(t *testing.T) {
 				if err != nil {
 					t.Fatalf("%v; stderr: %s", err, errOut.String())
 				}
-				if !strings.Contains(out.String(), "not proven (interrupted)") || !strings.Contains(out.String(), "1") {
+				if !strings.Contains(out.String(), "interrupted: not proven") || !strings.Contains(out.String(), "1") {
 					t.Errorf("stdout should show the best so far, marked not proven:\n%s", out.String())
 				}
 				if !strings.Contains(errOut.String(), "interrupted") {
@@ -204,6 +206,47 @@ func TestInterruptEveryCommand(t *testing.T) {
 			}
 			if out.Len() != 0 {
 				t.Errorf("printed after the interrupt:\n%s", out.String())
+			}
+		})
+	}
+}
+
+// TestStdinTemplate: the FILE "-" reads the template from standard input,
+// gives the same output as the file itself, names "<stdin>" in messages, and
+// keeps the loader's size limit.
+func TestStdinTemplate(t *testing.T) {
+	text, err := os.ReadFile("testdata/check-divider.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	huge := strings.Repeat("#", constraints.MaxFileSize+1)
+	cases := []struct {
+		args  []string
+		stdin string
+		code  ExitCode
+		want  string // in stderr, for a failing run
+	}{
+		{[]string{"solve", "-"}, string(text), ExitOK, ""},
+		{[]string{"check", "-", "--samples", "100"}, string(text), ExitNoSolution, ""},
+		{[]string{"fit", "-", "--top", "2", "--workers", "1"}, "ohmfit: 1\nparts:\n  - {name: V1, type: voltage-source, plus: a, minus: gnd, volts: 5}\n  - {name: R1, type: resistor, from: a, to: b}\n  - {name: R2, type: resistor, from: b, to: gnd}\ntargets:\n  - {voltage: b, equals: 2.5}\n", ExitOK, ""},
+		{[]string{"solve", "-"}, "ohmfit: 1\nparts: 7\n", ExitBadInput, "<stdin>:2:"},
+		{[]string{"fit", "-"}, huge, ExitBadInput, "larger than 4 MiB"},
+	}
+	for _, c := range cases {
+		t.Run(strings.Join(c.args, " "), func(t *testing.T) {
+			var out, errOut bytes.Buffer
+			code := run(c.args, strings.NewReader(c.stdin), &out, &errOut)
+			if code != c.code || !strings.Contains(errOut.String(), c.want) {
+				t.Fatalf("exit %d (want %d), stderr %q (want %q)", code, c.code, errOut.String(), c.want)
+			}
+			if c.want != "" || c.args[0] == "fit" {
+				return
+			}
+			// The same command on the file prints the same, but for the name.
+			fileArgs := append([]string{c.args[0], "testdata/check-divider.yaml"}, c.args[2:]...)
+			fromFile, _, _ := runCLI(t, fileArgs...)
+			if normaliseTiming(out.String()) != normaliseTiming(fromFile) {
+				t.Errorf("from stdin:\n%s\nfrom the file:\n%s", out.String(), fromFile)
 			}
 		})
 	}

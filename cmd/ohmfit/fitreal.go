@@ -7,13 +7,12 @@ import (
 	"strings"
 
 	"github.com/ohmfit/ohmfit/constraints"
-	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/ohmfit/ohmfit/synth"
 	"github.com/ohmfit/ohmfit/synth/variation"
 	"github.com/spf13/cobra"
 )
 
-// fitReal holds fit's real-parts flags: --check, --robust, --bom, --bom-rank
+// fitReal holds fit's real-parts flags: --check, --robust, --bom, --rank
 // and --plot. A nil *fitReal (divider, feedback) does nothing.
 type fitReal struct {
 	Check   bool
@@ -31,13 +30,21 @@ func bindFitRealFlags(cmd *cobra.Command, r *fitReal) {
 	f := cmd.Flags()
 	f.BoolVar(&r.Check, "check", false, fmt.Sprintf("also check the top %d answers with real parts (worst case, Monte Carlo, ratings; see ohmfit help check)", checkedAnswers))
 	f.BoolVar(&r.Robust, "robust", false, fmt.Sprintf("rank by worst-case error with real tolerances: re-ranks the %d best answers by nominal error, widening the list up to %d until no answer left out could enter those shown; the summary says when that proof does not close", variation.RerankPool, variation.RerankPoolMax))
-	f.StringVar(&r.BOM, "bom", "", "write the bill of materials of one answer (see --bom-rank) to `FILE.csv`")
-	countVar(f, &r.BOMRank, "bom-rank", 1, 1, maxListed, "the answer (`N`) whose bill of materials --bom writes and --plot highlights")
+	f.StringVar(&r.BOM, "bom", "", "write the bill of materials of one answer (see --rank) to `FILE.csv`")
+	countVar(f, &r.BOMRank, "rank", 1, 1, maxListed, "which answer (`N`): the one whose bill of materials --bom writes and --plot highlights")
+	// --bom-rank was the flag's first name; scripts that use it still work.
+	countVar(f, &r.BOMRank, "bom-rank", 1, 1, maxListed, "old name of --rank")
+	_ = f.MarkHidden("bom-rank")
 	f.StringVar(&r.Plot, "plot", "", "draw error against power for the answers to `FILE.svg` or FILE.png")
 }
 
 // validate checks the flags.
 func (r *fitReal) validate(cmd *cobra.Command) error {
+	if r.Check && changed(cmd.Flags(), "format") && cmd.Flags().Lookup("format").Value.String() == "csv" {
+		// A check report is a set of tables of different shapes; one CSV
+		// cannot hold them.
+		return usagef(cmd.CommandPath(), "--check has no CSV form: use --format json (or table), or ohmfit check --rank N --format json on the fitted template")
+	}
 	return checkOutputFlags(cmd, r.BOM, r.Plot)
 }
 
@@ -115,7 +122,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 		if robust != nil {
 			rb := make([]object, len(shown.Solutions))
 			for i, s := range shown.Solutions {
-				rb[i] = object{{"rank", s.Rank}, {"worst_error", finite(robust[i].WorstError)}, {"within_limits", robust[i].InBand}, {"method", robust[i].Method}}
+				rb[i] = object{{"rank", s.Rank}, {"worst_error", finite(robust[i].WorstError)}, {"pass", robust[i].InBand}, {"worst_case", object{{"method", robust[i].Method}}}}
 			}
 			doc = append(doc, member{"robust", rb})
 		}
@@ -123,6 +130,10 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 			doc = append(doc, member{"checks", checks})
 		}
 		if err := writeJSON(o.Out, doc); err != nil {
+			return err
+		}
+	case "csv":
+		if err := writeFitCSV(o.Out, p, &shown, robust); err != nil {
 			return err
 		}
 	default:
@@ -140,7 +151,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 	}
 	if r.BOM != "" || r.Plot != "" {
 		if r.BOMRank > len(all) {
-			return badInputf("--bom-rank %d: the fit has only %d answers", r.BOMRank, len(all))
+			return badInputf("--rank %d: the fit has only %d answers", r.BOMRank, len(all))
 		}
 	}
 	if r.BOM != "" {
@@ -181,11 +192,7 @@ func writeRealTables(w io.Writer, p *synth.Problem, sols []synth.Solution, robus
 		tb := table{indent: "  ", cols: []column{{right: true, gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {}}}
 		tb.add("rank", "worst error", "nominal error", "limits at every corner")
 		for i, s := range sols {
-			in := "kept"
-			if !robust[i].InBand {
-				in = "broken"
-			}
-			tb.add(strconv.Itoa(s.Rank), errorText(robust[i].WorstError), errorText(s.Score.Error), in)
+			tb.add(strconv.Itoa(s.Rank), errorText(robust[i].WorstError), errorText(s.Score.Error), verdictWord(robust[i].InBand))
 		}
 		if err := tb.write(&b); err != nil {
 			return err
@@ -196,12 +203,11 @@ func writeRealTables(w io.Writer, p *synth.Problem, sols []synth.Solution, robus
 		tb := table{indent: "  ", cols: []column{{right: true, gap: 3}, {right: true, gap: 3}, {gap: 3}, {right: true, gap: 3}, {gap: 3}, {}}}
 		tb.add("rank", "worst error", "limits", "MC yield", "packages", "notes")
 		for i, rep := range reports {
-			lim := "kept"
+			pass := true
 			for _, g := range rep.Goals {
-				if g.HasBand && !g.InBand {
-					lim = "broken"
-				}
+				pass = pass && (!g.HasBand || g.InBand)
 			}
+			lim := verdictWord(pass)
 			var pk []string
 			for _, rg := range rep.Ratings {
 				pk = append(pk, rg.Part+" "+rg.Package)
@@ -240,10 +246,13 @@ func paretoPoints(sols []synth.Solution) []paretoPoint {
 	return pts
 }
 
-// unitLabel is an axis label with a unit: "power (W)".
-func unitLabel(name string, u eseries.Unit) string {
-	if u == eseries.NoUnit {
-		return name
+// axisLabel names a plot axis of a target's values. The ticks carry SI
+// units with their prefixes ("691 mV"), so the label names no unit of its
+// own, which would contradict them ("(V)" over mV ticks); a unit eseries
+// has no symbol for (°C, V/°C) follows the name.
+func axisLabel(name string, k constraints.TargetKind) string {
+	if u := k.UnitText(); u != "" {
+		return name + ", " + u
 	}
-	return name + " (" + u.String() + ")"
+	return name
 }

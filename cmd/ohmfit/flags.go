@@ -14,7 +14,7 @@ import (
 )
 
 // maxListed bounds the count flags that ask for a ranked list or an answer
-// in it (--top, --bom-rank, --rank): each listed answer is re-solved in
+// in it (--top, --rank): each listed answer is re-solved in
 // every condition and kept in memory, and a list longer than this is read
 // by no one (the trade-off front is the tool for surveying a space).
 const maxListed = 10_000
@@ -74,7 +74,7 @@ func (d *durationValue) String() string {
 }
 
 // Type is the word the help shows for the value.
-func (d *durationValue) Type() string { return "D" }
+func (d *durationValue) Type() string { return "DURATION" }
 
 // Set reads a duration such as 30s or 1h30m.
 func (d *durationValue) Set(s string) error {

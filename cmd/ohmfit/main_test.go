@@ -46,11 +46,11 @@ func golden(t *testing.T, name, got string) {
 
 // timing matches the search time in a fit summary line, which varies from
 // run to run.
-var timing = regexp.MustCompile(`scored by (\S+) in [0-9.]+(ns|µs|ms|s)`)
+var timing = regexp.MustCompile(`, in [0-9.]+(ns|µs|ms|s|m[0-9.]+s|h[0-9.m]+s);`)
 
 // normaliseTiming blanks the search time so that golden files compare the
 // rest of the output exactly.
-func normaliseTiming(s string) string { return timing.ReplaceAllString(s, "scored by $1 in TIME") }
+func normaliseTiming(s string) string { return timing.ReplaceAllString(s, ", in TIME;") }
 
 // TestGolden runs each command line and compares its exit code, stdout and
 // stderr, written into one file per case, with the golden copy.
@@ -102,6 +102,13 @@ func TestGolden(t *testing.T) {
 		{"fit-tradeoffs", []string{"divider", "--vin", "5", "--vout", "3.3", "--series", "E96", "--tradeoffs", "0.5%", "--top", "3", "--workers", "1"}, ExitOK},
 		{"fit-tradeoffs-json", []string{"fit", "example:feedback", "--tradeoffs", "1%", "--top", "1", "--format", "json", "--workers", "1"}, ExitOK},
 		{"fit-err-tradeoffs", []string{"fit", "example:feedback", "--tradeoffs", "5V"}, ExitBadInput},
+		{"fit-err-tradeoffs-bare", []string{"fit", "example:feedback", "--tradeoffs", "5"}, ExitBadInput},
+		{"fit-many-goals", []string{"fit", "testdata/many-goals.yaml", "--top", "3", "--workers", "1"}, ExitOK},
+		{"fit-many-goals-csv", []string{"fit", "testdata/many-goals.yaml", "--top", "2", "--format", "csv", "--workers", "1"}, ExitOK},
+		{"fit-tradeoffs-robust-csv", []string{"fit", "example:divider", "--top", "2", "--tradeoffs", "1%", "--robust", "--format", "csv", "--workers", "1"}, ExitOK},
+		{"fit-err-check-csv", []string{"fit", "example:feedback", "--check", "--format", "csv"}, ExitBadInput},
+		{"check-goal-and-limit", []string{"check", "testdata/check-goal-and-limit.yaml", "--samples", "0"}, ExitOK},
+		{"fit-tradeoffs-fraction", []string{"divider", "--vin", "5", "--vout", "3.3", "--series", "E96", "--tradeoffs", "0.005", "--top", "3", "--workers", "1"}, ExitOK},
 		{"fit-battery-sense", []string{"fit", "example:battery-sense", "--top", "3", "--workers", "1"}, ExitOK},
 		{"fit-battery-sense-json", []string{"fit", "example:battery-sense", "--top", "1", "--format", "json", "--workers", "1"}, ExitOK},
 		{"solve-sensors", []string{"solve", "testdata/thermistor-bench.yaml"}, ExitOK},
@@ -190,7 +197,7 @@ func TestExampleVerbatim(t *testing.T) {
 			if code != ExitOK || errOut != "" || out != string(want) {
 				t.Errorf("exit %d, stderr %q, stdout differs from the stored text: %v", code, errOut, out != string(want))
 			}
-			if _, err := loadTemplate(examplePrefix + name); err != nil {
+			if _, err := loadTemplate(examplePrefix+name, nil); err != nil {
 				t.Errorf("example does not load: %v", err)
 			}
 		})
@@ -283,7 +290,7 @@ func TestTidy(t *testing.T) {
 // outputs deliver (Tellegen's theorem), in every condition.
 func TestPowerBalance(t *testing.T) {
 	for _, file := range []string{"testdata/bench.yaml", "testdata/preamp.yaml", "testdata/bridge-balanced.yaml"} {
-		tpl, err := loadTemplate(file)
+		tpl, err := loadTemplate(file, nil)
 		if err != nil {
 			t.Fatal(err)
 		}

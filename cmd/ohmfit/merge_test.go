@@ -100,7 +100,7 @@ func TestMergeRefusesIncomplete(t *testing.T) {
 // A result that is not proven says how far from proven it is when the
 // search proved a positive bound, and says nothing of the kind otherwise.
 func TestBoundLine(t *testing.T) {
-	tp, err := loadTemplate("testdata/shard.yaml")
+	tp, err := loadTemplate("testdata/shard.yaml", nil)
 	if err != nil {
 		t.Fatal(err)
 	}

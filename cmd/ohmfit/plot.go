@@ -151,7 +151,7 @@ func paretoPlot(p *synth.Problem, sols []synth.Solution, chosen int) (*plot.Plot
 		ln.LineStyle.Color = color.RGBA{R: 120, G: 120, B: 120, A: 255}
 		ln.LineStyle.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
 		pl.Add(ln)
-		pl.Legend.Add("Pareto front", ln)
+		pl.Legend.Add(wordFront, ln)
 	}
 	for _, q := range pts {
 		if q.rank != chosen {
@@ -189,7 +189,7 @@ func plotHistograms(w io.Writer, path string, t *constraints.Template, rep *vari
 		u := tg.Kind.Unit()
 		pl := plot.New()
 		pl.Title.Text = fmt.Sprintf("%s, %s: %d samples, yield %s", g.Label, g.CondName, len(vals), yieldText(g.MonteCarlo.Yield))
-		pl.X.Label.Text = unitLabel(g.Label, u)
+		pl.X.Label.Text = axisLabel(g.Label, tg.Kind)
 		pl.Y.Label.Text = "samples"
 		pl.X.Tick.Marker = engTicks{u}
 		h, err := plotter.NewHist(vals, 50)

@@ -91,17 +91,38 @@ func TestCheckBOMAndPlot(t *testing.T) {
 // rank 2.
 func TestFitPlotAndBOM(t *testing.T) {
 	dir := t.TempDir()
-	_, errOut, code := runCLI(t, "fit", "example:divider", "--workers", "1", "--plot", filepath.Join(dir, "front.svg"), "--bom", filepath.Join(dir, "bom.csv"), "--bom-rank", "2")
+	_, errOut, code := runCLI(t, "fit", "example:divider", "--workers", "1", "--plot", filepath.Join(dir, "front.svg"), "--bom", filepath.Join(dir, "bom.csv"), "--rank", "2")
 	if code != ExitOK {
 		t.Fatalf("exit %d: %s", code, errOut)
 	}
 	b, err := os.ReadFile(filepath.Join(dir, "front.svg"))
-	if err != nil || !strings.Contains(string(b), "Pareto front") {
+	if err != nil || !strings.Contains(string(b), wordFront) {
 		t.Errorf("plot: %v, legend missing", err)
 	}
 	c, err := os.ReadFile(filepath.Join(dir, "bom.csv"))
 	if err != nil || !strings.Contains(string(c), "3K6") {
 		t.Errorf("bom for rank 2 (3.6k, 8.2k): %q, %v", c, err)
+	}
+}
+
+// TestFitBOMRankAlias: --bom-rank, the old name of fit's --rank, still
+// picks the same answer, and is hidden from the help.
+func TestFitBOMRankAlias(t *testing.T) {
+	dir := t.TempDir()
+	for _, name := range []string{"--rank", "--bom-rank"} {
+		t.Run(name, func(t *testing.T) {
+			bom := filepath.Join(dir, name[2:]+".csv")
+			if _, errOut, code := runCLI(t, "fit", "example:divider", "--workers", "1", "--bom", bom, name, "2"); code != ExitOK {
+				t.Fatalf("exit %d: %s", code, errOut)
+			}
+			if c, err := os.ReadFile(bom); err != nil || !strings.Contains(string(c), "3K6") {
+				t.Errorf("bom for rank 2 (3.6k, 8.2k): %q, %v", c, err)
+			}
+		})
+	}
+	help, _, _ := runCLI(t, "fit", "--help")
+	if strings.Contains(help, "bom-rank") || !strings.Contains(help, "--rank N") {
+		t.Errorf("fit --help should show --rank N and hide --bom-rank:\n%s", help)
 	}
 }
 
@@ -223,6 +244,24 @@ func TestFitBOMSensor(t *testing.T) {
 	want := map[string]string{"Rtop": "resistor 10 kΩ 5% series", "RT1": "ntc 10 kΩ 1% assumed", "Rpar": "resistor 1 MΩ 5% series"}
 	if fmt.Sprint(types) != fmt.Sprint(want) {
 		t.Errorf("lines %v, want %v", types, want)
+	}
+}
+
+// TestHistogramAxisLabel: a histogram's axis label names no unit of its
+// own, since its ticks carry SI units with prefixes ("691 mV"); a label
+// "(V)" over mV ticks would misread by a factor of a thousand.
+func TestHistogramAxisLabel(t *testing.T) {
+	svg := filepath.Join(t.TempDir(), "mc.svg")
+	if _, errOut, code := runCLI(t, "check", "example:feedback", "--samples", "200", "--plot", svg); code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	b, err := os.ReadFile(svg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := string(b)
+	if !strings.Contains(s, ">voltage fb<") || strings.Contains(s, "voltage fb (V)") || !strings.Contains(s, " mV<") {
+		t.Errorf("want the label \"voltage fb\" over mV ticks; the SVG has %d bytes", len(s))
 	}
 }
 

@@ -5,6 +5,7 @@ import (
 	"io"
 	"os"
 	"runtime/debug"
+	"slices"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -115,7 +116,8 @@ A template is a small YAML file; ` + "`ohmfit examples`" + ` lists the built-in 
 	root.SetHelpTemplate(helpTemplate)
 	root.SetUsageTemplate(usageTemplate)
 	root.SetFlagErrorFunc(flagError)
-	root.CompletionOptions.HiddenDefaultCmd = true
+	// Our own completion command replaces the library's stock one.
+	root.CompletionOptions.DisableDefaultCmd = true
 	root.Flags().BoolP("version", "v", false, "print the version and exit")
 	root.PersistentFlags().BoolP("help", "h", false, "show help for the command")
 
@@ -130,7 +132,9 @@ A template is a small YAML file; ` + "`ohmfit examples`" + ` lists the built-in 
 		newCombineCmd(stdout, stderr),
 		newCheckCmd(stdout, stderr),
 		newMergeCmd(stdout, stderr),
+		newCompletionCmd(root, stdout),
 	)
+	addCompletions(root)
 	for _, c := range root.Commands() {
 		// Each Use line spells out its options; cobra would append "[flags]".
 		c.DisableFlagsInUseLine = true
@@ -161,15 +165,15 @@ func unknownCommand(root *cobra.Command, name string) error {
 // usage error (exit 2) rather than a page of help with exit 0.
 func newHelpCmd(root *cobra.Command) *cobra.Command {
 	return &cobra.Command{
-		Use: "help [COMMAND]",
+		Use: "help [COMMAND [ARGUMENT]]",
 		// cobra adds the help command after our loop over the others.
 		DisableFlagsInUseLine: true,
 		Short:                 "Show help for ohmfit or one of its commands",
 		Example: `  ohmfit help solve
   ohmfit values --help`,
 		Args: func(cmd *cobra.Command, args []string) error {
-			if len(args) > 1 {
-				return usagef("ohmfit help", "help takes at most one command name, got %d words", len(args))
+			if len(args) > 2 {
+				return usagef("ohmfit help", "help takes a command name and at most one of its arguments, got %d words", len(args))
 			}
 			return nil
 		},
@@ -179,8 +183,13 @@ func newHelpCmd(root *cobra.Command) *cobra.Command {
 				return root.Help()
 			}
 			c, rest, err := root.Find(args)
-			if err != nil || c == root || len(rest) > 0 {
+			if err != nil || c == root {
 				return unknownCommand(root, args[0])
+			}
+			// "help completion bash": an argument the command knows reads as
+			// a question about the command.
+			if len(rest) > 0 && !slices.Contains(c.ValidArgs, rest[0]) {
+				return usagef("ohmfit help", "%s has no subcommand or argument %q%s", c.CommandPath(), rest[0], didYouMean(rest[0], c.ValidArgs))
 			}
 			return c.Help()
 		},

@@ -15,9 +15,10 @@ import (
 
 // solveOptions are the inputs of `ohmfit solve`.
 type solveOptions struct {
-	File   string // template path, or "example:NAME"
-	Format string // "table" or "json"
-	Output string // write the result here instead of stdout; "" for stdout
+	File   string    // template path, "example:NAME", or "-" for standard input
+	In     io.Reader // standard input
+	Format string    // "table" or "json"
+	Output string    // write the result here instead of stdout; "" for stdout
 
 	Out, ErrOut io.Writer
 }
@@ -31,8 +32,8 @@ func newSolveCmd(out, errOut io.Writer) *cobra.Command {
 		Long: `Work out every node voltage, and each part's voltage, current and power, for
 a template in which every resistor has a value, once per condition.
 
-FILE is a template file, or example:NAME for a built-in example (see
-` + "`ohmfit examples`" + `). A template with resistors left to choose is refused:
+FILE is a template file, example:NAME for a built-in example (see
+` + "`ohmfit examples`" + `), or - for standard input. A template with resistors left to choose is refused:
 ` + "`ohmfit fit`" + ` chooses them.
 
 Signs follow the template's directions: a part's voltage is V(from) - V(to)
@@ -60,6 +61,7 @@ volts, amps and watts at full precision:
 			if err := checkFormat(cmd, o.Format, "table", "json"); err != nil {
 				return err
 			}
+			o.In = cmd.InOrStdin()
 			return runSolve(o)
 		},
 	}
@@ -76,7 +78,7 @@ type conditionResult struct {
 
 // runSolve loads the template, analyses it in every condition and renders.
 func runSolve(o *solveOptions) error {
-	t, err := loadTemplate(o.File)
+	t, err := loadTemplate(o.File, o.In)
 	if err != nil {
 		return err
 	}

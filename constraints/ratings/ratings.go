@@ -128,7 +128,7 @@ type Verdict string
 
 // The verdicts, from best to worst.
 const (
-	VerdictOK        Verdict = "ok"              // within Near of the derated power and of the voltage limit
+	VerdictOK        Verdict = "pass"            // within Near of the derated power and of the voltage limit
 	VerdictNear      Verdict = "near"            // above Near of the derated power or of the voltage limit
 	VerdictDerating  Verdict = "derating"        // beyond the derated power but within the rating
 	VerdictOverload  Verdict = "overload"        // beyond the rated power or the voltage limit

@@ -51,7 +51,7 @@ func TestVerdict(t *testing.T) {
 		watts, volts float64
 		want         string
 	}{
-		{0.01, 5, "ok"},
+		{0.01, 5, "pass"},
 		{0.045, 5, "near"},      // 45 % of rating: above 80 % of the derated 50 %
 		{0.07, 5, "derating"},   // 70 %: beyond the derated power
 		{0.12, 5, "overload"},   // beyond the rating

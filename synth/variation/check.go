@@ -6,7 +6,6 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
-	"strconv"
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/ratings"
@@ -726,22 +725,13 @@ func (d *Design) warn(r *Report, st *Settings) {
 		if g.HasBand && !g.InBand {
 			tg := d.Problem.Template.Targets[g.Target]
 			lo, hi := tg.Band()
-			u := tg.Kind.Unit()
+			k := tg.Kind
 			where := fmt.Sprintf("in %q", g.CondName)
 			if g.Condition == SweepCondition {
 				where = "over the sweep"
 			}
-			f := func(v float64) string { return num(v, u) }
-			if tg.Kind == constraints.SelfHeating {
-				f = func(v float64) string {
-					if math.IsInf(v, 0) {
-						return num(v, u)
-					}
-					return strconv.FormatFloat(v, 'g', 4, 64) + " °C"
-				}
-			}
 			r.Failures = append(r.Failures, fmt.Sprintf("%s %s leaves its limits in the worst case: %s … %s against %s … %s",
-				g.Label, where, f(g.WorstMin), f(g.WorstMax), f(lo), f(hi)))
+				g.Label, where, k.Format(g.WorstMin), k.Format(g.WorstMax), k.Format(lo), k.Format(hi)))
 		}
 	}
 	if r.Samples > 0 && r.Yield < 1 {
@@ -763,17 +753,6 @@ func (d *Design) warn(r *Report, st *Settings) {
 		}
 	}
 	r.Cautions = append(r.hazards, r.Cautions...)
-}
-
-// num formats a value with its unit for messages.
-func num(v float64, u eseries.Unit) string {
-	switch {
-	case math.IsInf(v, 1):
-		return "∞"
-	case math.IsInf(v, -1):
-		return "-∞"
-	}
-	return eseries.FormatUnit(v, u)
 }
 
 // SweepCondition is the Condition of a Goal for a sweep-wide target
