@@ -128,14 +128,14 @@ type Verdict string
 
 // The verdicts, from best to worst.
 const (
-	VerdictOK        Verdict = "pass"            // within Near of the derated power and of the voltage limit
+	VerdictPass      Verdict = "pass"            // within Near of the derated power and of the voltage limit
 	VerdictNear      Verdict = "near"            // above Near of the derated power or of the voltage limit
 	VerdictDerating  Verdict = "derating"        // beyond the derated power but within the rating
 	VerdictOverload  Verdict = "overload"        // beyond the rated power or the voltage limit
 	VerdictNoPackage Verdict = "no package fits" // no package in the table carries the part
 )
 
-// Verdict classes a load: VerdictOK, VerdictNear, VerdictDerating or
+// Verdict classes a load: VerdictPass, VerdictNear, VerdictDerating or
 // VerdictOverload.
 func (l Load) Verdict() Verdict {
 	switch {
@@ -146,7 +146,7 @@ func (l Load) Verdict() Verdict {
 	case l.PowerFraction > Near*Derating || l.VoltageFraction > Near:
 		return VerdictNear
 	}
-	return VerdictOK
+	return VerdictPass
 }
 
 // RatingCaution is the caution printed when a part runs near or beyond its
