@@ -138,7 +138,7 @@ func runNoFree(p *Problem, st *runState) error {
 	}
 	st.status = Proven
 	st.open = math.Inf(1)
-	if sc.Feasible {
+	if sc.Feasible && withinCap(sc.Error, st.errCap) {
 		st.top.offer(&Candidate{Opt: []int32{}, Error: sc.Error, Power: sc.Power})
 	} else {
 		st.viol[sc.ViolatedTarget*st.nc+sc.ViolatedCondition]++
@@ -188,6 +188,7 @@ type rowWorker struct {
 	ranges [][2]int // narrow's result, reused
 
 	frontCap float64    // goal error bound of the trade-off front; 0: none kept
+	errCap   float64    // Settings.ErrorMax: a hard limit on goal error; 0: none
 	front    *frontList // the worker's trade-off front, nil when none is kept
 
 	points  *constraints.Points // node voltages the sweep-wide targets read
@@ -231,6 +232,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 	}
 	e := w.edges[w.jPart]
 	w.ja, w.jb = e.From, e.To
+	w.errCap = set.ErrorMax
 	if set.FrontErrorCap > 0 {
 		w.frontCap = set.FrontErrorCap
 		w.front = &frontList{r: r}
@@ -513,6 +515,15 @@ const rescoreSlack = 1e-9
 // worker's lists. exact says the scores come from full solves; otherwise a
 // candidate that could be kept is scored again with full solves first.
 func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
+	// The error cap is a hard limit; the update formula's rounding is
+	// allowed for here and the cap checked again on the full solve below.
+	lowest := errMax
+	if !exact {
+		lowest = max(0, errMax-rescoreSlack)
+	}
+	if !withinCap(lowest, w.errCap) {
+		return
+	}
 	copy(w.cand.Opt, w.cur)
 	w.cand.Opt[w.j] = int32(i)
 	parts := 0
@@ -538,6 +549,9 @@ func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
 			return
 		}
 		errMax, powMax = w.sc.Error, w.sc.Power
+		if !withinCap(errMax, w.errCap) {
+			return
+		}
 	}
 	w.cand.Error, w.cand.Power, w.cand.Parts = errMax, powMax, parts
 	w.top.offer(&w.cand)
@@ -577,6 +591,12 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 	lo, hi = w.hardLimits(lo, hi)
 	if lo > hi {
 		return nil
+	}
+	if w.errCap > 0 {
+		// The error cap is a hard limit: what cannot meet it is never kept.
+		if lo, hi = w.goalRange(lo, hi, widen(w.errCap)+rescoreSlack); lo > hi {
+			return nil
+		}
 	}
 	full := append(w.ranges[:0], [2]int{lo, hi})
 	worst := w.threshold()

@@ -103,6 +103,12 @@ type Settings struct {
 	// of the whole search (see MergeShards). Methods that cannot split the
 	// space refuse it.
 	Shard, Shards int
+	// ErrorMax, when positive, is a hard limit on the goal error (a
+	// fraction): a candidate above it is neither ranked nor kept, and the
+	// exhaustive method skips the options of a row that cannot meet it, as
+	// it does for any other hard limit. With a large Top this lists every
+	// design within the cap. Zero means no cap.
+	ErrorMax float64
 }
 
 // DefaultMaxRows is the default exhaustive budget: about ten seconds of
@@ -337,6 +343,7 @@ type runState struct {
 	top      *topList   // keeps want + topMargin
 	front    *frontList // nil unless Settings.FrontErrorCap > 0
 	frontCap float64
+	errCap   float64 // Settings.ErrorMax; 0: none
 	viol     []int64 // per (target or power limit) × condition
 	nc       int
 	status   Status
@@ -359,6 +366,7 @@ func newRunState(p *Problem, s *Settings) *runState {
 		want:     s.Top,
 		front:    front,
 		frontCap: s.FrontErrorCap,
+		errCap:   s.ErrorMax,
 		top:      newTopList(r, s.Top+topMargin, len(p.Domains)),
 		viol:     make([]int64, (len(p.Probes)+1)*nc),
 		nc:       nc,
@@ -457,7 +465,7 @@ func (st *runState) rescore(p *Problem, s *solver.Solver, cands []*Candidate) []
 			free[i] = d.Options[c.Opt[i]].Value
 		}
 		sc := p.NewScore()
-		if err := p.Evaluate(s, free, sc); err != nil || !sc.Feasible {
+		if err := p.Evaluate(s, free, sc); err != nil || !sc.Feasible || !withinCap(sc.Error, st.errCap) {
 			continue
 		}
 		kept = append(kept, scored{&Candidate{Opt: c.Opt, Error: sc.Error, Power: sc.Power, Parts: c.Parts}, sc})
@@ -481,6 +489,12 @@ func (st *runState) rescore(p *Problem, s *solver.Solver, cands []*Candidate) []
 func dominates(a, b *Solution) bool {
 	return DominatesScore(ScoreKey{Error: a.Score.Error, Power: a.Score.Power, Parts: a.Parts},
 		ScoreKey{Error: b.Score.Error, Power: b.Score.Power, Parts: b.Parts})
+}
+
+// withinCap reports whether goal error e meets the cap (0: no cap), within
+// the contract's tie tolerances.
+func withinCap(e, limit float64) bool {
+	return limit <= 0 || e <= limit || constraints.Same(e, limit)
 }
 
 // widen returns a threshold slightly above t, so that pruning never drops a

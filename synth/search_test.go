@@ -413,3 +413,39 @@ func TestSearchMemoryFlat(t *testing.T) {
 		t.Errorf("search allocations grow with the space: %v for E24, %v for E96", small, large)
 	}
 }
+
+// With an error cap and a list long enough, the search lists exactly the
+// plain enumeration's designs within the cap, in rank order: the cap is a
+// hard limit, so nothing within it may be cut and nothing above it kept.
+func TestErrorMaxMatchesBruteForce(t *testing.T) {
+	for _, name := range []string{"divider", "feedback", "sensor-bias", "gain-stage"} {
+		text, _ := examples.Get(name)
+		p := problemFromYAML(t, string(text), "E12")
+		all := bruteForce(t, p)
+		for _, cap := range []float64{0.002, 0.02, 0.2} {
+			t.Run(fmt.Sprintf("%s/%g", name, cap), func(t *testing.T) {
+				var want []bruteCand
+				for _, c := range all {
+					if c.err <= cap || constraints.Same(c.err, cap) {
+						want = append(want, c)
+					}
+				}
+				res, err := synth.Search(context.Background(), p, &synth.Settings{Top: len(all) + 1, Workers: 2, ErrorMax: cap}, nil)
+				if err != nil {
+					t.Fatal(err)
+				}
+				if len(res.Solutions) != len(want) {
+					t.Fatalf("search kept %d designs within %g, enumeration %d", len(res.Solutions), cap, len(want))
+				}
+				for i, w := range want {
+					if fmt.Sprint(res.Solutions[i].Values()) != fmt.Sprint(w.vals) {
+						t.Errorf("%d: search %v, enumeration %v", i, res.Solutions[i].Values(), w.vals)
+					}
+				}
+				if len(want) == 0 && res.Status != synth.NoFeasible {
+					t.Errorf("status %v with nothing within the cap, want NoFeasible", res.Status)
+				}
+			})
+		}
+	}
+}
