@@ -2,9 +2,11 @@ package examples
 
 import (
 	"bytes"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"slices"
+	"strings"
 	"testing"
 )
 
@@ -59,6 +61,53 @@ func TestNamesGetSummary(t *testing.T) {
 		}
 		if got := Summary(c.name); got != c.summary {
 			t.Errorf("Summary(%q) = %q, want %q", c.name, got, c.summary)
+		}
+	}
+}
+
+// TestBoardCopiesMatch keeps testdata/examples/boards byte-identical to the
+// embedded boards directory, file for file in both directions, so that a
+// built-in board and its copy on disk give the same answer.
+func TestBoardCopiesMatch(t *testing.T) {
+	dir := filepath.Join("..", "..", "testdata", "examples", "boards")
+	var disk, emb []string
+	err := filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
+		if err == nil && !d.IsDir() {
+			rel, _ := filepath.Rel(dir, p)
+			disk = append(disk, filepath.ToSlash(rel))
+		}
+		return err
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	err = fs.WalkDir(boards, "boards", func(p string, d fs.DirEntry, err error) error {
+		if err == nil && !d.IsDir() {
+			emb = append(emb, strings.TrimPrefix(p, "boards/"))
+		}
+		return err
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	slices.Sort(disk)
+	slices.Sort(emb)
+	if !slices.Equal(disk, emb) {
+		t.Fatalf("testdata/examples/boards holds %v, embedded %v", disk, emb)
+	}
+	for _, rel := range emb {
+		e, ok := BoardFile(rel)
+		d, err := os.ReadFile(filepath.Join(dir, filepath.FromSlash(rel)))
+		if !ok || err != nil || !bytes.Equal(e, d) {
+			t.Errorf("%s differs from its copy in testdata/examples/boards", rel)
+		}
+	}
+	if len(BoardNames()) == 0 {
+		t.Error("no built-in board")
+	}
+	for _, bad := range []string{"../examples.go", "/etc/passwd", "controller/../../examples.go", ""} {
+		if _, ok := BoardFile(bad); ok {
+			t.Errorf("BoardFile(%q) found a file outside the boards", bad)
 		}
 	}
 }
