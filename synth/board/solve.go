@@ -1,0 +1,300 @@
+package board
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"slices"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/synth"
+)
+
+// Settings tune Solve. The zero value (or nil) means the defaults.
+type Settings struct {
+	// Workers is the number of goroutines of each network's search. Zero
+	// means one per core. The result does not depend on it.
+	Workers int
+	// MaxDesigns bounds the designs listed per network. A network with more
+	// within its cap keeps its MaxDesigns best by error (then power) and is
+	// marked Cut; the selection is then not proven. Zero means
+	// DefaultMaxDesigns.
+	MaxDesigns int
+	// MaxNodes bounds the nodes of the exact selection search (all stages).
+	// Beyond it the best selection found so far is kept, with the proven
+	// lower bound. Zero means DefaultMaxNodes.
+	MaxNodes int64
+	// TimeLimit stops the selection search after this long, as MaxNodes
+	// does. Zero means no limit.
+	TimeLimit time.Duration
+}
+
+// Defaults of Settings.
+const (
+	DefaultMaxDesigns = 2000
+	DefaultMaxNodes   = 2_000_000
+)
+
+// Design is one design of a network within its cap.
+type Design struct {
+	synth.Solution
+	// Rel is the goal error relative to the network's cap (1 is on the cap).
+	Rel float64
+}
+
+// PartValues returns the physical values a design uses, one per physical
+// part, in position order (a position of two parts gives two).
+func (d *Design) PartValues() []float64 {
+	var out []float64
+	for _, o := range d.Options {
+		out = append(out, o.PartValues()...)
+	}
+	return out
+}
+
+// NetworkResult is one network's part of a board's answer.
+type NetworkResult struct {
+	Network *Network
+	// Designs lists every design within the cap that meets the hard limits,
+	// by error, then power (the first MaxDesigns when Cut).
+	Designs []Design
+	Cut     bool
+	// Kept is how many designs the selection considered after dropping
+	// those another design beats (fewer or the same values, no worse on
+	// error and power).
+	Kept int
+	// Chosen is the index into Designs of the design the board uses.
+	Chosen int
+	// Alone is the network's own best answer (rank 1 of `ohmfit fit` by its
+	// template's rank keys), whatever the cap.
+	Alone synth.Solution
+}
+
+// Choice returns the chosen design.
+func (n *NetworkResult) Choice() *Design { return &n.Designs[n.Chosen] }
+
+// Result is a board's answer.
+type Result struct {
+	Board    *Board
+	Networks []NetworkResult
+	// Values are the distinct physical values the chosen designs use,
+	// ascending; Distinct is their number.
+	Values   []float64
+	Distinct int
+	// Alone is the number of distinct values when every network takes its
+	// own best answer.
+	Alone int
+	// Proven is true only when no selection with fewer distinct values
+	// exists: the search finished and no network's list was cut.
+	Proven bool
+	// Bound is a proven lower bound on the distinct values of any
+	// selection; Distinct when Proven. With a cut list only the bound that
+	// holds without the lists is given (the most positions of any network
+	// need at least one value each: 1 when any position is free).
+	Bound int
+	// TiesProven is true when, among the selections with Distinct values
+	// over the lists, none has a smaller largest relative error, or the same
+	// and less total power.
+	TiesProven bool
+	// RelMax is the largest error relative to its cap; Power the total
+	// power of the chosen designs.
+	RelMax, Power float64
+	Nodes         int64
+	Elapsed       time.Duration
+}
+
+// Unmet is a network with no design within its cap.
+type Unmet struct {
+	Network *Network
+	// Best is the smallest goal error of any design meeting the hard
+	// limits; HasBest is false when none meets them at all.
+	Best    float64
+	HasBest bool
+}
+
+// InfeasibleError says which networks have no design within their caps.
+type InfeasibleError struct{ Networks []Unmet }
+
+func (e *InfeasibleError) Error() string {
+	var parts []string
+	for _, u := range e.Networks {
+		n := u.Network
+		if u.HasBest {
+			parts = append(parts, fmt.Sprintf("%s has no design within its cap of %s; the best it can reach is %s",
+				n.Name(), capText(n.Cap), capText(u.Best)))
+		} else {
+			parts = append(parts, fmt.Sprintf("%s has no design that meets its template's hard limits", n.Name()))
+		}
+	}
+	return "board: " + strings.Join(parts, "; ")
+}
+
+// ErrBudget is wrapped by the error for a network whose space is too large
+// to list exhaustively.
+var ErrBudget = errors.New("board: a network's space is too large to list every design")
+
+// Solve lists every network's designs and chooses one per network with the
+// fewest distinct values. A network that cannot be met gives an
+// *InfeasibleError naming every such network.
+func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
+	var set Settings
+	if s != nil {
+		set = *s
+	}
+	if set.MaxDesigns <= 0 {
+		set.MaxDesigns = DefaultMaxDesigns
+	}
+	if set.MaxNodes <= 0 {
+		set.MaxNodes = DefaultMaxNodes
+	}
+	start := time.Now()
+	res := &Result{Board: b, Networks: make([]NetworkResult, len(b.Networks))}
+	var unmet []Unmet
+	for i, n := range b.Networks {
+		nr, u, err := enumerate(ctx, n, &set)
+		if err != nil {
+			return nil, err
+		}
+		if u != nil {
+			unmet = append(unmet, *u)
+			continue
+		}
+		res.Networks[i] = *nr
+	}
+	if unmet != nil {
+		return nil, &InfeasibleError{Networks: unmet}
+	}
+	// The board's value table: every physical value any design uses.
+	ids := map[string]int32{}
+	var table []float64
+	id := func(v float64) int32 {
+		k := valueKey(v)
+		if i, ok := ids[k]; ok {
+			return i
+		}
+		ids[k] = int32(len(table))
+		table = append(table, v)
+		return int32(len(table) - 1)
+	}
+	nets := make([][]item, len(res.Networks))
+	for r := range res.Networks {
+		for i := range res.Networks[r].Designs {
+			d := &res.Networks[r].Designs[i]
+			it := item{rel: d.Rel, pow: d.Score.Power, idx: i}
+			for _, v := range d.PartValues() {
+				it.vals = append(it.vals, id(v))
+			}
+			slices.Sort(it.vals)
+			it.vals = slices.Compact(it.vals)
+			nets[r] = append(nets[r], it)
+		}
+	}
+	nets = prune(nets)
+	for r := range nets {
+		res.Networks[r].Kept = len(nets[r])
+	}
+	sctx := ctx
+	if set.TimeLimit > 0 {
+		var cancel context.CancelFunc
+		sctx, cancel = context.WithTimeout(ctx, set.TimeLimit)
+		defer cancel()
+	}
+	sel := choose(sctx, nets, len(table), set.MaxNodes)
+	cut := false
+	for r, c := range sel.choice {
+		res.Networks[r].Chosen = nets[r][c].idx
+		cut = cut || res.Networks[r].Cut
+	}
+	for _, v := range union(nets, sel.choice) {
+		res.Values = append(res.Values, table[v])
+	}
+	slices.Sort(res.Values)
+	res.Distinct = len(res.Values)
+	res.Proven = sel.proven && !cut
+	res.Bound = sel.bound
+	res.TiesProven = sel.tiesProven && !cut
+	if cut {
+		res.Bound = 0
+		for _, n := range b.Networks {
+			if len(n.Problem.Domains) > 0 {
+				res.Bound = 1
+			}
+		}
+	}
+	res.RelMax, res.Power = sel.obj.rel, sel.obj.pow
+	res.Nodes = sel.nodes
+	alone := map[string]bool{}
+	for _, nr := range res.Networks {
+		for _, o := range nr.Alone.Options {
+			for _, v := range o.PartValues() {
+				alone[valueKey(v)] = true
+			}
+		}
+	}
+	res.Alone = len(alone)
+	res.Elapsed = time.Since(start)
+	return res, nil
+}
+
+// valueKey identifies a physical value: nine significant digits, so that
+// the same standard value reached by two series' tables is one value.
+func valueKey(v float64) string { return strconv.FormatFloat(v, 'g', 9, 64) }
+
+// errorFirst returns p ranked by error, then power, then parts, whatever
+// its template says: the board lists designs by error, so that a cut list
+// keeps the closest ones.
+func errorFirst(p *synth.Problem) *synth.Problem {
+	cp := *p.Problem
+	t := *cp.Template
+	t.Rank = []constraints.RankKey{constraints.ByError, constraints.ByPower, constraints.ByParts}
+	cp.Template = &t
+	return &synth.Problem{Problem: &cp, Domains: p.Domains}
+}
+
+// enumerate lists one network's designs within its cap, and its own best
+// answer. It returns an Unmet when nothing is within the cap.
+func enumerate(ctx context.Context, n *Network, set *Settings) (*NetworkResult, *Unmet, error) {
+	fail := func(err error) error {
+		if errors.Is(err, synth.ErrTooManyRows) || errors.Is(err, synth.ErrSpaceTooLarge) {
+			return fmt.Errorf("%w: %s: %s", ErrBudget, n.Name(), strings.TrimPrefix(err.Error(), "synth: "))
+		}
+		return err
+	}
+	ef := errorFirst(n.Problem)
+	res, err := synth.Search(ctx, ef, &synth.Settings{Top: set.MaxDesigns + 1, Workers: set.Workers, ErrorMax: n.Cap}, synth.Rows{})
+	if err != nil {
+		return nil, nil, fail(err)
+	}
+	if res.Status == synth.Interrupted || res.Status == synth.TimeLimit {
+		return nil, nil, fmt.Errorf("board: %s: the search was interrupted", n.Name())
+	}
+	// The network's own best answer, by its own rank keys and without the
+	// cap, as `ohmfit fit` ranks it first.
+	own, err := synth.Search(ctx, n.Problem, &synth.Settings{Top: 1, Workers: set.Workers}, synth.Rows{})
+	if err != nil {
+		return nil, nil, fail(err)
+	}
+	if len(res.Solutions) == 0 {
+		u := &Unmet{Network: n}
+		if len(own.Solutions) > 0 {
+			best, err := synth.Search(ctx, ef, &synth.Settings{Top: 1, Workers: set.Workers}, synth.Rows{})
+			if err != nil {
+				return nil, nil, fail(err)
+			}
+			u.Best, u.HasBest = best.Solutions[0].Score.Error, true
+		}
+		return nil, u, nil
+	}
+	nr := &NetworkResult{Network: n, Alone: own.Solutions[0]}
+	sols := res.Solutions
+	if len(sols) > set.MaxDesigns {
+		sols, nr.Cut = sols[:set.MaxDesigns], true
+	}
+	for _, s := range sols {
+		nr.Designs = append(nr.Designs, Design{Solution: s, Rel: s.Score.Error / n.Cap})
+	}
+	return nr, nil, nil
+}
