@@ -36,7 +36,7 @@ type Network struct {
 	CapFromTolerance bool
 }
 
-// Name is how messages name the network: "network 2 (U3, rail.yaml)".
+// Name is how messages name the network: "network U3 (rail.yaml)".
 func (n *Network) Name() string {
 	return fmt.Sprintf("network %s (%s)", n.Spec.Prefix, n.Spec.Template)
 }
@@ -183,7 +183,8 @@ func named(err error, spec *constraints.Board, ns constraints.BoardNetwork, i in
 // error_max: the largest tolerance among the template's goals, written as
 // the goal error it allows (a percentage as it is; an absolute tolerance
 // divided by |equals|, or as it is when equals is 0, as GoalError reads
-// it). Every design that meets the tolerances then lies within the cap.
+// it). When every goal has a tolerance, every design that meets them lies
+// within the cap.
 // It reports false when no goal has a tolerance.
 func toleranceCap(t *constraints.Template) (float64, bool) {
 	c, ok := 0.0, false

@@ -52,6 +52,7 @@ type selection struct {
 	// better on the tie keys.
 	tiesProven bool
 	nodes      int64
+	out        bool // a stage stopped at the budget or the context
 }
 
 // prune drops, within each network, every item whose value set contains
@@ -503,7 +504,7 @@ func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selecti
 		set, bestObj = s.bestSet, s.best
 		sel.tiesProven = !s.out
 	}
-	sel.proven = proven
+	sel.proven, sel.out = proven, s.out
 	sel.obj, sel.choice = evaluateSet(nets, nvals, set)
 	sel.nodes = s.nodes
 	return sel

@@ -68,8 +68,10 @@ type NetworkResult struct {
 	Kept int
 	// Chosen is the index into Designs of the design the board uses.
 	Chosen int
-	// Alone is the network's own best answer (rank 1 of `ohmfit fit` by its
-	// template's rank keys), whatever the cap.
+	// Alone is the network's own best answer within its cap: rank 1 by its
+	// template's rank keys among the designs within the cap. It is always
+	// among Designs, so the board never needs more values than the
+	// networks alone.
 	Alone synth.Solution
 }
 
@@ -102,9 +104,23 @@ type Result struct {
 	// RelMax is the largest error relative to its cap; Power the total
 	// power of the chosen designs.
 	RelMax, Power float64
-	Nodes         int64
-	Elapsed       time.Duration
+	// Stop says why the exact selection search did not finish (StopNone
+	// when it did, or when the greedy choice was already at the bound).
+	Stop    Stop
+	Nodes   int64
+	Elapsed time.Duration
 }
+
+// Stop is why the exact selection search stopped early.
+type Stop int
+
+// Reasons for Result.Stop.
+const (
+	StopNone        Stop = iota // the search finished
+	StopNodes                   // Settings.MaxNodes ran out
+	StopTime                    // Settings.TimeLimit ran out
+	StopInterrupted             // the context was cancelled
+)
 
 // Unmet is a network with no design within its cap.
 type Unmet struct {
@@ -203,6 +219,15 @@ func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
 		defer cancel()
 	}
 	sel := choose(sctx, nets, len(table), set.MaxNodes)
+	switch {
+	case !sel.out:
+	case ctx.Err() != nil:
+		res.Stop = StopInterrupted
+	case sctx.Err() != nil:
+		res.Stop = StopTime
+	default:
+		res.Stop = StopNodes
+	}
 	cut := false
 	for r, c := range sel.choice {
 		res.Networks[r].Chosen = nets[r][c].idx
@@ -239,6 +264,28 @@ func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
 	return res, nil
 }
 
+// ErrInterrupted is wrapped by the error of a Solve whose context ended
+// while it listed a network's designs: there is no selection to show yet.
+var ErrInterrupted = errors.New("board: interrupted while listing the networks' designs")
+
+// exhaustive checks that a network's search covered its whole space.
+func exhaustive(ctx context.Context, n *Network, res *synth.Result) error {
+	if res.Status.Exhaustive() {
+		return nil
+	}
+	if ctx.Err() != nil {
+		return fmt.Errorf("%w (at %s)", ErrInterrupted, n.Name())
+	}
+	return fmt.Errorf("board: %s: the search did not cover the whole space (%s)", n.Name(), res.Status)
+}
+
+// sameDesign reports whether two solutions realise every position alike.
+func sameDesign(a, b synth.Solution) bool {
+	return slices.EqualFunc(a.Options, b.Options, func(x, y synth.Option) bool {
+		return x.Combine == y.Combine && slices.Equal(x.PartValues(), y.PartValues())
+	})
+}
+
 // valueKey identifies a physical value: nine significant digits, so that
 // the same standard value reached by two series' tables is one value.
 func valueKey(v float64) string { return strconv.FormatFloat(v, 'g', 9, 64) }
@@ -268,30 +315,39 @@ func enumerate(ctx context.Context, n *Network, set *Settings) (*NetworkResult, 
 	if err != nil {
 		return nil, nil, fail(err)
 	}
-	if res.Status == synth.Interrupted || res.Status == synth.TimeLimit {
-		return nil, nil, fmt.Errorf("board: %s: the search was interrupted", n.Name())
-	}
-	// The network's own best answer, by its own rank keys and without the
-	// cap, as `ohmfit fit` ranks it first.
-	own, err := synth.Search(ctx, n.Problem, &synth.Settings{Top: 1, Workers: set.Workers}, synth.Rows{})
-	if err != nil {
-		return nil, nil, fail(err)
+	if err := exhaustive(ctx, n, res); err != nil {
+		return nil, nil, err
 	}
 	if len(res.Solutions) == 0 {
+		// Nothing within the cap: what could the network reach at all?
 		u := &Unmet{Network: n}
-		if len(own.Solutions) > 0 {
-			best, err := synth.Search(ctx, ef, &synth.Settings{Top: 1, Workers: set.Workers}, synth.Rows{})
-			if err != nil {
-				return nil, nil, fail(err)
-			}
+		best, err := synth.Search(ctx, ef, &synth.Settings{Top: 1, Workers: set.Workers}, synth.Rows{})
+		if err != nil {
+			return nil, nil, fail(err)
+		}
+		if err := exhaustive(ctx, n, best); err != nil {
+			return nil, nil, err
+		}
+		if len(best.Solutions) > 0 {
 			u.Best, u.HasBest = best.Solutions[0].Score.Error, true
 		}
 		return nil, u, nil
+	}
+	// The network's own best answer within its cap, by its own rank keys.
+	own, err := synth.Search(ctx, n.Problem, &synth.Settings{Top: 1, Workers: set.Workers, ErrorMax: n.Cap}, synth.Rows{})
+	if err != nil {
+		return nil, nil, fail(err)
+	}
+	if err := exhaustive(ctx, n, own); err != nil {
+		return nil, nil, err
 	}
 	nr := &NetworkResult{Network: n, Alone: own.Solutions[0]}
 	sols := res.Solutions
 	if len(sols) > set.MaxDesigns {
 		sols, nr.Cut = sols[:set.MaxDesigns], true
+		if !slices.ContainsFunc(sols, func(s synth.Solution) bool { return sameDesign(s, nr.Alone) }) {
+			sols = append(sols, nr.Alone)
+		}
 	}
 	for _, s := range sols {
 		nr.Designs = append(nr.Designs, Design{Solution: s, Rel: s.Score.Error / n.Cap})

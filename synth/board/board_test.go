@@ -1,0 +1,443 @@
+package board
+
+import (
+	"context"
+	"fmt"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"slices"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/solver"
+	"github.com/ohmfit/ohmfit/synth"
+)
+
+// bruteObjective is a selection's score computed from scratch: the number
+// of distinct values in the union of the chosen items, the largest
+// relative error and the total power.
+func bruteObjective(nets [][]item, choice []int) objective {
+	seen := map[int32]bool{}
+	o := objective{}
+	for r, c := range choice {
+		it := nets[r][c]
+		for _, v := range it.vals {
+			seen[v] = true
+		}
+		o.rel = max(o.rel, it.rel)
+		o.pow += it.pow
+	}
+	o.distinct = len(seen)
+	return o
+}
+
+// bruteBest enumerates every combination of one item per network (brute
+// force) and returns the best objective by the board's order: fewest
+// distinct values, then smallest largest relative error, then least power.
+func bruteBest(nets [][]item) objective {
+	choice := make([]int, len(nets))
+	var best objective
+	found := false
+	var walk func(r int)
+	walk = func(r int) {
+		if r == len(nets) {
+			if o := bruteObjective(nets, choice); !found || o.better(best) {
+				best, found = o, true
+			}
+			return
+		}
+		for i := range nets[r] {
+			choice[r] = i
+			walk(r + 1)
+		}
+	}
+	walk(0)
+	return best
+}
+
+// randomNets makes a small random selection problem: a few networks, each
+// with a few designs over a handful of values. Errors and powers take few
+// levels, so that ties on every key are common.
+func randomNets(rng *rand.Rand) ([][]item, int) {
+	nvals := 3 + rng.IntN(7)
+	nets := make([][]item, 2+rng.IntN(4))
+	for r := range nets {
+		for i := range 1 + rng.IntN(6) {
+			var vals []int32
+			for range 1 + rng.IntN(3) {
+				vals = append(vals, int32(rng.IntN(nvals)))
+			}
+			slices.Sort(vals)
+			nets[r] = append(nets[r], item{vals: slices.Compact(vals),
+				rel: float64(rng.IntN(4)) / 4, pow: float64(1 + rng.IntN(3)), idx: i})
+		}
+	}
+	return nets, nvals
+}
+
+// TestChooseMatchesBruteForce compares the exact selection with the
+// enumeration of every combination of designs (brute force) on random
+// small boards: the same fewest values, the same tie keys, a choice that
+// scores what it says, and proven.
+func TestChooseMatchesBruteForce(t *testing.T) {
+	n := 3000
+	if testing.Short() {
+		n = 300
+	}
+	rng := rand.New(rand.NewPCG(14, 1))
+	for k := range n {
+		nets, nvals := randomNets(rng)
+		want := bruteBest(nets)
+		sel := choose(context.Background(), prune(nets), nvals, DefaultMaxNodes)
+		pr := prune(nets)
+		got := bruteObjective(pr, sel.choice)
+		if got.distinct != want.distinct || !constraints.Same(got.rel, want.rel) || !constraints.Same(got.pow, want.pow) {
+			t.Fatalf("case %d %v: chosen %+v, enumeration %+v", k, nets, got, want)
+		}
+		if sel.obj != got {
+			t.Fatalf("case %d: selection says %+v, its choice scores %+v", k, sel.obj, got)
+		}
+		if !sel.proven || !sel.tiesProven || sel.bound != want.distinct {
+			t.Fatalf("case %d: proven %v, ties %v, bound %d (minimum %d)", k, sel.proven, sel.tiesProven, sel.bound, want.distinct)
+		}
+	}
+}
+
+// TestChooseCut stops the exact search after one node: the result is then
+// marked not proven, its bound is at most the true minimum (enumeration)
+// and its count at least that. When the greedy choice already meets the
+// trivial bound nothing needs searching, and it is proven correctly.
+func TestChooseCut(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 2))
+	cut := 0
+	for k := range 2000 {
+		nets, nvals := randomNets(rng)
+		want := bruteBest(nets)
+		sel := choose(context.Background(), prune(nets), nvals, 1)
+		switch {
+		case sel.proven && sel.obj.distinct != want.distinct:
+			t.Fatalf("case %d: proven with %d values, enumeration finds %d", k, sel.obj.distinct, want.distinct)
+		case !sel.proven:
+			cut++
+			if sel.bound > want.distinct || sel.obj.distinct < want.distinct || !sel.out {
+				t.Fatalf("case %d: bound %d, count %d, out %v; enumeration minimum %d", k, sel.bound, sel.obj.distinct, sel.out, want.distinct)
+			}
+		}
+	}
+	if cut == 0 {
+		t.Fatal("no case needed the search, so the cut was never tested")
+	}
+}
+
+// TestChooseTies checks the tie keys on hand-made boards where two value
+// sets of the same size serve every network.
+func TestChooseTies(t *testing.T) {
+	it := func(rel, pow float64, vals ...int32) item { return item{vals: vals, rel: rel, pow: pow} }
+	tests := []struct {
+		name string
+		nets [][]item
+		want objective
+	}{
+		{"smaller largest error wins", [][]item{
+			{it(0.9, 1, 0, 1), it(0.2, 1, 2, 3)},
+			{it(0.1, 1, 0, 1), it(0.3, 1, 2, 3)},
+		}, objective{2, 0.3, 2}},
+		{"then less power", [][]item{
+			{it(0.5, 3, 0, 1), it(0.5, 1, 2, 3)},
+			{it(0.1, 1, 0, 1), it(0.1, 2, 2, 3)},
+		}, objective{2, 0.5, 3}},
+		{"power of designs within the largest error", [][]item{
+			{it(0.8, 1, 0), it(0.1, 5, 0)},
+			{it(0.8, 1, 0)},
+		}, objective{1, 0.8, 2}},
+		{"fewer values beat a smaller error", [][]item{
+			{it(0.9, 9, 0), it(0, 1, 1, 2)},
+			{it(0.9, 9, 0), it(0, 1, 3)},
+		}, objective{1, 0.9, 18}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			for r := range tc.nets {
+				for i := range tc.nets[r] {
+					tc.nets[r][i].idx = i
+				}
+			}
+			if b := bruteBest(tc.nets); b != tc.want {
+				t.Fatalf("enumeration %+v, test expects %+v", b, tc.want)
+			}
+			sel := choose(context.Background(), prune(tc.nets), 4, DefaultMaxNodes)
+			if sel.obj != tc.want {
+				t.Errorf("chosen %+v, want %+v", sel.obj, tc.want)
+			}
+		})
+	}
+}
+
+// writeBoard writes templates and a board file naming them into a temporary
+// directory and loads the board.
+func writeBoard(t *testing.T, board string, templates map[string]string) *Board {
+	t.Helper()
+	dir := t.TempDir()
+	for name, text := range templates {
+		if err := os.WriteFile(filepath.Join(dir, name), []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	f := filepath.Join(dir, "board.yaml")
+	if err := os.WriteFile(f, []byte(board), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	b, err := Load(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
+}
+
+// dividerTemplate is a two-resistor divider from vin to a goal of vout,
+// with values from a small stock list.
+func dividerTemplate(vin, vout float64, stock string) string {
+	return fmt.Sprintf(`ohmfit: 1
+name: divider %g to %g
+parts:
+  - {name: V, type: voltage-source, plus: in, minus: gnd, volts: %g}
+  - {name: R1, type: resistor, from: in, to: out}
+  - {name: R2, type: resistor, from: out, to: gnd}
+targets:
+  - {voltage: out, equals: %g}
+choose:
+  series: [%s]
+`, vin, vout, vin, vout, stock)
+}
+
+// smallBoards are real boards small enough to enumerate every combination
+// of their networks' designs.
+func smallBoards(t *testing.T) map[string]*Board {
+	stockA := "1k, 1.5k, 2.2k, 3.3k, 4.7k, 6.8k, 10k"
+	stockB := "1k, 1.2k, 2k, 2.7k, 3.9k, 5.6k, 8.2k, 10k, 15k"
+	return map[string]*Board{
+		"three dividers": writeBoard(t, `ohmfit: 1
+board: three
+networks:
+  - {template: a.yaml, prefix: U1, error_max: 10%}
+  - {template: b.yaml, prefix: U2, error_max: 8%}
+  - {template: c.yaml, prefix: U3, error_max: 12%}
+`, map[string]string{"a.yaml": dividerTemplate(5, 3.3, stockA), "b.yaml": dividerTemplate(12, 5, stockA), "c.yaml": dividerTemplate(3.3, 1.2, stockA)}),
+		"four dividers, two stocks": writeBoard(t, `ohmfit: 1
+board: four
+networks:
+  - {template: a.yaml, prefix: A, error_max: 6%}
+  - {template: b.yaml, prefix: B, error_max: 12%}
+  - {template: c.yaml, prefix: C, error_max: 10%}
+  - {template: d.yaml, prefix: D, error_max: 10%}
+`, map[string]string{"a.yaml": dividerTemplate(5, 2.5, stockB), "b.yaml": dividerTemplate(24, 3.3, stockB),
+			"c.yaml": dividerTemplate(9, 4, stockA), "d.yaml": dividerTemplate(3.3, 0.8, stockB)}),
+	}
+}
+
+// TestSolveMatchesBruteForce solves small real boards and compares with
+// every combination of the networks' designs (brute force): the same
+// fewest distinct values, then the same largest relative error and total
+// power; the result is proven, and its count and values are those of the
+// chosen designs.
+func TestSolveMatchesBruteForce(t *testing.T) {
+	for name, b := range smallBoards(t) {
+		t.Run(name, func(t *testing.T) {
+			res, err := Solve(context.Background(), b, &Settings{Workers: 1})
+			if err != nil {
+				t.Fatal(err)
+			}
+			ids := map[string]int32{}
+			nets := make([][]item, len(res.Networks))
+			combos := 1
+			for r, nr := range res.Networks {
+				if nr.Cut {
+					t.Fatalf("%s: list cut", nr.Network.Name())
+				}
+				combos *= len(nr.Designs)
+				for i, d := range nr.Designs {
+					it := item{rel: d.Rel, pow: d.Score.Power, idx: i}
+					for _, v := range d.PartValues() {
+						k := strconv.FormatFloat(v, 'g', 9, 64)
+						if _, ok := ids[k]; !ok {
+							ids[k] = int32(len(ids))
+						}
+						it.vals = append(it.vals, ids[k])
+					}
+					slices.Sort(it.vals)
+					it.vals = slices.Compact(it.vals)
+					nets[r] = append(nets[r], it)
+				}
+			}
+			if combos < 50 {
+				t.Fatalf("only %d combinations: the board is too small to test anything", combos)
+			}
+			want := bruteBest(nets)
+			if res.Distinct != want.distinct || !constraints.Same(res.RelMax, want.rel) || !constraints.Same(res.Power, want.pow) {
+				t.Fatalf("solve: %d values, largest relative error %g, power %g; enumeration of %d combinations: %+v",
+					res.Distinct, res.RelMax, res.Power, combos, want)
+			}
+			if !res.Proven || res.Bound != res.Distinct {
+				t.Errorf("proven %v, bound %d", res.Proven, res.Bound)
+			}
+			var chosen []int
+			used := map[string]bool{}
+			for _, nr := range res.Networks {
+				chosen = append(chosen, nr.Chosen)
+				c := nr.Choice()
+				if c.Score.Error > nr.Network.Cap && !constraints.Same(c.Score.Error, nr.Network.Cap) {
+					t.Errorf("%s: error %g above its cap %g", nr.Network.Name(), c.Score.Error, nr.Network.Cap)
+				}
+				for _, v := range c.PartValues() {
+					used[strconv.FormatFloat(v, 'g', 9, 64)] = true
+				}
+			}
+			if got := bruteObjective(nets, chosen); got.distinct != res.Distinct || len(used) != len(res.Values) {
+				t.Errorf("the chosen designs use %d values (%d), the result says %d (%v)", got.distinct, len(used), res.Distinct, res.Values)
+			}
+		})
+	}
+}
+
+// TestConsolidationSaves runs the built-in controller board: taken alone,
+// its networks' own best answers (rank 1 of each network's search within
+// its cap, looked up again here) need more values than the board's choice.
+func TestConsolidationSaves(t *testing.T) {
+	b, err := Load(ExamplePrefix + "controller")
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Solve(context.Background(), b, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	alone := map[string]bool{}
+	for _, nr := range res.Networks {
+		n := nr.Network
+		own, err := synth.Search(context.Background(), n.Problem, &synth.Settings{Top: 1, ErrorMax: n.Cap}, nil)
+		if err != nil || len(own.Solutions) == 0 {
+			t.Fatalf("%s: %v", n.Name(), err)
+		}
+		if !sameDesign(own.Solutions[0], nr.Alone) {
+			t.Errorf("%s: alone %v, its own search ranks %v first", n.Name(), nr.Alone.Values(), own.Solutions[0].Values())
+		}
+		for _, o := range own.Solutions[0].Options {
+			for _, v := range o.PartValues() {
+				alone[strconv.FormatFloat(v, 'g', 9, 64)] = true
+			}
+		}
+	}
+	if res.Alone != len(alone) {
+		t.Errorf("alone %d, the own answers use %d values", res.Alone, len(alone))
+	}
+	if !(res.Distinct < res.Alone) || !res.Proven {
+		t.Errorf("distinct %d, alone %d, proven %v: consolidation should save values", res.Distinct, res.Alone, res.Proven)
+	}
+}
+
+// TestCutListNotProven lists at most a few designs per network: the lists
+// are cut, so the result is not proven, whatever the selection found.
+func TestCutListNotProven(t *testing.T) {
+	b := smallBoards(t)["three dividers"]
+	res, err := Solve(context.Background(), b, &Settings{MaxDesigns: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	cut := false
+	for _, nr := range res.Networks {
+		cut = cut || nr.Cut
+	}
+	if !cut || res.Proven || res.TiesProven || res.Bound > res.Distinct {
+		t.Errorf("cut %v, proven %v, ties proven %v, bound %d of %d", cut, res.Proven, res.TiesProven, res.Bound, res.Distinct)
+	}
+	if res.Distinct > res.Alone {
+		t.Errorf("distinct %d above alone %d: the own answers are always among the designs", res.Distinct, res.Alone)
+	}
+}
+
+// TestBOMTotals checks the board's bill of materials: every resistor of
+// every network appears under exactly one line, prefixed; the quantities
+// add up to the parts; each chosen part's line carries its value, and the
+// chosen values are exactly the result's distinct values.
+func TestBOMTotals(t *testing.T) {
+	b, err := Load(ExamplePrefix + "controller")
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Solve(context.Background(), b, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, err := res.Check()
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Expected designators: each template's resistors, a position of two
+	// parts as its two parts (suffix a, b), as check names them.
+	want := map[string]float64{}
+	for _, nr := range res.Networks {
+		n := nr.Network
+		free := map[int]synth.Option{}
+		for k, i := range n.Problem.Free {
+			free[i] = nr.Choice().Options[k]
+		}
+		for i, ps := range n.Template.Parts {
+			if ps.Kind != solver.Resistor || ps.Sensor != nil || ps.ADC != "" {
+				continue
+			}
+			o, ok := free[i]
+			switch {
+			case !ok:
+				want[Designator(n.Spec.Prefix, ps.Name)] = ps.Value
+			case o.Count == 1:
+				want[Designator(n.Spec.Prefix, ps.Name)] = o.Parts[0]
+			default:
+				want[Designator(n.Spec.Prefix, ps.Name+"a")] = o.Parts[0]
+				want[Designator(n.Spec.Prefix, ps.Name+"b")] = o.Parts[1]
+			}
+		}
+	}
+	seen := map[string]int{}
+	total := 0
+	for _, l := range c.BOM {
+		total += l.Quantity()
+		for _, d := range l.Designators {
+			seen[d]++
+			if v, ok := want[d]; ok && strconv.FormatFloat(v, 'g', 9, 64) != strconv.FormatFloat(l.Value, 'g', 9, 64) {
+				t.Errorf("%s on the line of %g, its value is %g", d, l.Value, v)
+			}
+		}
+	}
+	for d := range want {
+		if seen[d] != 1 {
+			t.Errorf("%s appears %d times", d, seen[d])
+		}
+	}
+	for d := range seen {
+		if _, ok := want[d]; !ok {
+			t.Errorf("%s is on the BOM but not a resistor of the board", d)
+		}
+	}
+	if total != len(want) {
+		t.Errorf("quantities add up to %d, the board has %d resistors", total, len(want))
+	}
+	var all []float64
+	for _, nr := range res.Networks {
+		all = append(all, nr.Choice().PartValues()...)
+	}
+	slices.Sort(all)
+	var chosen, vals []string
+	for _, v := range all {
+		chosen = append(chosen, strconv.FormatFloat(v, 'g', 9, 64))
+	}
+	chosen = slices.Compact(chosen)
+	for _, v := range res.Values {
+		vals = append(vals, strconv.FormatFloat(v, 'g', 9, 64))
+	}
+	if strings.Join(chosen, " ") != strings.Join(vals, " ") || res.Distinct != len(vals) {
+		t.Errorf("chosen values %v, result %v (%d)", chosen, vals, res.Distinct)
+	}
+}
