@@ -55,6 +55,7 @@ var commandLines = map[string][]string{
 	"combine":  {"combine", "4.7k"},
 	"check":    {"check", "testdata/check-pass.yaml"},
 	"merge":    {"merge", "testdata/no-such-shard.json"}, // no options of its own beyond --help
+	"board":    {"board", "testdata/board/two.yaml"},
 }
 
 // TestEveryFlagErrorInOurWords gives every option of every command that is

@@ -18,11 +18,17 @@ var bomHeader = []string{"designators", "type", "value", "code", "series", "tole
 // sensor's TCR and rating, a resistor's model) is empty; "-" is a resistor
 // value in no series.
 func writeBOM(w io.Writer, d *variation.Design, rep *variation.Report) error {
+	return writeBOMLines(w, variation.BOM(d, rep))
+}
+
+// writeBOMLines writes bill-of-materials lines as writeBOM does (a board's
+// BOM is the merged lines of its networks).
+func writeBOMLines(w io.Writer, lines []variation.BOMLine) error {
 	cw := csv.NewWriter(w)
 	if err := cw.Write(bomHeader); err != nil {
 		return err
 	}
-	for _, l := range variation.BOM(d, rep) {
+	for _, l := range lines {
 		series, tcr, rated := "", "", ""
 		if l.Type == variation.TypeResistor {
 			series = l.Series

@@ -156,6 +156,22 @@ func TestGolden(t *testing.T) {
 		{"fit-robust", []string{"fit", "example:feedback", "--robust", "--top", "5", "--workers", "1"}, ExitOK},
 		{"fit-check", []string{"fit", "example:divider", "--check", "--top", "3", "--workers", "1"}, ExitOK},
 
+		// board
+		{"board-controller", []string{"board", "example:controller"}, ExitOK},
+		{"board-controller-json", []string{"board", "example:controller", "--format", "json"}, ExitOK},
+		{"board-two-csv", []string{"board", "testdata/board/two.yaml", "--format", "csv"}, ExitOK},
+		{"board-two", []string{"board", "testdata/board/two.yaml"}, ExitOK},
+		{"board-unmet", []string{"board", "testdata/board/unmet.yaml"}, ExitNoSolution},
+		{"board-err-missing-template", []string{"board", "testdata/board/missing-template.yaml"}, ExitBadInput},
+		{"board-err-bad-template", []string{"board", "testdata/board/bad-template.yaml"}, ExitBadInput},
+		{"board-err-duplicate-prefix", []string{"board", "testdata/board/duplicate-prefix.yaml"}, ExitBadInput},
+		{"board-err-no-error-max", []string{"board", "testdata/board/no-error-max.yaml"}, ExitBadInput},
+		{"board-err-missing", []string{"board", "testdata/board/no-such-board.yaml"}, ExitBadInput},
+		{"board-err-example", []string{"board", "example:controler"}, ExitBadInput},
+		{"board-err-overwrite", []string{"board", "testdata/board/stocked-board.yaml", "--bom", "testdata/board/drawer.csv"}, ExitBadInput},
+		{"board-err-bom", []string{"board", "testdata/board/two.yaml", "--bom", "parts.txt"}, ExitBadInput},
+		{"board-err-format", []string{"board", "testdata/board/two.yaml", "--format", "xml"}, ExitBadInput},
+
 		// examples
 		{"examples-list", []string{"examples"}, ExitOK},
 		{"examples-err-unknown", []string{"examples", "brigde"}, ExitBadInput},

@@ -133,6 +133,7 @@ A template is a small YAML file; ` + "`ohmfit examples`" + ` lists the built-in 
 		newCheckCmd(stdout, stderr),
 		newMergeCmd(stdout, stderr),
 		newCompletionCmd(root, stdout),
+		newBoardCmd(stdout, stderr),
 	)
 	addCompletions(root)
 	for _, c := range root.Commands() {

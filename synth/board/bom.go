@@ -1,9 +1,6 @@
 package board
 
 import (
-	"fmt"
-	"strings"
-
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/synth/variation"
 )
@@ -35,11 +32,11 @@ func (r *Result) Check() (*Checked, error) {
 		n := nr.Network
 		d, err := variation.NewDesign(n.Problem.Problem, nr.Choice().Options, "", constraints.Ambient{})
 		if err != nil {
-			return nil, fmt.Errorf("board: %s: %w", n.Name(), err)
+			return nil, errorf(err, "%s: %s", n.Name(), constraints.Message(err))
 		}
 		rep, err := variation.Check(d, &variation.Settings{Samples: -1})
 		if err != nil {
-			return nil, fmt.Errorf("board: %s: %s", n.Name(), strings.TrimPrefix(err.Error(), "variation: "))
+			return nil, errorf(err, "%s: %s", n.Name(), constraints.Message(err))
 		}
 		c.Reports = append(c.Reports, rep)
 		for _, l := range variation.BOM(d, rep) {

@@ -116,7 +116,7 @@ func resolve(spec *constraints.Board, o opener) (*Board, error) {
 			if errors.As(err, &ce) && ce.Line == 0 {
 				// The file itself could not be had (missing, empty, not a
 				// file): say so where the board names it.
-				return nil, at(ns.TemplatePos, "template %s: %s", ns.Template, strings.TrimPrefix(ce.Msg, "constraints: "))
+				return nil, at(ns.TemplatePos, "template %s: %s", ns.Template, ce.Msg)
 			}
 			return nil, named(err, spec, ns, i)
 		}
@@ -160,11 +160,7 @@ func templateErr(t *constraints.Template, err error) error {
 	if errors.As(err, &ce) {
 		return err
 	}
-	msg := err.Error()
-	for _, p := range []string{"solver: ", "synth: ", "constraints: ", "eseries: "} {
-		msg = strings.TrimPrefix(msg, p)
-	}
-	return &constraints.Error{File: t.File, Msg: msg, Err: err}
+	return &constraints.Error{File: t.File, Msg: constraints.Message(err), Err: err}
 }
 
 // named adds the board entry that named a template to the template's own

@@ -134,7 +134,10 @@ type Unmet struct {
 // InfeasibleError says which networks have no design within their caps.
 type InfeasibleError struct{ Networks []Unmet }
 
-func (e *InfeasibleError) Error() string {
+func (e *InfeasibleError) Error() string { return "board: " + e.Message() }
+
+// Message returns the text for a person, without the package's name.
+func (e *InfeasibleError) Message() string {
 	var parts []string
 	for _, u := range e.Networks {
 		n := u.Network
@@ -145,7 +148,7 @@ func (e *InfeasibleError) Error() string {
 			parts = append(parts, fmt.Sprintf("%s has no design that meets its template's hard limits", n.Name()))
 		}
 	}
-	return "board: " + strings.Join(parts, "; ")
+	return strings.Join(parts, "; ")
 }
 
 // ErrBudget is wrapped by the error for a network whose space is too large
@@ -274,9 +277,9 @@ func exhaustive(ctx context.Context, n *Network, res *synth.Result) error {
 		return nil
 	}
 	if ctx.Err() != nil {
-		return fmt.Errorf("%w (at %s)", ErrInterrupted, n.Name())
+		return errorf(ErrInterrupted, "interrupted while listing the networks' designs (at %s)", n.Name())
 	}
-	return fmt.Errorf("board: %s: the search did not cover the whole space (%s)", n.Name(), res.Status)
+	return errorf(nil, "%s: the search did not cover the whole space (%s)", n.Name(), res.Status)
 }
 
 // sameDesign reports whether two solutions realise every position alike.
@@ -306,7 +309,7 @@ func errorFirst(p *synth.Problem) *synth.Problem {
 func enumerate(ctx context.Context, n *Network, set *Settings) (*NetworkResult, *Unmet, error) {
 	fail := func(err error) error {
 		if errors.Is(err, synth.ErrTooManyRows) || errors.Is(err, synth.ErrSpaceTooLarge) {
-			return fmt.Errorf("%w: %s: %s", ErrBudget, n.Name(), strings.TrimPrefix(err.Error(), "synth: "))
+			return errorf(ErrBudget, "%s: %s", n.Name(), constraints.Message(err))
 		}
 		return err
 	}
