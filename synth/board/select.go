@@ -264,20 +264,13 @@ func (s *selector) run(fit [][]int, depth int) bool {
 		order[i] = i
 	}
 	sort.SliceStable(order, func(a, b int) bool { return len(adds[order[a]]) < len(adds[order[b]]) })
-	var tried [][]int32
+	tried := map[addKey]bool{}
 	for _, o := range order {
 		add := adds[o]
-		skip := false
-		for _, t := range tried {
-			if subset(t, add) {
-				skip = true
-				break
-			}
-		}
-		if skip {
+		if triedSubset(tried, add) {
 			continue
 		}
-		tried = append(tried, add)
+		tried[keyOf(add)] = true
 		for _, v := range add {
 			s.in[v] = true
 		}
@@ -292,6 +285,45 @@ func (s *selector) run(fit [][]int, depth int) bool {
 		}
 	}
 	remember()
+	return false
+}
+
+// addKey is a set of at most maxAdd value ids, ascending, padded with -1,
+// usable as a map key.
+type addKey [maxAdd]int32
+
+// maxAdd is the most new values one design can add that triedSubset looks
+// up by its subsets; a longer add is never skipped (which is always safe).
+const maxAdd = 8
+
+func keyOf(add []int32) addKey {
+	var k addKey
+	for i := range k {
+		k[i] = -1
+	}
+	copy(k[:], add)
+	return k
+}
+
+// triedSubset reports whether some non-empty subset of add (ascending) was
+// tried already: every one of its 2^len(add) - 1 subsets is looked up.
+func triedSubset(tried map[addKey]bool, add []int32) bool {
+	if len(add) > maxAdd || len(tried) == 0 {
+		return false
+	}
+	var sub [maxAdd]int32
+	for mask := 1; mask < 1<<len(add); mask++ {
+		n := 0
+		for i, v := range add {
+			if mask&(1<<i) != 0 {
+				sub[n] = v
+				n++
+			}
+		}
+		if tried[keyOf(sub[:n])] {
+			return true
+		}
+	}
 	return false
 }
 
@@ -455,16 +487,20 @@ func feasible(nets [][]item, nvals int, set []int32) bool {
 	return true
 }
 
-// choose solves the selection over pruned item lists: the greedy set gives
-// an upper bound; then for k from the trivial lower bound upwards, a search
-// over value sets proves that no k values serve every network or finds k
-// that do; finally every set of the minimal size is enumerated (with a
-// bound on the relative error) for the tie keys. budget bounds the search
-// nodes over all stages.
+// choose solves the selection over pruned item lists. The greedy set gives
+// a first upper bound. Then, with half the node budget, a search over value
+// sets looks for a set of one value fewer than the best so far, again and
+// again (a set that exists is usually found fast): a search that finishes
+// without one proves the best so far minimal. If the budget ends first,
+// the rest of it goes to the lower bound: for k from the trivial bound (the
+// most values any network's smallest design needs) upwards, each finished
+// search without a set proves k values too few. With the minimum proven,
+// every set of that size is enumerated (bounded by the relative error) for
+// the tie keys, with what is left of the budget.
 func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selection {
 	set := greedy(nets, nvals)
 	bestObj, _ := evaluateSet(nets, nvals, set)
-	s := &selector{ctx: ctx, nets: nets, nvals: nvals, in: make([]bool, nvals), taken: make([]bool, nvals), budget: budget}
+	s := &selector{ctx: ctx, nets: nets, nvals: nvals, in: make([]bool, nvals), taken: make([]bool, nvals)}
 	all := make([][]int, len(nets))
 	lb := 0
 	for r, its := range nets {
@@ -479,32 +515,66 @@ func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selecti
 		lb = max(lb, m)
 	}
 	sel := selection{bound: lb}
-	proven := true
-	for k := lb; k < bestObj.distinct; k++ {
-		s.k, s.memo, s.bestSet = k, map[string]struct{}{}, nil
-		found := s.run(all, 0)
+	// search runs one stage: is there a set of at most k values? It
+	// reports whether one was found and whether the stage finished.
+	search := func(k int, until int64) (found, finished bool) {
+		s.k, s.memo, s.bestSet, s.out, s.budget = k, map[string]struct{}{}, nil, false, until
+		found = s.run(all, 0)
 		if s.out {
-			proven = false
-			sel.bound = k
+			sel.out = true
+			return false, false
+		}
+		return found, true
+	}
+	// take makes the set found the best so far: the values its choice
+	// uses (they may be fewer than the set's).
+	take := func() {
+		_, ch := evaluateSet(nets, nvals, s.bestSet)
+		set = union(nets, ch)
+		bestObj, _ = evaluateSet(nets, nvals, set)
+	}
+	proven := bestObj.distinct <= lb
+	for !proven && bestObj.distinct > lb {
+		found, finished := search(bestObj.distinct-1, budget/2)
+		if !finished {
 			break
 		}
-		if found {
-			set = s.bestSet
-			bestObj, _ = evaluateSet(nets, nvals, set)
+		if !found {
+			proven = true
 			break
 		}
-		sel.bound = k + 1
+		take()
+	}
+	if proven {
+		sel.bound = bestObj.distinct
+	} else {
+		for k := lb; k < bestObj.distinct; k++ {
+			found, finished := search(k, budget)
+			if !finished {
+				break
+			}
+			if found {
+				take()
+				proven = true
+				break
+			}
+			sel.bound = k + 1
+		}
+		if sel.bound >= bestObj.distinct {
+			proven = true
+		}
 	}
 	if proven {
 		sel.bound = bestObj.distinct
 		// Every set of the minimal size, for the tie keys.
-		s.k, s.memo, s.enum = bestObj.distinct, map[string]struct{}{}, true
+		s.k, s.memo, s.enum, s.out, s.budget = bestObj.distinct, map[string]struct{}{}, true, false, budget
 		s.best, s.bestSet = bestObj, set
 		s.run(all, 0)
+		sel.out = sel.out || s.out
 		set, bestObj = s.bestSet, s.best
 		sel.tiesProven = !s.out
 	}
-	sel.proven, sel.out = proven, s.out
+	sel.proven = proven
 	sel.obj, sel.choice = evaluateSet(nets, nvals, set)
 	sel.nodes = s.nodes
 	return sel

@@ -35,7 +35,7 @@ type Settings struct {
 // Defaults of Settings.
 const (
 	DefaultMaxDesigns = 2000
-	DefaultMaxNodes   = 2_000_000
+	DefaultMaxNodes   = 200_000
 )
 
 // Design is one design of a network within its cap.
