@@ -173,12 +173,12 @@ func boardVerdict(res *board.Result) string {
 		}
 		return s
 	}
-	why := "the selection search stopped at its node budget"
+	why := "node budget"
 	switch res.Stop {
 	case board.StopInterrupted:
-		why = "the selection search was interrupted"
+		why = "interrupted"
 	case board.StopTime:
-		why = "the selection search reached its time limit"
+		why = "time limit"
 	}
 	for _, nr := range res.Networks {
 		if nr.Cut {

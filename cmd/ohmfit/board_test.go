@@ -1,13 +1,17 @@
 package main
 
 import (
+	"bytes"
 	"encoding/csv"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"slices"
 	"strconv"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 )
 
 // TestBoardBOMFile writes a board's --bom and reads it back: the check
@@ -51,5 +55,50 @@ func TestBoardBOMFile(t *testing.T) {
 	}
 	if len(seen) < 12 {
 		t.Errorf("only %d designators for six networks of two or more resistors", len(seen))
+	}
+}
+
+// TestBoardInterrupt sends a real Ctrl-C (SIGINT) to a board of twenty
+// networks. In the selection it stops the search: the best selection so
+// far is printed, marked not proven (interrupted), exit 0. While the
+// networks' designs are still being listed there is nothing to show: one
+// line on stderr, exit 2. Either way it is never swallowed and never a
+// stack trace.
+func TestBoardInterrupt(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a long board")
+	}
+	cmd := exec.Command(os.Args[0], "board", "testdata/board/twenty/board.yaml")
+	cmd.Env = append(os.Environ(), "OHMFIT_TEST_MAIN=1")
+	var out, errOut bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &out, &errOut
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	time.Sleep(700 * time.Millisecond) // into the long part (not a timing claim)
+	if err := cmd.Process.Signal(syscall.SIGINT); err != nil {
+		t.Fatal(err)
+	}
+	done := make(chan error, 1)
+	go func() { done <- cmd.Wait() }()
+	var err error
+	select {
+	case err = <-done:
+	case <-time.After(60 * time.Second):
+		cmd.Process.Kill()
+		t.Fatal("the command did not stop after an interrupt")
+	}
+	if strings.Contains(errOut.String(), "goroutine") {
+		t.Fatalf("stack trace: %s", errOut.String())
+	}
+	if err == nil {
+		if !strings.Contains(out.String(), "not proven (interrupted)") || !strings.Contains(errOut.String(), "interrupted") {
+			t.Errorf("exit 0 without saying it was interrupted:\n%s\n%s", out.String(), errOut.String())
+		}
+		return
+	}
+	if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != int(ExitBadInput) ||
+		!strings.Contains(errOut.String(), "interrupted while listing") || out.Len() != 0 || strings.Count(errOut.String(), "\n") != 1 {
+		t.Errorf("ended with %v\nstdout: %s\nstderr: %s", err, out.String(), errOut.String())
 	}
 }
