@@ -266,6 +266,7 @@ func TestGlossaryCoversOutput(t *testing.T) {
 		{"solve", "example:bias-bench", "--format", "json"},
 		{"combine", "1R5", "--max-parts", "3", "--series", "E12", "--min", "1", "--max", "100", "--format", "json"},
 		{"values", "E24", "--near", "4.32k", "--format", "json"},
+		{"board", "testdata/board/two.yaml", "--format", "json"},
 	}
 	for _, args := range runs {
 		t.Run(strings.Join(args, " "), func(t *testing.T) {
