@@ -235,7 +235,7 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 		if l.Type != variation.TypeResistor {
 			value = l.Type + " " + value
 		}
-		bt.add(strings.Join(l.Designators, ", "), value, eseries.FormatUnit(l.Tolerance, eseries.Percent), l.Package, strconv.Itoa(l.Quantity()))
+		bt.add(strings.Join(l.Designators, ", "), value, bomTolerance(l), l.Package, strconv.Itoa(l.Quantity()))
 	}
 	if err := bt.write(&b); err != nil {
 		return err

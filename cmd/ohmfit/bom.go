@@ -42,7 +42,7 @@ func writeBOMLines(w io.Writer, lines []variation.BOMLine) error {
 		}
 		row := []string{strings.Join(l.Designators, ", "), l.Type,
 			eseries.FormatUnit(l.Value, eseries.Ohm), l.Code, series,
-			eseries.FormatUnit(l.Tolerance, eseries.Percent), l.TolFrom, tcr, l.Model,
+			bomTolerance(l), l.TolFrom, tcr, l.Model,
 			l.Package, rated, strconv.Itoa(l.Quantity())}
 		if err := cw.Write(row); err != nil {
 			return err
@@ -50,4 +50,13 @@ func writeBOMLines(w io.Writer, lines []variation.BOMLine) error {
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// bomTolerance is a BOM line's tolerance column: "-" for a stand-in, whose
+// real part the template does not describe.
+func bomTolerance(l variation.BOMLine) string {
+	if l.Type == variation.TypeStandIn {
+		return "-"
+	}
+	return eseries.FormatUnit(l.Tolerance, eseries.Percent)
 }

@@ -1,6 +1,8 @@
 package variation
 
 import (
+	"fmt"
+	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -16,6 +18,10 @@ const (
 	TypeResistor = "resistor"
 	TypeNTC      = "ntc"
 	TypeRTD      = "rtd"
+	// TypeStandIn is a fixed resistor whose value the conditions set: the
+	// template models with it a part that varies (a sensor, a load), so
+	// the line names what to order, not a resistor.
+	TypeStandIn = "stand-in"
 )
 
 // BOMLine is one line of a bill of materials: physical parts a buyer orders
@@ -33,8 +39,8 @@ type BOMLine struct {
 
 // BOMItem is what is ordered: two parts with equal items are one line.
 type BOMItem struct {
-	// Type is TypeResistor, TypeNTC or TypeRTD. A sensor is never on the
-	// same line as a resistor.
+	// Type is TypeResistor, TypeNTC, TypeRTD or TypeStandIn. A sensor or a
+	// stand-in is never on the same line as a resistor.
 	Type string
 	// Value is a resistor's ohms, a thermistor's R25 or an RTD's R0.
 	Value float64
@@ -109,6 +115,13 @@ func BOM(d *Design, rep *Report) []BOMLine {
 			lines = append(lines, l)
 			continue
 		}
+		if lo, hi, set := conditionRange(d.Problem.Template, v.Name); set {
+			l.Type, l.Tolerance, l.TolFrom = TypeStandIn, 0, ""
+			l.Model = fmt.Sprintf("set by the conditions (%s to %s): a part that varies, modelled as a resistor; order the real part",
+				eseries.FormatUnit(lo, eseries.Ohm), eseries.FormatUnit(hi, eseries.Ohm))
+			lines = append(lines, l)
+			continue
+		}
 		l.Type, l.Series, l.TCR, l.HasTCR = TypeResistor, v.Series, v.TCR, true
 		if code, err := eseries.Code(v.Nominal); err == nil {
 			l.Code = code
@@ -118,6 +131,25 @@ func BOM(d *Design, rep *Report) []BOMLine {
 		lines = append(lines, l)
 	}
 	return MergeBOM(lines)
+}
+
+// conditionRange returns the smallest and largest value the template's
+// part takes over its value and the conditions that set it, and whether any
+// condition sets it.
+func conditionRange(t *constraints.Template, name string) (lo, hi float64, set bool) {
+	i, ok := t.Part(name)
+	if !ok {
+		return 0, 0, false
+	}
+	lo, hi = t.Parts[i].Value, t.Parts[i].Value
+	for _, c := range t.Conditions {
+		for _, s := range c.Set {
+			if s.Part == name {
+				lo, hi, set = math.Min(lo, s.Value), math.Max(hi, s.Value), true
+			}
+		}
+	}
+	return lo, hi, set
 }
 
 // MergeBOM groups lines that order the same item (equal BOMItem: type,

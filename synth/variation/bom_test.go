@@ -114,3 +114,42 @@ func TestMergeBOM(t *testing.T) {
 		t.Errorf("input changed: %+v", in[0])
 	}
 }
+
+// A fixed resistor whose value the conditions set stands in for a part that
+// varies (a sensor or a load modelled as a resistor): the buyer must not be
+// told to order a resistor of its nominal value, nor one merged with a real
+// 8.2k resistor on the same line.
+func TestBOMStandIn(t *testing.T) {
+	d := design(t, `ohmfit: 1
+parts:
+  - {name: V, type: voltage-source, plus: vcc, minus: gnd, volts: 3.3}
+  - {name: R1, type: resistor, from: vcc, to: s, value: 8.2k, tolerance: 1%}
+  - {name: RS, type: resistor, from: s, to: gnd, value: 8.2k, tolerance: 1%}
+conditions:
+  - {name: cold, set: {RS: 15k}}
+  - {name: hot, set: {RS: 4.2k}}
+targets:
+  - {voltage: s, min: 0}
+`)
+	r, err := Check(d, &Settings{Samples: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := BOM(d, r)
+	if len(lines) != 2 {
+		t.Fatalf("%d lines, want R1 and RS apart: %+v", len(lines), lines)
+	}
+	rs := lines[1]
+	if !slices.Equal(rs.Designators, []string{"RS"}) || rs.Type != TypeStandIn {
+		t.Fatalf("line %+v, want RS alone, type %q", rs, TypeStandIn)
+	}
+	if rs.Series != "" || rs.Code != "" || rs.Package != "" || rs.RatedWatts != 0 || rs.HasTCR {
+		t.Errorf("a stand-in carries no resistor ordering data: %+v", rs)
+	}
+	if rs.Model == "" {
+		t.Error("a stand-in's line should say what it stands for")
+	}
+	if lines[0].Type != TypeResistor || !slices.Equal(lines[0].Designators, []string{"R1"}) {
+		t.Errorf("R1's line: %+v", lines[0])
+	}
+}
