@@ -297,18 +297,18 @@ func (b *box) sizeOf() float64 {
 
 // worst returns a copy of the bar's last candidate, or nil while the bar is
 // not full. The caller holds no lock.
-func (sh *bbShared) worst() *Candidate {
+func (sh *bbShared) worst() *candidate {
 	sh.mu.Lock()
 	defer sh.mu.Unlock()
 	return sh.worstLocked()
 }
 
-func (sh *bbShared) worstLocked() *Candidate {
+func (sh *bbShared) worstLocked() *candidate {
 	w := sh.bar.worst()
 	if w == nil {
 		return nil
 	}
-	return &Candidate{Opt: append([]int32(nil), w.Opt...), Error: w.Error, Power: w.Power, Parts: w.Parts}
+	return &candidate{Opt: append([]int32(nil), w.Opt...), Error: w.Error, Power: w.Power, Parts: w.Parts}
 }
 
 // splitDim returns the position to split a box on: the one whose values span
@@ -355,7 +355,7 @@ func (sh *bbShared) isLeaf(b *box) bool {
 // worst's beyond the tie tolerance is out; one whose bound cannot be better
 // (every candidate is worse or ties) passes the decision to the next key;
 // otherwise it stays. A box that could tie on every key stays too.
-func (sh *bbShared) ruledOut(b *box, worst *Candidate) bool {
+func (sh *bbShared) ruledOut(b *box, worst *candidate) bool {
 	if b.infeasible {
 		return true
 	}
@@ -403,7 +403,7 @@ type bbWorker struct {
 	free  []float64
 	rw    *rowWorker // finishes leaves; its top list and front are the worker's answers
 	inc   *topList   // corners scored since the last sync
-	cand  Candidate
+	cand  candidate
 	after func(int)
 
 	corners, solves int64 // corner candidates scored and their solves
@@ -440,7 +440,7 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 		free: make([]float64, len(p.Domains)),
 		rw:   newRowWorker(p, st.r, set, sh.j, sh.outer),
 		inc:  newTopList(st.r, set.Top+topMargin, len(p.Domains)),
-		cand: Candidate{Opt: make([]int32, len(p.Domains))},
+		cand: candidate{Opt: make([]int32, len(p.Domains))},
 		nc:   nc, corner: make([]int32, len(p.Domains)),
 	}
 	w.after = w.afterCond
@@ -583,7 +583,7 @@ func (w *bbWorker) count(b *box) {
 
 // sync offers the worker's new answers (leaf answers and scored corners) to
 // the shared bar and returns a copy of its last entry.
-func (w *bbWorker) sync() *Candidate {
+func (w *bbWorker) sync() *candidate {
 	sh := w.sh
 	sh.mu.Lock()
 	defer sh.mu.Unlock()
@@ -604,7 +604,7 @@ func (w *bbWorker) sync() *Candidate {
 
 // searchLeaf has the rows method score every row of the box, with the
 // shared bar as the threshold.
-func (w *bbWorker) searchLeaf(b *box, worst *Candidate) {
+func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 	rw, sh := w.rw, w.sh
 	rw.bar = worst
 	for _, i := range sh.outer {
@@ -720,7 +720,7 @@ func product(a, b, c, d float64) (float64, float64) {
 // candidate whose goal error is beyond it is ruled out by error whatever its
 // power, so the power bound may assume every goal within that error (see
 // voltBand).
-func (w *bbWorker) bound(b *box, worst *Candidate) {
+func (w *bbWorker) bound(b *box, worst *candidate) {
 	p, nc := w.p, w.nc
 	b.bounded, b.infeasible, b.err, b.power = false, false, 0, 0
 	b.size = b.sizeOf()
@@ -862,7 +862,7 @@ func (w *bbWorker) bound(b *box, worst *Candidate) {
 // first, within the bar's error of its goal. Candidates outside are
 // infeasible or rank after the bar on error, so the power bound need not
 // cover them.
-func (w *bbWorker) voltBand(k, c int, lo, hi float64, worst *Candidate) (float64, float64) {
+func (w *bbWorker) voltBand(k, c int, lo, hi float64, worst *candidate) (float64, float64) {
 	p := w.p
 	e := w.edges[w.res[k]]
 	errFirst := len(w.sh.keys) > 0 && w.sh.keys[0] == constraints.ByError && w.sh.front == 0

@@ -6,8 +6,8 @@ import (
 	"github.com/ohmfit/ohmfit/constraints"
 )
 
-// Candidate is one scored assignment: an option index per free position.
-type Candidate struct {
+// candidate is one scored assignment: an option index per free position.
+type candidate struct {
 	Opt   []int32 // option index per position, in Problem.Domains order
 	Error float64
 	Power float64
@@ -23,11 +23,11 @@ type ranker struct {
 }
 
 // less reports whether a ranks before b.
-func (r *ranker) less(a, b *Candidate) bool {
+func (r *ranker) less(a, b *candidate) bool {
 	return r.compare(a, b) < 0
 }
 
-func (r *ranker) compare(a, b *Candidate) int {
+func (r *ranker) compare(a, b *candidate) int {
 	if c := compareKeys(r.keys, a.Error, a.Power, a.Parts, b.Error, b.Power, b.Parts); c != 0 {
 		return c
 	}
@@ -52,15 +52,15 @@ func (r *ranker) compare(a, b *Candidate) int {
 type topList struct {
 	r     *ranker
 	n     int
-	items []*Candidate // sorted, len <= n
-	spare *Candidate   // storage recycled from the evicted candidate
+	items []*candidate // sorted, len <= n
+	spare *candidate   // storage recycled from the evicted candidate
 	kept  int64        // candidates kept over the list's life, to notice a change
 }
 
 func newTopList(r *ranker, n, positions int) *topList {
-	t := &topList{r: r, n: n, items: make([]*Candidate, 0, min(n+1, 64))}
+	t := &topList{r: r, n: n, items: make([]*candidate, 0, min(n+1, 64))}
 	// The list allocates at most n+1 candidates over its life: n kept and one spare.
-	t.spare = &Candidate{Opt: make([]int32, positions)}
+	t.spare = &candidate{Opt: make([]int32, positions)}
 	return t
 }
 
@@ -68,7 +68,7 @@ func newTopList(r *ranker, n, positions int) *topList {
 func (t *topList) full() bool { return len(t.items) == t.n }
 
 // worst returns the last candidate of a full list, or nil.
-func (t *topList) worst() *Candidate {
+func (t *topList) worst() *candidate {
 	if !t.full() {
 		return nil
 	}
@@ -77,7 +77,7 @@ func (t *topList) worst() *Candidate {
 
 // offer inserts c (copied) if it ranks among the best n. It reports whether
 // the candidate was kept.
-func (t *topList) offer(c *Candidate) bool {
+func (t *topList) offer(c *candidate) bool {
 	if t.full() && !t.r.less(c, t.items[t.n-1]) {
 		return false
 	}
@@ -98,7 +98,7 @@ func (t *topList) offer(c *Candidate) bool {
 	slot := t.spare
 	t.spare = nil
 	if slot == nil {
-		slot = &Candidate{Opt: make([]int32, len(c.Opt))}
+		slot = &candidate{Opt: make([]int32, len(c.Opt))}
 	}
 	copy(slot.Opt, c.Opt)
 	slot.Error, slot.Power, slot.Parts = c.Error, c.Power, c.Parts
@@ -117,7 +117,7 @@ func (t *topList) offer(c *Candidate) bool {
 // numbers that differ by rounding (scored along two different paths): a
 // candidate with the same options as a kept one is not kept again, so the
 // list's last entry is always the n-th distinct candidate.
-func (t *topList) offerUnique(c *Candidate) bool {
+func (t *topList) offerUnique(c *candidate) bool {
 	if t.full() && !t.r.less(c, t.items[t.n-1]) {
 		return false
 	}
@@ -144,11 +144,11 @@ func sameOptions(a, b []int32) bool {
 // three, the one that ranks first is kept, so the front is deterministic.
 type frontList struct {
 	r     *ranker
-	items []*Candidate
+	items []*candidate
 }
 
 // dominatesCand reports whether a dominates b.
-func dominatesCand(a, b *Candidate) bool {
+func dominatesCand(a, b *candidate) bool {
 	le := func(x, y float64) bool { return x <= y || constraints.Same(x, y) }
 	lt := func(x, y float64) bool { return x < y && !constraints.Same(x, y) }
 	if !le(a.Error, b.Error) || !le(a.Power, b.Power) || a.Parts > b.Parts {
@@ -158,13 +158,13 @@ func dominatesCand(a, b *Candidate) bool {
 }
 
 // sameObjectives reports whether a and b tie in error, power and part count.
-func sameObjectives(a, b *Candidate) bool {
+func sameObjectives(a, b *candidate) bool {
 	return constraints.Same(a.Error, b.Error) && constraints.Same(a.Power, b.Power) && a.Parts == b.Parts
 }
 
 // offer adds a copy of c unless a kept candidate dominates it, and drops the
 // kept candidates c dominates.
-func (f *frontList) offer(c *Candidate) {
+func (f *frontList) offer(c *candidate) {
 	for _, m := range f.items {
 		if dominatesCand(m, c) || (sameObjectives(m, c) && !f.r.less(c, m)) {
 			return
@@ -176,7 +176,7 @@ func (f *frontList) offer(c *Candidate) {
 			kept = append(kept, m)
 		}
 	}
-	f.items = append(kept, &Candidate{Opt: append([]int32(nil), c.Opt...), Error: c.Error, Power: c.Power, Parts: c.Parts})
+	f.items = append(kept, &candidate{Opt: append([]int32(nil), c.Opt...), Error: c.Error, Power: c.Power, Parts: c.Parts})
 }
 
 // compareKeys orders two answers by the rank keys with the contract's tie

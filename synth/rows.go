@@ -139,7 +139,7 @@ func runNoFree(p *Problem, st *runState) error {
 	st.status = Proven
 	st.open = math.Inf(1)
 	if sc.Feasible && withinCap(sc.Error, st.errCap) {
-		st.top.offer(&Candidate{Opt: []int32{}, Error: sc.Error, Power: sc.Power})
+		st.top.offer(&candidate{Opt: []int32{}, Error: sc.Error, Power: sc.Power})
 	} else {
 		st.viol[sc.ViolatedTarget*st.nc+sc.ViolatedCondition]++
 	}
@@ -174,7 +174,7 @@ type rowWorker struct {
 	cur    []int32
 	cond   []rowCond
 	top    *topList
-	cand   Candidate
+	cand   candidate
 	viol   []int64
 	stats  Stats
 	nc     int
@@ -197,7 +197,7 @@ type rowWorker struct {
 	// bar, when not nil, is a candidate known to rank among the best the
 	// search keeps (BranchBound's shared list): options that cannot beat it
 	// need not be scored.
-	bar *Candidate
+	bar *candidate
 }
 
 func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *rowWorker {
@@ -211,7 +211,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		cur:  make([]int32, len(p.Domains)),
 		cond: make([]rowCond, nc),
 		top:  newTopList(r, top, len(p.Domains)),
-		cand: Candidate{Opt: make([]int32, len(p.Domains))},
+		cand: candidate{Opt: make([]int32, len(p.Domains))},
 		viol: make([]int64, (len(p.Probes)+1)*nc),
 		nc:   nc, free: make([]float64, len(p.Domains)), sc: p.NewScore(),
 		port: make([]float64, n+1),
@@ -648,7 +648,7 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 // threshold returns the candidate an option must beat to be worth scoring:
 // the last of the worker's full top list, or the bar another part of the
 // search set (see BranchBound), whichever ranks first; nil when neither.
-func (w *rowWorker) threshold() *Candidate {
+func (w *rowWorker) threshold() *candidate {
 	t := w.top.worst()
 	if w.bar != nil && (t == nil || w.top.r.less(w.bar, t)) {
 		return w.bar

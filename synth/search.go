@@ -453,10 +453,10 @@ func (st *runState) finish(p *Problem, res *Result) error {
 // rescore evaluates candidates with full solves and returns them as
 // solutions in rank order. A candidate that fails its hard limits on the full
 // solve (only possible for one sitting on a limit within rounding) is left out.
-func (st *runState) rescore(p *Problem, s *solver.Solver, cands []*Candidate) []Solution {
+func (st *runState) rescore(p *Problem, s *solver.Solver, cands []*candidate) []Solution {
 	free := make([]float64, len(p.Domains))
 	type scored struct {
-		c  *Candidate
+		c  *candidate
 		sc *constraints.Score
 	}
 	var kept []scored
@@ -468,7 +468,7 @@ func (st *runState) rescore(p *Problem, s *solver.Solver, cands []*Candidate) []
 		if err := p.Evaluate(s, free, sc); err != nil || !sc.Feasible || !withinCap(sc.Error, st.errCap) {
 			continue
 		}
-		kept = append(kept, scored{&Candidate{Opt: c.Opt, Error: sc.Error, Power: sc.Power, Parts: c.Parts}, sc})
+		kept = append(kept, scored{&candidate{Opt: c.Opt, Error: sc.Error, Power: sc.Power, Parts: c.Parts}, sc})
 	}
 	// Rank again on the solver's own numbers; they agree with the search's
 	// within rounding, so this only settles near-ties the same way a plain
