@@ -188,6 +188,7 @@ type decoder struct {
 	partsNode  *yaml.Node
 
 	nodeRefs     []nodeRef
+	ratioRefs    []nodeRef // the nodes ratio targets divide by
 	partRefs     []partRef
 	condRefs     []condRef
 	overrideRefs []partRef
@@ -885,6 +886,9 @@ func (d *decoder) target(n *yaml.Node, path string, i int) {
 			}
 			tg.Nodes = append(tg.Nodes, name)
 			d.nodeRefs = append(d.nodeRefs, nodeRef{name, it, qpath})
+			if j == 1 && tg.Kind == Ratio {
+				d.ratioRefs = append(d.ratioRefs, nodeRef{name, it, qpath})
+			}
 		}
 	default:
 		// One name: a part, an ADC or a node, by kind.
@@ -1347,6 +1351,11 @@ func (d *decoder) crossCheck() {
 	for _, r := range d.nodeRefs {
 		if !slices.Contains(nodes, r.name) {
 			d.errorf(r.n, r.key, "target names node %q, which no part connects%s", r.name, suggest(r.name, nodes))
+		}
+	}
+	for _, r := range d.ratioRefs {
+		if r.name == t.Ground {
+			d.errorf(r.n, r.key, "ratio: %q is the ground node, always at 0 V, so the ratio is undefined; for a node's voltage to ground write {voltage: NODE}", r.name)
 		}
 	}
 	d.checkDangling(nodes)
