@@ -302,7 +302,7 @@ func (d *decoder) document(data []byte) (root *yaml.Node) {
 		if errors.Is(err, io.EOF) {
 			d.errorf(nil, "", "empty template: expected `ohmfit: 1` followed by parts")
 		} else {
-			d.yamlError(err)
+			d.yamlError(err, data)
 		}
 		return nil
 	}
@@ -312,7 +312,7 @@ func (d *decoder) document(data []byte) (root *yaml.Node) {
 		d.errorf(&extra, "", "a template is one YAML document; this file holds several (remove the extra `---`)")
 		return nil
 	case !errors.Is(err, io.EOF):
-		d.yamlError(err)
+		d.yamlError(err, data)
 		return nil
 	}
 	root = &doc
@@ -331,7 +331,9 @@ func (d *decoder) document(data []byte) (root *yaml.Node) {
 }
 
 // yamlError turns the parser's "yaml: line N: msg" into a positioned Error.
-func (d *decoder) yamlError(err error) {
+// When the source shows what went wrong (yamlHint), the error points at
+// that character and says how to fix it instead.
+func (d *decoder) yamlError(err error, src []byte) {
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")
 	e := &Error{File: d.file, Msg: "not valid YAML: " + msg, Err: err}
 	if rest, ok := strings.CutPrefix(msg, "line "); ok {
@@ -340,6 +342,9 @@ func (d *decoder) yamlError(err error) {
 				e.Line, e.Msg = n, "not valid YAML: "+text
 			}
 		}
+	}
+	if line, col, text, ok := yamlHint(src, msg, e.Line); ok {
+		e.Line, e.Col, e.Msg = line, col, "not valid YAML: "+text
 	}
 	d.errs = append(d.errs, e)
 }
@@ -430,6 +435,15 @@ func (d *decoder) fields(n *yaml.Node, path, ctx string, allowed []string) (map[
 			continue
 		}
 		if allowed != nil && !slices.Contains(allowed, name) {
+			if i := strings.IndexAny(k.Value, "：，"); i >= 0 && k.Style == 0 {
+				// "name： V1" reads as one key; point at the full-width mark.
+				c := *k
+				c.Column += utf8.RuneCountInString(k.Value[:i])
+				r, _ := utf8.DecodeRuneInString(k.Value[i:])
+				d.errorf(&c, kp, "%sa full-width %s (%c) where YAML needs the ASCII one; write %s with a space after it", pre,
+					map[rune]string{'：': "colon", '，': "comma"}[r], r, map[rune]string{'：': ":", '，': ","}[r])
+				continue
+			}
 			if s := suggest(name, allowed); s != "" {
 				d.errorf(k, kp, "%sunknown key %q%s", pre, name, s)
 			} else {
