@@ -1,6 +1,7 @@
 package constraints
 
 import (
+	"errors"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -47,6 +48,23 @@ func (e *Error) Error() string {
 
 // Unwrap returns the underlying cause, or nil.
 func (e *Error) Unwrap() error { return e.Err }
+
+// Message returns the error's text for a person, position first: the same
+// as Error, since an *Error names no package.
+func (e *Error) Message() string { return e.Error() }
+
+// Message returns an error's text for a person: the message of the first
+// error in its chain that has one written for people (the *Error types of
+// ohmfit's packages, which leave out the package's name), else its own
+// text. It is the one rule for turning a library error into what a command
+// prints; nothing edits an error's text as a string.
+func Message(err error) string {
+	var m interface{ Message() string }
+	if errors.As(err, &m) {
+		return m.Message()
+	}
+	return err.Error()
+}
 
 // before orders errors by position so the first one in the file is reported;
 // errors without a line (whole-file problems) come first.

@@ -23,10 +23,13 @@ func TestEmbeddedExamples(t *testing.T) {
 		"battery-sense": {{"Vgpio", V, false}, {"Rtop", R, true}, {"RT1", R, false}, {"Rpar", R, true}},
 		"bias-bench":    {{"Vin", V, false}, {"R1", R, false}, {"R2", R, false}, {"Ileak", I, false}, {"RL", R, false}},
 		"bridge":        {{"Vex", V, false}, {"RG", R, false}, {"R1", R, true}, {"R2", R, true}, {"R3", R, false}},
-		"divider":       {{"V5", V, false}, {"R1", R, true}, {"R2", R, true}, {"RL", R, false}},
-		"feedback":      {{"Vout", V, false}, {"R1", R, true}, {"R2", R, true}, {"Ibias", I, false}},
-		"gain-stage":    {{"Vin", V, false}, {"U1", U, false}, {"Rf", R, true}, {"Rg", R, true}, {"RL", R, false}},
-		"sensor-bias":   {{"Vref", V, false}, {"R1", R, true}, {"RT", R, false}, {"R2", R, true}},
+		// The ADC's input resistance and leakage come last, as the parts
+		// that load its node.
+		"cold-chain":  {{"Vgpio", V, false}, {"Rtop", R, true}, {"RT1", R, false}, {"Rpar", R, true}, {"ADC1:input", R, false}, {"ADC1:leakage", I, false}},
+		"divider":     {{"V5", V, false}, {"R1", R, true}, {"R2", R, true}, {"RL", R, false}},
+		"feedback":    {{"Vout", V, false}, {"R1", R, true}, {"R2", R, true}, {"Ibias", I, false}},
+		"gain-stage":  {{"Vin", V, false}, {"U1", U, false}, {"Rf", R, true}, {"Rg", R, true}, {"RL", R, false}},
+		"sensor-bias": {{"Vref", V, false}, {"R1", R, true}, {"RT", R, false}, {"R2", R, true}},
 	}
 	// The one example with nothing to choose: it is what `solve` and a
 	// plain `check` are shown on.

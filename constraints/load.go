@@ -195,6 +195,7 @@ type decoder struct {
 	setRefs      []setRef
 	curveRefs    []curveRef
 	adcRefs      []partRef
+	heatRefs     []partRef // self_heating targets: the sensor each names
 }
 
 func (d *decoder) errorf(n *yaml.Node, key, format string, args ...any) {
@@ -544,7 +545,7 @@ func (d *decoder) number(n *yaml.Node, path, ctx string, unit eseries.Unit) (flo
 	}
 	v, err := eseries.ParseAs(n.Value, unit)
 	if err != nil {
-		d.wrapf(n, path, err, "%s: %s", ctx, strings.TrimPrefix(err.Error(), "eseries: "))
+		d.wrapf(n, path, err, "%s: %s", ctx, Message(err))
 		return 0, false
 	}
 	return v, true
@@ -917,6 +918,9 @@ func (d *decoder) target(n *yaml.Node, path string, i int) {
 		case Code, Resolution:
 			tg.ADC = name
 			d.adcRefs = append(d.adcRefs, partRef{name, q.val, qpath})
+		case SelfHeating:
+			tg.Part = name
+			d.heatRefs = append(d.heatRefs, partRef{name, q.val, qpath})
 		default: // Linearity, Sensitivity
 			tg.Nodes = []string{name}
 			d.nodeRefs = append(d.nodeRefs, nodeRef{name, q.val, qpath})
@@ -1227,7 +1231,7 @@ func (d *decoder) stockFile(n *yaml.Node, path, ctx string) ([]float64, string, 
 		}
 		v, err := eseries.ParseAs(text, eseries.Ohm)
 		if err != nil {
-			return fail(strings.TrimPrefix(err.Error(), "eseries: "), err)
+			return fail(Message(err), err)
 		}
 		if v <= 0 {
 			return fail(fmt.Sprintf("stock value %s is not positive", eseries.Clip(text)), nil)
@@ -1435,6 +1439,11 @@ func (d *decoder) crossCheck() {
 			c := &t.Conditions[s.cond]
 			c.Set = append(c.Set, Setting{Part: s.part, Value: v})
 		}
+	}
+	if len(d.errs) == 0 {
+		// Last, so that no check above counts them as the user's parts
+		// (an ADC's node is connected only by what the user wires to it).
+		d.addADCLoads()
 	}
 }
 

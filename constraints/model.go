@@ -77,16 +77,42 @@ type PartSpec struct {
 	// is the resistance at ReferenceCelsius.
 	Sensor     sensors.Model
 	SensorType string // "ntc" or "rtd"
+	// BetaTolerance is an NTC's tolerance on its B constant as a fraction
+	// (`beta_tolerance: 1%`); zero means not given (B is taken as exact).
+	BetaTolerance float64
+	// Class is an RTD's IEC 60751 tolerance class (`class: A`), one of
+	// sensors.Classes; "" when not given.
+	Class string
+	// Dissipation is a sensor's dissipation constant in W/K (`dissipation:
+	// 1.5mW/K`): the power that raises it one kelvin above its
+	// surroundings. Zero means not given.
+	Dissipation float64
+
+	// ADC is set on the parts ohmfit adds for an ADC's input (`input:`, a
+	// resistor from its node to ground, and `leakage:`, a current source
+	// from its node to ground): the ADC's name. They load the node in every
+	// solve; they are no parts to buy or to vary, and are exact.
+	ADC string
 }
 
-// ADC is an analog-to-digital converter input (`type: adc`): an ideal,
-// unloading input whose reading targets can be written in codes.
+// ADC is an analog-to-digital converter input (`type: adc`) whose reading
+// targets can be written in codes: ideal and unloading unless it has an
+// input resistance or a leakage current, which the loader adds as parts
+// (see PartSpec.ADC).
 type ADC struct {
 	Name string
 	Node string  // the node it reads, against ground
 	Ref  float64 // full-scale reference, volts
 	Bits int
 	Pos  Pos
+	// Input is the input's resistance to ground in ohms (`input: 1M`);
+	// zero means none (an ideal input).
+	Input float64
+	// Leakage is the current the input draws out of the node, in amps
+	// (`leakage: 100n`; negative when it drives current into the node);
+	// HasLeakage says it was given.
+	Leakage    float64
+	HasLeakage bool
 }
 
 // Step is the voltage of one code step: Ref / 2^Bits.
@@ -106,6 +132,7 @@ const (
 	Linearity                     // largest deviation of a node's voltage from the straight line through the ends of the temperature sweep, in °C of reading
 	Sensitivity                   // |dV/dT| of a node at a temperature, volts per °C
 	Resolution                    // °C per ADC step at a temperature
+	SelfHeating                   // a sensor's temperature rise above its surroundings, °C: its power over its dissipation constant
 )
 
 // Target is one requirement on one quantity. A target with HasEquals is a
@@ -113,7 +140,7 @@ const (
 type Target struct {
 	Kind  TargetKind
 	Nodes []string // Voltage: 1 or 2 nodes; Ratio and Resistance: exactly 2
-	Part  string   // Current and Power
+	Part  string   // Current, Power and SelfHeating
 
 	HasEquals bool
 	Equals    float64
@@ -155,6 +182,20 @@ const (
 	Parallel                // two parts in parallel
 	Any                     // one part, or two in series or in parallel
 )
+
+// ParallelOf is the parallel law for two resistances, 1/R = 1/a + 1/b: the
+// one place ohmfit writes it.
+func ParallelOf(a, b float64) float64 { return a * b / (a + b) }
+
+// Join returns the resistance of two parts a and b joined as c says:
+// ParallelOf for Parallel, the sum otherwise (a pair is never Single or Any
+// once chosen; a lone part is not joined).
+func (c Combine) Join(a, b float64) float64 {
+	if c == Parallel {
+		return ParallelOf(a, b)
+	}
+	return a + b
+}
 
 // Choice says where a free position's values come from.
 type Choice struct {

@@ -22,7 +22,7 @@ func (t *Template) NetworkError(err error) *Error {
 	if err == nil {
 		return nil
 	}
-	e := &Error{File: t.File, Msg: strings.TrimPrefix(err.Error(), "solver: "), Err: err}
+	e := &Error{File: t.File, Msg: Message(err), Err: err}
 	at := func(names ...string) {
 		for _, p := range t.Parts {
 			if slices.Contains(names, p.Name) {

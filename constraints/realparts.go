@@ -145,7 +145,7 @@ func (d *decoder) pkg(n *yaml.Node, path, ctx string) (string, bool) {
 	}
 	p, err := ratings.Lookup(n.Value)
 	if err != nil {
-		d.errorf(n, path, "%s: %s%s", ctx, strings.TrimPrefix(err.Error(), "ratings: "), "")
+		d.errorf(n, path, "%s: %s", ctx, Message(err))
 		return "", false
 	}
 	return p.Name, true

@@ -73,8 +73,8 @@ func (t Target) Meets(v float64) bool {
 type Probe struct {
 	Kind  TargetKind
 	A, B  int     // node indices (B is ground for a single-node voltage)
-	Part  int     // part index for Current and Power
-	Scale float64 // Code: codes per volt (2^bits / ref)
+	Part  int     // part index for Current, Power and SelfHeating
+	Scale float64 // Code: codes per volt (2^bits / ref); SelfHeating: kelvin per watt (1 / dissipation constant)
 	// Sign turns the solver's current of the part (along its edge) into
 	// what a current target reads: CurrentSign of the part's kind.
 	Sign float64
@@ -107,6 +107,12 @@ func (p Probe) Read(s *solver.Solver) (float64, error) {
 		return p.Sign * s.Amps(p.Part), nil
 	case Power:
 		return s.Watts(p.Part), nil
+	case SelfHeating:
+		// The rise is P/δ with P the power the sensor takes while the
+		// network is on (not averaged over on_fraction: a reading is taken
+		// while it is powered, and the steady rise under constant power
+		// bounds the rise after any on-time).
+		return s.Watts(p.Part) * p.Scale, nil
 	case Ratio:
 		d := s.Voltage(p.B)
 		if d == 0 {
@@ -139,12 +145,10 @@ type Problem struct {
 	// (linearity, sensitivity, resolution), or nil. Its value goes in the
 	// Score at condition 0.
 	Derived []*DerivedProbe
-	// Points is the scratch length the derived probes need.
-	Points int
-	// PointSlots lists, per condition, which scratch points the derived
-	// probes read in it: after solving condition c, points[slot.Index] is
-	// the voltage of slot.Node, for each slot in PointSlots[c].
-	PointSlots [][]PointSlot
+	// npoints is the scratch length the derived probes need; slots lists,
+	// per condition, which scratch points they read in it (see Points).
+	npoints int
+	slots   [][]pointSlot
 	// OnFraction scales every power figure (see Template.OnFraction).
 	OnFraction float64
 }
@@ -178,6 +182,9 @@ func Compile(t *Template) (*Problem, error) {
 		if err != nil {
 			return nil, err
 		}
+		if tg.Kind == SelfHeating {
+			pr.Scale = 1 / t.Parts[pr.Part].Dissipation
+		}
 		if tg.Kind == Code {
 			for _, a := range t.ADCs {
 				if a.Name == tg.ADC {
@@ -192,13 +199,13 @@ func Compile(t *Template) (*Problem, error) {
 			if dp, err = derivedFor(t, tg, pr.A); err != nil {
 				return nil, err
 			}
-			dp.Offset = p.Points
-			p.Points += len(dp.Conds)
-			if p.PointSlots == nil {
-				p.PointSlots = make([][]PointSlot, len(p.Conditions))
+			dp.Offset = p.npoints
+			p.npoints += len(dp.Conds)
+			if p.slots == nil {
+				p.slots = make([][]pointSlot, len(p.Conditions))
 			}
 			for k, c := range dp.Conds {
-				p.PointSlots[c] = append(p.PointSlots[c], PointSlot{Index: dp.Offset + k, Node: dp.Node})
+				p.slots[c] = append(p.slots[c], pointSlot{index: dp.Offset + k, node: dp.Node})
 			}
 		} else {
 			for ci, cv := range p.Conditions {
@@ -258,7 +265,7 @@ func probeFor(net *solver.Network, t Target) (Probe, error) {
 	}
 	var err error
 	switch t.Kind {
-	case Current, Power:
+	case Current, Power, SelfHeating:
 		i, ok := net.PartIndex(t.Part)
 		if !ok {
 			return pr, fmt.Errorf("constraints: target %s names unknown part %q", t.Label(), t.Part)
@@ -295,15 +302,26 @@ type Score struct {
 	// Values[t*len(Conditions)+c]; NaN where the target does not apply.
 	Values []float64
 	// Violated names the first hard limit the candidate fails (target index,
-	// condition index), or -1, -1. Target index len(Targets) is supply_power_max.
+	// condition index), or -1, -1. Problem.SupplyLimit stands for
+	// supply_power_max.
 	ViolatedTarget, ViolatedCondition int
 
-	points []float64 // node voltages the derived probes read
+	points *Points // node voltages the derived probes read
 }
+
+// SupplyLimit is the index that stands for the supply_power_max limit
+// wherever an index names the hard limit a candidate breaks
+// (Score.ViolatedTarget, synth.Violation, synth.LimitReach): one past the
+// targets, which take 0 … len(Targets)-1.
+func (p *Problem) SupplyLimit() int { return len(p.Probes) }
+
+// IsSupplyLimit reports whether limit index i names supply_power_max
+// rather than a target.
+func (p *Problem) IsSupplyLimit(i int) bool { return i == len(p.Probes) }
 
 // NewScore returns a Score sized for the problem, to be reused across calls.
 func (p *Problem) NewScore() *Score {
-	return &Score{Values: make([]float64, len(p.Probes)*len(p.Conditions)), points: make([]float64, p.Points)}
+	return &Score{Values: make([]float64, len(p.Probes)*len(p.Conditions)), points: p.NewPoints()}
 }
 
 // Evaluate scores one assignment of the free positions (ohms, in Free
@@ -342,7 +360,7 @@ func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, afte
 		}
 		if lim := p.Template.Limits.SupplyPowerMax; lim > 0 && pw > lim && !Same(pw, lim) && sc.Feasible {
 			sc.Feasible = false
-			sc.ViolatedTarget, sc.ViolatedCondition = len(p.Probes), ci
+			sc.ViolatedTarget, sc.ViolatedCondition = p.SupplyLimit(), ci
 		}
 		for ti, pr := range p.Probes {
 			k := ti*nc + ci
@@ -365,12 +383,12 @@ func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, afte
 				sc.Error = e
 			}
 		}
-		p.GatherPoints(ci, s, sc.points)
+		sc.points.Gather(ci, s)
 		if after != nil {
 			after(ci)
 		}
 	}
-	p.scoreDerived(sc.points, sc)
+	p.scoreDerived(sc.points.v, sc)
 	return nil
 }
 
@@ -396,27 +414,63 @@ func (p *Problem) scoreDerived(points []float64, sc *Score) {
 	}
 }
 
-// DerivedValue computes a sweep-wide target from the node voltages the
-// search gathered (laid out by each probe's Offset), for callers that score
-// without a full Evaluate.
-func (p *Problem) DerivedValue(ti int, points []float64) float64 {
-	dp := p.Derived[ti]
-	return dp.Value(points[dp.Offset : dp.Offset+len(dp.Conds)])
+// Points holds the node voltages the sweep-wide targets (linearity,
+// sensitivity, resolution) read, gathered condition by condition, for a
+// caller that scores without Evaluate (a search's update formula, a
+// Monte Carlo draw). One per goroutine; it does not allocate after
+// NewPoints.
+type Points struct {
+	p *Problem
+	v []float64
 }
 
-// PointSlot is one node voltage a sweep-wide target reads in a condition.
-type PointSlot struct {
-	Index int // into the points scratch
-	Node  int // node index
+// pointSlot is one node voltage a sweep-wide target reads in a condition.
+type pointSlot struct {
+	index int // into Points.v
+	node  int // node index
 }
 
-// GatherPoints records, after condition ci was solved by s, the node
-// voltages the sweep-wide targets read in it. It does not allocate.
-func (p *Problem) GatherPoints(ci int, s *solver.Solver, points []float64) {
-	if p.PointSlots == nil {
+// NewPoints returns an empty gatherer for the problem's sweep-wide targets.
+func (p *Problem) NewPoints() *Points {
+	return &Points{p: p, v: make([]float64, p.npoints)}
+}
+
+// Gather records, after condition ci was solved by s, the node voltages
+// the sweep-wide targets read in it.
+func (pt *Points) Gather(ci int, s *solver.Solver) {
+	if pt.p.slots == nil {
 		return
 	}
-	for _, ps := range p.PointSlots[ci] {
-		points[ps.Index] = s.Voltage(ps.Node)
+	for _, ps := range pt.p.slots[ci] {
+		pt.v[ps.index] = s.Voltage(ps.node)
 	}
+}
+
+// GatherUpdated records condition ci's node voltages from a rank-one
+// update of a solution, node voltage x0[n] - w[n]·u (the layout of
+// solver.Solver.X with the ground node first).
+func (pt *Points) GatherUpdated(ci int, x0, w []float64, u float64) {
+	if pt.p.slots == nil {
+		return
+	}
+	for _, ps := range pt.p.slots[ci] {
+		pt.v[ps.index] = x0[ps.node] - w[ps.node]*u
+	}
+}
+
+// Fail marks condition ci's points as unknown (its solve failed), so that
+// every sweep-wide target reading it comes out NaN.
+func (pt *Points) Fail(ci int) {
+	if pt.p.slots == nil {
+		return
+	}
+	for _, ps := range pt.p.slots[ci] {
+		pt.v[ps.index] = math.NaN()
+	}
+}
+
+// Derived computes sweep-wide target ti from the points gathered.
+func (pt *Points) Derived(ti int) float64 {
+	dp := pt.p.Derived[ti]
+	return dp.Value(pt.v[dp.Offset : dp.Offset+len(dp.Conds)])
 }

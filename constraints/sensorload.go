@@ -9,6 +9,7 @@ import (
 
 	"github.com/ohmfit/ohmfit/constraints/sensors"
 	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/solver"
 	"gopkg.in/yaml.v3"
 )
 
@@ -20,8 +21,8 @@ import (
 // sensorKeys are the keys of each sensor part type beyond name, type, from
 // and to; all are optional to the generic check and validated here.
 var sensorKeys = map[string][]string{
-	"ntc": {"r25", "beta", "steinhart", "tolerance", "package"},
-	"rtd": {"r0", "coefficients", "tolerance", "package"},
+	"ntc": {"r25", "beta", "steinhart", "tolerance", "beta_tolerance", "package", "dissipation"},
+	"rtd": {"r0", "coefficients", "tolerance", "class", "package", "dissipation"},
 }
 
 // sensorModel reads an ntc or rtd part's model and sets its Value to the
@@ -38,6 +39,10 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 			d.errorf(sh.key, joinKey(path, "steinhart"), "%s: give either r25 and beta or steinhart, not both", ctx)
 			return false
 		case hasSH:
+			if e, ok := byName["beta_tolerance"]; ok {
+				d.errorf(e.key, joinKey(path, "beta_tolerance"), "%s: beta_tolerance goes with r25 and beta; a Steinhart–Hart model has no B constant", ctx)
+				return false
+			}
 			c, ok := d.numbers(sh.val, joinKey(path, "steinhart"), label(ctx, "steinhart"), 3, "[1.129e-3, 2.341e-4, 8.775e-8]")
 			if !ok {
 				return false
@@ -51,6 +56,13 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 				return false
 			}
 			p.Sensor = sensors.Beta{R25: r, Beta: b}
+			if e, ok := byName["beta_tolerance"]; ok {
+				bt, ok := d.fraction(e.val, joinKey(path, "beta_tolerance"), label(ctx, "beta_tolerance"), "1%")
+				if !ok {
+					return false
+				}
+				p.BetaTolerance = bt
+			}
 		default:
 			d.missingf(n, joinKey(path, "r25"), "%s: a thermistor needs r25 and beta (e.g. r25: 10k, beta: 3950) or steinhart: [A, B, C]", ctx)
 			return false
@@ -74,6 +86,28 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 			m.A, m.B, m.C = c[0], c[1], c[2]
 		}
 		p.Sensor = m
+		if e, ok := byName["class"]; ok {
+			cpath := joinKey(path, "class")
+			if t, has := byName["tolerance"]; has {
+				d.errorf(t.key, joinKey(path, "tolerance"), "%s: give class or tolerance, not both (the class is the tolerance)", ctx)
+				return false
+			}
+			var names []string
+			for _, c := range sensors.Classes {
+				names = append(names, c.Name)
+			}
+			c, ok := sensors.LookupClass(e.val.Value)
+			if e.val.Kind != yaml.ScalarNode || !ok {
+				d.errorf(e.val, cpath, "%s: expected an IEC 60751 class, one of %s, got %s", label(ctx, "class"), strings.Join(names, ", "), describe(e.val))
+				return false
+			}
+			p.Class = c.Name
+		}
+	}
+	if e, ok := byName["dissipation"]; ok {
+		if p.Dissipation, ok = d.dissipation(e.val, joinKey(path, "dissipation"), label(ctx, "dissipation")); !ok {
+			return false
+		}
 	}
 	v, err := p.Sensor.Resistance(ReferenceCelsius)
 	if err != nil || !(v > 0) || math.IsInf(v, 0) {
@@ -82,6 +116,53 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 	}
 	p.Value = v
 	return true
+}
+
+// fraction reads a percentage above 0 % and below 100 % (`1%`) or the
+// same as a plain fraction (`0.01`).
+func (d *decoder) fraction(n *yaml.Node, path, ctx, example string) (float64, bool) {
+	if n.Kind == yaml.ScalarNode && !isNull(n) {
+		if q, err := eseries.Parse(n.Value); err == nil && (q.Unit == eseries.Percent || q.Unit == eseries.NoUnit) && q.Value > 0 && q.Value < 1 {
+			return q.Value, true
+		}
+	}
+	d.errorf(n, path, "%s: expected a percentage above 0%% and below 100%% such as %s, got %s", ctx, example, describe(n))
+	return 0, false
+}
+
+// dissipation reads a dissipation constant: `1.5mW/K`, `1.5 mW/K`, or a
+// value in watts per kelvin without the unit (`1.5m`).
+func (d *decoder) dissipation(n *yaml.Node, path, ctx string) (float64, bool) {
+	if n.Kind != yaml.ScalarNode || isNull(n) {
+		d.errorf(n, path, "%s: expected a dissipation constant such as 1.5mW/K, got %s", ctx, describe(n))
+		return 0, false
+	}
+	text := strings.TrimSpace(n.Value)
+	for _, per := range []string{"/K", "/°C"} {
+		if strings.HasSuffix(text, per) {
+			text = strings.TrimSuffix(text, per)
+			if !strings.HasSuffix(text, "W") {
+				d.errorf(n, path, "%s: expected watts per kelvin such as 1.5mW/K, got %s", ctx, eseries.Quote(n.Value))
+				return 0, false
+			}
+			break
+		}
+	}
+	v, err := eseries.ParseAs(text, eseries.Watt)
+	if err != nil {
+		d.errorf(n, path, "%s: expected a dissipation constant such as 1.5mW/K, got %s", ctx, eseries.Quote(n.Value))
+		return 0, false
+	}
+	if !(v > 0) {
+		d.errorf(n, path, "%s: must be positive, got %s", ctx, eseries.Clip(n.Value))
+		return 0, false
+	}
+	if v < dissipationRange.lo || v > dissipationRange.hi {
+		d.errorf(n, path, "%s: %s lies outside %s/K … %s/K, %s; check the value and its unit (mW/K is written 1.5mW/K)", ctx, eseries.Clip(n.Value),
+			eseries.FormatUnit(dissipationRange.lo, eseries.Watt), eseries.FormatUnit(dissipationRange.hi, eseries.Watt), dissipationRange.what)
+		return 0, false
+	}
+	return v, true
 }
 
 // paramRange is the usual range of a sensor parameter, for refusing a
@@ -99,6 +180,11 @@ var (
 	betaRange = paramRange{1000, 10000, eseries.NoUnit, "K, the usual range of an NTC's B constant (common practice, no source)"}
 	r25Range  = paramRange{1, 100e6, eseries.Ohm, "Ω, the usual range of an NTC's resistance at 25 °C (common practice, no source)"}
 	r0Range   = paramRange{1, 100e3, eseries.Ohm, "Ω, the usual range of a platinum sensor's resistance at 0 °C, Pt10 to Pt10000 (common practice, no source)"}
+	// Datasheets give dissipation constants from about 0.5 mW/K (a bare
+	// bead in still air) to tens of mW/K (a probe in a stirred liquid or a
+	// large disc): the bounds leave a decade of margin each side, and catch
+	// a constant written in W/K that meant mW/K.
+	dissipationRange = paramRange{10e-6, 1, eseries.NoUnit, "the usual range of a sensor's dissipation constant (common practice, no source)"}
 )
 
 // within reports v inside r, reporting it at n otherwise.
@@ -140,7 +226,7 @@ func (d *decoder) checkSensorRanges() {
 			}
 			why := fmt.Sprintf("its model gives no usable resistance at %g °C", c.Temperature)
 			if err != nil {
-				why = strings.TrimPrefix(strings.TrimPrefix(err.Error(), sensors.ErrRange.Error()+": "), "sensors: ")
+				why = Message(err)
 			}
 			d.errorf(&yaml.Node{Line: at.Line, Column: at.Col}, "conditions",
 				"%s: part %q: %s; keep the temperatures within the sensor's range", what, p.Name, why)
@@ -177,7 +263,7 @@ func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
 			}
 		}
 	}
-	byName, _ := d.fields(n, path, ctx, []string{"name", "type", "in", "ref", "bits", "max_source"})
+	byName, _ := d.fields(n, path, ctx, []string{"name", "type", "in", "ref", "bits", "max_source", "input", "leakage"})
 	for _, k := range []string{"name", "in", "ref", "bits"} {
 		if _, ok := byName[k]; !ok {
 			d.missingf(n, joinKey(path, k), "%s: missing key %q for an adc (e.g. {name: ADC1, type: adc, in: sense, ref: 3.3, bits: 12})", ctx, k)
@@ -212,7 +298,41 @@ func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
 		}
 		d.t.Targets = append(d.t.Targets, Target{Kind: Resistance, Nodes: []string{a.Node, d.t.Ground}, HasMax: true, Max: max, Pos: Pos{e.val.Line, e.val.Column}})
 	}
+	if e, ok := byName["input"]; ok {
+		if a.Input, ok = d.positive(e.val, joinKey(path, "input"), label(ctx, "input"), eseries.Ohm); !ok {
+			return a, nil, false
+		}
+	}
+	if e, ok := byName["leakage"]; ok {
+		if a.Leakage, ok = d.value(e.val, joinKey(path, "leakage"), label(ctx, "leakage"), eseries.Amp); !ok {
+			return a, nil, false
+		}
+		a.HasLeakage = true
+	}
 	return a, byName["name"].val, true
+}
+
+// addADCLoads adds, once every name is checked, the parts that model each
+// ADC's input: its resistance and its leakage, each from its node to
+// ground, named "ADC1:input" and "ADC1:leakage" and placed at the ADC.
+func (d *decoder) addADCLoads() {
+	t := d.t
+	for _, a := range t.ADCs {
+		add := func(suffix string, p solver.Part) {
+			p.Name, p.From, p.To = a.Name+suffix, a.Node, t.Ground
+			if _, dup := t.Part(p.Name); dup {
+				d.errorf(&yaml.Node{Line: a.Pos.Line, Column: a.Pos.Col}, "parts", "part name %q is taken; ohmfit names the part that models the input of ADC %q so: rename one", p.Name, a.Name)
+				return
+			}
+			t.Parts = append(t.Parts, PartSpec{Part: p, Pos: a.Pos, ADC: a.Name})
+		}
+		if a.Input > 0 {
+			add(":input", solver.Part{Kind: solver.Resistor, Value: a.Input})
+		}
+		if a.HasLeakage {
+			add(":leakage", solver.Part{Kind: solver.CurrentSource, Value: a.Leakage})
+		}
+	}
 }
 
 // temperature reads a temperature in °C: a plain number (85, -20, 25.5).
@@ -441,6 +561,23 @@ func (d *decoder) checkSensors() {
 	for _, r := range d.adcRefs {
 		if !slices.Contains(adcNames, r.name) {
 			d.errorf(r.n, r.key, "target names ADC %q, which is not in parts%s", r.name, suggest(r.name, adcNames))
+		}
+	}
+	for _, r := range d.heatRefs {
+		i, ok := t.Part(r.name)
+		var names []string
+		for _, p := range t.Parts {
+			if p.Sensor != nil {
+				names = append(names, p.Name)
+			}
+		}
+		switch {
+		case !ok:
+			d.errorf(r.n, r.key, "self_heating names part %q, which is not in parts%s", r.name, suggest(r.name, names))
+		case t.Parts[i].Sensor == nil:
+			d.errorf(r.n, r.key, "self_heating names part %q, which is not a sensor; it goes with an ntc or rtd part", r.name)
+		case t.Parts[i].Dissipation == 0:
+			d.errorf(r.n, r.key, "self_heating names %s %q, which has no dissipation constant; give the part `dissipation:` from its datasheet (e.g. dissipation: 1.5mW/K)", t.Parts[i].SensorType, r.name)
 		}
 	}
 	for i := range t.Targets {

@@ -198,3 +198,46 @@ func evaluateText(t *testing.T, text string) (*Template, *Problem, *Score) {
 	}
 	return tp, p, sc
 }
+
+// Self-heating in a divider, by hand: a 3.3 V source, R1 = 10k on top and an
+// NTC of R25 = 10k at 25 °C below. By the divider law and Ohm's law the
+// sensor carries I = 3.3 / 20k and takes P = I²·R = 272.25 µW; with
+// δ = 1.5 mW/K its rise is P/δ = 0.1815 °C (the dissipation constant's
+// definition). At 0 °C the sensor is R(0) = R25·exp(B·(1/273.15 − 1/298.15))
+// (the Beta equation) and the rise follows from the same two laws.
+func TestSelfHeatingDividerClosedForm(t *testing.T) {
+	text := `ohmfit: 1
+parts:
+  - {name: V1, type: voltage-source, plus: vcc, minus: gnd, volts: 3.3}
+  - {name: R1, type: resistor, from: vcc, to: s, value: 10k}
+  - {name: RT1, type: ntc, from: s, to: gnd, r25: 10k, beta: 3950, dissipation: 1.5mW/K}
+conditions:
+  - {name: room, temperature: 25}
+  - {name: cold, temperature: 0}
+targets:
+  - {self_heating: RT1, max: 0.2}
+`
+	tp, p, sc := evaluateText(t, text)
+	if got := tp.Parts[2].Dissipation; math.Abs(got-1.5e-3) > 1e-18 {
+		t.Fatalf("dissipation %g W/K, want 1.5e-3", got)
+	}
+	rise := func(r float64) float64 {
+		i := 3.3 / (10e3 + r)
+		return i * i * r / 1.5e-3
+	}
+	r0 := 10e3 * math.Exp(3950*(1/273.15-1/298.15))
+	want := []float64{0.1815, rise(r0)}
+	for ci, w := range want {
+		if got := sc.Values[ci]; math.Abs(got-w) > 1e-12*w {
+			t.Errorf("%s: rise %.15g °C, closed form %.15g °C", p.Conditions[ci].Name, got, w)
+		}
+	}
+	if !sc.Feasible {
+		t.Errorf("rises %v within 0.2 °C, but the score is infeasible", sc.Values)
+	}
+	// A limit below the room rise rejects the design.
+	_, _, sc = evaluateText(t, strings.Replace(text, "max: 0.2", "max: 0.18", 1))
+	if sc.Feasible {
+		t.Errorf("rise 0.1815 °C passed a 0.18 °C limit")
+	}
+}

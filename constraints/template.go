@@ -26,6 +26,12 @@ func (t *Template) Circuit() solver.Circuit {
 // order: the fixed values, the condition's settings, and each sensor's
 // resistance at the condition's temperature. Free parts hold 0.
 func (t *Template) ConditionValues(ci int) ([]float64, error) {
+	return t.ValuesAt(ci, t.Conditions[ci].Temperature)
+}
+
+// ValuesAt is ConditionValues with every sensor at celsius instead of the
+// condition's own temperature: for a curve drawn between the conditions.
+func (t *Template) ValuesAt(ci int, celsius float64) ([]float64, error) {
 	cond := t.Conditions[ci]
 	vals := make([]float64, len(t.Parts))
 	for i, ps := range t.Parts {
@@ -44,9 +50,9 @@ func (t *Template) ConditionValues(ci int) ([]float64, error) {
 		if ps.Sensor == nil {
 			continue
 		}
-		r, err := ps.Sensor.Resistance(cond.Temperature)
+		r, err := ps.Sensor.Resistance(celsius)
 		if err != nil {
-			return nil, fmt.Errorf("constraints: part %s in condition %q: %s", ps.Name, cond.Name, strings.TrimPrefix(err.Error(), "sensors: "))
+			return nil, &Error{Msg: fmt.Sprintf("part %s in condition %q: %s", ps.Name, cond.Name, Message(err)), Err: err}
 		}
 		vals[i] = r
 	}
@@ -138,6 +144,8 @@ func (k TargetKind) UnitText() string {
 		return "V/°C"
 	case Resolution:
 		return "°C/step"
+	case SelfHeating:
+		return "°C"
 	}
 	return ""
 }
@@ -152,7 +160,7 @@ func (k TargetKind) Derived() bool {
 // "current R1", "power R1", "ratio fb/out", "resistance out-gnd".
 func (t Target) Label() string {
 	switch t.Kind {
-	case Current, Power:
+	case Current, Power, SelfHeating:
 		return t.Kind.String() + " " + t.Part
 	case Code:
 		return t.Kind.String() + " " + t.ADC
@@ -199,7 +207,7 @@ func (k RankKey) String() string {
 
 // Spellings, indexed by the constants they name.
 var (
-	targetKeys   = []string{"voltage", "current", "power", "ratio", "resistance", "code", "linearity", "sensitivity", "resolution"}
+	targetKeys   = []string{"voltage", "current", "power", "ratio", "resistance", "code", "linearity", "sensitivity", "resolution", "self_heating"}
 	combineNames = []string{"single", "series", "parallel", "any"}
 	rankNames    = []string{"error", "power", "parts"}
 )

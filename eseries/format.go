@@ -1,7 +1,6 @@
 package eseries
 
 import (
-	"fmt"
 	"math"
 	"strconv"
 	"strings"
@@ -133,7 +132,7 @@ var codeLetter = map[int]string{0: "R", 3: "K", 6: "M", 9: "G"}
 // and give an error.
 func Code(v float64) (string, error) {
 	if !(v > 0) || math.IsInf(v, 1) {
-		return "", fmt.Errorf("eseries: no IEC 60062 code for %s: want a finite resistance above zero",
+		return "", errorf(nil, "no IEC 60062 code for %s: want a finite resistance above zero",
 			strconv.FormatFloat(v, 'g', -1, 64))
 	}
 	digits, exp := sigDigits(v, 4)

@@ -69,6 +69,12 @@ func (e *ParseError) Error() string {
 	return ErrSyntax.Error() + " " + Quote(e.Text) + ": " + e.Reason
 }
 
+// Message returns the error's text for a person, without the package's
+// name: e.g. `cannot read value "4.7x": unknown suffix "x"`.
+func (e *ParseError) Message() string {
+	return "cannot read value " + Quote(e.Text) + ": " + e.Reason
+}
+
 // Unwrap returns ErrSyntax, so errors.Is(err, ErrSyntax) holds.
 func (e *ParseError) Unwrap() error { return ErrSyntax }
 

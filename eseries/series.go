@@ -2,7 +2,6 @@ package eseries
 
 import (
 	"errors"
-	"fmt"
 	"math"
 	"sort"
 	"strconv"
@@ -110,7 +109,7 @@ func Lookup(name string) (*Series, error) {
 			return &c, nil
 		}
 	}
-	return nil, fmt.Errorf("%w %q (known: %s)", ErrUnknownSeries, name, strings.Join(Names(), ", "))
+	return nil, errorf(ErrUnknownSeries, "unknown series %q (known: %s)", name, strings.Join(Names(), ", "))
 }
 
 // Mantissas returns a new slice of the series' values in [1, 10), ascending.

@@ -45,6 +45,32 @@ func benchNetworks() []benchNet {
 func naiveSolve(parts []Part, from, to, plus, minus []int, nn, n int) (*mat.VecDense, error) {
 	a := mat.NewDense(n, n, nil)
 	b := mat.NewVecDense(n, nil)
+	naiveStamp(a, b, parts, from, to, plus, minus, nn)
+	var lu mat.LU
+	lu.Factorize(a)
+	x := mat.NewVecDense(n, nil)
+	err := lu.SolveVecTo(x, false, b)
+	return x, err
+}
+
+// reusedLU is the careful gonum baseline: the matrix, vectors and LU are
+// allocated once and refilled for every evaluation.
+type reusedLU struct {
+	a    *mat.Dense
+	b, x *mat.VecDense
+	lu   mat.LU
+}
+
+func (r *reusedLU) solve(parts []Part, from, to, plus, minus []int, nn int) error {
+	r.a.Zero()
+	r.b.Zero()
+	naiveStamp(r.a, r.b, parts, from, to, plus, minus, nn)
+	r.lu.Factorize(r.a)
+	return r.lu.SolveVecTo(r.x, false, r.b)
+}
+
+// naiveStamp adds every part's MNA stamp into a and b (zeroed by the caller).
+func naiveStamp(a *mat.Dense, b *mat.VecDense, parts []Part, from, to, plus, minus []int, nn int) {
 	add := func(r, c int, v float64) {
 		if r >= 0 && c >= 0 {
 			a.Set(r, c, a.At(r, c)+v)
@@ -82,11 +108,26 @@ func naiveSolve(parts []Part, from, to, plus, minus []int, nn, n int) (*mat.VecD
 			row++
 		}
 	}
-	var lu mat.LU
-	lu.Factorize(a)
-	x := mat.NewVecDense(n, nil)
-	err := lu.SolveVecTo(x, false, b)
-	return x, err
+}
+
+// benchNodes returns the node numbers the baselines stamp with.
+func benchNodes(b *testing.B, c Circuit) (net *Network, parts []Part, from, to, plus, minus []int) {
+	net, err := Compile(c)
+	if err != nil {
+		b.Fatal(err)
+	}
+	parts = net.Parts()
+	np := len(parts)
+	from, to, plus, minus = make([]int, np), make([]int, np), make([]int, np), make([]int, np)
+	idx := func(s string) int { k, _ := net.NodeIndex(s); return k }
+	for i, p := range parts {
+		if p.Kind == OpAmp {
+			to[i], plus[i], minus[i] = idx(p.Out), idx(p.Plus), idx(p.Minus)
+		} else {
+			from[i], to[i] = idx(p.From), idx(p.To)
+		}
+	}
+	return net, parts, from, to, plus, minus
 }
 
 func BenchmarkResolve(b *testing.B) {
@@ -108,27 +149,33 @@ func BenchmarkResolve(b *testing.B) {
 func BenchmarkResolveNaive(b *testing.B) {
 	for _, bn := range benchNetworks() {
 		b.Run("n="+bn.name, func(b *testing.B) {
-			net, err := Compile(bn.c)
-			if err != nil {
-				b.Fatal(err)
-			}
-			parts := net.Parts()
-			np := len(parts)
-			from, to, plus, minus := make([]int, np), make([]int, np), make([]int, np), make([]int, np)
-			idx := func(s string) int { k, _ := net.NodeIndex(s); return k }
-			for i, p := range parts {
-				if p.Kind == OpAmp {
-					to[i], plus[i], minus[i] = idx(p.Out), idx(p.Plus), idx(p.Minus)
-				} else {
-					from[i], to[i] = idx(p.From), idx(p.To)
-				}
-			}
+			net, parts, from, to, plus, minus := benchNodes(b, bn.c)
 			nn := len(net.Nodes()) - 1
 			v := parts[bn.vary].Value
 			b.ReportAllocs()
 			for i := 0; b.Loop(); i++ {
 				parts[bn.vary].Value = v * (1 + float64(i&7)*0.01)
 				if _, err := naiveSolve(parts, from, to, plus, minus, nn, net.Unknowns()); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
+
+// BenchmarkResolveReusedLU is the fair gonum baseline for BenchmarkResolve:
+// nothing allocated per evaluation, the LU reused.
+func BenchmarkResolveReusedLU(b *testing.B) {
+	for _, bn := range benchNetworks() {
+		b.Run("n="+bn.name, func(b *testing.B) {
+			net, parts, from, to, plus, minus := benchNodes(b, bn.c)
+			nn, n := len(net.Nodes())-1, net.Unknowns()
+			r := &reusedLU{a: mat.NewDense(n, n, nil), b: mat.NewVecDense(n, nil), x: mat.NewVecDense(n, nil)}
+			v := parts[bn.vary].Value
+			b.ReportAllocs()
+			for i := 0; b.Loop(); i++ {
+				parts[bn.vary].Value = v * (1 + float64(i&7)*0.01)
+				if err := r.solve(parts, from, to, plus, minus, nn); err != nil {
 					b.Fatal(err)
 				}
 			}

@@ -26,13 +26,16 @@ type FloatingError struct {
 	Nodes []string // every node of the group, in node order
 }
 
-// Error names the fault in an engineer's words.
-func (e *FloatingError) Error() string {
+// Message names the fault in an engineer's words.
+func (e *FloatingError) Message() string {
 	if len(e.Nodes) == 1 {
-		return fmt.Sprintf("solver: node %s has no DC path to ground", e.Nodes[0])
+		return fmt.Sprintf("node %s has no DC path to ground", e.Nodes[0])
 	}
-	return fmt.Sprintf("solver: nodes %s have no DC path to ground", strings.Join(e.Nodes, ", "))
+	return fmt.Sprintf("nodes %s have no DC path to ground", strings.Join(e.Nodes, ", "))
 }
+
+// Error is Message with the package's name in front.
+func (e *FloatingError) Error() string { return "solver: " + e.Message() }
 
 // Unwrap returns ErrSingular.
 func (e *FloatingError) Unwrap() error { return ErrSingular }
@@ -45,15 +48,18 @@ type SourceLoopError struct {
 	Sources []string // the voltage sources and op-amps in the loop, in edge order
 }
 
-// Error names the fault in an engineer's words.
-func (e *SourceLoopError) Error() string {
+// Message names the fault in an engineer's words.
+func (e *SourceLoopError) Message() string {
 	names := strings.Join(e.Sources, ", ")
 	if len(e.Sources) == 1 {
-		return fmt.Sprintf("solver: op-amp %s drives its output straight into ground", names)
+		return fmt.Sprintf("op-amp %s drives its output straight into ground", names)
 	}
-	return fmt.Sprintf("solver: %s form a loop of voltage sources and op-amp outputs "+
+	return fmt.Sprintf("%s form a loop of voltage sources and op-amp outputs "+
 		"(an ideal op-amp output is a voltage source against ground)", names)
 }
+
+// Error is Message with the package's name in front.
+func (e *SourceLoopError) Error() string { return "solver: " + e.Message() }
 
 // Unwrap returns ErrSingular.
 func (e *SourceLoopError) Unwrap() error { return ErrSingular }
@@ -67,11 +73,14 @@ type InputLoopError struct {
 	Parts []string // the voltage sources and op-amps on the loop, in edge order
 }
 
-// Error names the fault in an engineer's words.
-func (e *InputLoopError) Error() string {
-	return fmt.Sprintf("solver: %s form a loop of voltage sources and op-amp inputs "+
+// Message names the fault in an engineer's words.
+func (e *InputLoopError) Message() string {
+	return fmt.Sprintf("%s form a loop of voltage sources and op-amp inputs "+
 		"(an ideal op-amp's inputs sit at equal voltage)", strings.Join(e.Parts, ", "))
 }
+
+// Error is Message with the package's name in front.
+func (e *InputLoopError) Error() string { return "solver: " + e.Message() }
 
 // Unwrap returns ErrSingular.
 func (e *InputLoopError) Unwrap() error { return ErrSingular }
@@ -84,11 +93,14 @@ type CurrentCutsetError struct {
 	Nodes   []string // every node of the group, in node order
 }
 
-// Error names the fault in an engineer's words.
-func (e *CurrentCutsetError) Error() string {
-	return fmt.Sprintf("solver: current from %s has nowhere to go: %s %s no other DC path to ground",
+// Message names the fault in an engineer's words.
+func (e *CurrentCutsetError) Message() string {
+	return fmt.Sprintf("current from %s has nowhere to go: %s %s no other DC path to ground",
 		strings.Join(e.Sources, ", "), plural(len(e.Nodes), "node", "nodes"), nodeList(e.Nodes))
 }
+
+// Error is Message with the package's name in front.
+func (e *CurrentCutsetError) Error() string { return "solver: " + e.Message() }
 
 // Unwrap returns ErrSingular.
 func (e *CurrentCutsetError) Unwrap() error { return ErrSingular }
@@ -107,17 +119,20 @@ type OpAmpFeedbackError struct {
 	Positive bool
 }
 
-// Error names the fault in an engineer's words.
-func (e *OpAmpFeedbackError) Error() string {
+// Message names the fault in an engineer's words.
+func (e *OpAmpFeedbackError) Message() string {
 	if e.Positive {
-		return fmt.Sprintf("solver: op-amp %s has only positive feedback: its output reaches its plus input and never its minus input, so a real op-amp latches at a rail", e.OpAmp)
+		return fmt.Sprintf("op-amp %s has only positive feedback: its output reaches its plus input and never its minus input, so a real op-amp latches at a rail", e.OpAmp)
 	}
 	if e.Input != "" {
-		return fmt.Sprintf("solver: op-amp %s has no usable feedback: input node %s connects to the "+
+		return fmt.Sprintf("op-amp %s has no usable feedback: input node %s connects to the "+
 			"rest of the circuit only through its other input %s", e.OpAmp, e.Input, e.Other)
 	}
-	return fmt.Sprintf("solver: op-amp %s has no feedback path from its output to an input", e.OpAmp)
+	return fmt.Sprintf("op-amp %s has no feedback path from its output to an input", e.OpAmp)
 }
+
+// Error is Message with the package's name in front.
+func (e *OpAmpFeedbackError) Error() string { return "solver: " + e.Message() }
 
 // Unwrap returns ErrSingular.
 func (e *OpAmpFeedbackError) Unwrap() error { return ErrSingular }
@@ -133,10 +148,13 @@ type SingularError struct {
 	Node, Part string
 }
 
-// Error names the fault in an engineer's words.
-func (e *SingularError) Error() string {
-	return fmt.Sprintf("solver: singular network: no pivot for the %s", e.Unknown)
+// Message names the fault in an engineer's words.
+func (e *SingularError) Message() string {
+	return fmt.Sprintf("singular network: no pivot for the %s", e.Unknown)
 }
+
+// Error is Message with the package's name in front.
+func (e *SingularError) Error() string { return "solver: " + e.Message() }
 
 // Unwrap returns ErrSingular.
 func (e *SingularError) Unwrap() error { return ErrSingular }
@@ -148,11 +166,14 @@ type IllConditionedError struct {
 	Cond float64
 }
 
-// Error names the fault in an engineer's words.
-func (e *IllConditionedError) Error() string {
-	return fmt.Sprintf("solver: network is ill-conditioned (condition number %.3g); "+
+// Message names the fault in an engineer's words.
+func (e *IllConditionedError) Message() string {
+	return fmt.Sprintf("network is ill-conditioned (condition number %.3g); "+
 		"check for values many decades apart", e.Cond)
 }
+
+// Error is Message with the package's name in front.
+func (e *IllConditionedError) Error() string { return "solver: " + e.Message() }
 
 // Unwrap returns ErrSingular.
 func (e *IllConditionedError) Unwrap() error { return ErrSingular }
@@ -168,10 +189,13 @@ type OverflowError struct {
 	Node, Part string
 }
 
-// Error names the fault in an engineer's words.
-func (e *OverflowError) Error() string {
-	return fmt.Sprintf("solver: the %s is too large to compute; check for values off by many decades", e.Quantity)
+// Message names the fault in an engineer's words.
+func (e *OverflowError) Message() string {
+	return fmt.Sprintf("the %s is too large to compute; check for values off by many decades", e.Quantity)
 }
+
+// Error is Message with the package's name in front.
+func (e *OverflowError) Error() string { return "solver: " + e.Message() }
 
 // ValueError reports a value the solver cannot use: a resistance that is
 // zero, negative, NaN or infinite, or a source value that is NaN or infinite.
@@ -181,23 +205,29 @@ type ValueError struct {
 	Value float64
 }
 
-// Error names the fault in an engineer's words.
-func (e *ValueError) Error() string {
+// Message names the fault in an engineer's words.
+func (e *ValueError) Message() string {
 	if e.Kind == Resistor {
-		return fmt.Sprintf("solver: resistor %s has unusable resistance %g (must be finite and > 0)", e.Part, e.Value)
+		return fmt.Sprintf("resistor %s has unusable resistance %g (must be finite and > 0)", e.Part, e.Value)
 	}
-	return fmt.Sprintf("solver: %s %s has unusable value %g (must be finite)", e.Kind, e.Part, e.Value)
+	return fmt.Sprintf("%s %s has unusable value %g (must be finite)", e.Kind, e.Part, e.Value)
 }
+
+// Error is Message with the package's name in front.
+func (e *ValueError) Error() string { return "solver: " + e.Message() }
 
 // DuplicatePartError reports two parts with the same name.
 type DuplicatePartError struct {
 	Name string
 }
 
-// Error names the fault in an engineer's words.
-func (e *DuplicatePartError) Error() string {
-	return fmt.Sprintf("solver: duplicate part name %q", e.Name)
+// Message names the fault in an engineer's words.
+func (e *DuplicatePartError) Message() string {
+	return fmt.Sprintf("duplicate part name %q", e.Name)
 }
+
+// Error is Message with the package's name in front.
+func (e *DuplicatePartError) Error() string { return "solver: " + e.Message() }
 
 // PartError reports a part that cannot be placed in the graph at all: no
 // name, an unknown kind, or a terminal without a node name.
@@ -207,13 +237,16 @@ type PartError struct {
 	Reason string
 }
 
-// Error names the fault in an engineer's words.
-func (e *PartError) Error() string {
+// Message names the fault in an engineer's words.
+func (e *PartError) Message() string {
 	if e.Name == "" {
-		return fmt.Sprintf("solver: part #%d: %s", e.Index+1, e.Reason)
+		return fmt.Sprintf("part #%d: %s", e.Index+1, e.Reason)
 	}
-	return fmt.Sprintf("solver: part %s: %s", e.Name, e.Reason)
+	return fmt.Sprintf("part %s: %s", e.Name, e.Reason)
 }
+
+// Error is Message with the package's name in front.
+func (e *PartError) Error() string { return "solver: " + e.Message() }
 
 // ShortedError reports a part whose terminals sit on one node: a two-terminal
 // part with both ends on Node, or an op-amp with both inputs on Node. Such a
@@ -225,13 +258,16 @@ type ShortedError struct {
 	Node string
 }
 
-// Error names the fault in an engineer's words.
-func (e *ShortedError) Error() string {
+// Message names the fault in an engineer's words.
+func (e *ShortedError) Message() string {
 	if e.Kind == OpAmp {
-		return fmt.Sprintf("solver: op-amp %s has both inputs on node %s", e.Part, e.Node)
+		return fmt.Sprintf("op-amp %s has both inputs on node %s", e.Part, e.Node)
 	}
-	return fmt.Sprintf("solver: part %s is shorted: both ends on node %s", e.Part, e.Node)
+	return fmt.Sprintf("part %s is shorted: both ends on node %s", e.Part, e.Node)
 }
+
+// Error is Message with the package's name in front.
+func (e *ShortedError) Error() string { return "solver: " + e.Message() }
 
 func plural(n int, one, many string) string {
 	if n == 1 {

@@ -343,7 +343,10 @@ func (net *Network) Edges() []Edge { return append([]Edge(nil), net.edges...) }
 // Nodes order, ground first; columns: edges in Edges order). Entry (k, e) is
 // +1 where edge e leaves node k, -1 where it enters it, 0 otherwise, so A·i
 // is the net current leaving each node (KCL: A·i = 0) and Aᵀ·v gives the
-// edge voltages V(From) - V(To) (KVL). Each call returns a new matrix.
+// edge voltages V(From) - V(To) (KVL). Each call returns a new matrix. The
+// solver does not use it (it stamps from the edges directly); it is the
+// graph in the textbook form, for checking a solution by KCL and KVL
+// independently of the solver, as the tests do.
 func (net *Network) Incidence() *mat.Dense {
 	a := mat.NewDense(len(net.nodes), len(net.edges), nil)
 	for j, e := range net.edges {

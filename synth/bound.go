@@ -174,30 +174,9 @@ func (m BranchBound) run(ctx context.Context, p *Problem, set *Settings, st *run
 		// from the tie tolerance; see DEVELOPERS.md.
 		leaf = 64
 	}
-	j := rowPosition(p)
-	var outer []int
-	for i := range p.Domains {
-		if i != j {
-			outer = append(outer, i)
-		}
-	}
-	sh := &bbShared{p: p, r: st.r, keys: p.Template.Rank, j: j, outer: outer,
-		leaf: float64(leaf), front: set.FrontErrorCap}
-	sh.cond = sync.NewCond(&sh.mu)
-	sh.open.power = len(sh.keys) > 0 && sh.keys[0] == constraints.ByPower
-	sh.bar = newTopList(st.r, set.Top+topMargin, len(p.Domains))
-	for _, d := range p.Domains {
-		pre := make([]int32, len(d.Options)+1)
-		for i, o := range d.Options {
-			pre[i+1] = pre[i]
-			if o.Count == 1 {
-				pre[i+1]++
-			}
-		}
-		sh.single = append(sh.single, pre)
-	}
+	sh := newBBShared(p, set, st, float64(leaf))
 	if set.Progress != nil {
-		set.Progress.total.Store(int64(p.Space()))
+		set.Progress.start(int64(p.Space()), "candidates")
 	}
 	workers := max(1, set.Workers)
 	st.stats.Workers = workers
@@ -205,10 +184,7 @@ func (m BranchBound) run(ctx context.Context, p *Problem, set *Settings, st *run
 	for i := range ws {
 		ws[i] = newBBWorker(sh, set, st)
 	}
-	root := &box{lo: make([]int32, len(p.Domains)), hi: make([]int32, len(p.Domains))}
-	for i, d := range p.Domains {
-		root.hi[i] = int32(len(d.Options) - 1)
-	}
+	root := rootBox(p)
 	for _, b := range shardBoxes(sh, root, set.Shard, set.Shards) {
 		b.seq = sh.seq
 		sh.seq++
@@ -242,6 +218,42 @@ func (m BranchBound) run(ctx context.Context, p *Problem, set *Settings, st *run
 		}
 	}
 	return nil
+}
+
+// newBBShared prepares what the workers of one run share.
+func newBBShared(p *Problem, set *Settings, st *runState, leaf float64) *bbShared {
+	j := rowPosition(p)
+	var outer []int
+	for i := range p.Domains {
+		if i != j {
+			outer = append(outer, i)
+		}
+	}
+	sh := &bbShared{p: p, r: st.r, keys: p.Template.Rank, j: j, outer: outer,
+		leaf: leaf, front: set.FrontErrorCap}
+	sh.cond = sync.NewCond(&sh.mu)
+	sh.open.power = len(sh.keys) > 0 && sh.keys[0] == constraints.ByPower
+	sh.bar = newTopList(st.r, set.Top+topMargin, len(p.Domains))
+	for _, d := range p.Domains {
+		pre := make([]int32, len(d.Options)+1)
+		for i, o := range d.Options {
+			pre[i+1] = pre[i]
+			if o.Count == 1 {
+				pre[i+1]++
+			}
+		}
+		sh.single = append(sh.single, pre)
+	}
+	return sh
+}
+
+// rootBox is the box of the whole space: every option of every position.
+func rootBox(p *Problem) *box {
+	root := &box{lo: make([]int32, len(p.Domains)), hi: make([]int32, len(p.Domains))}
+	for i, d := range p.Domains {
+		root.hi[i] = int32(len(d.Options) - 1)
+	}
+	return root
 }
 
 // shardBoxes splits the root into pieces by value (always the same way for
@@ -443,7 +455,7 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 		switch pr.Kind {
 		case constraints.Ratio:
 			w.ratios = append(w.ratios, ti)
-		case constraints.Power:
+		case constraints.Power, constraints.SelfHeating:
 			for k, q := range w.pparts {
 				if q == pr.Part {
 					w.pslot[ti] = k
@@ -839,7 +851,7 @@ func (w *bbWorker) bound(b *box, worst *Candidate) {
 		pw = math.Max(pw, sum*(1-boundSlack)) * p.OnFraction
 		b.power = math.Max(b.power, pw)
 		if lim > 0 && pw > lim && !constraints.Same(pw, lim) {
-			b.infeasible, b.violTarget, b.violCond = true, len(p.Probes), c
+			b.infeasible, b.violTarget, b.violCond = true, p.SupplyLimit(), c
 		}
 	}
 }
@@ -914,6 +926,14 @@ func (w *bbWorker) enclose(ti, c int) (float64, float64, bool) {
 		ilo, ihi := padded(w.ilo[s], w.ihi[s])
 		lo, hi := product(vlo, vhi, ilo, ihi)
 		return lo, hi, true
+	case constraints.SelfHeating:
+		// The part's power range scaled by 1/δ > 0.
+		s := w.pslot[ti]*nc + c
+		vlo, vhi := padded(w.vlo[s], w.vhi[s])
+		ilo, ihi := padded(w.ilo[s], w.ihi[s])
+		lo, hi := product(vlo, vhi, ilo, ihi)
+		k := p.Probes[ti].Scale
+		return lo * k, hi * k, true
 	}
 	return 0, 0, false
 }

@@ -239,7 +239,12 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 			c.vals[i] = o.Value
 			c.parts += o.Count
 		}
-		points := make([]float64, p.Points)
+		points := make([][]float64, len(tp.Targets)) // per sweep-wide target, in its conditions' order
+		for ti, dp := range p.Derived {
+			if dp != nil {
+				points[ti] = make([]float64, len(dp.Conds))
+			}
+		}
 		for ci, cond := range p.Conditions {
 			vals := append([]float64(nil), cond.Values...)
 			for i, d := range p.Domains {
@@ -268,7 +273,7 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 				if dp := p.Derived[ti]; dp != nil {
 					for k, dc := range dp.Conds {
 						if dc == ci {
-							points[dp.Offset+k] = ps.v(tg.Nodes[0])
+							points[ti][k] = ps.v(tg.Nodes[0])
 						}
 					}
 					continue
@@ -304,6 +309,10 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 				case constraints.Power:
 					i, _ := tp.Part(tg.Part)
 					v = ps.watts(i)
+				case constraints.SelfHeating:
+					// Temperature rise = P / δ (the dissipation constant's definition).
+					i, _ := tp.Part(tg.Part)
+					v = ps.watts(i) / tp.Parts[i].Dissipation
 				case constraints.Resistance:
 					v = ps.resistance(tg.Nodes[0], tg.Nodes[1])
 				}
@@ -319,7 +328,7 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 			if p.Derived[ti] == nil {
 				continue
 			}
-			v := p.DerivedValue(ti, points)
+			v := p.Derived[ti].Value(points[ti])
 			if !tg.Meets(v) {
 				feasible = false
 			}

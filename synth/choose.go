@@ -30,7 +30,7 @@ func Choose(name string, p *Problem, s *Settings) (m Method, note string, err er
 		return Rows{}, "", nil
 	case "auto", "":
 	default:
-		return nil, "", fmt.Errorf("synth: unknown method %q", name)
+		return nil, "", errorf(nil, "unknown method %q", name)
 	}
 	rows := RowCount(p)
 	switch {

@@ -1,7 +1,6 @@
 package synth
 
 import (
-	"fmt"
 	"math"
 	"sort"
 
@@ -93,16 +92,16 @@ type CombineSettings struct {
 // current Top-th best, and every part beyond it is worse still.
 func Combine(target float64, base []float64, s CombineSettings) ([]Combination, error) {
 	if !(target > 0) || math.IsInf(target, 0) {
-		return nil, fmt.Errorf("synth: combine needs a positive finite target, not %g", target)
+		return nil, errorf(nil, "combine needs a positive finite target, not %g", target)
 	}
 	if len(base) == 0 {
-		return nil, fmt.Errorf("synth: no standard values to combine")
+		return nil, errorf(nil, "no standard values to combine")
 	}
 	if s.MaxParts == 0 {
 		s.MaxParts = 2
 	}
 	if s.MaxParts < 1 || s.MaxParts > 3 {
-		return nil, fmt.Errorf("synth: combine takes 1 to 3 parts, not %d", s.MaxParts)
+		return nil, errorf(nil, "combine takes 1 to 3 parts, not %d", s.MaxParts)
 	}
 	if s.Top <= 0 {
 		s.Top = 10
@@ -321,8 +320,8 @@ func (c *combiner) sorted() []Combination {
 	return out
 }
 
-// par is the parallel law, 1/R = 1/x + 1/y.
-func par(x, y float64) float64 { return x * y / (x + y) }
+// par is the parallel law (constraints.ParallelOf).
+func par(x, y float64) float64 { return constraints.ParallelOf(x, y) }
 
 func combLess(a, b Combination) bool {
 	if !constraints.Same(a.Error, b.Error) {

@@ -12,6 +12,16 @@
 // binary search on the monotone quantities, so the result is proven best over
 // the whole space.
 //
+// An outside program fits a network in four steps (see ExampleSearch):
+// constraints.Parse or constraints.Load reads a template,
+// constraints.Compile checks its network, NewProblem builds each free
+// position's options from the preferred series, and Search ranks them.
+// Choose picks the method the way the ohmfit commands do ("auto": branch
+// and bound where its bounds apply, else Rows or the heuristic), and
+// Result.Status says whether the list is proven. ReachLimits tells, before
+// a search, which hard limits no candidate can break or every candidate
+// breaks.
+//
 // synth is not for loading templates (package constraints), for solving
 // networks (package solver) or for rendering results (cmd/ohmfit).
 package synth

@@ -1,7 +1,6 @@
 package synth
 
 import (
-	"fmt"
 	"math"
 	"sort"
 
@@ -41,7 +40,7 @@ const MaxOptions = 2_000_000
 // part: its series or stock list within [Min, Max], inclusive.
 func BaseValues(c constraints.Choice) ([]float64, error) {
 	if c.Min <= 0 || c.Max < c.Min || math.IsNaN(c.Min) || math.IsInf(c.Max, 0) {
-		return nil, fmt.Errorf("synth: bad value range %g .. %g", c.Min, c.Max)
+		return nil, errorf(nil, "bad value range %g .. %g", c.Min, c.Max)
 	}
 	if c.Stock != nil {
 		var out []float64
@@ -92,10 +91,10 @@ func BuildDomain(part int, name string, c constraints.Choice) (Domain, error) {
 	}
 	d := Domain{Part: part, Name: name}
 	if len(base) == 0 {
-		return d, fmt.Errorf("synth: position %s: no standard value between %s and %s", name, eseries.Format(c.Min), eseries.Format(c.Max))
+		return d, errorf(nil, "position %s: no standard value between %s and %s", name, eseries.Format(c.Min), eseries.Format(c.Max))
 	}
 	if n := OptionCount(len(base), c.Combine); n > MaxOptions {
-		return d, fmt.Errorf("synth: position %s: %.3g options (%d base values, combine %s) is more than %d; narrow its min/max or use a coarser series", name, n, len(base), c.Combine, MaxOptions)
+		return d, errorf(nil, "position %s: %.3g options (%d base values, combine %s) is more than %d; narrow its min/max or use a coarser series", name, n, len(base), c.Combine, MaxOptions)
 	}
 	single := c.Combine == constraints.Single || c.Combine == constraints.Any
 	series := c.Combine == constraints.Series || c.Combine == constraints.Any
@@ -113,7 +112,7 @@ func BuildDomain(part int, name string, c constraints.Choice) (Domain, error) {
 				opts = append(opts, Option{Value: a + b, Parts: [2]float64{b, a}, Count: 2, Combine: constraints.Series})
 			}
 			if parallel {
-				opts = append(opts, Option{Value: a * b / (a + b), Parts: [2]float64{b, a}, Count: 2, Combine: constraints.Parallel})
+				opts = append(opts, Option{Value: constraints.ParallelOf(a, b), Parts: [2]float64{b, a}, Count: 2, Combine: constraints.Parallel})
 			}
 		}
 	}

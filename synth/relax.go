@@ -2,7 +2,6 @@ package synth
 
 import (
 	"context"
-	"errors"
 	"math"
 	"math/rand/v2"
 	"sort"
@@ -39,7 +38,7 @@ var _ Method = Relax{}
 
 func (m Relax) run(ctx context.Context, p *Problem, set *Settings, st *runState) error {
 	if set.Shards > 1 {
-		return errors.New("synth: the heuristic does not cover the space, so it cannot search a shard of it")
+		return errorf(nil, "the heuristic does not cover the space, so it cannot search a shard of it")
 	}
 	if len(p.Domains) == 0 {
 		return runNoFree(p, st)
@@ -68,7 +67,7 @@ func (m Relax) run(ctx context.Context, p *Problem, set *Settings, st *runState)
 	}
 	rng := rand.New(rand.NewPCG(1, 2)) // fixed seed: the same input gives the same list
 	if set.Progress != nil {
-		set.Progress.total.Store(int64(m.Starts))
+		set.Progress.start(int64(m.Starts), "starts")
 	}
 	for start := 0; start < m.Starts; start++ {
 		if ctx.Err() != nil {

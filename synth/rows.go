@@ -65,7 +65,7 @@ func (Rows) run(ctx context.Context, p *Problem, set *Settings, st *runState) er
 		first, last = (k-1)*rows/n, k*rows/n
 	}
 	if set.Progress != nil {
-		set.Progress.total.Store(last - first)
+		set.Progress.start(last-first, "rows")
 	}
 	workers := set.Workers
 	if int64(workers) > (last-first+rowChunk-1)/rowChunk {
@@ -190,8 +190,8 @@ type rowWorker struct {
 	frontCap float64    // goal error bound of the trade-off front; 0: none kept
 	front    *frontList // the worker's trade-off front, nil when none is kept
 
-	points  []float64 // node voltages the sweep-wide targets read
-	derived []int     // targets that are sweep-wide
+	points  *constraints.Points // node voltages the sweep-wide targets read
+	derived []int               // targets that are sweep-wide
 
 	// bar, when not nil, is a candidate known to rank among the best the
 	// search keeps (BranchBound's shared list): options that cannot beat it
@@ -235,7 +235,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		w.frontCap = set.FrontErrorCap
 		w.front = &frontList{r: r}
 	}
-	w.points = make([]float64, p.Points)
+	w.points = p.NewPoints()
 	for ti, dp := range p.Derived {
 		if dp != nil {
 			w.derived = append(w.derived, ti)
@@ -411,16 +411,23 @@ func (w *rowWorker) probe(rc *rowCond, ti int, s, g float64) float64 {
 	case constraints.Current:
 		return pr.Sign * w.amps(rc, pr.Part, s, g) // constraints.CurrentSign, set in the probe
 	case constraints.Power:
-		e := w.edges[pr.Part]
-		if e.Kind == solver.OpAmp {
-			return -(rc.x0[e.To] - rc.w[e.To]*s) * w.amps(rc, pr.Part, s, g)
-		}
-		return ((rc.x0[e.From] - rc.w[e.From]*s) - (rc.x0[e.To] - rc.w[e.To]*s)) * w.amps(rc, pr.Part, s, g)
+		return w.watts(rc, pr.Part, s, g)
+	case constraints.SelfHeating:
+		return w.watts(rc, pr.Part, s, g) * pr.Scale // P/δ, as Probe.Read
 	case constraints.Resistance:
 		dg := g - rc.g0
 		return rc.r0[ti] - dg*rc.rc[ti]/(1+dg*rc.z)
 	}
 	return math.NaN()
+}
+
+// watts is the power part i absorbs.
+func (w *rowWorker) watts(rc *rowCond, i int, s, g float64) float64 {
+	e := w.edges[i]
+	if e.Kind == solver.OpAmp {
+		return -(rc.x0[e.To] - rc.w[e.To]*s) * w.amps(rc, i, s, g)
+	}
+	return ((rc.x0[e.From] - rc.w[e.From]*s) - (rc.x0[e.To] - rc.w[e.To]*s)) * w.amps(rc, i, s, g)
 }
 
 // amps is the current through part i along its edge.
@@ -456,7 +463,7 @@ func (w *rowWorker) scoreOption(i int) {
 				powMax = pw
 			}
 			if w.lim > 0 && pw > w.lim && !constraints.Same(pw, w.lim) {
-				w.viol[len(p.Probes)*w.nc+c]++
+				w.viol[p.SupplyLimit()*w.nc+c]++
 				return
 			}
 		}
@@ -474,18 +481,14 @@ func (w *rowWorker) scoreOption(i int) {
 				errMax = e
 			}
 		}
-		if p.PointSlots != nil {
-			for _, ps := range p.PointSlots[c] {
-				w.points[ps.Index] = rc.x0[ps.Node] - rc.w[ps.Node]*s
-			}
-		}
+		w.points.GatherUpdated(c, rc.x0, rc.w, s)
 	}
 	// Sweep-wide targets (linearity, sensitivity, resolution) read the
 	// node voltages of several conditions; none is monotone along a row, so
 	// they are only checked here, never used to cut a row.
 	for _, ti := range w.derived {
 		dp := p.Derived[ti]
-		v := p.DerivedValue(ti, w.points)
+		v := w.points.Derived(ti)
 		tg := &p.Template.Targets[ti]
 		if !tg.Meets(v) {
 			w.viol[ti*w.nc+dp.Conds[0]]++
@@ -495,15 +498,46 @@ func (w *rowWorker) scoreOption(i int) {
 			errMax = e
 		}
 	}
-	w.offer(i, errMax, powMax)
+	w.offer(i, errMax, powMax, false)
 }
 
-func (w *rowWorker) offer(i int, errMax, powMax float64) {
+// rescoreSlack is how far, at most, the update formula's goal error (in
+// absolute terms) and power (relative) may be off by rounding. A
+// candidate that could enter the list within it is scored again with full
+// solves before it is offered: exact ties (decade-scaled copies of one
+// ratio) differ in the update formula by more than the contract's tie
+// tolerance, and would otherwise be ranked by rounding instead of by power.
+const rescoreSlack = 1e-9
+
+// offer offers option i of the row, scored errMax and powMax, to the
+// worker's lists. exact says the scores come from full solves; otherwise a
+// candidate that could be kept is scored again with full solves first.
+func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
 	copy(w.cand.Opt, w.cur)
 	w.cand.Opt[w.j] = int32(i)
 	parts := 0
 	for k, d := range w.p.Domains {
 		parts += d.Options[w.cand.Opt[k]].Count
+	}
+	if !exact {
+		w.cand.Error, w.cand.Power, w.cand.Parts = max(0, errMax-rescoreSlack), powMax*(1-rescoreSlack), parts
+		top := !w.top.full() || w.top.r.less(&w.cand, w.top.worst())
+		front := w.front != nil && errMax <= w.frontCap+rescoreSlack
+		if !top && !front {
+			return
+		}
+		for k, d := range w.p.Domains {
+			w.free[k] = d.Options[w.cand.Opt[k]].Value
+		}
+		w.stats.Solves += int64(w.nc)
+		if err := w.p.Evaluate(w.s, w.free, w.sc); err != nil {
+			return
+		}
+		if !w.sc.Feasible {
+			w.viol[w.sc.ViolatedTarget*w.nc+w.sc.ViolatedCondition]++
+			return
+		}
+		errMax, powMax = w.sc.Error, w.sc.Power
 	}
 	w.cand.Error, w.cand.Power, w.cand.Parts = errMax, powMax, parts
 	w.top.offer(&w.cand)
@@ -530,7 +564,7 @@ func (w *rowWorker) slowRow(lo, hi int) {
 			w.viol[w.sc.ViolatedTarget*w.nc+w.sc.ViolatedCondition]++
 			continue
 		}
-		w.offer(i, w.sc.Error, w.sc.Power)
+		w.offer(i, w.sc.Error, w.sc.Power, true)
 	}
 }
 
@@ -552,12 +586,14 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 	}
 	switch primary {
 	case constraints.ByError:
+		// The update formula's rounding (rescoreSlack) is allowed for, so
+		// that an exact tie of the threshold is scored, not cut.
 		t := math.Inf(1)
 		if worst != nil {
-			t = widen(worst.Error)
+			t = widen(worst.Error) + rescoreSlack
 		}
 		if w.frontCap > 0 {
-			t = math.Max(t, widen(w.frontCap))
+			t = math.Max(t, widen(w.frontCap)+rescoreSlack)
 		}
 		if math.IsInf(t, 1) {
 			return full
@@ -571,7 +607,7 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 		if worst == nil {
 			return full
 		}
-		a, b, ok := w.powerRange(lo, hi, widen(worst.Power))
+		a, b, ok := w.powerRange(lo, hi, widen(worst.Power)*(1+rescoreSlack))
 		if !ok {
 			return full
 		}
@@ -581,7 +617,7 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 		}
 		if w.frontCap > 0 {
 			// The front also wants low-error options the power bound drops.
-			c, d := w.goalRange(lo, hi, widen(w.frontCap))
+			c, d := w.goalRange(lo, hi, widen(w.frontCap)+rescoreSlack)
 			out = unionRange(out, c, d)
 		}
 		return out
@@ -633,7 +669,7 @@ func (w *rowWorker) hardLimits(lo, hi int) (int, int) {
 			nlo, nhi := w.bisect(lo, hi, math.Inf(-1), w.lim, rc, -1)
 			if nlo > nhi {
 				if counting {
-					w.viol[len(p.Probes)*w.nc+c] += int64(hi - lo + 1)
+					w.viol[p.SupplyLimit()*w.nc+c] += int64(hi - lo + 1)
 				}
 				return 1, 0
 			}

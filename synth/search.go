@@ -48,7 +48,7 @@ func NewProblem(cp *constraints.Problem, series string) (*Problem, error) {
 		desc = append(desc, fmt.Sprintf("%s %.3g", name, n))
 	}
 	if bound > 10*MaxSpace {
-		return nil, fmt.Errorf("%w: about %.3g candidates (%s); narrow the positions' min/max, use a coarser series or fewer pairs", ErrSpaceTooLarge, bound, strings.Join(desc, " × "))
+		return nil, errorf(ErrSpaceTooLarge, "search space too large: about %.3g candidates (%s); narrow the positions' min/max, use a coarser series or fewer pairs", bound, strings.Join(desc, " × "))
 	}
 	for _, i := range cp.Free {
 		name := t.Parts[i].Name
@@ -116,11 +116,29 @@ const MaxSpace = 1e15
 // from any goroutine.
 type Progress struct {
 	done, total atomic.Int64
+	unit        atomic.Pointer[string]
 }
 
-// Fraction returns rows done and rows in all.
-func (p *Progress) Fraction() (done, total int64) {
+// Counts returns the work done and the work in all, in Unit;
+// done/total is the fraction done.
+func (p *Progress) Counts() (done, total int64) {
 	return p.done.Load(), p.total.Load()
+}
+
+// Unit names what Counts counts: "rows" (the exhaustive method),
+// "candidates" (branch and bound) or "starts" (the heuristic); "" before
+// the search has begun.
+func (p *Progress) Unit() string {
+	if u := p.unit.Load(); u != nil {
+		return *u
+	}
+	return ""
+}
+
+// start sets the total and its unit, before any work is counted.
+func (p *Progress) start(total int64, unit string) {
+	p.unit.Store(&unit)
+	p.total.Store(total)
 }
 
 // Status says how a search ended. It is not an error: stopping at a limit is
@@ -198,7 +216,7 @@ func (s *Solution) Values() []float64 {
 // Violation says which hard limit blocked the most candidates, for the
 // message when nothing is feasible.
 type Violation struct {
-	Target    int // index into Template.Targets; len(Targets) means supply_power_max
+	Target    int // index into Template.Targets, or Problem.SupplyLimit
 	Condition int // index into Problem.Conditions
 	Count     int64
 }
@@ -259,11 +277,11 @@ func Search(ctx context.Context, p *Problem, s *Settings, m Method) (*Result, er
 		m = Rows{}
 	}
 	if set.Shards > 1 && (set.Shard < 1 || set.Shard > set.Shards) {
-		return nil, fmt.Errorf("synth: shard %d of %d does not exist", set.Shard, set.Shards)
+		return nil, errorf(nil, "shard %d of %d does not exist", set.Shard, set.Shards)
 	}
 	space := p.Space()
 	if space > MaxSpace {
-		return nil, fmt.Errorf("%w: %.3g candidates (%s); narrow the positions' min/max, use a coarser series or fewer pairs", ErrSpaceTooLarge, space, p.DescribeSpace())
+		return nil, errorf(ErrSpaceTooLarge, "search space too large: %.3g candidates (%s); narrow the positions' min/max, use a coarser series or fewer pairs", space, p.DescribeSpace())
 	}
 	if set.TimeLimit > 0 {
 		var cancel context.CancelFunc
@@ -475,7 +493,7 @@ func widen(t float64) float64 {
 var ErrTooManyRows = errors.New("synth: too many rows for an exhaustive search")
 
 func tooManyRows(p *Problem, rows, limit float64) error {
-	return fmt.Errorf("%w: %.3g rows (%s, %.3g candidates) is over the budget of %.3g; narrow the positions' min/max, use a coarser series, fix a part's value, or let the heuristic run", ErrTooManyRows, rows, p.DescribeSpace(), p.Space(), limit)
+	return errorf(ErrTooManyRows, "too many rows for an exhaustive search: %.3g rows (%s, %.3g candidates) is over the budget of %.3g; narrow the positions' min/max, use a coarser series, fix a part's value, or let the heuristic run", rows, p.DescribeSpace(), p.Space(), limit)
 }
 
 // RowCount returns how many rows the exhaustive method would visit: the

@@ -51,8 +51,8 @@ func TestExamplesMatchBruteForce(t *testing.T) {
 				}
 				p = problemFromYAML(t, string(text), coarser)
 			}
-			if p.Space() > 150_000 {
-				t.Skipf("space %g too large for the plain enumeration", p.Space())
+			if p.Space() > 150_000 || (testing.Short() && p.Space() > 10_000) {
+				t.Skipf("space %g too large for the plain enumeration here", p.Space())
 			}
 			compareWithBrute(t, p, 10, 2)
 		})
@@ -65,11 +65,15 @@ func TestExamplesMatchBruteForce(t *testing.T) {
 func TestRandomNetworksMatchBruteForce(t *testing.T) {
 	rng := rand.New(rand.NewPCG(7, 11))
 	series := []string{"E6", "E12"}
-	for trial := range 80 {
+	trials := 80
+	if testing.Short() {
+		trials = 16
+	}
+	for trial := range trials {
 		text := randomTemplate(rng, series[trial%2])
 		t.Run(fmt.Sprint(trial), func(t *testing.T) {
 			p := problemFromYAML(t, text, "")
-			if p.Space() > 60_000 {
+			if p.Space() > 60_000 || (testing.Short() && p.Space() > 10_000) {
 				t.Skipf("space %g", p.Space())
 			}
 			compareWithBrute(t, p, 8, 1+trial%3)
@@ -332,7 +336,7 @@ func TestFrontMatchesBruteForce(t *testing.T) {
 	for trial := range 30 {
 		text := randomTemplate(rng, "E6")
 		p := problemFromYAML(t, text, "")
-		if p.Space() > 30_000 {
+		if p.Space() > 30_000 || (testing.Short() && trial%3 != 0) {
 			continue
 		}
 		t.Run(fmt.Sprint("random", trial), func(t *testing.T) {
@@ -373,6 +377,9 @@ choose: {series: E6, min: 1k, max: 1M}
 // supply, and both the error-first and the power-lean ranking — against the
 // plain enumeration.
 func TestSensorSweepMatchesBruteForce(t *testing.T) {
+	if testing.Short() {
+		t.Skip("enumerates a sensor sweep")
+	}
 	base := sensorSweep
 	for _, rank := range []string{"", "rank: [power, error]\n"} {
 		p := problemFromYAML(t, base+rank, "")

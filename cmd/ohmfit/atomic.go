@@ -279,6 +279,12 @@ func removeOnSignal(ch chan os.Signal) {
 	if !ok {
 		return
 	}
+	endBySignal(sig)
+}
+
+// endBySignal removes every temporary file and ends the process as sig
+// would have by default. The one way ohmfit ends on a signal.
+func endBySignal(sig os.Signal) {
 	temps.Lock() // held to the end: no rename may follow
 	for name := range temps.names {
 		os.Remove(name)

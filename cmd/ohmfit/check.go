@@ -1,13 +1,10 @@
 package main
 
 import (
-	"context"
 	"errors"
 	"fmt"
 	"io"
 	"math"
-	"os"
-	"os/signal"
 	"strconv"
 	"strings"
 
@@ -70,7 +67,7 @@ func (r *realFlags) settings(cmd *cobra.Command) (*variation.Settings, constrain
 	if r.MaxPackage != "" {
 		p, err := ratings.Lookup(r.MaxPackage)
 		if err != nil {
-			return nil, amb, usagef(cmd.CommandPath(), "--max-package: %s", strings.TrimPrefix(err.Error(), "ratings: "))
+			return nil, amb, usagef(cmd.CommandPath(), "--max-package: %s", constraints.Message(err))
 		}
 		st.MaxPackage = p.Name
 	}
@@ -227,6 +224,7 @@ func checkDesign(o *checkOptions, outs *outputs, t *constraints.Template, st *va
 		return err
 	}
 	st.KeepSamples = o.Plot != ""
+	phase("checking")
 	rep, err := variation.Check(d, st)
 	if err != nil {
 		return templateError(t, err)
@@ -268,7 +266,7 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 	t := cp.Template
 	p, err := synth.NewProblem(cp, "")
 	if err != nil {
-		return nil, badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+		return nil, templateError(t, err)
 	}
 	set := &synth.Settings{Top: o.Rank}
 	m, note, err := synth.Choose("auto", p, set)
@@ -278,15 +276,17 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 	if note != "" {
 		notef(o.ErrOut, "%s", note)
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
+	reach := warnLimitReach(o.ErrOut, p)
+	ctx, searched, release := searchInterrupt()
+	defer release()
 	res, err := synth.Search(ctx, p, set, m)
+	searched()
 	if err != nil {
-		return nil, badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+		return nil, templateError(t, err)
 	}
 	if len(res.Solutions) < o.Rank {
 		if len(res.Solutions) == 0 {
-			return nil, &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res))}
+			return nil, &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res, reach))}
 		}
 		return nil, badInputf("--rank %d: the fit has only %d answers", o.Rank, len(res.Solutions))
 	}
@@ -325,6 +325,9 @@ func inputFiles(t *constraints.Template) []string {
 
 // tolText shows a part's tolerance: "1%" or "±10 mV".
 func tolText(v variation.Varied) string {
+	if v.Class != "" {
+		return "class " + v.Class
+	}
 	if v.Tol == 0 {
 		return "exact"
 	}
@@ -404,6 +407,9 @@ func writeCheckTable(w io.Writer, t *constraints.Template, d *variation.Design, 
 	if err := writePartTable(&b, d, rep); err != nil {
 		return err
 	}
+	if err := writeHeatingTable(&b, rep); err != nil {
+		return err
+	}
 	writeNotes(&b, rep)
 	_, err := io.WriteString(w, b.String())
 	return err
@@ -471,6 +477,9 @@ func writePartTable(b *strings.Builder, d *variation.Design, rep *variation.Repo
 	tb.add("part", "value", "tolerance", "TCR", "worst power", "worst volts", "package", "load", "verdict")
 	var models []string
 	for j, v := range rep.Parts {
+		if v.Extra() {
+			continue // a sensor's B or class terms: on the sensor's line
+		}
 		if sl, ok := sensed[v.Name]; ok {
 			pkg := v.Package
 			if pkg == "" {
@@ -478,8 +487,12 @@ func writePartTable(b *strings.Builder, d *variation.Design, rep *variation.Repo
 			}
 			tb.add(v.Name, eseries.FormatUnit(v.Nominal, eseries.Ohm), tolText(v), "-",
 				eseries.FormatUnit(sl.Watts, eseries.Watt), eseries.FormatUnit(sl.Volts, eseries.Volt), pkg, "-", "sensor")
-			models = append(models, fmt.Sprintf("  %s is an %s, %s, ±%s (%s): its datasheet rates it, not the package table.\n",
-				v.Name, variation.SensorKind(v.Sensor), d.SensorSpec(j), eseries.FormatUnit(v.Tol, eseries.Percent), v.TolFrom))
+			tol := fmt.Sprintf(", ±%s (%s)", eseries.FormatUnit(v.Tol, eseries.Percent), v.TolFrom)
+			if v.Class != "" {
+				tol = "" // the class is in the model
+			}
+			models = append(models, fmt.Sprintf("  %s is an %s, %s%s: its datasheet rates it, not the package table.\n",
+				v.Name, variation.SensorKind(v.Sensor), d.SensorSpec(j), tol))
 			continue
 		}
 		r, ok := rated[v.Name]
@@ -493,7 +506,7 @@ func writePartTable(b *strings.Builder, d *variation.Design, rep *variation.Repo
 		}
 		tb.add(v.Name, eseries.FormatUnit(v.Nominal, eseries.Ohm), tolText(v), ppm(v.TCR),
 			eseries.FormatUnit(r.Watts, eseries.Watt), eseries.FormatUnit(r.Volts, eseries.Volt), pkg,
-			strconv.FormatFloat(100*r.Load.PowerFraction, 'f', 0, 64)+"%", r.Verdict)
+			strconv.FormatFloat(100*r.Load.PowerFraction, 'f', 0, 64)+"%", string(r.Verdict))
 	}
 	if err := tb.write(b); err != nil {
 		return err
@@ -505,6 +518,32 @@ func writePartTable(b *strings.Builder, d *variation.Design, rep *variation.Repo
 		}
 	}
 	return nil
+}
+
+// writeHeatingTable writes each sensor's self-heating per condition, when
+// a sensor has a dissipation constant.
+func writeHeatingTable(b *strings.Builder, rep *variation.Report) error {
+	if len(rep.Heating) == 0 {
+		return nil
+	}
+	b.WriteString("\n  self-heating at nominal values: rise = P/δ at the condition's temperature; reading error = how far the sensor\n")
+	b.WriteString("  settles above it (fixed point of T = T0 + P(T)/δ), which is what a reading from it is off by\n\n")
+	tb := table{indent: "  ", cols: []column{{gap: 3}, {gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {right: true}}}
+	tb.add("sensor", "condition", "power", "rise", "reading error", "steps")
+	for _, h := range rep.Heating {
+		read := "does not settle"
+		if h.Converged {
+			read = celsius(h.ReadingError)
+		}
+		tb.add(h.Part, h.CondName, eseries.FormatUnit(h.Watts, eseries.Watt), celsius(h.Rise), read, strconv.Itoa(h.Steps))
+	}
+	return tb.write(b)
+}
+
+// celsius writes a temperature difference with four significant digits
+// and no SI prefix: "0.06787 °C".
+func celsius(v float64) string {
+	return strconv.FormatFloat(v, 'g', 4, 64) + " °C"
 }
 
 // writeNotes writes the warnings, cautions and hard failures.
@@ -568,16 +607,27 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 	}
 	parts, sources := []object{}, []object{}
 	for j, v := range rep.Parts {
+		if v.Extra() {
+			continue // a sensor's B or class terms: on the sensor's object
+		}
 		base := object{{"name", v.Name}, {"value", v.Nominal}, {"tolerance", v.Tol}, {"tolerance_relative", v.Relative}, {"tolerance_from", v.TolFrom}}
 		if sl, ok := sensed[v.Name]; ok {
 			var pkg any
 			if v.Package != "" {
 				pkg = v.Package
 			}
-			parts = append(parts, append(base,
+			obj := append(base,
 				member{"position", v.Position}, member{"type", v.Sensor}, member{"model", d.SensorSpec(j)},
 				member{"watts", sl.Watts}, member{"nominal_watts", sl.NominalWatts}, member{"volts", sl.Volts},
-				member{"package", pkg}))
+				member{"package", pkg})
+			ps := t.Parts[v.Part]
+			if ps.BetaTolerance > 0 {
+				obj = append(obj, member{"beta_tolerance", ps.BetaTolerance})
+			}
+			if ps.Class != "" {
+				obj = append(obj, member{"class", ps.Class})
+			}
+			parts = append(parts, obj)
 			continue
 		}
 		r, ok := rated[v.Name]
@@ -601,7 +651,12 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 	if rep.Samples > 0 {
 		mc = object{{"samples", rep.Samples}, {"seed", rep.Seed}, {"distribution", rep.Distribution.String()}, {"yield", rep.Yield}}
 	}
-	return object{
+	var heating []object
+	for _, h := range rep.Heating {
+		heating = append(heating, object{{"sensor", h.Part}, {"condition", h.CondName}, {"watts", h.Watts}, {"rise", h.Rise},
+			{"reading_error", finite(h.ReadingError)}, {"steps", h.Steps}, {"converged", h.Converged}})
+	}
+	doc := object{
 		{"name", t.Name},
 		{"worst_case", object{{"method", rep.Method}, {"corners", rep.Corners}}},
 		{"monte_carlo", mc},
@@ -614,6 +669,12 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 		{"cautions", nonNilStrings(rep.Cautions)},
 		{"failures", nonNilStrings(rep.Failures)},
 	}
+	if len(heating) > 0 {
+		// Only for a design whose sensors have a dissipation constant,
+		// after the other keys.
+		doc = append(doc, member{"self_heating", heating})
+	}
+	return doc
 }
 
 func nonNilStrings(s []string) []string {

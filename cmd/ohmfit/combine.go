@@ -6,6 +6,7 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/ohmfit/ohmfit/synth"
 	"github.com/spf13/cobra"
@@ -97,7 +98,7 @@ func runCombine(o *combineOptions) error {
 	}
 	combs, err := synth.Combine(target, base, synth.CombineSettings{MaxParts: o.MaxParts, Top: o.Top})
 	if err != nil {
-		return badInputf("%s", trimPackage(err.Error()))
+		return badInputf("%s", constraints.Message(err))
 	}
 	if o.Format == "json" {
 		sols := make([]object, len(combs))

@@ -51,17 +51,12 @@ func transferPlot(p *synth.Problem, sol synth.Solution) (*plot.Plot, error) {
 				best = k
 			}
 		}
-		for i, v := range p.Conditions[condAt[best]].Values {
-			s.SetValue(i, v)
+		vals, err := t.ValuesAt(condAt[best], celsius)
+		if err != nil {
+			return 0, false
 		}
-		for i, ps := range t.Parts {
-			if ps.Sensor != nil {
-				r, err := ps.Sensor.Resistance(celsius)
-				if err != nil {
-					return 0, false
-				}
-				s.SetValue(i, r)
-			}
+		for i, v := range vals {
+			s.SetValue(i, v)
 		}
 		for k, i := range p.Free {
 			s.SetValue(i, sol.Options[k].Value)

@@ -1,14 +1,11 @@
 package main
 
 import (
-	"context"
 	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
 	"math"
-	"os"
-	"os/signal"
 	"slices"
 	"strconv"
 	"strings"
@@ -117,7 +114,7 @@ around it) where neither can prove the result; the summary line names the
 method, and the result says when it is not proven. A result stopped by
 --time-limit or Ctrl-C says how far from proven it is: "nothing better than
 X can exist" (JSON "bound"). Ctrl-C stops a search and prints the best found
-so far.
+so far; once the search is over (--check, --robust) it ends the run at once.
 
 --shard K/N searches only the K-th of N disjoint parts of the space; the
 JSON results of all N parts, combined by "ohmfit merge", are the result of
@@ -179,7 +176,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	}
 	p, err := synth.NewProblem(cp, o.Series)
 	if err != nil {
-		return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+		return templateError(t, err)
 	}
 	set := &synth.Settings{Top: o.Top, Workers: o.Workers, TimeLimit: o.TimeLimit, Progress: &synth.Progress{}}
 	o.real.adjust(set)
@@ -200,22 +197,25 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	if note != "" {
 		notef(o.ErrOut, "%s", note)
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
+	reach := warnLimitReach(o.ErrOut, p)
+	ctx, searched, release := searchInterrupt()
+	defer release()
 	done := make(chan struct{})
 	if o.ErrIsTTY && !o.Quiet {
 		go showProgress(o.ErrOut, set.Progress, done)
 	} else {
 		close(done)
 	}
+	watchSearch(ctx, set.Progress)
 	res, err := synth.Search(ctx, p, set, method)
+	searched()
 	if o.ErrIsTTY && !o.Quiet {
 		done <- struct{}{}
 		<-done
 	}
 	if err != nil {
 		if errors.Is(err, synth.ErrSpaceTooLarge) || errors.Is(err, synth.ErrTooManyRows) {
-			return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+			return templateError(t, err)
 		}
 		return err
 	}
@@ -250,7 +250,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 		return err
 	}
 	if len(res.Solutions) == 0 {
-		return &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res))}
+		return &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res, reach))}
 	}
 	return nil
 }
@@ -271,7 +271,7 @@ func showProgress(w io.Writer, pr *synth.Progress, done chan struct{}) {
 			done <- struct{}{}
 			return
 		case <-tick.C:
-			d, n := pr.Fraction()
+			d, n := pr.Counts()
 			if n == 0 {
 				continue
 			}
@@ -282,14 +282,54 @@ func showProgress(w io.Writer, pr *synth.Progress, done chan struct{}) {
 			if d > 0 {
 				eta = roundDuration(time.Duration(float64(time.Since(start)) * float64(n-d) / float64(d))).String()
 			}
-			fmt.Fprintf(w, "\r\033[K  searching [%s] %3.0f%%  %s of %s rows, about %s left", bar, 100*f, count(float64(d)), count(float64(n)), eta)
+			fmt.Fprintf(w, "\r\033[K  searching [%s] %3.0f%%  %s of %s %s, about %s left", bar, 100*f, count(float64(d)), count(float64(n)), pr.Unit(), eta)
 			shown = true
 		}
 	}
 }
 
-// noSolutionMessage says which hard limit nothing could meet.
-func noSolutionMessage(p *synth.Problem, res *synth.Result) string {
+// warnLimitReach proves, before a search, which hard limits no candidate
+// can break (a limit that cannot shape the answer is most often a typo or a
+// unit slip) and warns of each; it returns every finding, for
+// noSolutionMessage to name a limit that every candidate breaks.
+func warnLimitReach(w io.Writer, p *synth.Problem) []synth.LimitReach {
+	reach := synth.ReachLimits(p)
+	for _, r := range reach {
+		if !r.Never {
+			continue
+		}
+		if p.IsSupplyLimit(r.Target) {
+			warnf(w, "supply_power_max %s can never be broken: no candidate in the space draws more than %s, so the limit does not shape the answer",
+				eseries.FormatUnit(p.Template.Limits.SupplyPowerMax, eseries.Watt), eseries.FormatUnit(r.Hi, eseries.Watt))
+			continue
+		}
+		tg := p.Template.Targets[r.Target]
+		u := tg.Kind.Unit()
+		warnf(w, "%s %s (line %d) can never be broken: every candidate in the space reads between %s and %s in every condition, so the limit does not shape the answer; check its value and unit",
+			tg.Label(), describeLimit(tg), tg.Pos.Line, eseries.FormatUnit(r.Lo, u), eseries.FormatUnit(r.Hi, u))
+	}
+	return reach
+}
+
+// noSolutionMessage says which hard limit nothing could meet: one that
+// reach proves every candidate breaks, or else the one that rejected the
+// most candidates.
+func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitReach) string {
+	t := p.Template
+	for _, r := range reach {
+		if !r.Always {
+			continue
+		}
+		cond := p.Conditions[r.Condition].Name
+		if p.IsSupplyLimit(r.Target) {
+			return fmt.Sprintf("no candidate can meet the hard limits: every candidate in the space draws more than supply_power_max %s in condition %q; raise that limit or the values' minimum",
+				eseries.FormatUnit(t.Limits.SupplyPowerMax, eseries.Watt), cond)
+		}
+		tg := t.Targets[r.Target]
+		u := tg.Kind.Unit()
+		return fmt.Sprintf("no candidate can meet the hard limits: every candidate in the space breaks %s %s (line %d) in condition %q, where it reads between %s and %s; widen that limit, the value ranges or the series",
+			tg.Label(), describeLimit(tg), tg.Pos.Line, cond, eseries.FormatUnit(r.Lo, u), eseries.FormatUnit(r.Hi, u))
+	}
 	scope := "no candidate meets the hard limits"
 	if res.Shards > 1 {
 		scope = fmt.Sprintf("no candidate in shard %d/%d meets the hard limits (the other shards may hold some; merge them)", res.Shard, res.Shards)
@@ -301,9 +341,8 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result) string {
 	if b == nil {
 		return scope
 	}
-	t := p.Template
 	cond := p.Conditions[b.Condition].Name
-	if b.Target == len(t.Targets) {
+	if p.IsSupplyLimit(b.Target) {
 		return fmt.Sprintf("%s; most were rejected by supply_power_max %s in condition %q", scope,
 			eseries.FormatUnit(t.Limits.SupplyPowerMax, eseries.Watt), cond)
 	}

@@ -3,9 +3,13 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
+	"fmt"
 	"math"
 	"os"
 	"os/exec"
+	"path/filepath"
+	"slices"
 	"strings"
 	"syscall"
 	"testing"
@@ -16,6 +20,15 @@ import (
 // test can run it as a real process and send it a real interrupt.
 func TestMain(m *testing.M) {
 	if os.Getenv("OHMFIT_TEST_MAIN") == "1" {
+		if f := os.Getenv("OHMFIT_TEST_PHASE_FILE"); f != "" {
+			// Tell the test which phase the run is in.
+			phaseHook = func(name string) {
+				if fh, err := os.OpenFile(f, os.O_APPEND|os.O_WRONLY|os.O_CREATE, 0o600); err == nil {
+					fmt.Fprintln(fh, name)
+					fh.Close()
+				}
+			}
+		}
 		if os.Getenv("OHMFIT_TEST_STALL_WRITES") == "1" {
 			// Hold every output write open, as a long plot would.
 			stageHook = func(string) { time.Sleep(time.Hour) }
@@ -112,35 +125,86 @@ func TestFitTimeLimit(t *testing.T) {
 	}
 }
 
-// Ctrl-C (SIGINT) stops a long search cleanly: the best so far is printed,
-// marked not proven, and the process exits 0 without a stack trace.
-func TestFitInterrupt(t *testing.T) {
-	cmd := exec.Command(os.Args[0], "fit", "testdata/big.yaml", "--method", "exhaustive", "--top", "3")
-	cmd.Env = append(os.Environ(), "OHMFIT_TEST_MAIN=1")
-	var out, errOut bytes.Buffer
-	cmd.Stdout, cmd.Stderr = &out, &errOut
-	if err := cmd.Start(); err != nil {
-		t.Fatal(err)
+// A real Ctrl-C (SIGINT) to every command that can run long. During a
+// search (fit, divider, feedback) it stops the search: the best so far is
+// printed, marked not proven, exit 0. After a search, or in a command with
+// no search (check's worst case and Monte Carlo), it ends the process as the
+// signal does by default: nothing printed, nothing left. It is never
+// swallowed (a swallowed Ctrl-C runs the command to its end and exits 0),
+// and never gives a stack trace. solve, combine and merge finish in
+// milliseconds and keep the default meaning throughout.
+func TestInterruptEveryCommand(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs long commands")
 	}
-	time.Sleep(500 * time.Millisecond)
-	if err := cmd.Process.Signal(syscall.SIGINT); err != nil {
-		t.Fatal(err)
+	cases := []struct {
+		name  string
+		args  []string
+		phase string // the phase to send the signal in (see phaseHook)
+	}{
+		{"fit", []string{"fit", "testdata/big.yaml", "--method", "exhaustive", "--top", "3"}, "searching"},
+		{"divider", []string{"divider", "--vin", "12", "--vout", "2.5", "--series", "E192", "--combine", "any", "--method", "exhaustive", "--tradeoffs", "50%", "--top", "3"}, "searching"},
+		{"feedback", []string{"feedback", "--vref", "0.7", "--vout", "3.3", "--series", "E192", "--combine", "any", "--method", "exhaustive", "--tradeoffs", "50%", "--top", "3"}, "searching"},
+		{"fit --check, in the check", []string{"fit", "testdata/long-sweep.yaml", "--check"}, "checking"},
+		{"check valued", []string{"check", "testdata/check-pass.yaml", "--samples", "10000000"}, "checking"},
+		{"check after its search", []string{"check", "example:divider", "--samples", "10000000"}, "checking"},
 	}
-	done := make(chan error, 1)
-	go func() { done <- cmd.Wait() }()
-	select {
-	case err := <-done:
-		if err != nil {
-			t.Fatalf("%v; stderr: %s", err, errOut.String())
-		}
-	case <-time.After(30 * time.Second):
-		cmd.Process.Kill()
-		t.Fatal("the search did not stop after an interrupt")
-	}
-	if !strings.Contains(out.String(), "not proven (interrupted)") || !strings.Contains(out.String(), "1*") {
-		t.Errorf("stdout should show the best so far, marked not proven:\n%s", out.String())
-	}
-	if !strings.Contains(errOut.String(), "interrupted") || strings.Contains(errOut.String(), "goroutine") {
-		t.Errorf("stderr: %q", errOut.String())
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			cmd := exec.Command(os.Args[0], c.args...)
+			phases := filepath.Join(t.TempDir(), "phases")
+			cmd.Env = append(os.Environ(), "OHMFIT_TEST_MAIN=1", "OHMFIT_TEST_PHASE_FILE="+phases)
+			var out, errOut bytes.Buffer
+			cmd.Stdout, cmd.Stderr = &out, &errOut
+			if err := cmd.Start(); err != nil {
+				t.Fatal(err)
+			}
+			done := make(chan error, 1)
+			go func() { done <- cmd.Wait() }()
+			// Wait until the run is in the phase (a condition, not a time).
+			for {
+				seen, _ := os.ReadFile(phases)
+				if slices.Contains(strings.Fields(string(seen)), c.phase) {
+					break
+				}
+				select {
+				case err := <-done:
+					t.Fatalf("ended (%v) before the %s phase; phases %q, stderr %s", err, c.phase, seen, errOut.String())
+				case <-time.After(5 * time.Millisecond):
+				}
+			}
+			if err := cmd.Process.Signal(syscall.SIGINT); err != nil {
+				t.Fatal(err)
+			}
+			var err error
+			select {
+			case err = <-done:
+			case <-time.After(60 * time.Second):
+				cmd.Process.Kill()
+				t.Fatal("the command did not stop after an interrupt")
+			}
+			if strings.Contains(errOut.String(), "goroutine") {
+				t.Errorf("stack trace: %s", errOut.String())
+			}
+			if c.phase == "searching" {
+				if err != nil {
+					t.Fatalf("%v; stderr: %s", err, errOut.String())
+				}
+				if !strings.Contains(out.String(), "not proven (interrupted)") || !strings.Contains(out.String(), "1") {
+					t.Errorf("stdout should show the best so far, marked not proven:\n%s", out.String())
+				}
+				if !strings.Contains(errOut.String(), "interrupted") {
+					t.Errorf("stderr: %q", errOut.String())
+				}
+				return
+			}
+			var ee *exec.ExitError
+			if !errors.As(err, &ee) {
+				t.Fatalf("ended with %v, want it ended by the interrupt; stdout %d bytes", err, out.Len())
+			}
+			if out.Len() != 0 {
+				t.Errorf("printed after the interrupt:\n%s", out.String())
+			}
+		})
 	}
 }

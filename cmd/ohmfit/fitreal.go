@@ -99,9 +99,10 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 			if err != nil {
 				return err
 			}
+			phase("checking")
 			rep, err := variation.Check(d, &variation.Settings{Seed: 1})
 			if err != nil {
-				return badInputf("%s%s", filePrefix(t, constraints.Pos{}), strings.TrimPrefix(err.Error(), "variation: "))
+				return templateError(t, err)
 			}
 			reports = append(reports, rep)
 			c := checkJSON(t, d, rep)
@@ -150,7 +151,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 		}
 		rep, err := variation.Check(d, &variation.Settings{Samples: -1})
 		if err != nil {
-			return badInputf("%s%s", filePrefix(t, constraints.Pos{}), strings.TrimPrefix(err.Error(), "variation: "))
+			return templateError(t, err)
 		}
 		if err := o.outs.stage(r.BOM, func(w io.Writer) error { return writeBOM(w, d, rep) }); err != nil {
 			return err

@@ -14,5 +14,5 @@ func templateError(t *constraints.Template, err error) error {
 	if errors.As(err, &ce) {
 		return &exitError{code: ExitBadInput, err: err}
 	}
-	return badInputf("%s%s", filePrefix(t, constraints.Pos{}), trimPackage(err.Error()))
+	return badInputf("%s%s", filePrefix(t, constraints.Pos{}), constraints.Message(err))
 }

@@ -161,14 +161,3 @@ func oneLine(s string) string {
 	}
 	return strings.Join(strings.Fields(strings.ReplaceAll(s, "\r", " ")), " ")
 }
-
-// trimPackage drops a library's "eseries: " style prefix from a message:
-// users know the program, not its packages.
-func trimPackage(s string) string {
-	for _, p := range []string{"eseries: ", "solver: ", "constraints: ", "synth: ", "variation: "} {
-		if rest, ok := strings.CutPrefix(s, p); ok {
-			return rest
-		}
-	}
-	return s
-}

@@ -109,6 +109,7 @@ func TestGolden(t *testing.T) {
 		{"fit-hazard", []string{"fit", "testdata/hv-fit.yaml", "--top", "1", "--workers", "1"}, ExitOK},
 		{"fit-err-overflow", []string{"fit", "testdata/overflow.yaml"}, ExitBadInput},
 		{"fit-none", []string{"fit", "testdata/impossible.yaml"}, ExitNoSolution},
+		{"fit-never-binds", []string{"fit", "testdata/never-binds.yaml", "--top", "2"}, ExitOK},
 		{"fit-err-series", []string{"fit", "example:feedback", "--series", "E25"}, ExitBadInput},
 		{"fit-err-top", []string{"fit", "example:feedback", "--top", "0"}, ExitBadInput},
 		{"fit-err-method", []string{"fit", "example:feedback", "--method", "fast"}, ExitBadInput},
@@ -315,8 +316,15 @@ func checkLabels(t *testing.T, code ExitCode, stderr string) {
 	}
 	lines := strings.Split(strings.TrimSuffix(stderr, "\n"), "\n")
 	for i, l := range lines {
+		// Library errors reach people through constraints.Message, without
+		// the package names Go errors carry.
+		for _, pkg := range []string{"eseries: ", "solver: ", "constraints: ", "sensors: ", "ratings: ", "synth: ", "variation: ", "board: "} {
+			if strings.Contains(l, pkg) {
+				t.Errorf("stderr shows a package name %q: %q", pkg, l)
+			}
+		}
 		var label string
-		for _, lb := range []string{errorLabel, notMetLabel, cautionLabel, noteLabel} {
+		for _, lb := range []string{errorLabel, notMetLabel, cautionLabel, warningLabel, noteLabel} {
 			if strings.HasPrefix(l, lb) {
 				label = lb
 			}

@@ -15,6 +15,7 @@ const (
 	errorLabel   = "ohmfit: error: "   // bad usage or bad input; exit 2
 	notMetLabel  = "ohmfit: not met: " // the run worked but the hard limits are not met; exit 1
 	cautionLabel = "ohmfit: CAUTION: " // a hazard or a rating to act on
+	warningLabel = "ohmfit: warning: " // the input is probably not what was meant (a limit that cannot bind)
 	noteLabel    = "ohmfit: note: "    // how the run went: a time limit, a heuristic, what was checked
 )
 
@@ -27,6 +28,11 @@ func stderrLine(w io.Writer, label, text string) {
 // notef writes a note line on stderr.
 func notef(w io.Writer, format string, args ...any) {
 	stderrLine(w, noteLabel, fmt.Sprintf(format, args...))
+}
+
+// warnf writes a warning line on stderr.
+func warnf(w io.Writer, format string, args ...any) {
+	stderrLine(w, warningLabel, fmt.Sprintf(format, args...))
 }
 
 // cautionLine writes a caution on stderr. The library's caution texts start

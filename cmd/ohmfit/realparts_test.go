@@ -225,3 +225,60 @@ func TestFitBOMSensor(t *testing.T) {
 		t.Errorf("lines %v, want %v", types, want)
 	}
 }
+
+// TestCheckSelfHeatingAndClass checks a design with the sensor features of
+// the sensors issue through the CLI: the self-heating table and its JSON
+// (present only here, after the other keys), the B tolerance and the IEC
+// 60751 class on the sensors' JSON objects and BOM lines, and the ADC's
+// input parts, which are neither parts to buy nor varied.
+func TestCheckSelfHeatingAndClass(t *testing.T) {
+	file := "testdata/check-heated.yaml"
+	table, errOut, code := runCLI(t, "check", file, "--samples", "0")
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	golden(t, "check-heated", table)
+	out, errOut, code := runCLI(t, "check", file, "--samples", "0", "--format", "json")
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	var doc struct {
+		Parts []map[string]any `json:"parts"`
+		Heat  []map[string]any `json:"self_heating"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if len(doc.Heat) != 6 { // two sensors, three conditions
+		t.Errorf("%d self_heating rows, want 6", len(doc.Heat))
+	}
+	for _, h := range doc.Heat {
+		if h["converged"] != true || h["reading_error"] == nil {
+			t.Errorf("row %v did not settle", h)
+		}
+	}
+	got := map[string]string{}
+	for _, p := range doc.Parts {
+		got[fmt.Sprint(p["name"])] = fmt.Sprint(p["type"], " ", p["beta_tolerance"], " ", p["class"])
+	}
+	want := map[string]string{"Rb": "resistor <nil> <nil>", "RT1": "ntc 0.01 <nil>", "PT1": "rtd <nil> A"}
+	if fmt.Sprint(got) != fmt.Sprint(want) {
+		t.Errorf("parts %v, want %v", got, want)
+	}
+	bom := filepath.Join(t.TempDir(), "bom.csv")
+	if _, errOut, code := runCLI(t, "check", file, "--samples", "0", "--bom", bom); code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	lines := map[string]string{}
+	for _, r := range bomRows(t, bom) {
+		lines[r["designators"]] = r["tolerance_from"] + " | " + r["model"]
+	}
+	wantBOM := map[string]string{
+		"Rb":  "part | ",
+		"RT1": "part | R25 10 kΩ, B 3900 K ±1%",
+		"PT1": "class | R0 1 kΩ, IEC 60751 coefficients, class A (IEC 60751: ±(0.15 + 0.002·|t|) °C)",
+	}
+	if fmt.Sprint(lines) != fmt.Sprint(wantBOM) {
+		t.Errorf("BOM %v, want %v", lines, wantBOM)
+	}
+}

@@ -140,7 +140,7 @@ func analyzeAll(t *constraints.Template) ([]conditionResult, error) {
 		c, err := t.ConditionCircuit(ci)
 		if err != nil {
 			// The loader checks settings; this guards a template built in code.
-			return nil, badInputf("%s%s", filePrefix(t, cond.Pos), trimPackage(err.Error()))
+			return nil, badInputf("%s%s", filePrefix(t, cond.Pos), constraints.Message(err))
 		}
 		sol, err := solver.Analyze(c)
 		if err != nil {

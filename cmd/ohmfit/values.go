@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/spf13/cobra"
 )
@@ -199,7 +200,7 @@ func readValue(flag, text string, want eseries.Unit) (float64, error) {
 		if errors.As(err, &pe) {
 			return 0, badInputf("%s: cannot read %s (%s); want %s", flag, quoteValue(text), pe.Reason, valueExample(want))
 		}
-		return 0, badInputf("%s: %s; want %s", flag, trimPackage(err.Error()), valueExample(want))
+		return 0, badInputf("%s: %s; want %s", flag, constraints.Message(err), valueExample(want))
 	}
 	return v, nil
 }

@@ -64,7 +64,7 @@ func Lookup(name string) (Package, error) {
 			return p, nil
 		}
 	}
-	return Package{}, fmt.Errorf("ratings: unknown package %q; packages are %s", name, strings.Join(Names(), " "))
+	return Package{}, errorf(nil, "unknown package %q; packages are %s", name, strings.Join(Names(), " "))
 }
 
 // Names lists the package names in table order.
@@ -122,19 +122,31 @@ func (p Package) LoadOf(watts, volts float64) Load {
 	return Load{PowerFraction: math.Abs(watts) / p.Watts, VoltageFraction: math.Abs(volts) / p.Volts}
 }
 
-// Verdict classes a load: "ok", "near" (above Near of the derated power or
-// of the voltage limit), "derating" (beyond the derated power but within
-// the rating), "overload" (beyond the rated power or the voltage limit).
-func (l Load) Verdict() string {
+// Verdict classes how a part stands against its package's ratings. Its
+// text is what the check table and JSON show.
+type Verdict string
+
+// The verdicts, from best to worst.
+const (
+	VerdictOK        Verdict = "ok"              // within Near of the derated power and of the voltage limit
+	VerdictNear      Verdict = "near"            // above Near of the derated power or of the voltage limit
+	VerdictDerating  Verdict = "derating"        // beyond the derated power but within the rating
+	VerdictOverload  Verdict = "overload"        // beyond the rated power or the voltage limit
+	VerdictNoPackage Verdict = "no package fits" // no package in the table carries the part
+)
+
+// Verdict classes a load: VerdictOK, VerdictNear, VerdictDerating or
+// VerdictOverload.
+func (l Load) Verdict() Verdict {
 	switch {
 	case l.PowerFraction > 1 || l.VoltageFraction > 1:
-		return "overload"
+		return VerdictOverload
 	case l.PowerFraction > Derating:
-		return "derating"
+		return VerdictDerating
 	case l.PowerFraction > Near*Derating || l.VoltageFraction > Near:
-		return "near"
+		return VerdictNear
 	}
-	return "ok"
+	return VerdictOK
 }
 
 // RatingCaution is the caution printed when a part runs near or beyond its

@@ -59,7 +59,7 @@ func TestVerdict(t *testing.T) {
 		{0.001, 80, "overload"}, // beyond 75 V
 	}
 	for _, c := range cases {
-		if got := p.LoadOf(c.watts, c.volts).Verdict(); got != c.want {
+		if got := p.LoadOf(c.watts, c.volts).Verdict(); string(got) != c.want {
 			t.Errorf("0603 at %g W, %g V: %s, want %s", c.watts, c.volts, got, c.want)
 		}
 	}

@@ -2,7 +2,6 @@ package sensors
 
 import (
 	"errors"
-	"fmt"
 	"math"
 )
 
@@ -38,7 +37,7 @@ const (
 // ntcRange refuses a temperature outside NTCMin … NTCMax.
 func ntcRange(celsius float64) error {
 	if !(celsius >= NTCMin && celsius <= NTCMax) {
-		return fmt.Errorf("%w: %g °C is outside the NTC thermistor range %g … %g °C", ErrRange, celsius, NTCMin, NTCMax)
+		return errorf(ErrRange, "%g °C is outside the NTC thermistor range %g … %g °C", celsius, NTCMin, NTCMax)
 	}
 	return nil
 }
@@ -73,7 +72,7 @@ func (m SteinhartHart) Resistance(celsius float64) (float64, error) {
 	}
 	t := celsius + ZeroCelsius
 	if m.B <= 0 {
-		return 0, fmt.Errorf("sensors: Steinhart–Hart B must be positive, got %g", m.B)
+		return 0, errorf(nil, "Steinhart–Hart B must be positive, got %g", m.B)
 	}
 	// Start from the root without the cubic term.
 	x := (1/t - m.A) / m.B
@@ -89,7 +88,7 @@ func (m SteinhartHart) Resistance(celsius float64) (float64, error) {
 		f := m.A + m.B*x + m.C*x*x*x - 1/t
 		df := m.B + 3*m.C*x*x
 		if !(df > 0) {
-			return 0, fmt.Errorf("sensors: Steinhart–Hart coefficients %g, %g, %g give no single resistance at %g °C", m.A, m.B, m.C, celsius)
+			return 0, errorf(nil, "Steinhart–Hart coefficients %g, %g, %g give no single resistance at %g °C", m.A, m.B, m.C, celsius)
 		}
 		dx := f / df
 		x -= dx
@@ -99,7 +98,7 @@ func (m SteinhartHart) Resistance(celsius float64) (float64, error) {
 	}
 	r := math.Exp(x)
 	if !(r > 0) || math.IsInf(r, 0) {
-		return 0, fmt.Errorf("%w: %g °C gives no finite resistance", ErrRange, celsius)
+		return 0, errorf(ErrRange, "%g °C gives no finite resistance", celsius)
 	}
 	return r, nil
 }
@@ -112,7 +111,7 @@ func FitSteinhartHart(t [3]float64, r [3]float64) (SteinhartHart, error) {
 	var l, y [3]float64
 	for i := range 3 {
 		if !(r[i] > 0) || !(t[i]+ZeroCelsius > 0) {
-			return SteinhartHart{}, fmt.Errorf("sensors: bad point (%g °C, %g Ω)", t[i], r[i])
+			return SteinhartHart{}, errorf(nil, "bad point (%g °C, %g Ω)", t[i], r[i])
 		}
 		l[i] = math.Log(r[i])
 		y[i] = 1 / (t[i] + ZeroCelsius)
@@ -123,7 +122,7 @@ func FitSteinhartHart(t [3]float64, r [3]float64) (SteinhartHart, error) {
 	b := g2 - c*(l[0]*l[0]+l[0]*l[1]+l[1]*l[1])
 	a := y[0] - (b+c*l[0]*l[0])*l[0]
 	if math.IsNaN(a) || math.IsNaN(b) || math.IsNaN(c) || math.IsInf(c, 0) {
-		return SteinhartHart{}, fmt.Errorf("sensors: the three points do not determine a curve")
+		return SteinhartHart{}, errorf(nil, "the three points do not determine a curve")
 	}
 	return SteinhartHart{A: a, B: b, C: c}, nil
 }
@@ -157,7 +156,7 @@ const (
 // Resistance returns R(T) within −200 … 850 °C.
 func (m RTD) Resistance(celsius float64) (float64, error) {
 	if !(celsius >= RTDMin && celsius <= RTDMax) {
-		return 0, fmt.Errorf("%w: %g °C is outside the RTD range %g … %g °C", ErrRange, celsius, RTDMin, RTDMax)
+		return 0, errorf(ErrRange, "%g °C is outside the RTD range %g … %g °C", celsius, RTDMin, RTDMax)
 	}
 	t := celsius
 	f := 1 + m.A*t + m.B*t*t
@@ -165,4 +164,60 @@ func (m RTD) Resistance(celsius float64) (float64, error) {
 		f += m.C * (t - 100) * t * t * t
 	}
 	return m.R0 * f, nil
+}
+
+// Class is a platinum sensor's tolerance class: the largest deviation of
+// its temperature from the standard curve's, ±(Offset + Slope·|t|) °C at
+// t °C.
+type Class struct {
+	Name   string  // "AA", "A", "B" or "C"
+	Offset float64 // °C
+	Slope  float64 // °C per °C of |t|
+}
+
+// Classes are the IEC 60751 tolerance classes of platinum sensors, values
+// from memory: AA ±(0.1 + 0.0017·|t|), A ±(0.15 + 0.002·|t|),
+// B ±(0.3 + 0.005·|t|), C ±(0.6 + 0.01·|t|) °C.
+var Classes = []Class{
+	{"AA", 0.1, 0.0017},
+	{"A", 0.15, 0.002},
+	{"B", 0.3, 0.005},
+	{"C", 0.6, 0.01},
+}
+
+// LookupClass returns the class of that name.
+func LookupClass(name string) (Class, bool) {
+	for _, c := range Classes {
+		if c.Name == name {
+			return c, true
+		}
+	}
+	return Class{}, false
+}
+
+// Tolerance returns the class's temperature tolerance at t °C, ± that many °C.
+func (c Class) Tolerance(celsius float64) float64 {
+	return c.Offset + c.Slope*math.Abs(celsius)
+}
+
+// Slope returns dR/dT of a model at t °C in ohms per °C, by a central
+// difference of 1 m°C (one-sided at the ends of the model's range).
+func Slope(m Model, celsius float64) (float64, error) {
+	const h = 1e-3
+	lo, hi := celsius-h, celsius+h
+	rlo, err := m.Resistance(lo)
+	if err != nil {
+		lo = celsius
+		if rlo, err = m.Resistance(lo); err != nil {
+			return 0, err
+		}
+	}
+	rhi, err := m.Resistance(hi)
+	if err != nil {
+		hi = celsius
+		if rhi, err = m.Resistance(hi); err != nil {
+			return 0, err
+		}
+	}
+	return (rhi - rlo) / (hi - lo), nil
 }

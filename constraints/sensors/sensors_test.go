@@ -171,3 +171,34 @@ func TestNTCRange(t *testing.T) {
 		}
 	}
 }
+
+// The IEC 60751 tolerance classes (IEC 60751, values from memory) and the
+// slope against the Callendar–Van Dusen equation's derivative,
+// dR/dT = R0·(A + 2·B·T) for T ≥ 0 °C and
+// R0·(A + 2·B·T + C·(4T³ − 300T²)) below.
+func TestClassesAndSlope(t *testing.T) {
+	want := map[string][2]float64{"AA": {0.1, 0.0017}, "A": {0.15, 0.002}, "B": {0.3, 0.005}, "C": {0.6, 0.01}}
+	for name, w := range want {
+		c, ok := LookupClass(name)
+		if !ok || c.Offset != w[0] || c.Slope != w[1] {
+			t.Errorf("class %s: %+v, want ±(%g + %g|t|)", name, c, w[0], w[1])
+		}
+		if got := c.Tolerance(-100); math.Abs(got-(w[0]+100*w[1])) > 1e-15 {
+			t.Errorf("class %s at -100 °C: ±%g", name, got)
+		}
+	}
+	if _, ok := LookupClass("D"); ok {
+		t.Error("class D found")
+	}
+	m := IEC60751(1000)
+	for _, tc := range []float64{-150, -20, 0, 60, 400, RTDMin, RTDMax} {
+		d := m.R0 * (m.A + 2*m.B*tc)
+		if tc < 0 {
+			d += m.R0 * m.C * (4*tc*tc*tc - 300*tc*tc)
+		}
+		got, err := Slope(m, tc)
+		if err != nil || math.Abs(got-d) > 1e-6*math.Abs(d) {
+			t.Errorf("slope at %g °C: %g (%v), derivative %g", tc, got, err, d)
+		}
+	}
+}

@@ -5,6 +5,7 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/sensors"
 	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/ohmfit/ohmfit/solver"
@@ -56,6 +57,12 @@ type BOMItem struct {
 	// the Steinhart–Hart coefficients, or R0 and the RTD's coefficients.
 	// "" for a resistor.
 	Model string
+	// BetaTolerance is an NTC's tolerance on its B constant as a fraction,
+	// 0 when not given; Class an RTD's IEC 60751 class, "" when not given
+	// (Tolerance is then the class's at 0 °C, in terms of R0). Model
+	// names both too.
+	BetaTolerance float64
+	Class         string
 	// Package is a resistor's package, named in the template or the
 	// smallest that carries it; for a sensor only the one the template
 	// names, else "".
@@ -80,7 +87,7 @@ func BOM(d *Design, rep *Report) []BOMLine {
 	}
 	var lines []BOMLine
 	for _, v := range d.Parts {
-		if v.Kind != solver.Resistor {
+		if v.Kind != solver.Resistor || v.Extra() {
 			continue
 		}
 		l := BOMLine{Designators: []string{v.Name}, TolFrom: v.TolFrom}
@@ -91,7 +98,14 @@ func BOM(d *Design, rep *Report) []BOMLine {
 		if v.Sensor != "" {
 			ps := d.Problem.Template.Parts[v.Part]
 			l.Type, l.Package = v.Sensor, v.Package
-			l.Value, l.Model = sensorSpec(ps.Sensor, ps.Value)
+			l.Value, l.Model = sensorSpec(ps)
+			l.BetaTolerance, l.Class = ps.BetaTolerance, ps.Class
+			if c, ok := sensors.LookupClass(ps.Class); ok {
+				// The class at 0 °C in terms of R0: dR/dT·tolerance / R0.
+				if k, err := sensors.Slope(ps.Sensor, 0); err == nil {
+					l.Tolerance = k * c.Tolerance(0) / l.Value
+				}
+			}
 			lines = append(lines, l)
 			continue
 		}
@@ -146,9 +160,24 @@ func sensorValueName(typ string) string {
 	return "R0"
 }
 
-// sensorSpec returns the value that names a sensor (R25, R0) and its model
-// as a buyer orders it. r25 is the model's resistance at 25 °C.
-func sensorSpec(m sensors.Model, r25 float64) (float64, string) {
+// sensorSpec returns the value that names a sensor part (R25, R0) and its
+// model as a buyer orders it, with its B tolerance or IEC 60751 class when
+// given.
+func sensorSpec(ps constraints.PartSpec) (float64, string) {
+	v, s := modelSpec(ps.Sensor, ps.Value)
+	if ps.BetaTolerance > 0 {
+		s += " ±" + eseries.FormatUnit(ps.BetaTolerance, eseries.Percent)
+	}
+	if c, ok := sensors.LookupClass(ps.Class); ok {
+		g := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+		s += ", class " + c.Name + " (IEC 60751: ±(" + g(c.Offset) + " + " + g(c.Slope) + "·|t|) °C)"
+	}
+	return v, s
+}
+
+// modelSpec returns the value that names a sensor model (R25, R0) and the
+// model as a buyer orders it. r25 is the model's resistance at 25 °C.
+func modelSpec(m sensors.Model, r25 float64) (float64, string) {
 	g := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 	switch m := m.(type) {
 	case sensors.Beta:
@@ -173,7 +202,6 @@ func (d *Design) SensorSpec(j int) string {
 	if v.Sensor == "" {
 		return ""
 	}
-	ps := d.Problem.Template.Parts[v.Part]
-	_, s := sensorSpec(ps.Sensor, ps.Value)
+	_, s := sensorSpec(d.Problem.Template.Parts[v.Part])
 	return s
 }

@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"strconv"
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/ratings"
@@ -76,11 +77,13 @@ type Stats struct {
 // derivative at nominal values (every part at its value, no tolerance, no
 // TCR drift). x is the physical part's value: its ohms (each part of a pair
 // on its own), a source's volts or amps, and for a thermistor or RTD its R25
-// or R0, which scales its resistance at every temperature alike.
+// or R0, which scales its resistance at every temperature alike; for a
+// sensor's extra entry (Varied.Extra) its B in kelvin, or its class error's
+// offset (°C) or slope (°C/°C).
 type Sensitivity struct {
 	Part       string
 	Absolute   float64 // dX/dx, in the target's unit per the part's unit; NaN when it cannot be computed
-	Normalised float64 // (dX/X)/(dx/x); NaN when X is 0
+	Normalised float64 // (dX/X)/(dx/x); NaN when X is 0, or x is (a class error's terms)
 }
 
 // Goal is one target in one condition.
@@ -113,7 +116,7 @@ type Rating struct {
 	Rated        float64 // rated watts of Package
 	MaxVolts     float64 // working voltage of Package
 	Load         ratings.Load
-	Verdict      string // ratings.Load.Verdict, or "no package fits"
+	Verdict      ratings.Verdict // Load.Verdict(), or ratings.VerdictNoPackage
 }
 
 // SensorLoad is a thermistor's or RTD's largest power and voltage. The
@@ -128,12 +131,15 @@ type SensorLoad struct {
 
 // Report is the outcome of Check.
 type Report struct {
-	Method       string // MethodCorners or MethodLinearised
-	Corners      int    // solves per condition spent on the worst case
-	Parts        []Varied
-	Goals        []Goal
-	Ratings      []Rating // resistors only
-	Sensors      []SensorLoad
+	Method  string // MethodCorners or MethodLinearised
+	Corners int    // solves per condition spent on the worst case
+	Parts   []Varied
+	Goals   []Goal
+	Ratings []Rating // resistors only
+	Sensors []SensorLoad
+	// Heating is each sensor's self-heating per condition, for sensors
+	// with a dissipation constant (see Design.SelfHeating); nil otherwise.
+	Heating      []Heating
 	Samples      int
 	Seed         uint64
 	Distribution Distribution
@@ -158,7 +164,10 @@ type Report struct {
 // gives the template's *constraints.Error, at the part at fault.)
 var ErrUnsolvable = errors.New("variation: the network cannot be solved")
 
-// Check analyses the design with real parts.
+// Check analyses the design with real parts. It uses d as scratch while it
+// runs (the TCR draws of the worst case and the Monte Carlo) and leaves it
+// as it found it, so one Design must not be checked from two goroutines at
+// once; give each its own NewDesign.
 func Check(d *Design, set *Settings) (*Report, error) {
 	var st Settings
 	if set != nil {
@@ -171,21 +180,46 @@ func Check(d *Design, set *Settings) (*Report, error) {
 		st.MaxCornerParts = DefaultMaxCornerParts
 	}
 	p := d.Problem
-	t := p.Template
 	s := p.Network.NewSolver()
 	s.SetRefinement(true) // the figures people read, to full accuracy
 	r := &Report{Parts: d.Parts, Seed: st.Seed, Distribution: st.Distribution, Ambient: d.ambient}
 	r.Warnings = append(r.Warnings, d.warnings...)
-	nc := len(p.Conditions)
-	nv := len(d.Parts)
-	zero := make([]float64, nv)
+	if err := d.nominal(s, r); err != nil {
+		return nil, err
+	}
+	rt := newRatingTracker(d, p.Network)
+	d.worstCase(s, r, &st, rt)
+	if st.Samples > 0 {
+		r.Samples = st.Samples
+		d.monteCarlo(s, r, &st, rt)
+	}
+	span := rt.watch.Span()
+	r.MaxVolts = span.Volts
+	r.MaxSpan = span
+	r.hazards = rt.watch.Cautions()
+	r.Ratings = rt.ratings(&st, p.Template, r)
+	r.Sensors = rt.sensors()
+	heating, err := d.SelfHeating()
+	if err != nil {
+		return nil, err
+	}
+	r.Heating = heating
+	r.Warnings = append(r.Warnings, heatingWarnings(r.Heating)...)
+	d.warn(r, &st)
+	return r, nil
+}
 
-	// Nominal values and sensitivities.
+// nominal adds one goal to r per target and condition, with its nominal
+// value and sensitivities, and one per sweep-wide target.
+func (d *Design) nominal(s *solver.Solver, r *Report) error {
+	p := d.Problem
+	t := p.Template
+	zero := make([]float64, len(d.Parts))
 	for ci := range p.Conditions {
 		d.setValues(s, ci, zero)
 		if err := s.Solve(); err != nil {
 			// The template's terms: the part at fault and what to change.
-			return nil, t.ConditionError(ci, err)
+			return t.ConditionError(ci, err)
 		}
 		for ti, pr := range p.Probes {
 			if !p.Applies[ti][ci] || p.Conditions[ci].Hidden {
@@ -193,11 +227,11 @@ func Check(d *Design, set *Settings) (*Report, error) {
 			}
 			x, err := pr.Read(s)
 			if err != nil {
-				return nil, err
+				return err
 			}
-			sens, err := d.sensitivities(s, pr, x, zero)
+			sens, err := d.sensitivities(s, ci, pr, x, zero)
 			if err != nil {
-				return nil, err
+				return err
 			}
 			tg := t.Targets[ti]
 			lo, hi := tg.Band()
@@ -216,7 +250,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 		}
 		x, err := d.derivedAt(s, ti, zero)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		tg := t.Targets[ti]
 		lo, hi := tg.Band()
@@ -224,9 +258,19 @@ func Check(d *Design, set *Settings) (*Report, error) {
 			Nominal: x, WorstMin: x, WorstMax: x, Sens: d.derivedSensitivities(s, ti, x),
 			HasBand: !math.IsInf(lo, -1) || !math.IsInf(hi, 1)})
 	}
+	return nil
+}
 
-	// Worst case.
-	rt := newRatingTracker(d, p.Network)
+// worstCase widens every goal of r to its worst-case range, over every
+// corner of the varied parts or, with more than st.MaxCornerParts of them,
+// over the two corners the linearised sensitivities point to; the rating
+// tracker sees every network solved. It then sets each goal's verdict and
+// worst error.
+func (d *Design) worstCase(s *solver.Solver, r *Report, st *Settings, rt *ratingTracker) {
+	p := d.Problem
+	t := p.Template
+	nv := len(d.Parts)
+	zero := make([]float64, nv)
 	var varying []int
 	for j := range d.Parts {
 		if d.varies(j) {
@@ -250,7 +294,7 @@ func Check(d *Design, set *Settings) (*Report, error) {
 			g.WorstMax = math.Max(g.WorstMax, x)
 		}
 	}
-	byCond := make([][]int, nc)
+	byCond := make([][]int, len(p.Conditions))
 	var sweep []int // goals of sweep-wide targets
 	for gi, g := range r.Goals {
 		if g.Condition == SweepCondition {
@@ -341,25 +385,11 @@ func Check(d *Design, set *Settings) (*Report, error) {
 			r.WorstErrorDesign = math.Max(r.WorstErrorDesign, g.WorstError)
 		}
 	}
-
-	// Monte Carlo.
-	if st.Samples > 0 {
-		r.Samples = st.Samples
-		d.monteCarlo(s, r, &st, rt)
-	}
-	span := rt.watch.Span()
-	r.MaxVolts = span.Volts
-	r.MaxSpan = span
-	r.hazards = rt.watch.Cautions()
-	r.Ratings = rt.ratings(&st, t, r)
-	r.Sensors = rt.sensors()
-	d.warn(r, &st)
-	return r, nil
 }
 
 // sensitivities returns the target's sensitivity to each varied part at the
 // solver's current solution, by the adjoint method.
-func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64, dev []float64) ([]Sensitivity, error) {
+func (d *Design) sensitivities(s *solver.Solver, ci int, pr constraints.Probe, x float64, dev []float64) ([]Sensitivity, error) {
 	net := s.Network()
 	nn, np := len(net.Nodes()), len(d.Problem.Template.Parts)
 	grad := make([]float64, np)
@@ -378,14 +408,19 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			nodeW[pr.B] -= pr.Scale
 		case constraints.Current:
 			partW[pr.Part] = pr.Sign
-		case constraints.Power:
-			// Watts = (V(from) - V(to))·Amps along the part's edge.
+		case constraints.Power, constraints.SelfHeating:
+			// Watts = (V(from) - V(to))·Amps along the part's edge; a
+			// rise is watts times 1/δ.
+			k := 1.0
+			if pr.Kind == constraints.SelfHeating {
+				k = pr.Scale
+			}
 			for _, e := range net.Edges() {
 				if e.Part == pr.Part {
 					i := s.Amps(pr.Part)
-					nodeW[e.From] += i
-					nodeW[e.To] -= i
-					partW[pr.Part] = s.Voltage(e.From) - s.Voltage(e.To)
+					nodeW[e.From] += k * i
+					nodeW[e.To] -= k * i
+					partW[pr.Part] = k * (s.Voltage(e.From) - s.Voltage(e.To))
 				}
 			}
 		case constraints.Ratio:
@@ -409,6 +444,11 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			if v.combine == constraints.Parallel {
 				g *= (pos / xj) * (pos / xj)
 			}
+		} else if v.Extra() {
+			// Per unit of the sensor's parameter (its B, its class
+			// error's offset or slope), through dR/dx in this condition.
+			g *= d.paramSlope(j, ci, pos)
+			xj = v.Nominal
 		} else {
 			xj = pos
 			if v.Sensor != "" {
@@ -419,7 +459,7 @@ func (d *Design) sensitivities(s *solver.Solver, pr constraints.Probe, x float64
 			}
 		}
 		n := math.NaN()
-		if x != 0 {
+		if x != 0 && xj != 0 {
 			n = g * xj / x
 		}
 		out[j] = Sensitivity{Part: v.Name, Absolute: g, Normalised: n}
@@ -446,7 +486,7 @@ func (d *Design) monteCarlo(s *solver.Solver, r *Report, st *Settings, rt *ratin
 		}
 		byCond[g.Condition] = append(byCond[g.Condition], gi)
 	}
-	points := make([]float64, p.Points)
+	points := p.NewPoints()
 	dev := make([]float64, len(d.Parts))
 	good := 0
 	if d.conditionTemperatures() {
@@ -504,7 +544,7 @@ func (d *Design) monteCarlo(s *solver.Solver, r *Report, st *Settings, rt *ratin
 			}
 		}
 		for _, gi := range sweep {
-			x := p.DerivedValue(r.Goals[gi].Target, points)
+			x := points.Derived(r.Goals[gi].Target)
 			vals[gi][k] = x
 			if !t.Targets[r.Goals[gi].Target].Meets(x) {
 				ok = false
@@ -601,7 +641,7 @@ func newRatingTracker(d *Design, net *solver.Network) *ratingTracker {
 func (rt *ratingTracker) observe(s *solver.Solver, ci int, dev []float64) {
 	isNominal := !slices.ContainsFunc(dev, func(v float64) bool { return v != 0 })
 	for j, v := range rt.d.Parts {
-		if v.Kind != solver.Resistor {
+		if v.Kind != solver.Resistor || v.Extra() {
 			continue
 		}
 		vo, w := rt.d.physical(s, j, dev)
@@ -640,7 +680,7 @@ func (rt *ratingTracker) ratings(st *Settings, t *constraints.Template, r *Repor
 		rg.Load = pkg.LoadOf(rg.Watts, rg.Volts)
 		rg.Verdict = rg.Load.Verdict()
 		if rg.Chosen && !rg.Fits {
-			rg.Verdict = "no package fits"
+			rg.Verdict = ratings.VerdictNoPackage
 		}
 		if maxPkg != "" {
 			switch {
@@ -660,7 +700,7 @@ func (rt *ratingTracker) ratings(st *Settings, t *constraints.Template, r *Repor
 func (rt *ratingTracker) sensors() []SensorLoad {
 	var out []SensorLoad
 	for j, v := range rt.d.Parts {
-		if v.Sensor != "" {
+		if v.Sensor != "" && !v.Extra() {
 			out = append(out, SensorLoad{Part: v.Name, NominalWatts: rt.nominal[j], Watts: rt.watts[j], Volts: rt.volts[j]})
 		}
 	}
@@ -691,8 +731,17 @@ func (d *Design) warn(r *Report, st *Settings) {
 			if g.Condition == SweepCondition {
 				where = "over the sweep"
 			}
+			f := func(v float64) string { return num(v, u) }
+			if tg.Kind == constraints.SelfHeating {
+				f = func(v float64) string {
+					if math.IsInf(v, 0) {
+						return num(v, u)
+					}
+					return strconv.FormatFloat(v, 'g', 4, 64) + " °C"
+				}
+			}
 			r.Failures = append(r.Failures, fmt.Sprintf("%s %s leaves its limits in the worst case: %s … %s against %s … %s",
-				g.Label, where, num(g.WorstMin, u), num(g.WorstMax, u), num(lo, u), num(hi, u)))
+				g.Label, where, f(g.WorstMin), f(g.WorstMax), f(lo), f(hi)))
 		}
 	}
 	if r.Samples > 0 && r.Yield < 1 {
@@ -700,16 +749,16 @@ func (d *Design) warn(r *Report, st *Settings) {
 	}
 	for _, rg := range r.Ratings {
 		switch rg.Verdict {
-		case "overload", "no package fits":
+		case ratings.VerdictOverload, ratings.VerdictNoPackage:
 			r.Warnings = append(r.Warnings, fmt.Sprintf("%s overloads its %s: %s against %s rated, %s against %s",
 				rg.Part, rg.Package, eseries.FormatUnit(rg.Watts, eseries.Watt), eseries.FormatUnit(rg.Rated, eseries.Watt),
 				eseries.FormatUnit(rg.Volts, eseries.Volt), eseries.FormatUnit(rg.MaxVolts, eseries.Volt)))
 			r.Cautions = append(r.Cautions, ratings.RatingCaution(rg.Part, rg.Package, rg.Load))
-		case "derating":
+		case ratings.VerdictDerating:
 			r.Warnings = append(r.Warnings, fmt.Sprintf("%s runs above half the rating of its %s (%.0f%%); half is the usual derating",
 				rg.Part, rg.Package, 100*rg.Load.PowerFraction))
 			r.Cautions = append(r.Cautions, ratings.RatingCaution(rg.Part, rg.Package, rg.Load))
-		case "near":
+		case ratings.VerdictNear:
 			r.Cautions = append(r.Cautions, ratings.RatingCaution(rg.Part, rg.Package, rg.Load))
 		}
 	}
@@ -733,17 +782,12 @@ const SweepCondition = -1
 
 // gatherPoints records, after condition ci was solved, the node voltages the
 // sweep-wide targets read in it (NaN when the solve failed).
-func (d *Design) gatherPoints(s *solver.Solver, ci int, solved bool, points []float64) {
-	p := d.Problem
+func (d *Design) gatherPoints(s *solver.Solver, ci int, solved bool, points *constraints.Points) {
 	if solved {
-		p.GatherPoints(ci, s, points)
+		points.Gather(ci, s)
 		return
 	}
-	if p.PointSlots != nil {
-		for _, ps := range p.PointSlots[ci] {
-			points[ps.Index] = math.NaN()
-		}
-	}
+	points.Fail(ci)
 }
 
 // derivedAt computes sweep-wide target ti with the parts at deviation dev,
@@ -751,15 +795,15 @@ func (d *Design) gatherPoints(s *solver.Solver, ci int, solved bool, points []fl
 func (d *Design) derivedAt(s *solver.Solver, ti int, dev []float64) (float64, error) {
 	p := d.Problem
 	dp := p.Derived[ti]
-	points := make([]float64, p.Points)
+	points := p.NewPoints()
 	for _, ci := range dp.Conds {
 		d.setValues(s, ci, dev)
 		if err := s.Solve(); err != nil {
-			return math.NaN(), fmt.Errorf("%w in condition %q: %v", ErrUnsolvable, p.Conditions[ci].Name, err)
+			return math.NaN(), errorf(ErrUnsolvable, "the network cannot be solved in condition %q: %v", p.Conditions[ci].Name, err)
 		}
 		d.gatherPoints(s, ci, true, points)
 	}
-	return p.DerivedValue(ti, points), nil
+	return points.Derived(ti), nil
 }
 
 // derivedSensitivities differentiates a sweep-wide target numerically: a
@@ -799,7 +843,7 @@ func (d *Design) derivedSensitivities(s *solver.Solver, ti int, x float64) []Sen
 		} else {
 			out[j].Absolute = slope
 		}
-		if x != 0 {
+		if x != 0 && v.Nominal != 0 {
 			out[j].Normalised = out[j].Absolute * v.Nominal / x
 		}
 	}

@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/constraints/sensors"
 	"github.com/ohmfit/ohmfit/eseries"
 	"github.com/ohmfit/ohmfit/solver"
 	"github.com/ohmfit/ohmfit/synth"
@@ -48,11 +49,34 @@ type Varied struct {
 	// TolFrom says where the tolerance came from: "part", "choose",
 	// "series", "assumed" or "none".
 	TolFrom string
+	// Param says what of a sensor this entry varies: ParamValue (its
+	// resistance, by Tol; every part that is not a sensor), or one of the
+	// extra parameters a sensor may carry, each an entry of its own after
+	// the sensor's: its B constant (ParamBeta, Tol relative, Nominal the B
+	// in kelvin) or the two terms of its IEC 60751 class, a temperature
+	// error e(t) = offset + slope·t within ±(Offset + Slope·|t|) °C
+	// (ParamClassOffset, Tol absolute in °C; ParamClassSlope, Tol absolute
+	// in °C per °C; Nominal 0). An extra entry is no part to buy.
+	Param int
+	// Class is an RTD's IEC 60751 class ("A"), on its ParamValue entry.
+	Class   string
 	Package string // package named in the template, "" to choose one
 	pair    int    // 0 single; 1 or 2: first or second of a series/parallel pair
 	combine constraints.Combine
 	other   int // index in Design.Parts of the pair's other part, or -1
 }
+
+// What a Varied entry varies: see Varied.Param.
+const (
+	ParamValue       = iota // the part's value (a sensor's R25 or R0)
+	ParamBeta               // an NTC's B constant
+	ParamClassOffset        // the constant term of an RTD's class error, °C
+	ParamClassSlope         // the term of an RTD's class error proportional to t, °C/°C
+)
+
+// Extra reports whether the entry is a sensor's extra parameter rather than
+// a physical part.
+func (v Varied) Extra() bool { return v.Param != ParamValue }
 
 // Design is a template with every resistor valued, ready for analysis.
 type Design struct {
@@ -80,7 +104,7 @@ type Design struct {
 func NewDesign(p *constraints.Problem, options []synth.Option, series string, ambient constraints.Ambient) (*Design, error) {
 	t := p.Template
 	if len(options) != len(p.Free) {
-		return nil, fmt.Errorf("variation: %d free positions but %d options", len(p.Free), len(options))
+		return nil, errorf(nil, "%d free positions but %d options", len(p.Free), len(options))
 	}
 	d := &Design{Problem: p, Options: options, position: make([][]int, len(t.Parts)), ambient: t.Ambient}
 	if ambient.Set {
@@ -91,6 +115,9 @@ func NewDesign(p *constraints.Problem, options []synth.Option, series string, am
 		free[i] = k
 	}
 	for i, ps := range t.Parts {
+		if ps.ADC != "" {
+			continue // an ADC's input: exact, and no part to buy
+		}
 		switch ps.Kind {
 		case solver.OpAmp:
 			continue
@@ -104,11 +131,12 @@ func NewDesign(p *constraints.Problem, options []synth.Option, series string, am
 			continue
 		}
 		if ps.Sensor != nil {
-			nom, _ := sensorSpec(ps.Sensor, ps.Value) // R25 or R0, the value it is ordered by
+			nom, _ := sensorSpec(ps) // R25 or R0, the value it is ordered by
 			v := Varied{Name: ps.Name, Position: ps.Name, Part: i, Kind: solver.Resistor, Nominal: nom,
 				Package: ps.Package, Sensor: ps.SensorType, Relative: true, other: -1}
 			d.sensorTolerance(&v, ps)
 			d.add(i, v)
+			d.sensorParams(i, ps)
 			continue
 		}
 		k, isFree := free[i]
@@ -199,6 +227,10 @@ func (d *Design) tolerance(v *Varied, ps constraints.PartSpec, ch constraints.Ch
 // warning. A resistor series' usual tolerance says nothing about a sensor.
 func (d *Design) sensorTolerance(v *Varied, ps constraints.PartSpec) {
 	switch {
+	case ps.Class != "":
+		// The class is the tolerance: its two terms are entries of their
+		// own (sensorParams), the resistance entry varies no further.
+		v.Tol, v.TolFrom, v.Class = 0, "class", ps.Class
 	case ps.Tolerance > 0 && ps.TolRelative:
 		v.Tol, v.TolFrom = ps.Tolerance, "part"
 	case ps.Tolerance > 0:
@@ -208,6 +240,85 @@ func (d *Design) sensorTolerance(v *Varied, ps constraints.PartSpec) {
 		d.warnings = append(d.warnings, fmt.Sprintf("%s: an %s without a tolerance; assumed ±%s of its %s (give `tolerance:` on the part, from its datasheet)",
 			v.Name, SensorKind(ps.SensorType), eseries.FormatUnit(AssumedTolerance, eseries.Percent), sensorValueName(ps.SensorType)))
 	}
+}
+
+// sensorParams adds the extra entries of sensor part i: its B tolerance,
+// or the two terms of its IEC 60751 class.
+func (d *Design) sensorParams(i int, ps constraints.PartSpec) {
+	base := Varied{Position: ps.Name, Part: i, Kind: solver.Resistor, Sensor: ps.SensorType, TolFrom: "part", other: -1}
+	if b, ok := ps.Sensor.(sensors.Beta); ok && ps.BetaTolerance > 0 {
+		v := base
+		v.Name, v.Param, v.Nominal, v.Tol, v.Relative = ps.Name+":B", ParamBeta, b.Beta, ps.BetaTolerance, true
+		d.add(i, v)
+	}
+	if c, ok := sensors.LookupClass(ps.Class); ok {
+		v := base
+		v.Name, v.Param, v.Tol, v.TolFrom = ps.Name+":offset", ParamClassOffset, c.Offset, "class"
+		d.add(i, v)
+		v.Name, v.Param, v.Tol = ps.Name+":slope", ParamClassSlope, c.Slope
+		d.add(i, v)
+	}
+}
+
+// sensorValue is sensor part i's resistance in condition c with its
+// entries idx at deviations dev: the model's resistance at the condition's
+// temperature, scaled by its value tolerance, with its B constant moved
+// (R = R25·exp(B·(1/T − 1/T25)), so a relative change δB multiplies R by
+// exp(B·δB·(1/T − 1/T25))), and read at the temperature its class error
+// puts it at (a sensor e °C off the standard curve has, at t, the
+// resistance the standard sensor has at t + e).
+func (d *Design) sensorValue(i, c int, idx []int, dev []float64) float64 {
+	t := d.Problem.Template
+	ps := t.Parts[i]
+	celsius := t.Conditions[c].Temperature
+	r := d.Problem.Conditions[c].Values[i]
+	e := 0.0
+	for _, j := range idx {
+		v := d.Parts[j]
+		switch v.Param {
+		case ParamValue:
+			r *= 1 + dev[j]
+		case ParamBeta:
+			x := 1/(celsius+sensors.ZeroCelsius) - 1/(constraints.ReferenceCelsius+sensors.ZeroCelsius)
+			r *= math.Exp(v.Nominal * dev[j] * x)
+		case ParamClassOffset:
+			e += dev[j]
+		case ParamClassSlope:
+			e += dev[j] * celsius
+		}
+	}
+	if e != 0 {
+		base := d.Problem.Conditions[c].Values[i]
+		if moved, err := ps.Sensor.Resistance(celsius + e); err == nil {
+			r *= moved / base
+		} else if k, err := sensors.Slope(ps.Sensor, celsius); err == nil {
+			r *= 1 + k*e/base // at the end of the model's range: its tangent
+		}
+	}
+	return r
+}
+
+// paramSlope is dR/dx of sensor entry j in condition c at nominal values,
+// for x the entry's parameter (its B in kelvin, its class offset in °C,
+// its class slope in °C/°C), with r the sensor's resistance there.
+func (d *Design) paramSlope(j, c int, r float64) float64 {
+	v := d.Parts[j]
+	t := d.Problem.Template
+	celsius := t.Conditions[c].Temperature
+	switch v.Param {
+	case ParamBeta:
+		return r * (1/(celsius+sensors.ZeroCelsius) - 1/(constraints.ReferenceCelsius+sensors.ZeroCelsius))
+	case ParamClassOffset, ParamClassSlope:
+		k, err := sensors.Slope(t.Parts[v.Part].Sensor, celsius)
+		if err != nil {
+			return math.NaN()
+		}
+		if v.Param == ParamClassSlope {
+			k *= celsius
+		}
+		return k
+	}
+	return math.NaN()
 }
 
 // tcr fills a resistor's TCR: the part's, the choice's, or the default for
@@ -267,6 +378,10 @@ func (d *Design) setValues(s *solver.Solver, c int, dev []float64) {
 		s.SetValue(i, v)
 	}
 	for i, idx := range d.position {
+		if len(idx) > 0 && d.Parts[idx[0]].Sensor != "" {
+			s.SetValue(i, d.sensorValue(i, c, idx, dev))
+			continue
+		}
 		switch len(idx) {
 		case 1:
 			v := d.Parts[idx[0]]
@@ -282,11 +397,7 @@ func (d *Design) setValues(s *solver.Solver, c int, dev []float64) {
 		case 2:
 			a := d.Parts[idx[0]].Nominal * d.factor(idx[0], c, dev)
 			b := d.Parts[idx[1]].Nominal * d.factor(idx[1], c, dev)
-			if d.Parts[idx[0]].combine == constraints.Parallel {
-				s.SetValue(i, a*b/(a+b))
-			} else {
-				s.SetValue(i, a+b)
-			}
+			s.SetValue(i, d.Parts[idx[0]].combine.Join(a, b))
 		}
 	}
 }
