@@ -13,6 +13,11 @@ import (
 // invariants the rest of ohmfit relies on.
 func FuzzParse(f *testing.F) {
 	seeds, _ := filepath.Glob(filepath.Join("..", "testdata", "examples", "*.yaml"))
+	// The bad corpus too: the YAML mistakes are near the parser's edges.
+	for _, dir := range []string{"bad", filepath.Join("bad", "network"), filepath.Join("bad", "degenerate")} {
+		m, _ := filepath.Glob(filepath.Join("..", "testdata", dir, "*.yaml"))
+		seeds = append(seeds, m...)
+	}
 	seeds = append(seeds, filepath.Join("testdata", "contract.yaml"))
 	for _, s := range seeds {
 		data, err := os.ReadFile(s)

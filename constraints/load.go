@@ -218,6 +218,7 @@ type decoder struct {
 	partsNode  *yaml.Node
 
 	nodeRefs     []nodeRef
+	ratioRefs    []nodeRef // the nodes ratio targets divide by
 	partRefs     []partRef
 	condRefs     []condRef
 	overrideRefs []partRef
@@ -332,7 +333,7 @@ func (d *decoder) document(data []byte) (root *yaml.Node) {
 		if errors.Is(err, io.EOF) {
 			d.errorf(nil, "", "empty template: expected `ohmfit: 1` followed by parts")
 		} else {
-			d.yamlError(err)
+			d.yamlError(err, data)
 		}
 		return nil
 	}
@@ -342,7 +343,7 @@ func (d *decoder) document(data []byte) (root *yaml.Node) {
 		d.errorf(&extra, "", "a template is one YAML document; this file holds several (remove the extra `---`)")
 		return nil
 	case !errors.Is(err, io.EOF):
-		d.yamlError(err)
+		d.yamlError(err, data)
 		return nil
 	}
 	root = &doc
@@ -361,7 +362,9 @@ func (d *decoder) document(data []byte) (root *yaml.Node) {
 }
 
 // yamlError turns the parser's "yaml: line N: msg" into a positioned Error.
-func (d *decoder) yamlError(err error) {
+// When the source shows what went wrong (yamlHint), the error points at
+// that character and says how to fix it instead.
+func (d *decoder) yamlError(err error, src []byte) {
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")
 	e := &Error{File: d.file, Msg: "not valid YAML: " + msg, Err: err}
 	if rest, ok := strings.CutPrefix(msg, "line "); ok {
@@ -370,6 +373,9 @@ func (d *decoder) yamlError(err error) {
 				e.Line, e.Msg = n, "not valid YAML: "+text
 			}
 		}
+	}
+	if line, col, text, ok := yamlHint(src, msg, e.Line); ok {
+		e.Line, e.Col, e.Msg = line, col, "not valid YAML: "+text
 	}
 	d.errs = append(d.errs, e)
 }
@@ -460,6 +466,15 @@ func (d *decoder) fields(n *yaml.Node, path, ctx string, allowed []string) (map[
 			continue
 		}
 		if allowed != nil && !slices.Contains(allowed, name) {
+			if i := strings.IndexAny(k.Value, "：，"); i >= 0 && k.Style == 0 {
+				// "name： V1" reads as one key; point at the full-width mark.
+				c := *k
+				c.Column += utf8.RuneCountInString(k.Value[:i])
+				r, _ := utf8.DecodeRuneInString(k.Value[i:])
+				d.errorf(&c, kp, "%sa full-width %s (%c) where YAML needs the ASCII one; write %s with a space after it", pre,
+					map[rune]string{'：': "colon", '，': "comma"}[r], r, map[rune]string{'：': ":", '，': ","}[r])
+				continue
+			}
 			if s := suggest(name, allowed); s != "" {
 				d.errorf(k, kp, "%sunknown key %q%s", pre, name, s)
 			} else {
@@ -916,6 +931,9 @@ func (d *decoder) target(n *yaml.Node, path string, i int) {
 			}
 			tg.Nodes = append(tg.Nodes, name)
 			d.nodeRefs = append(d.nodeRefs, nodeRef{name, it, qpath})
+			if j == 1 && tg.Kind == Ratio {
+				d.ratioRefs = append(d.ratioRefs, nodeRef{name, it, qpath})
+			}
 		}
 	default:
 		// One name: a part, an ADC or a node, by kind.
@@ -1381,6 +1399,11 @@ func (d *decoder) crossCheck() {
 	for _, r := range d.nodeRefs {
 		if !slices.Contains(nodes, r.name) {
 			d.errorf(r.n, r.key, "target names node %q, which no part connects%s", r.name, suggest(r.name, nodes))
+		}
+	}
+	for _, r := range d.ratioRefs {
+		if r.name == t.Ground {
+			d.errorf(r.n, r.key, "ratio: %q is the ground node, always at 0 V, so the ratio is undefined; for a node's voltage to ground write {voltage: NODE}", r.name)
 		}
 	}
 	d.checkDangling(nodes)

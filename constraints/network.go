@@ -71,7 +71,12 @@ func (t *Template) NetworkError(err error) *Error {
 			strings.Join(cc.Nodes, " or "), t.Ground)
 	case errors.As(err, &fb):
 		at(fb.OpAmp)
-		if fb.Input != "" {
+		if fb.Positive {
+			if i, ok := t.Part(fb.OpAmp); ok {
+				p := t.Parts[i]
+				e.Msg += fmt.Sprintf("; swap plus (%s) and minus (%s), or connect the feedback from out (%s) to minus", p.Plus, p.Minus, p.Out)
+			}
+		} else if fb.Input != "" {
 			e.Msg += fmt.Sprintf("; give node %s a path to %s of its own (a resistor, say)", fb.Input, t.Ground)
 		} else if i, ok := t.Part(fb.OpAmp); ok {
 			p := t.Parts[i]

@@ -117,3 +117,32 @@ func TestNetworkErrorPlaces(t *testing.T) {
 		t.Error("NetworkError(nil) is not nil")
 	}
 }
+
+// TestDegenerate loads each template in testdata/bad/degenerate, which
+// loads and whose network solves, but in which every candidate would score
+// the same or none could be scored (no excitation, a goal the free parts
+// cannot move, a figure undefined everywhere). Compile must refuse it up
+// front, at the part or target at fault, wrapping ErrDegenerate.
+func TestDegenerate(t *testing.T) {
+	files, err := filepath.Glob(filepath.Join("..", "testdata", "bad", "degenerate", "*.yaml"))
+	if err != nil || len(files) == 0 {
+		t.Fatalf("no degenerate templates found (%v)", err)
+	}
+	for _, f := range files {
+		t.Run(filepath.Base(f), func(t *testing.T) {
+			want := wantLine(t, f)
+			tpl, err := Load(f)
+			if err != nil {
+				t.Fatalf("Load: %v (degenerate templates must load)", err)
+			}
+			_, err = Compile(tpl)
+			var e *Error
+			if !errors.As(err, &e) || !errors.Is(err, ErrDegenerate) {
+				t.Fatalf("got %v, want an *Error wrapping ErrDegenerate", err)
+			}
+			if got := strings.TrimPrefix(err.Error(), f+":"); got != want {
+				t.Errorf("got  %s\nwant %s:%s", err, f, want)
+			}
+		})
+	}
+}

@@ -219,6 +219,9 @@ func Compile(t *Template) (*Problem, error) {
 	if err := p.trial(); err != nil {
 		return nil, err
 	}
+	if err := p.degenerate(); err != nil {
+		return nil, err
+	}
 	return p, nil
 }
 

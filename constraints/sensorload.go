@@ -254,6 +254,15 @@ func (d *decoder) numbers(n *yaml.Node, path, ctx string, k int, example string)
 
 // adc reads `{name: ADC1, type: adc, in: node, ref: 3.3, bits: 12}`.
 func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
+	// Name the ADC by its name where it has a usable one, as parts do.
+	if n.Kind == yaml.MappingNode {
+		for j := 0; j+1 < len(n.Content); j += 2 {
+			if k, v := n.Content[j], n.Content[j+1]; k.Value == "name" && v.Kind == yaml.ScalarNode && v.Value != "" {
+				ctx = "part " + eseries.Quote(v.Value)
+				break
+			}
+		}
+	}
 	byName, _ := d.fields(n, path, ctx, []string{"name", "type", "in", "ref", "bits", "max_source", "input", "leakage"})
 	for _, k := range []string{"name", "in", "ref", "bits"} {
 		if _, ok := byName[k]; !ok {

@@ -108,15 +108,22 @@ func (e *CurrentCutsetError) Unwrap() error { return ErrSingular }
 // OpAmpFeedbackError reports an op-amp whose output cannot bring its inputs
 // together: either no feedback path reaches an input (Input empty), or input
 // node Input reaches ground only through the other input node Other, so the
-// parts between them fix the input difference whatever the output does.
-// See Compile for the exact rule.
+// parts between them fix the input difference whatever the output does,
+// or (Positive) the output feeds back to plus only. See Compile for the
+// exact rules.
 type OpAmpFeedbackError struct {
 	OpAmp        string
 	Input, Other string
+	// Positive is set when the output reaches only the plus input, through
+	// passive parts: positive feedback, which latches a real op-amp.
+	Positive bool
 }
 
 // Message names the fault in an engineer's words.
 func (e *OpAmpFeedbackError) Message() string {
+	if e.Positive {
+		return fmt.Sprintf("op-amp %s has only positive feedback: its output reaches its plus input and never its minus input, so a real op-amp latches at a rail", e.OpAmp)
+	}
 	if e.Input != "" {
 		return fmt.Sprintf("op-amp %s has no usable feedback: input node %s connects to the "+
 			"rest of the circuit only through its other input %s", e.OpAmp, e.Input, e.Other)

@@ -56,6 +56,10 @@ func TestDegenerateCircuits(t *testing.T) {
 			as(func(e *OpAmpFeedbackError) bool { return e.OpAmp == "U1" })},
 		{"input hanging on the other input", []Part{vsrc("V1", "in", "gnd", 1), res("R1", "in", "m", 1), res("RF", "o", "m", 1), res("RH", "h", "m", 1), opamp("U1", "h", "m", "o")},
 			as(func(e *OpAmpFeedbackError) bool { return e.OpAmp == "U1" && e.Input == "h" && e.Other == "m" })},
+		{"positive feedback only", []Part{vsrc("V1", "in", "gnd", 1), opamp("U1", "p", "in", "o"), res("R1", "o", "p", 1), res("R2", "p", "gnd", 1)},
+			as(func(e *OpAmpFeedbackError) bool { return e.OpAmp == "U1" && e.Positive })},
+		{"follower on plus", []Part{vsrc("V1", "in", "gnd", 1), opamp("U1", "o", "in", "o"), res("RL", "o", "gnd", 1)},
+			as(func(e *OpAmpFeedbackError) bool { return e.OpAmp == "U1" && e.Positive })},
 		{"zero resistance", []Part{vsrc("V1", "a", "gnd", 1), res("R1", "a", "gnd", 0)}, badValue("R1")},
 		{"negative resistance", []Part{vsrc("V1", "a", "gnd", 1), res("R1", "a", "gnd", -1)}, badValue("R1")},
 		{"NaN resistance", []Part{vsrc("V1", "a", "gnd", 1), res("R1", "a", "gnd", nan)}, badValue("R1")},
@@ -152,6 +156,12 @@ func TestValidOpAmpTopologies(t *testing.T) {
 			opamp("U2", "x", "o", "o"), res("RF", "o", "m", 4.7e3)}, "o", -4.7 * 0.3},
 		// Feedback through a floating voltage source stacked on the output:
 		// V(m) = V(o) - 0.5 = V(in) (nullor), so V(o) = V(in) + 0.5 (KVL).
+		// Feedback to both inputs, the negative stronger (1/2 of the
+		// output at minus against 1/3 at plus): accepted. Nullor V(p) =
+		// V(m) = V(o)/2 and KCL at p, (1 - V(p))/1 + (V(o) - V(p))/2 = 0,
+		// give V(o) = 4.
+		{"both feedbacks", []Part{vsrc("V1", "in", "gnd", 1), res("R3", "in", "p", 1), res("RP", "o", "p", 2), opamp("U1", "p", "m", "o"),
+			res("RF", "o", "m", 1), res("RG", "m", "gnd", 1)}, "o", 4},
 		{"stacked source", []Part{vsrc("V1", "in", "gnd", 1), opamp("U1", "in", "m", "o"), vsrc("V2", "o", "m", 0.5), res("R1", "m", "gnd", 1e3)}, "o", 1.5},
 	}
 	for _, tc := range cases {

@@ -256,6 +256,14 @@ func (g *graph) checkFeedback() error {
 		if !g.reachesOwnInput(u, driven, inputsAt, adj) {
 			return &OpAmpFeedbackError{OpAmp: name}
 		}
+		// Rule 3: a change of the output reaching Plus through passive
+		// parts alone, and Minus by no path at all, is feedback of one
+		// sign only: positive (a resistive path passes a change on with
+		// a factor from 0 to 1). The ideal op-amp still has a solution,
+		// but a real one latches at a rail.
+		if !g.moves(u, driven, inputsAt, adj, true)[g.minus[u]] && g.moves(u, driven, inputsAt, adj, false)[g.plus[u]] {
+			return &OpAmpFeedbackError{OpAmp: name, Positive: true}
+		}
 		// An input that reaches ground only through the other input (or
 		// nodes tied to it by voltage sources, which move with it) hangs on
 		// it: the parts in between fix the input difference whatever the
@@ -296,6 +304,41 @@ func reachesWithout(adj [][]int, from, to int, cut []int) bool {
 		}
 	}
 	return false
+}
+
+// moves returns the nodes a change of op-amp u's output moves, by the
+// spread of rule 1; through other op-amps only when stages is true.
+func (g *graph) moves(u int, driven map[int][]int, inputsAt [][]int, adj [][]int, stages bool) []bool {
+	moved := make([]bool, len(g.net.nodes))
+	triggered := map[int]bool{u: true}
+	var queue []int
+	push := func(k int) {
+		if !moved[k] {
+			moved[k] = true
+			queue = append(queue, k)
+		}
+	}
+	for _, k := range driven[u] {
+		push(k)
+	}
+	for len(queue) > 0 {
+		x := queue[0]
+		queue = queue[1:]
+		for _, p := range inputsAt[x] {
+			if stages && !triggered[p] {
+				triggered[p] = true
+				for _, k := range driven[p] {
+					push(k)
+				}
+			}
+		}
+		for _, y := range adj[x] {
+			if !g.held[y] {
+				push(y)
+			}
+		}
+	}
+	return moved
 }
 
 func (g *graph) reachesOwnInput(u int, driven map[int][]int, inputsAt [][]int, adj [][]int) bool {

@@ -94,6 +94,11 @@ type iStamp struct{ part, from, to int32 }
 //     tied to it by voltage sources, unless that other input is itself held
 //     against ground. An input hanging only on the other one sits at an
 //     offset from it that the parts between them fix, whatever the output.
+//  3. The change must reach Minus (by the spread of rule 1), or else not
+//     reach Plus through resistors and voltage sources alone: a resistive
+//     path from Out to Plus with none to Minus is positive feedback only
+//     (OpAmpFeedbackError with Positive set). The ideal op-amp has a
+//     solution there, but a real one latches at a rail.
 //
 // Voltage sources and op-amp input pairs forming a loop (InputLoopError) are
 // checked before both. The rules are structural: values can still make a

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"image/png"
 	"os"
 	"path/filepath"
 	"strings"
@@ -33,6 +34,37 @@ func TestPlotExtreme(t *testing.T) {
 					t.Fatalf("no plot written: %v", err)
 				}
 			})
+		}
+	}
+}
+
+// TestCheckPlotLongSweep draws check --plot for a design over an 801-point
+// sweep: a target read in every condition gets one spread panel, not 801
+// histograms, so the picture's size (and the memory that draws it) does
+// not grow with the sweep. Four targets, four panels of 3 in at 110 dpi.
+func TestCheckPlotLongSweep(t *testing.T) {
+	f := filepath.Join(attackDir, "sweep-801.yaml")
+	dir := t.TempDir()
+	for _, ext := range []string{"png", "svg"} {
+		out := filepath.Join(dir, "p."+ext)
+		_, stderr, code := runCLI(t, "check", f, "--samples", "100", "--plot", out)
+		if code != ExitOK {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		if ext != "png" {
+			continue
+		}
+		r, err := os.Open(out)
+		if err != nil {
+			t.Fatal(err)
+		}
+		cfg, err := png.DecodeConfig(r)
+		r.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		if want := 4 * 3 * 110; cfg.Height != want {
+			t.Errorf("plot is %d px high, want %d (four panels)", cfg.Height, want)
 		}
 	}
 }

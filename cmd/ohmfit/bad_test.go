@@ -98,3 +98,31 @@ func badRuns(t *testing.T, file, want string) string {
 	}
 	return b.String()
 }
+
+// TestDegenerateInputs runs `ohmfit fit` on every template in
+// testdata/bad/degenerate (no excitation, a goal no free part moves, a
+// figure undefined for every candidate) in each output format: each must
+// exit 2 with the same one line, the file's "# want:" line, and write
+// nothing to stdout, before any search.
+func TestDegenerateInputs(t *testing.T) {
+	files, err := filepath.Glob(filepath.Join(badDir, "degenerate", "*.yaml"))
+	if err != nil || len(files) == 0 {
+		t.Fatalf("no degenerate templates (%v)", err)
+	}
+	for _, f := range files {
+		t.Run(filepath.Base(f), func(t *testing.T) {
+			data, err := os.ReadFile(f)
+			if err != nil {
+				t.Fatal(err)
+			}
+			first, _, _ := strings.Cut(string(data), "\n")
+			want := errorLabel + f + ":" + strings.TrimPrefix(first, "# want: ") + "\n"
+			for _, format := range []string{"table", "json", "csv"} {
+				stdout, stderr, code := runCLI(t, "fit", f, "--format", format)
+				if code != ExitBadInput || stdout != "" || stderr != want {
+					t.Errorf("--format %s: exit %d, stdout %q\ngot  %swant %s", format, code, stdout, stderr, want)
+				}
+			}
+		})
+	}
+}

@@ -354,8 +354,15 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitR
 	if tg.Kind.Derived() {
 		where = "over the temperature sweep"
 	}
+	lim := describeLimit(tg)
+	if lim == "" {
+		// A target without limits rejects only a figure that cannot be
+		// computed (a ratio over a node at 0 V in that candidate).
+		return fmt.Sprintf("%s; most were rejected because %s is undefined for them %s (line %d); aim the target at a quantity those candidates set, or narrow the value ranges",
+			scope, tg.Label(), where, tg.Pos.Line)
+	}
 	return fmt.Sprintf("%s; most were rejected by %s %s %s (line %d); widen that limit, the value ranges or the series",
-		scope, tg.Label(), describeLimit(tg), where, tg.Pos.Line)
+		scope, tg.Label(), lim, where, tg.Pos.Line)
 }
 
 // describeLimit writes a target's hard limits, e.g. "max 100 µA".

@@ -17,6 +17,8 @@ func FuzzCLI(f *testing.F) {
 	for _, pat := range []string{
 		filepath.Join("..", "..", "testdata", "examples", "*.yaml"),
 		filepath.Join("..", "..", "testdata", "bad", "*.yaml"),
+		filepath.Join("..", "..", "testdata", "bad", "network", "*.yaml"),
+		filepath.Join("..", "..", "testdata", "bad", "degenerate", "*.yaml"),
 		filepath.Join("testdata", "*.yaml"),
 	} {
 		m, _ := filepath.Glob(pat)

@@ -171,11 +171,37 @@ func paretoPlot(p *synth.Problem, sols []synth.Solution, chosen int) (*plot.Plot
 	return pl, nil
 }
 
+// maxHistConditions is the most conditions a target gets one histogram
+// each in; beyond it, its conditions share one spread panel, so that the
+// picture (and the memory that draws it) does not grow with a sweep's
+// length. An 801-point sweep drew 801 panels, 1.8 GB of pixels, before.
+const maxHistConditions = 4
+
 // plotHistograms draws one Monte Carlo histogram per target and condition,
-// with the target's limits as vertical lines.
+// with the target's limits as vertical lines; a target read in more than
+// maxHistConditions conditions gets one spread panel instead (spreadPlot).
 func plotHistograms(w io.Writer, path string, t *constraints.Template, rep *variation.Report) error {
 	var plots []*plot.Plot
+	perTarget := map[int][]variation.Goal{}
 	for _, g := range rep.Goals {
+		perTarget[g.Target] = append(perTarget[g.Target], g)
+	}
+	spread := map[int]bool{}
+	for gi, g := range rep.Goals {
+		if gs := perTarget[g.Target]; len(gs) > maxHistConditions {
+			if !spread[g.Target] {
+				spread[g.Target] = true
+				pl, err := spreadPlot(t, gs)
+				if err != nil {
+					return err
+				}
+				if pl != nil {
+					plots = append(plots, pl)
+				}
+			}
+			continue
+		}
+		g := rep.Goals[gi]
 		var vals plotter.Values
 		for _, v := range g.Samples {
 			if !math.IsNaN(v) {
@@ -221,6 +247,103 @@ func plotHistograms(w io.Writer, path string, t *constraints.Template, rep *vari
 		return fmt.Errorf("no Monte Carlo samples to draw (is --samples 0?)")
 	}
 	return savePlots(w, path, plots, 7*vg.Inch, vg.Length(len(plots))*3*vg.Inch)
+}
+
+// spreadPlot draws one target over many conditions: its nominal value,
+// the Monte Carlo 0.135 %…99.865 % points and the worst-case range per
+// condition, against the condition's temperature where every one has one
+// (else its place in the list), with the target's limits as horizontal
+// lines. It returns nil when no condition has samples.
+func spreadPlot(t *constraints.Template, gs []variation.Goal) (*plot.Plot, error) {
+	byTemp := true
+	for _, g := range gs {
+		if g.Condition < 0 || g.Condition >= len(t.Conditions) || !t.Conditions[g.Condition].HasTemperature {
+			byTemp = false
+		}
+	}
+	var nom, lo, hi, wlo, whi plotter.XYs
+	minYield, drawn := 1.0, 0
+	for i, g := range gs {
+		if g.MonteCarlo.Failed >= len(g.Samples) && len(g.Samples) > 0 || math.IsNaN(g.MonteCarlo.Mean) {
+			continue
+		}
+		x := float64(i + 1)
+		if byTemp {
+			x = t.Conditions[g.Condition].Temperature
+		}
+		nom = append(nom, plotter.XY{X: x, Y: g.Nominal})
+		lo = append(lo, plotter.XY{X: x, Y: g.MonteCarlo.Low})
+		hi = append(hi, plotter.XY{X: x, Y: g.MonteCarlo.High})
+		wlo = append(wlo, plotter.XY{X: x, Y: g.WorstMin})
+		whi = append(whi, plotter.XY{X: x, Y: g.WorstMax})
+		minYield = math.Min(minYield, g.MonteCarlo.Yield)
+		drawn++
+	}
+	if drawn == 0 {
+		return nil, nil
+	}
+	tg := t.Targets[gs[0].Target]
+	u := tg.Kind.Unit()
+	pl := plot.New()
+	pl.Title.Text = fmt.Sprintf("%s over %d conditions: lowest yield %s", gs[0].Label, drawn, yieldText(minYield))
+	pl.Y.Label.Text = unitLabel(gs[0].Label, u)
+	pl.Y.Tick.Marker = engTicks{u}
+	pl.X.Label.Text = "condition (place in the list)"
+	if byTemp {
+		pl.X.Label.Text = "temperature (°C)"
+	}
+	add := func(name string, pts plotter.XYs, c color.RGBA, dashed bool) error {
+		ln, err := plotter.NewLine(pts)
+		if err != nil {
+			return err
+		}
+		ln.LineStyle.Color = c
+		ln.LineStyle.Width = vg.Points(1.2)
+		if dashed {
+			ln.LineStyle.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
+		}
+		pl.Add(ln)
+		if name != "" {
+			pl.Legend.Add(name, ln)
+		}
+		return nil
+	}
+	blue, grey := color.RGBA{R: 40, G: 90, B: 170, A: 255}, color.RGBA{R: 120, G: 120, B: 120, A: 255}
+	for _, l := range []struct {
+		name   string
+		pts    plotter.XYs
+		c      color.RGBA
+		dashed bool
+	}{
+		{"nominal", nom, color.RGBA{A: 255}, false},
+		{"Monte Carlo 0.135 %", lo, blue, false},
+		{"Monte Carlo 99.865 %", hi, blue, false},
+		{"worst case", wlo, grey, true},
+		{"", whi, grey, true},
+	} {
+		if err := add(l.name, l.pts, l.c, l.dashed); err != nil {
+			return nil, err
+		}
+	}
+	x0, x1 := nom[0].X, nom[len(nom)-1].X
+	if x1 == x0 {
+		x1 = x0 + 1
+	}
+	bandLo, bandHi := tg.Band()
+	for _, y := range []float64{bandLo, bandHi} {
+		if math.IsInf(y, 0) {
+			continue
+		}
+		ln, err := plotter.NewLine(plotter.XYs{{X: x0, Y: y}, {X: x1, Y: y}})
+		if err != nil {
+			return nil, err
+		}
+		ln.LineStyle.Color = color.RGBA{R: 200, G: 30, B: 30, A: 255}
+		ln.LineStyle.Width = vg.Points(1.5)
+		pl.Add(ln)
+	}
+	pl.Legend.Top = true
+	return pl, nil
 }
 
 // savePlots draws the plots one above the other and writes SVG or PNG,
