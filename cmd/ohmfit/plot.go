@@ -286,7 +286,7 @@ func spreadPlot(t *constraints.Template, gs []variation.Goal) (*plot.Plot, error
 	u := tg.Kind.Unit()
 	pl := plot.New()
 	pl.Title.Text = fmt.Sprintf("%s over %d conditions: lowest yield %s", gs[0].Label, drawn, yieldText(minYield))
-	pl.Y.Label.Text = unitLabel(gs[0].Label, u)
+	pl.Y.Label.Text = axisLabel(gs[0].Label, tg.Kind)
 	pl.Y.Tick.Marker = engTicks{u}
 	pl.X.Label.Text = "condition (place in the list)"
 	if byTemp {
