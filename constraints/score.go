@@ -60,9 +60,11 @@ func (t Target) Band() (lo, hi float64) {
 
 // Meets reports whether v lies inside the target's hard limits. Bounds are
 // inclusive, and a value on a bound within the tie tolerance counts as inside,
-// so that a design sitting exactly on a limit is not lost to rounding.
+// so that a design sitting exactly on a limit is not lost to rounding. A value
+// that is not a finite number (NaN or ±Inf: a figure the design does not
+// define) meets no target, so no command ranks or shows such a design.
 func (t Target) Meets(v float64) bool {
-	if math.IsNaN(v) {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return false
 	}
 	lo, hi := t.Band()

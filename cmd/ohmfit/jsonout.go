@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"fmt"
 	"io"
 	"math"
 )
@@ -33,8 +32,12 @@ func (o object) MarshalJSON() ([]byte, error) {
 		}
 		b.WriteByte(':')
 		if f, ok := m.Value.(float64); ok && (math.IsNaN(f) || math.IsInf(f, 0)) {
-			// JSON has no NaN; say which key rather than "unsupported value".
-			return nil, fmt.Errorf("%q is %v, which JSON cannot hold", m.Key, f)
+			// JSON has no NaN or infinity: a figure the design does not
+			// define is null, as the table shows it undefined, and the
+			// report's warnings say which (the same exit code and story in
+			// every format).
+			b.WriteString("null")
+			continue
 		}
 		if err := encodeTo(&b, m.Value); err != nil {
 			return nil, err

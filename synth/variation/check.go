@@ -186,6 +186,12 @@ func Check(d *Design, set *Settings) (*Report, error) {
 	if err := d.nominal(s, r); err != nil {
 		return nil, err
 	}
+	for _, g := range r.Goals {
+		if math.IsNaN(g.Nominal) || math.IsInf(g.Nominal, 0) {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("%s in %s is not a finite number (%v): the design does not define it, so it fails its target",
+				g.Label, g.CondName, g.Nominal))
+		}
+	}
 	rt := newRatingTracker(d, p.Network)
 	d.worstCase(s, r, &st, rt)
 	if st.Samples > 0 {
