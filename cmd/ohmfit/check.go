@@ -516,7 +516,7 @@ func writePartTable(b *strings.Builder, d *variation.Design, rep *variation.Repo
 		}
 		tb.add(v.Name, eseries.FormatUnit(v.Nominal, eseries.Ohm), tolText(v), ppm(v.TCR),
 			eseries.FormatUnit(r.Watts, eseries.Watt), eseries.FormatUnit(r.Volts, eseries.Volt), pkg,
-			strconv.FormatFloat(100*r.Load.PowerFraction, 'f', 0, 64)+"%", string(r.Verdict))
+			loadText(r.Load.PowerFraction), string(r.Verdict))
 	}
 	if err := tb.write(b); err != nil {
 		return err
@@ -702,4 +702,14 @@ func hasTemperatures(t *constraints.Template) bool {
 		}
 	}
 	return false
+}
+
+// loadText writes a part's load (a fraction of its rated power) as a
+// whole percentage, in powers of ten past a million per cent rather than a
+// line of digits.
+func loadText(f float64) string {
+	if p := 100 * f; p >= 1e6 {
+		return strconv.FormatFloat(p, 'e', 1, 64) + "%"
+	}
+	return strconv.FormatFloat(100*f, 'f', 0, 64) + "%"
 }

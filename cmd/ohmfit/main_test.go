@@ -371,3 +371,16 @@ func checkLabels(t *testing.T, code ExitCode, stderr string) {
 		}
 	}
 }
+
+// TestLoadText: a part's load as a whole percentage, and a huge overload in
+// powers of ten, not 23 digits.
+func TestLoadText(t *testing.T) {
+	for _, c := range []struct {
+		f    float64
+		want string
+	}{{0.5, "50%"}, {1.234, "123%"}, {9999.99, "999999%"}, {2.6315789e20, "2.6e+22%"}} {
+		if got := loadText(c.f); got != c.want {
+			t.Errorf("loadText(%g) = %q, want %q", c.f, got, c.want)
+		}
+	}
+}
