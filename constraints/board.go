@@ -74,16 +74,8 @@ var (
 )
 
 func (d *decoder) parseBoard(data []byte) *Board {
-	if line, col, ok := binaryAt(data); ok {
-		d.errs = append(d.errs, &Error{File: d.file, Line: line, Col: col,
-			Msg: "not a text file: unreadable or control characters; a board file is UTF-8 YAML text"})
-		return nil
-	}
-	root := d.document(data)
+	root := d.readRoot(data, "a board file")
 	if root == nil {
-		return nil
-	}
-	if d.prescan(root, 0); len(d.errs) > 0 {
 		return nil
 	}
 	if root.Kind != yaml.MappingNode {

@@ -263,22 +263,33 @@ func (d *decoder) first() *Error {
 	return best
 }
 
-func (d *decoder) parse(data []byte) *Template {
-	if len(data) > MaxFileSize {
-		d.errorf(nil, "", "template is larger than %d MiB", MaxFileSize>>20)
-		return nil
-	}
+// readRoot reads a YAML file (what names it in messages: "a template")
+// into its root node after the checks every file gets: text, not binary;
+// well-formed YAML; no aliases or excessive nesting (prescan). nil, with
+// the errors recorded, when it fails them.
+func (d *decoder) readRoot(data []byte, what string) *yaml.Node {
 	if line, col, ok := binaryAt(data); ok {
 		d.errs = append(d.errs, &Error{File: d.file, Line: line, Col: col,
-			Msg: "not a text file: unreadable or control characters; a template is UTF-8 YAML text"})
+			Msg: "not a text file: unreadable or control characters; " + what + " is UTF-8 YAML text"})
 		return nil
 	}
 	root := d.document(data)
 	if root == nil {
 		return nil
 	}
-	d.prescan(root, 0)
-	if len(d.errs) > 0 {
+	if d.prescan(root, 0); len(d.errs) > 0 {
+		return nil
+	}
+	return root
+}
+
+func (d *decoder) parse(data []byte) *Template {
+	if len(data) > MaxFileSize {
+		d.errorf(nil, "", "template is larger than %d MiB", MaxFileSize>>20)
+		return nil
+	}
+	root := d.readRoot(data, "a template")
+	if root == nil {
 		return nil
 	}
 	d.t = &Template{File: d.file, Dir: d.dir}

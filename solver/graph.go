@@ -253,7 +253,10 @@ func (g *graph) checkFeedback() error {
 	}
 	for _, u := range opamps {
 		name := net.parts[u].Name
-		if !g.reachesOwnInput(u, driven, inputsAt, adj) {
+		// A change of the output must reach one of its own inputs, through
+		// other stages if need be, or nothing closes the loop.
+		reached := g.moves(u, driven, inputsAt, adj, true)
+		if !reached[g.plus[u]] && !reached[g.minus[u]] {
 			return &OpAmpFeedbackError{OpAmp: name}
 		}
 		// Rule 3: a change of the output reaching Plus through passive
@@ -261,7 +264,7 @@ func (g *graph) checkFeedback() error {
 		// sign only: positive (a resistive path passes a change on with
 		// a factor from 0 to 1). The ideal op-amp still has a solution,
 		// but a real one latches at a rail.
-		if !g.moves(u, driven, inputsAt, adj, true)[g.minus[u]] && g.moves(u, driven, inputsAt, adj, false)[g.plus[u]] {
+		if !reached[g.minus[u]] && g.moves(u, driven, inputsAt, adj, false)[g.plus[u]] {
 			return &OpAmpFeedbackError{OpAmp: name, Positive: true}
 		}
 		// An input that reaches ground only through the other input (or
@@ -339,40 +342,4 @@ func (g *graph) moves(u int, driven map[int][]int, inputsAt [][]int, adj [][]int
 		}
 	}
 	return moved
-}
-
-func (g *graph) reachesOwnInput(u int, driven map[int][]int, inputsAt [][]int, adj [][]int) bool {
-	moved := make([]bool, len(g.net.nodes))
-	triggered := map[int]bool{u: true}
-	var queue []int
-	push := func(k int) {
-		if !moved[k] {
-			moved[k] = true
-			queue = append(queue, k)
-		}
-	}
-	for _, k := range driven[u] {
-		push(k)
-	}
-	for len(queue) > 0 {
-		x := queue[0]
-		queue = queue[1:]
-		for _, p := range inputsAt[x] {
-			if p == u {
-				return true
-			}
-			if !triggered[p] {
-				triggered[p] = true
-				for _, k := range driven[p] {
-					push(k)
-				}
-			}
-		}
-		for _, y := range adj[x] {
-			if !g.held[y] { // a node held against ground does not move
-				push(y)
-			}
-		}
-	}
-	return false
 }
