@@ -141,3 +141,35 @@ func TestShardSummarySaysShard(t *testing.T) {
 		t.Errorf("exit %d, stderr %q", code, errOut)
 	}
 }
+
+// The not-met message never shows a blank limit: when the target that
+// rejected the most candidates has no limits (a goal whose figure the
+// candidates do not define), it says so; when it has one, it names it.
+func TestNoSolutionMessageNamesTheLimit(t *testing.T) {
+	tp, err := loadTemplate("testdata/shard.yaml", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tp.Targets[1].HasMax, tp.Targets[1].Max = true, 1.5
+	cp, err := constraints.Compile(tp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := synth.NewProblem(cp, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		target int
+		want   string
+	}{
+		{0, "most were rejected because voltage t1 is undefined for them in condition \"nominal\" (line 11)"},
+		{1, "most were rejected by voltage t2 max 1.5 V in condition \"nominal\" (line 12)"},
+	} {
+		res := &synth.Result{Status: synth.NoFeasible, Blocking: &synth.Violation{Target: c.target}}
+		got := noSolutionMessage(p, res, nil)
+		if !strings.Contains(got, c.want) || strings.Contains(got, "  ") {
+			t.Errorf("target %d: %q, want it to contain %q and no blank limit", c.target, got, c.want)
+		}
+	}
+}
