@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fmt"
 	"io"
 	"strings"
 
@@ -24,8 +25,9 @@ func newExamplesCmd(out, errOut io.Writer) *cobra.Command {
 	o := &examplesOptions{Out: out, ErrOut: errOut}
 	return &cobra.Command{
 		Use:   "examples [NAME]",
-		Short: "List the built-in templates, or print one",
-		Long: `Without a name, list the templates built into ohmfit with a line about each.
+		Short: "List the built-in templates and boards, or print a template",
+		Long: `Without a name, list the templates built into ohmfit with a line about each,
+then the built-in boards (for ohmfit board example:NAME).
 With a name, print that template exactly as stored, ready to copy and edit.
 
 Any command that takes a template FILE also accepts example:NAME, which reads
@@ -63,7 +65,26 @@ func runExamples(o *examplesOptions) error {
 	for _, name := range examples.Names() {
 		t.add(name, examples.Summary(name))
 	}
-	return t.write(o.Out)
+	if err := t.write(o.Out); err != nil {
+		return err
+	}
+	// The built-in boards, for `ohmfit board example:NAME`.
+	bt := table{indent: "  ", cols: []column{{gap: 4}, {}}}
+	for _, name := range examples.BoardNames() {
+		text, _ := examples.Board(name)
+		summary := ""
+		if b, err := constraints.ParseBoard(name+".yaml", text); err == nil {
+			summary = fmt.Sprintf("%s (%d networks)", b.Name, len(b.Networks))
+		}
+		bt.add(name, summary)
+	}
+	if len(bt.rows) == 0 {
+		return nil
+	}
+	if _, err := io.WriteString(o.Out, "\nboards, for ohmfit board example:NAME:\n"); err != nil {
+		return err
+	}
+	return bt.write(o.Out)
 }
 
 // exampleText returns a built-in example's text, or an error suggesting the
