@@ -901,6 +901,15 @@ func (w *bbWorker) voltBand(k, c int, lo, hi float64, worst *candidate) (float64
 	return lo, hi
 }
 
+// partPower encloses the power of target ti's part in condition c over the
+// box just scored: the product of its voltage and current ranges.
+func (w *bbWorker) partPower(ti, c int) (float64, float64) {
+	s := w.pslot[ti]*w.nc + c
+	vlo, vhi := padded(w.vlo[s], w.vhi[s])
+	ilo, ihi := padded(w.ilo[s], w.ihi[s])
+	return product(vlo, vhi, ilo, ihi)
+}
+
 // enclose returns a range holding target ti's value in condition c for every
 // candidate of the box just scored, or false when the corners do not bound
 // it.
@@ -921,17 +930,11 @@ func (w *bbWorker) enclose(ti, c int) (float64, float64, bool) {
 		lo, hi := padded(w.qlo[k], w.qhi[k])
 		return lo, hi, true
 	case constraints.Power:
-		s := w.pslot[ti]*nc + c
-		vlo, vhi := padded(w.vlo[s], w.vhi[s])
-		ilo, ihi := padded(w.ilo[s], w.ihi[s])
-		lo, hi := product(vlo, vhi, ilo, ihi)
+		lo, hi := w.partPower(ti, c)
 		return lo, hi, true
 	case constraints.SelfHeating:
 		// The part's power range scaled by 1/δ > 0.
-		s := w.pslot[ti]*nc + c
-		vlo, vhi := padded(w.vlo[s], w.vhi[s])
-		ilo, ihi := padded(w.ilo[s], w.ihi[s])
-		lo, hi := product(vlo, vhi, ilo, ihi)
+		lo, hi := w.partPower(ti, c)
 		k := p.Probes[ti].Scale
 		return lo * k, hi * k, true
 	}
