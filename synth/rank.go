@@ -162,6 +162,18 @@ func sameObjectives(a, b *candidate) bool {
 	return constraints.Same(a.Error, b.Error) && constraints.Same(a.Power, b.Power) && a.Parts == b.Parts
 }
 
+// mayTake reports whether offer could keep c: no kept candidate dominates
+// it. For a c whose figures are a lower bound (see rowWorker.offer), false
+// means no candidate at or above them can enter the front either.
+func (f *frontList) mayTake(c *candidate) bool {
+	for _, m := range f.items {
+		if dominatesCand(m, c) {
+			return false
+		}
+	}
+	return true
+}
+
 // offer adds a copy of c unless a kept candidate dominates it, and drops the
 // kept candidates c dominates.
 func (f *frontList) offer(c *candidate) {

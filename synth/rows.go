@@ -533,7 +533,7 @@ func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
 	if !exact {
 		w.cand.Error, w.cand.Power, w.cand.Parts = max(0, errMax-rescoreSlack), powMax*(1-rescoreSlack), parts
 		top := !w.top.full() || w.top.r.less(&w.cand, w.top.worst())
-		front := w.front != nil && errMax <= w.frontCap+rescoreSlack
+		front := w.front != nil && errMax <= w.frontCap+rescoreSlack && w.front.mayTake(&w.cand)
 		if !top && !front {
 			return
 		}
