@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/csv"
 	"io"
+	"math"
 	"strconv"
 	"strings"
 
@@ -52,10 +53,10 @@ func writeBOMLines(w io.Writer, lines []variation.BOMLine) error {
 	return cw.Error()
 }
 
-// bomTolerance is a BOM line's tolerance column: "-" for a stand-in, whose
-// real part the template does not describe.
+// bomTolerance is a BOM line's tolerance column: "-" where the line has
+// none (a stand-in).
 func bomTolerance(l variation.BOMLine) string {
-	if l.Type == variation.TypeStandIn {
+	if math.IsNaN(l.Tolerance) {
 		return "-"
 	}
 	return eseries.FormatUnit(l.Tolerance, eseries.Percent)

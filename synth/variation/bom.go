@@ -52,7 +52,8 @@ type BOMItem struct {
 	Series string
 	// Tolerance is the relative tolerance the check assumed (a fraction:
 	// 0.01 for 1 %; an absolute tolerance in ohms is given relative to the
-	// value).
+	// value). NaN for a stand-in, whose real part the template does not
+	// describe.
 	Tolerance float64
 	// TCR is a resistor's temperature coefficient per °C, as the check
 	// assumed it (given, or the default for its tolerance); HasTCR is false
@@ -116,7 +117,7 @@ func BOM(d *Design, rep *Report) []BOMLine {
 			continue
 		}
 		if lo, hi, set := conditionRange(d.Problem.Template, v.Name); set {
-			l.Type, l.Tolerance, l.TolFrom = TypeStandIn, 0, ""
+			l.Type, l.Tolerance, l.TolFrom = TypeStandIn, math.NaN(), ""
 			l.Model = fmt.Sprintf("set by the conditions (%s to %s): a part that varies, modelled as a resistor; order the real part",
 				eseries.FormatUnit(lo, eseries.Ohm), eseries.FormatUnit(hi, eseries.Ohm))
 			lines = append(lines, l)
