@@ -272,14 +272,10 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 		return nil, templateError(t, err)
 	}
 	set := &synth.Settings{Top: o.Rank}
-	m, note, err := synth.Choose("auto", p, set)
+	m, reach, err := prepareSearch(o.ErrOut, "auto", p, set)
 	if err != nil {
 		return nil, err
 	}
-	if note != "" {
-		notef(o.ErrOut, "%s", note)
-	}
-	reach := warnLimitReach(o.ErrOut, p)
 	ctx, searched, release := searchInterrupt()
 	defer release()
 	res, err := synth.Search(ctx, p, set, m)

@@ -193,14 +193,10 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	if o.Shard != "" {
 		set.Shard, set.Shards, _ = parseShard(o.Shard)
 	}
-	method, note, err := synth.Choose(o.Method, p, set)
+	method, reach, err := prepareSearch(o.ErrOut, o.Method, p, set)
 	if err != nil {
 		return err // the flag was checked against synth.MethodNames
 	}
-	if note != "" {
-		notef(o.ErrOut, "%s", note)
-	}
-	reach := warnLimitReach(o.ErrOut, p)
 	ctx, searched, release := searchInterrupt()
 	defer release()
 	done := make(chan struct{})
@@ -289,6 +285,21 @@ func showProgress(w io.Writer, pr *synth.Progress, done chan struct{}) {
 			shown = true
 		}
 	}
+}
+
+// prepareSearch is what every command does before a search: choose the
+// method (synth.Choose, with its note when it chose for the user) and warn
+// of the limits that cannot bind (warnLimitReach, whose findings it
+// returns for the not-met message).
+func prepareSearch(errOut io.Writer, name string, p *synth.Problem, set *synth.Settings) (synth.Method, []synth.LimitReach, error) {
+	m, note, err := synth.Choose(name, p, set)
+	if err != nil {
+		return nil, nil, err
+	}
+	if note != "" {
+		notef(errOut, "%s", note)
+	}
+	return m, warnLimitReach(errOut, p), nil
 }
 
 // warnLimitReach proves, before a search, which hard limits no candidate
