@@ -90,6 +90,10 @@ JSON output (--format json):
 
 // runBoard loads the board, solves it and renders the answer.
 func runBoard(o *boardOptions) error {
+	if o.File == "-" {
+		// Its templates are named relative to the board file's folder.
+		return badInputf("a board file cannot come from standard input: the templates it names are found beside it; give its path")
+	}
 	b, err := board.Load(o.File)
 	if err != nil {
 		return err

@@ -118,6 +118,7 @@ func TestGolden(t *testing.T) {
 		{"fit-none", []string{"fit", "testdata/impossible.yaml"}, ExitNoSolution},
 		{"check-undefined", []string{"check", "testdata/undefined-figure.yaml", "--samples", "100"}, ExitNoSolution},
 		{"check-undefined-json", []string{"check", "testdata/undefined-figure.yaml", "--samples", "100", "--format", "json"}, ExitNoSolution},
+		{"board-err-stdin", []string{"board", "-"}, ExitBadInput},
 		{"fit-never-binds", []string{"fit", "testdata/never-binds.yaml", "--top", "2"}, ExitOK},
 		{"fit-err-series", []string{"fit", "example:feedback", "--series", "E25"}, ExitBadInput},
 		{"fit-err-top", []string{"fit", "example:feedback", "--top", "0"}, ExitBadInput},
