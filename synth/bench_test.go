@@ -44,8 +44,8 @@ func BenchmarkLoadedDivider(b *testing.B) {
 // the search, not the solver).
 func BenchmarkLoadedDividerNaive(b *testing.B) {
 	p := problemFromYAML(b, loadedDividerYAML("E24"), "")
-	s := p.Network.NewSolver()
-	sc := p.NewScore()
+	s := p.Spec.Network.NewSolver()
+	sc := p.Spec.NewScore()
 	free := make([]float64, 3)
 	for b.Loop() {
 		best := 2.0
@@ -53,7 +53,7 @@ func BenchmarkLoadedDividerNaive(b *testing.B) {
 			for _, o2 := range p.Domains[1].Options {
 				for _, o3 := range p.Domains[2].Options {
 					free[0], free[1], free[2] = o1.Value, o2.Value, o3.Value
-					if err := p.Evaluate(s, free, sc); err != nil {
+					if err := p.Spec.Evaluate(s, free, sc); err != nil {
 						b.Fatal(err)
 					}
 					if sc.Feasible && sc.Error < best {

@@ -74,8 +74,8 @@ const boundSlack = 1e-9
 // target). Where they do not, the method is still exact but cannot rule a
 // box out by its error.
 func (BranchBound) Applies(p *Problem) bool {
-	for ti, tg := range p.Template.Targets {
-		if tg.HasEquals && p.Derived[ti] != nil {
+	for ti, tg := range p.Spec.Template.Targets {
+		if tg.HasEquals && p.Spec.Derived[ti] != nil {
 			return false
 		}
 	}
@@ -229,7 +229,7 @@ func newBBShared(p *Problem, set *Settings, st *runState, leaf float64) *bbShare
 			outer = append(outer, i)
 		}
 	}
-	sh := &bbShared{p: p, r: st.r, keys: p.Template.Rank, j: j, outer: outer,
+	sh := &bbShared{p: p, r: st.r, keys: p.Spec.Template.Rank, j: j, outer: outer,
 		leaf: leaf, front: set.FrontErrorCap}
 	sh.cond = sync.NewCond(&sh.mu)
 	sh.open.power = len(sh.keys) > 0 && sh.keys[0] == constraints.ByPower
@@ -435,8 +435,8 @@ type bbWorker struct {
 
 func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 	p := sh.p
-	nc := len(p.Conditions)
-	w := &bbWorker{sh: sh, p: p, s: p.Network.NewSolver(), sc: p.NewScore(),
+	nc := len(p.Spec.Conditions)
+	w := &bbWorker{sh: sh, p: p, s: p.Spec.Network.NewSolver(), sc: p.Spec.NewScore(),
 		free: make([]float64, len(p.Domains)),
 		rw:   newRowWorker(p, st.r, set, sh.j, sh.outer),
 		inc:  newTopList(st.r, set.Top+topMargin, len(p.Domains)),
@@ -444,13 +444,13 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 		nc:   nc, corner: make([]int32, len(p.Domains)),
 	}
 	w.after = w.afterCond
-	parts := p.Network.Parts()
+	parts := p.Spec.Network.Parts()
 	w.edges = make([]solver.Edge, len(parts))
-	for _, e := range p.Network.Edges() {
+	for _, e := range p.Spec.Network.Edges() {
 		w.edges[e.Part] = e
 	}
-	w.pslot = make([]int, len(p.Probes))
-	for ti, pr := range p.Probes {
+	w.pslot = make([]int, len(p.Spec.Probes))
+	for ti, pr := range p.Spec.Probes {
 		w.pslot[ti] = -1
 		switch pr.Kind {
 		case constraints.Ratio:
@@ -486,9 +486,9 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 	}
 	w.rvlo, w.rvhi = make([]float64, len(w.res)*nc), make([]float64, len(w.res)*nc)
 	w.det = make([]int8, nc)
-	w.den = make([]int8, len(p.Probes)*nc)
-	w.qlo, w.qhi = make([]float64, len(p.Probes)*nc), make([]float64, len(p.Probes)*nc)
-	w.qnan = make([]bool, len(p.Probes)*nc)
+	w.den = make([]int8, len(p.Spec.Probes)*nc)
+	w.qlo, w.qhi = make([]float64, len(p.Spec.Probes)*nc), make([]float64, len(p.Spec.Probes)*nc)
+	w.qnan = make([]bool, len(p.Spec.Probes)*nc)
 	np, ns, no := len(w.pparts)*nc, len(w.srcs)*nc, len(w.amps)*nc
 	w.vlo, w.vhi, w.ilo, w.ihi = make([]float64, np), make([]float64, np), make([]float64, np), make([]float64, np)
 	w.wlo, w.whi = make([]float64, ns), make([]float64, ns)
@@ -635,17 +635,17 @@ func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 // condition ci says about the box: the determinant's sign, the ratio
 // denominators' signs and the parts' voltages, currents and powers.
 func (w *bbWorker) afterCond(ci int) {
-	if w.p.Conditions[ci].Hidden {
+	if w.p.Spec.Conditions[ci].Hidden {
 		return
 	}
 	s, nc := w.s, w.nc
 	first := w.det[ci] == 0
 	w.det[ci] = mergeSign(w.det[ci], s.DetSign())
 	for _, ti := range w.ratios {
-		if !w.p.Applies[ti][ci] {
+		if !w.p.Spec.Applies[ti][ci] {
 			continue
 		}
-		v := s.Voltage(w.p.Probes[ti].B)
+		v := s.Voltage(w.p.Spec.Probes[ti].B)
 		sg := 0
 		if v > 0 {
 			sg = 1
@@ -753,12 +753,12 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 		}
 		w.corners++
 		w.solves += int64(nc)
-		if err := p.EvaluateWith(w.s, w.free, w.sc, w.after); err != nil {
+		if err := p.Spec.EvaluateWith(w.s, w.free, w.sc, w.after); err != nil {
 			return // a corner that cannot be solved: no bound, split
 		}
-		for ti := range p.Probes {
+		for ti := range p.Spec.Probes {
 			for c := 0; c < nc; c++ {
-				if !p.Applies[ti][c] {
+				if !p.Spec.Applies[ti][c] {
 					continue
 				}
 				k := ti*nc + c
@@ -780,20 +780,20 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 		}
 	}
 	b.bounded = true
-	lim := p.Template.Limits.SupplyPowerMax
+	lim := p.Spec.Template.Limits.SupplyPowerMax
 	for c := 0; c < nc; c++ {
-		if p.Conditions[c].Hidden || w.det[c] == 2 || w.det[c] == 0 {
+		if p.Spec.Conditions[c].Hidden || w.det[c] == 2 || w.det[c] == 0 {
 			continue // a pole inside: nothing is monotone in this condition
 		}
-		for ti := range p.Probes {
-			if !p.Applies[ti][c] {
+		for ti := range p.Spec.Probes {
+			if !p.Spec.Applies[ti][c] {
 				continue
 			}
 			lo, hi, ok := w.enclose(ti, c)
 			if !ok {
 				continue
 			}
-			tg := &p.Template.Targets[ti]
+			tg := &p.Spec.Template.Targets[ti]
 			blo, bhi := tg.Band()
 			if (hi < blo && !constraints.Same(hi, blo)) || (lo > bhi && !constraints.Same(lo, bhi)) {
 				b.infeasible, b.violTarget, b.violCond = true, ti, c
@@ -842,16 +842,16 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 				continue
 			}
 			v := math.Min(math.Abs(lo), math.Abs(hi))
-			r := p.Conditions[c].Values[part]
+			r := p.Spec.Conditions[c].Values[part]
 			if i := w.pos[part]; i >= 0 {
 				r = p.Domains[i].Options[b.hi[i]].Value
 			}
 			sum += v * v / r
 		}
-		pw = math.Max(pw, sum*(1-boundSlack)) * p.OnFraction
+		pw = math.Max(pw, sum*(1-boundSlack)) * p.Spec.OnFraction
 		b.power = math.Max(b.power, pw)
 		if lim > 0 && pw > lim && !constraints.Same(pw, lim) {
-			b.infeasible, b.violTarget, b.violCond = true, p.SupplyLimit(), c
+			b.infeasible, b.violTarget, b.violCond = true, p.Spec.SupplyLimit(), c
 		}
 	}
 }
@@ -866,8 +866,8 @@ func (w *bbWorker) voltBand(k, c int, lo, hi float64, worst *candidate) (float64
 	p := w.p
 	e := w.edges[w.res[k]]
 	errFirst := len(w.sh.keys) > 0 && w.sh.keys[0] == constraints.ByError && w.sh.front == 0
-	for ti, pr := range p.Probes {
-		if pr.Kind != constraints.Voltage || !p.Applies[ti][c] {
+	for ti, pr := range p.Spec.Probes {
+		if pr.Kind != constraints.Voltage || !p.Spec.Applies[ti][c] {
 			continue
 		}
 		sign := 0.0
@@ -879,7 +879,7 @@ func (w *bbWorker) voltBand(k, c int, lo, hi float64, worst *candidate) (float64
 		default:
 			continue
 		}
-		tg := &p.Template.Targets[ti]
+		tg := &p.Spec.Template.Targets[ti]
 		blo, bhi := tg.Band()
 		if tg.HasEquals && errFirst && worst != nil {
 			t := widen(worst.Error)
@@ -916,7 +916,7 @@ func (w *bbWorker) partPower(ti, c int) (float64, float64) {
 func (w *bbWorker) enclose(ti, c int) (float64, float64, bool) {
 	p, nc := w.p, w.nc
 	k := ti*nc + c
-	switch p.Probes[ti].Kind {
+	switch p.Spec.Probes[ti].Kind {
 	case constraints.Voltage, constraints.Code, constraints.Current, constraints.Resistance:
 		if w.qnan[k] {
 			return 0, 0, false
@@ -935,7 +935,7 @@ func (w *bbWorker) enclose(ti, c int) (float64, float64, bool) {
 	case constraints.SelfHeating:
 		// The part's power range scaled by 1/δ > 0.
 		lo, hi := w.partPower(ti, c)
-		k := p.Probes[ti].Scale
+		k := p.Spec.Probes[ti].Scale
 		return lo * k, hi * k, true
 	}
 	return 0, 0, false

@@ -61,7 +61,7 @@ func TestBranchBoundRandomMatchesBruteForce(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if len(res.Solutions) > 0 && p.Template.Rank[0] == constraints.ByError && res.Bound != res.Solutions[0].Score.Error {
+			if len(res.Solutions) > 0 && p.Spec.Template.Rank[0] == constraints.ByError && res.Bound != res.Solutions[0].Score.Error {
 				t.Errorf("proven bound %g, best error %g", res.Bound, res.Solutions[0].Score.Error)
 			}
 			if t.Failed() {
@@ -213,10 +213,10 @@ choose: {series: E12, min: 1k, max: 1M}
 	// The determinant's sign must really change over the space: some
 	// candidates drive the output positive, some negative.
 	pos, neg := false, false
-	pn := newPlainNet(p.Template)
+	pn := newPlainNet(p.Spec.Template)
 	for _, r1 := range []float64{1e3, 1e6} {
 		for _, r2 := range []float64{1e3, 1e6} {
-			vals := append([]float64(nil), p.Conditions[0].Values...)
+			vals := append([]float64(nil), p.Spec.Conditions[0].Values...)
 			vals[p.Domains[0].Part], vals[p.Domains[1].Part] = r1, r2
 			ps, err := pn.solve(vals)
 			if err != nil {

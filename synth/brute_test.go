@@ -226,7 +226,7 @@ type bruteCand struct {
 // the feasible ones in rank order, the contract's rules written out plainly.
 func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 	t.Helper()
-	tp := p.Template
+	tp := p.Spec.Template
 	pn := newPlainNet(tp)
 	var out []bruteCand
 	k := len(p.Domains)
@@ -240,12 +240,12 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 			c.parts += o.Count
 		}
 		points := make([][]float64, len(tp.Targets)) // per sweep-wide target, in its conditions' order
-		for ti, dp := range p.Derived {
+		for ti, dp := range p.Spec.Derived {
 			if dp != nil {
 				points[ti] = make([]float64, len(dp.Conds))
 			}
 		}
-		for ci, cond := range p.Conditions {
+		for ci, cond := range p.Spec.Conditions {
 			vals := append([]float64(nil), cond.Values...)
 			for i, d := range p.Domains {
 				vals[d.Part] = c.vals[i]
@@ -270,7 +270,7 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 				feasible = false
 			}
 			for ti, tg := range tp.Targets {
-				if dp := p.Derived[ti]; dp != nil {
+				if dp := p.Spec.Derived[ti]; dp != nil {
 					for k, dc := range dp.Conds {
 						if dc == ci {
 							points[ti][k] = ps.v(tg.Nodes[0])
@@ -325,10 +325,10 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 			}
 		}
 		for ti, tg := range tp.Targets {
-			if p.Derived[ti] == nil {
+			if p.Spec.Derived[ti] == nil {
 				continue
 			}
-			v := p.Derived[ti].Value(points[ti])
+			v := p.Spec.Derived[ti].Value(points[ti])
 			if !tg.Meets(v) {
 				feasible = false
 			}

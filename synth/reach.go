@@ -38,7 +38,7 @@ const reachMaxSolves = 1 << 16
 // determinant changes sign over the space, a space with too many corners):
 // absence is no claim.
 func ReachLimits(p *Problem) []LimitReach {
-	nc := len(p.Conditions)
+	nc := len(p.Spec.Conditions)
 	vary := 0
 	for _, d := range p.Domains {
 		if len(d.Options) > 1 {
@@ -59,8 +59,8 @@ func ReachLimits(p *Problem) []LimitReach {
 	}
 	steady := func(c int) bool { return w.det[c] == 1 || w.det[c] == -1 }
 	var out []LimitReach
-	for ti := range p.Probes {
-		tg := &p.Template.Targets[ti]
+	for ti := range p.Spec.Probes {
+		tg := &p.Spec.Template.Targets[ti]
 		blo, bhi := tg.Band()
 		if tg.Kind.Derived() || (math.IsInf(blo, -1) && math.IsInf(bhi, 1)) {
 			continue
@@ -68,7 +68,7 @@ func ReachLimits(p *Problem) []LimitReach {
 		never, seen := true, false
 		all := LimitReach{Target: ti, Condition: -1, Lo: math.Inf(1), Hi: math.Inf(-1)}
 		for c := 0; c < nc; c++ {
-			if p.Conditions[c].Hidden || !p.Applies[ti][c] {
+			if p.Spec.Conditions[c].Hidden || !p.Spec.Applies[ti][c] {
 				continue
 			}
 			lo, hi, ok := 0.0, 0.0, steady(c)
@@ -97,8 +97,8 @@ func ReachLimits(p *Problem) []LimitReach {
 			out = append(out, all)
 		}
 	}
-	if lim := p.Template.Limits.SupplyPowerMax; lim > 0 {
-		supply := p.SupplyLimit()
+	if lim := p.Spec.Template.Limits.SupplyPowerMax; lim > 0 {
+		supply := p.Spec.SupplyLimit()
 		if root.infeasible && root.violTarget == supply {
 			out = append(out, LimitReach{Target: supply, Always: true, Condition: root.violCond, Lo: math.NaN(), Hi: math.NaN()})
 		} else if up, ok := w.powerCeiling(steady); ok && up <= lim {
@@ -115,7 +115,7 @@ func ReachLimits(p *Problem) []LimitReach {
 func (w *bbWorker) powerCeiling(steady func(int) bool) (float64, bool) {
 	nc, top := w.nc, 0.0
 	for c := 0; c < nc; c++ {
-		if w.p.Conditions[c].Hidden {
+		if w.p.Spec.Conditions[c].Hidden {
 			continue
 		}
 		if !steady(c) {
@@ -132,7 +132,7 @@ func (w *bbWorker) powerCeiling(steady func(int) bool) (float64, bool) {
 			_, hi := product(vlo, vhi, ilo, ihi)
 			up += hi
 		}
-		top = math.Max(top, up*w.p.OnFraction)
+		top = math.Max(top, up*w.p.Spec.OnFraction)
 	}
 	return top, true
 }

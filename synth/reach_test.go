@@ -15,15 +15,15 @@ import (
 // total power, skipping candidates whose network cannot be solved.
 func spaceValues(t *testing.T, p *synth.Problem) (vals [][]float64, power []float64) {
 	t.Helper()
-	s := p.Network.NewSolver()
-	sc := p.NewScore()
+	s := p.Spec.Network.NewSolver()
+	sc := p.Spec.NewScore()
 	idx := make([]int, len(p.Domains))
 	free := make([]float64, len(p.Domains))
 	for {
 		for i, d := range p.Domains {
 			free[i] = d.Options[idx[i]].Value
 		}
-		if err := p.Evaluate(s, free, sc); err == nil {
+		if err := p.Spec.Evaluate(s, free, sc); err == nil {
 			vals = append(vals, append([]float64(nil), sc.Values...))
 			power = append(power, sc.Power)
 		}
@@ -66,13 +66,13 @@ func TestReachLimitsAgainstEnumeration(t *testing.T) {
 			if len(vals) == 0 {
 				t.Skip("no candidate solves")
 			}
-			nc := len(p.Conditions)
+			nc := len(p.Spec.Conditions)
 			passive := !strings.Contains(text, "opamp")
 			// Replace every target's limits: well above, well below, or
 			// inside the space's range, or none.
-			mode := make([]int, len(p.Probes))
-			for ti := range p.Probes {
-				tg := &p.Template.Targets[ti]
+			mode := make([]int, len(p.Spec.Probes))
+			for ti := range p.Spec.Probes {
+				tg := &p.Spec.Template.Targets[ti]
 				if tg.Kind.Derived() {
 					continue
 				}
@@ -104,14 +104,14 @@ func TestReachLimitsAgainstEnumeration(t *testing.T) {
 				pmin, pmax = math.Min(pmin, w), math.Max(pmax, w)
 			}
 			pmode := rng.IntN(4)
-			p.Template.Limits.SupplyPowerMax = [4]float64{0, 1.2 * pmax, (pmin + pmax) / 2, pmin / 2}[pmode]
+			p.Spec.Template.Limits.SupplyPowerMax = [4]float64{0, 1.2 * pmax, (pmin + pmax) / 2, pmin / 2}[pmode]
 			reach := synth.ReachLimits(p)
 			found := map[int]bool{}
 			for _, r := range reach {
 				found[r.Target] = true
-				if r.Target == len(p.Probes) {
+				if r.Target == len(p.Spec.Probes) {
 					for k, w := range power {
-						lim := p.Template.Limits.SupplyPowerMax
+						lim := p.Spec.Template.Limits.SupplyPowerMax
 						if r.Never && w > lim {
 							t.Errorf("supply power said never to bind, candidate %d draws %g > %g", k, w, lim)
 						}
@@ -122,7 +122,7 @@ func TestReachLimitsAgainstEnumeration(t *testing.T) {
 					claims["supply"]++
 					continue
 				}
-				tg := p.Template.Targets[r.Target]
+				tg := p.Spec.Template.Targets[r.Target]
 				for k, v := range vals {
 					for c := 0; c < nc; c++ {
 						x := v[r.Target*nc+c]
@@ -149,13 +149,13 @@ func TestReachLimitsAgainstEnumeration(t *testing.T) {
 				}
 			}
 			for ti, m := range mode {
-				kind := p.Probes[ti].Kind.String()
+				kind := p.Spec.Probes[ti].Kind.String()
 				monotone := kind == "voltage" || kind == "current" || kind == "code" || kind == "resistance"
 				if passive && monotone && (m == 1 || m == 2) && !found[ti] {
-					t.Errorf("%s (mode %d) not settled; reach %+v", p.Template.Targets[ti].Label(), m, reach)
+					t.Errorf("%s (mode %d) not settled; reach %+v", p.Spec.Template.Targets[ti].Label(), m, reach)
 				}
 			}
-			if passive && pmode == 1 && !found[len(p.Probes)] {
+			if passive && pmode == 1 && !found[len(p.Spec.Probes)] {
 				t.Errorf("supply_power_max 1.2× the largest power not found never to bind")
 			}
 		})

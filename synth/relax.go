@@ -57,7 +57,7 @@ func (m Relax) run(ctx context.Context, p *Problem, set *Settings, st *runState)
 			outer = append(outer, i)
 		}
 	}
-	rx := &relaxer{p: p, st: st, s: p.Network.NewSolver(), sc: p.NewScore(),
+	rx := &relaxer{p: p, st: st, s: p.Spec.Network.NewSolver(), sc: p.Spec.NewScore(),
 		free: make([]float64, len(p.Domains))}
 	k := len(p.Domains)
 	lo, hi := make([]float64, k), make([]float64, k)
@@ -123,18 +123,18 @@ func (rx *relaxer) relaxed(x, lo, hi []float64) float64 {
 	for i := range x {
 		rx.free[i] = math.Exp(math.Min(math.Max(x[i], lo[i]), hi[i]))
 	}
-	rx.st.stats.Solves += int64(len(p.Conditions))
-	if err := p.Evaluate(rx.s, rx.free, rx.sc); err != nil {
+	rx.st.stats.Solves += int64(len(p.Spec.Conditions))
+	if err := p.Spec.Evaluate(rx.s, rx.free, rx.sc); err != nil {
 		return math.MaxFloat64
 	}
 	pen := 0.0
-	nc := len(p.Conditions)
-	for ti, tg := range p.Template.Targets {
+	nc := len(p.Spec.Conditions)
+	for ti, tg := range p.Spec.Template.Targets {
 		blo, bhi := tg.Band()
 		for c := 0; c < nc; c++ {
 			v := rx.sc.Values[ti*nc+c]
 			if math.IsNaN(v) {
-				if p.Applies[ti][c] {
+				if p.Spec.Applies[ti][c] {
 					pen += 1
 				}
 				continue
@@ -142,7 +142,7 @@ func (rx *relaxer) relaxed(x, lo, hi []float64) float64 {
 			pen += outside(v, blo, bhi)
 		}
 	}
-	if lim := p.Template.Limits.SupplyPowerMax; lim > 0 && rx.sc.Power > lim {
+	if lim := p.Spec.Template.Limits.SupplyPowerMax; lim > 0 && rx.sc.Power > lim {
 		pen += (rx.sc.Power - lim) / lim
 	}
 	// Leaving the box is penalised too, so the optimum stays inside it.
@@ -150,7 +150,7 @@ func (rx *relaxer) relaxed(x, lo, hi []float64) float64 {
 		pen += math.Max(0, lo[i]-x[i]) + math.Max(0, x[i]-hi[i])
 	}
 	primary := rx.sc.Error
-	if len(p.Template.Rank) > 0 && p.Template.Rank[0] == constraints.ByPower {
+	if len(p.Spec.Template.Rank) > 0 && p.Spec.Template.Rank[0] == constraints.ByPower {
 		primary = rx.sc.Power
 	}
 	return primary + 1e3*pen

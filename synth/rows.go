@@ -127,13 +127,13 @@ func rowPosition(p *Problem) int {
 
 // runNoFree scores a template without free positions: one candidate.
 func runNoFree(p *Problem, st *runState) error {
-	s := p.Network.NewSolver()
-	sc := p.NewScore()
+	s := p.Spec.Network.NewSolver()
+	sc := p.Spec.NewScore()
 	st.stats.Workers = 1
 	st.stats.Rows = 1
 	st.stats.Evaluated = 1
-	st.stats.Solves = int64(len(p.Conditions))
-	if err := p.Evaluate(s, nil, sc); err != nil {
+	st.stats.Solves = int64(len(p.Spec.Conditions))
+	if err := p.Spec.Evaluate(s, nil, sc); err != nil {
 		return err
 	}
 	st.status = Proven
@@ -202,9 +202,9 @@ type rowWorker struct {
 
 func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *rowWorker {
 	top := set.Top + topMargin
-	net := p.Network
+	net := p.Spec.Network
 	n := net.Unknowns()
-	nc := len(p.Conditions)
+	nc := len(p.Spec.Conditions)
 	w := &rowWorker{
 		p: p, net: net, s: net.NewSolver(), j: j, outer: outer,
 		jPart: p.Domains[j].Part, opts: p.Domains[j].Options,
@@ -212,10 +212,10 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		cond: make([]rowCond, nc),
 		top:  newTopList(r, top, len(p.Domains)),
 		cand: candidate{Opt: make([]int32, len(p.Domains))},
-		viol: make([]int64, (len(p.Probes)+1)*nc),
-		nc:   nc, free: make([]float64, len(p.Domains)), sc: p.NewScore(),
+		viol: make([]int64, (len(p.Spec.Probes)+1)*nc),
+		nc:   nc, free: make([]float64, len(p.Domains)), sc: p.Spec.NewScore(),
 		port: make([]float64, n+1),
-		keys: p.Template.Rank, lim: p.Template.Limits.SupplyPowerMax,
+		keys: p.Spec.Template.Rank, lim: p.Spec.Template.Limits.SupplyPowerMax,
 		ranges: make([][2]int, 0, 2),
 	}
 	parts := net.Parts()
@@ -237,8 +237,8 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		w.frontCap = set.FrontErrorCap
 		w.front = &frontList{r: r}
 	}
-	w.points = p.NewPoints()
-	for ti, dp := range p.Derived {
+	w.points = p.Spec.NewPoints()
+	for ti, dp := range p.Spec.Derived {
 		if dp != nil {
 			w.derived = append(w.derived, ti)
 		}
@@ -246,11 +246,11 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 	for c := range w.cond {
 		rc := &w.cond[c]
 		rc.vals = make([]float64, len(parts))
-		rc.hidden = p.Conditions[c].Hidden
+		rc.hidden = p.Spec.Conditions[c].Hidden
 		rc.x0 = make([]float64, n+1)
 		rc.w = make([]float64, n+1)
-		rc.r0 = make([]float64, len(p.Probes))
-		rc.rc = make([]float64, len(p.Probes))
+		rc.r0 = make([]float64, len(p.Spec.Probes))
+		rc.rc = make([]float64, len(p.Spec.Probes))
 	}
 	return w
 }
@@ -318,7 +318,7 @@ func (w *rowWorker) prepare(rRef float64) bool {
 	}
 	for c := range w.cond {
 		rc := &w.cond[c]
-		copy(rc.vals, p.Conditions[c].Values)
+		copy(rc.vals, p.Spec.Conditions[c].Values)
 		for _, i := range w.outer {
 			rc.vals[p.Domains[i].Part] = w.free[i]
 		}
@@ -342,8 +342,8 @@ func (w *rowWorker) prepare(rRef float64) bool {
 		rc.z = rc.w[w.ja] - rc.w[w.jb]
 		rc.v0 = rc.x0[w.ja] - rc.x0[w.jb]
 		w.powerCoefficients(rc)
-		for ti, pr := range p.Probes {
-			if pr.Kind != constraints.Resistance || !p.Applies[ti][c] {
+		for ti, pr := range p.Spec.Probes {
+			if pr.Kind != constraints.Resistance || !p.Spec.Applies[ti][c] {
 				continue
 			}
 			w.stats.Solves++
@@ -385,7 +385,7 @@ func (w *rowWorker) powerCoefficients(rc *rowCond) {
 		}
 	}
 	// Average power of a duty-cycled supply (on_fraction).
-	f := w.p.OnFraction
+	f := w.p.Spec.OnFraction
 	rc.p0, rc.p1, rc.p2 = rc.p0*f, rc.p1*f, rc.p2*f
 }
 
@@ -398,7 +398,7 @@ func (rc *rowCond) sAt(g float64) float64 {
 // probe returns target ti's value in condition rc at update parameter s and
 // row conductance g.
 func (w *rowWorker) probe(rc *rowCond, ti int, s, g float64) float64 {
-	pr := &w.p.Probes[ti]
+	pr := &w.p.Spec.Probes[ti]
 	switch pr.Kind {
 	case constraints.Voltage:
 		return (rc.x0[pr.A] - rc.w[pr.A]*s) - (rc.x0[pr.B] - rc.w[pr.B]*s)
@@ -465,16 +465,16 @@ func (w *rowWorker) scoreOption(i int) {
 				powMax = pw
 			}
 			if w.lim > 0 && pw > w.lim && !constraints.Same(pw, w.lim) {
-				w.viol[p.SupplyLimit()*w.nc+c]++
+				w.viol[p.Spec.SupplyLimit()*w.nc+c]++
 				return
 			}
 		}
-		for ti := range p.Probes {
-			if !p.Applies[ti][c] {
+		for ti := range p.Spec.Probes {
+			if !p.Spec.Applies[ti][c] {
 				continue
 			}
 			v := w.probe(rc, ti, s, g)
-			tg := &p.Template.Targets[ti]
+			tg := &p.Spec.Template.Targets[ti]
 			if !tg.Meets(v) {
 				w.viol[ti*w.nc+c]++
 				return
@@ -489,9 +489,9 @@ func (w *rowWorker) scoreOption(i int) {
 	// node voltages of several conditions; none is monotone along a row, so
 	// they are only checked here, never used to cut a row.
 	for _, ti := range w.derived {
-		dp := p.Derived[ti]
+		dp := p.Spec.Derived[ti]
 		v := w.points.Derived(ti)
-		tg := &p.Template.Targets[ti]
+		tg := &p.Spec.Template.Targets[ti]
 		if !tg.Meets(v) {
 			w.viol[ti*w.nc+dp.Conds[0]]++
 			return
@@ -541,7 +541,7 @@ func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
 			w.free[k] = d.Options[w.cand.Opt[k]].Value
 		}
 		w.stats.Solves += int64(w.nc)
-		if err := w.p.Evaluate(w.s, w.free, w.sc); err != nil {
+		if err := w.p.Spec.Evaluate(w.s, w.free, w.sc); err != nil {
 			return
 		}
 		if !w.sc.Feasible {
@@ -571,7 +571,7 @@ func (w *rowWorker) slowRow(lo, hi int) {
 		w.free[w.j] = w.opts[i].Value
 		w.stats.Evaluated++
 		w.stats.Solves += int64(w.nc)
-		if err := p.Evaluate(w.s, w.free, w.sc); err != nil {
+		if err := p.Spec.Evaluate(w.s, w.free, w.sc); err != nil {
 			continue
 		}
 		if !w.sc.Feasible {
@@ -689,17 +689,17 @@ func (w *rowWorker) hardLimits(lo, hi int) (int, int) {
 			nlo, nhi := w.bisect(lo, hi, math.Inf(-1), w.lim, rc, -1)
 			if nlo > nhi {
 				if counting {
-					w.viol[p.SupplyLimit()*w.nc+c] += int64(hi - lo + 1)
+					w.viol[p.Spec.SupplyLimit()*w.nc+c] += int64(hi - lo + 1)
 				}
 				return 1, 0
 			}
 			lo, hi = nlo, nhi
 		}
-		for ti := range p.Probes {
-			if !p.Applies[ti][c] {
+		for ti := range p.Spec.Probes {
+			if !p.Spec.Applies[ti][c] {
 				continue
 			}
-			blo, bhi := p.Template.Targets[ti].Band()
+			blo, bhi := p.Spec.Template.Targets[ti].Band()
 			if (math.IsInf(blo, -1) && math.IsInf(bhi, 1)) || !w.monotone(rc, ti, lo, hi) {
 				continue
 			}
@@ -722,9 +722,9 @@ func (w *rowWorker) goalRange(lo, hi int, t float64) (int, int) {
 	p := w.p
 	for c := range w.cond {
 		rc := &w.cond[c]
-		for ti := range p.Probes {
-			tg := &p.Template.Targets[ti]
-			if !tg.HasEquals || !p.Applies[ti][c] || !w.monotone(rc, ti, lo, hi) {
+		for ti := range p.Spec.Probes {
+			tg := &p.Spec.Template.Targets[ti]
+			if !tg.HasEquals || !p.Spec.Applies[ti][c] || !w.monotone(rc, ti, lo, hi) {
 				continue
 			}
 			d := t
@@ -764,7 +764,7 @@ func (w *rowWorker) powerRange(lo, hi int, t float64) (int, int, bool) {
 // monotone reports whether target ti is monotone along options lo..hi of
 // the row (given that the update formula has no pole there).
 func (w *rowWorker) monotone(rc *rowCond, ti, lo, hi int) bool {
-	pr := &w.p.Probes[ti]
+	pr := &w.p.Spec.Probes[ti]
 	switch pr.Kind {
 	case constraints.Voltage, constraints.Code, constraints.Current, constraints.Resistance:
 		return true

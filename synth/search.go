@@ -16,16 +16,18 @@ import (
 )
 
 // Problem is a compiled template plus the options of each free position.
+// The compiled template is a field, not embedded, so that synth's API is its
+// own: the evaluation layout stays behind constraints.Problem's methods.
 type Problem struct {
-	*constraints.Problem
-	Domains []Domain // one per free position, in template order
+	Spec    *constraints.Problem // the compiled template: network, targets, conditions
+	Domains []Domain             // one per free position, in template order
 }
 
 // NewProblem builds the options of every free position from the template's
 // choose section. A non-empty series overrides the series of every position
 // (the `--series` flag), keeping each position's min, max and combine.
 func NewProblem(cp *constraints.Problem, series string) (*Problem, error) {
-	p := &Problem{Problem: cp}
+	p := &Problem{Spec: cp}
 	t := cp.Template
 	// Size the space from the base lists before building any pairs, so that
 	// an absurd request is refused at once rather than after minutes of
@@ -355,8 +357,8 @@ type runState struct {
 }
 
 func newRunState(p *Problem, s *Settings) *runState {
-	r := &ranker{keys: p.Template.Rank, domains: p.Domains}
-	nc := len(p.Conditions)
+	r := &ranker{keys: p.Spec.Template.Rank, domains: p.Domains}
+	nc := len(p.Spec.Conditions)
 	var front *frontList
 	if s.FrontErrorCap > 0 {
 		front = &frontList{r: r}
@@ -368,7 +370,7 @@ func newRunState(p *Problem, s *Settings) *runState {
 		frontCap: s.FrontErrorCap,
 		errCap:   s.ErrorMax,
 		top:      newTopList(r, s.Top+topMargin, len(p.Domains)),
-		viol:     make([]int64, (len(p.Probes)+1)*nc),
+		viol:     make([]int64, (len(p.Spec.Probes)+1)*nc),
 		nc:       nc,
 	}
 }
@@ -410,7 +412,7 @@ func (st *runState) blocking() *Violation {
 // search used), ranks them again on those numbers, and marks the
 // Pareto-optimal ones.
 func (st *runState) finish(p *Problem, res *Result) error {
-	s := p.Network.NewSolver()
+	s := p.Spec.Network.NewSolver()
 	// Refined solves, so that designs equal in exact arithmetic (a
 	// decade-scaled copy) tie as the contract's tolerances intend.
 	s.SetRefinement(true)
@@ -464,8 +466,8 @@ func (st *runState) rescore(p *Problem, s *solver.Solver, cands []*candidate) []
 		for i, d := range p.Domains {
 			free[i] = d.Options[c.Opt[i]].Value
 		}
-		sc := p.NewScore()
-		if err := p.Evaluate(s, free, sc); err != nil || !sc.Feasible || !withinCap(sc.Error, st.errCap) {
+		sc := p.Spec.NewScore()
+		if err := p.Spec.Evaluate(s, free, sc); err != nil || !sc.Feasible || !withinCap(sc.Error, st.errCap) {
 			continue
 		}
 		kept = append(kept, scored{&candidate{Opt: c.Opt, Error: sc.Error, Power: sc.Power, Parts: c.Parts}, sc})

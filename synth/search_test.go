@@ -272,7 +272,7 @@ func TestNoFeasible(t *testing.T) {
 	if res.Status != synth.NoFeasible || len(res.Solutions) != 0 {
 		t.Fatalf("status %v, %d solutions", res.Status, len(res.Solutions))
 	}
-	if res.Blocking == nil || p.Template.Targets[res.Blocking.Target].Label() != "current R1" {
+	if res.Blocking == nil || p.Spec.Template.Targets[res.Blocking.Target].Label() != "current R1" {
 		t.Fatalf("blocking %+v", res.Blocking)
 	}
 }

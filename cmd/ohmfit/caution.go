@@ -67,7 +67,7 @@ func writeCautions(out io.Writer, w *ratings.Watch) {
 // each solution.
 func solutionWatch(p *synth.Problem, sol synth.Solution) *ratings.Watch {
 	w := &ratings.Watch{}
-	t := p.Template
+	t := p.Spec.Template
 	for ci, c := range t.Conditions {
 		if c.Hidden {
 			continue
@@ -76,11 +76,11 @@ func solutionWatch(p *synth.Problem, sol synth.Solution) *ratings.Watch {
 		if err != nil {
 			continue
 		}
-		for k, i := range p.Free {
+		for k, i := range p.Spec.Free {
 			circ.Parts[i].Value = sol.Options[k].Value
 		}
 		if s, err := solver.Analyze(circ); err == nil {
-			watchSolution(w, t, p.Free, sol.Options, c.Name, s)
+			watchSolution(w, t, p.Spec.Free, sol.Options, c.Name, s)
 		}
 	}
 	return w

@@ -24,7 +24,7 @@ import (
 // measured against. It returns nil when the template has no temperatures or
 // no node-voltage target.
 func transferPlot(p *synth.Problem, sol synth.Solution) (*plot.Plot, error) {
-	t := p.Template
+	t := p.Spec.Template
 	node, scale, unit, ok := curveNode(t)
 	if !ok {
 		return nil, nil
@@ -41,8 +41,8 @@ func transferPlot(p *synth.Problem, sol synth.Solution) (*plot.Plot, error) {
 		return nil, nil
 	}
 	lo, hi := slices.Min(temps), slices.Max(temps)
-	ni, _ := p.Network.NodeIndex(node)
-	s := p.Network.NewSolver()
+	ni, _ := p.Spec.Network.NodeIndex(node)
+	s := p.Spec.Network.NewSolver()
 	read := func(celsius float64) (float64, bool) {
 		// Values of the condition nearest in temperature, sensors at celsius.
 		best := 0
@@ -58,7 +58,7 @@ func transferPlot(p *synth.Problem, sol synth.Solution) (*plot.Plot, error) {
 		for i, v := range vals {
 			s.SetValue(i, v)
 		}
-		for k, i := range p.Free {
+		for k, i := range p.Spec.Free {
 			s.SetValue(i, sol.Options[k].Value)
 		}
 		if s.Solve() != nil {

@@ -312,12 +312,12 @@ func warnLimitReach(w io.Writer, p *synth.Problem) []synth.LimitReach {
 		if !r.Never {
 			continue
 		}
-		if p.IsSupplyLimit(r.Target) {
+		if p.Spec.IsSupplyLimit(r.Target) {
 			warnf(w, "supply_power_max %s can never be broken: no candidate in the space draws more than %s, so the limit does not shape the answer",
-				eseries.FormatUnit(p.Template.Limits.SupplyPowerMax, eseries.Watt), eseries.FormatUnit(r.Hi, eseries.Watt))
+				eseries.FormatUnit(p.Spec.Template.Limits.SupplyPowerMax, eseries.Watt), eseries.FormatUnit(r.Hi, eseries.Watt))
 			continue
 		}
-		tg := p.Template.Targets[r.Target]
+		tg := p.Spec.Template.Targets[r.Target]
 		u := tg.Kind.Unit()
 		warnf(w, "%s %s (line %d) can never be broken: every candidate in the space reads between %s and %s in every condition, so the limit does not shape the answer; check its value and unit",
 			tg.Label(), describeLimit(tg), tg.Pos.Line, eseries.FormatUnit(r.Lo, u), eseries.FormatUnit(r.Hi, u))
@@ -329,13 +329,13 @@ func warnLimitReach(w io.Writer, p *synth.Problem) []synth.LimitReach {
 // reach proves every candidate breaks, or else the one that rejected the
 // most candidates.
 func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitReach) string {
-	t := p.Template
+	t := p.Spec.Template
 	for _, r := range reach {
 		if !r.Always {
 			continue
 		}
-		cond := p.Conditions[r.Condition].Name
-		if p.IsSupplyLimit(r.Target) {
+		cond := p.Spec.Conditions[r.Condition].Name
+		if p.Spec.IsSupplyLimit(r.Target) {
 			return fmt.Sprintf("no candidate can meet the hard limits: every candidate in the space draws more than supply_power_max %s in condition %q; raise that limit or the values' minimum",
 				eseries.FormatUnit(t.Limits.SupplyPowerMax, eseries.Watt), cond)
 		}
@@ -355,8 +355,8 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitR
 	if b == nil {
 		return scope
 	}
-	cond := p.Conditions[b.Condition].Name
-	if p.IsSupplyLimit(b.Target) {
+	cond := p.Spec.Conditions[b.Condition].Name
+	if p.Spec.IsSupplyLimit(b.Target) {
 		return fmt.Sprintf("%s; most were rejected by supply_power_max %s in condition %q", scope,
 			eseries.FormatUnit(t.Limits.SupplyPowerMax, eseries.Watt), cond)
 	}
@@ -433,9 +433,9 @@ const maxGoalColumns = 5
 // every condition it applies to (and every sweep-wide figure).
 func goalColumns(p *synth.Problem) []goalColumn {
 	var cols []goalColumn
-	multi := len(p.Conditions) > 1
-	for ti, tg := range p.Template.Targets {
-		if p.Derived[ti] != nil {
+	multi := len(p.Spec.Conditions) > 1
+	for ti, tg := range p.Spec.Template.Targets {
+		if p.Spec.Derived[ti] != nil {
 			// A sweep-wide figure is one number: show it, goal or limit.
 			cols = append(cols, goalColumn{ti, 0, tg.Label()})
 			continue
@@ -443,8 +443,8 @@ func goalColumns(p *synth.Problem) []goalColumn {
 		if !tg.HasEquals {
 			continue
 		}
-		for ci, c := range p.Conditions {
-			if !p.Applies[ti][ci] || c.Hidden {
+		for ci, c := range p.Spec.Conditions {
+			if !p.Spec.Applies[ti][ci] || c.Hidden {
 				continue
 			}
 			label := tg.Label()
@@ -494,7 +494,7 @@ func boundLine(p *synth.Problem, res *synth.Result) string {
 	if res.Status.Exhaustive() || len(res.Solutions) == 0 || !(res.Bound > 0) || math.IsInf(res.Bound, 1) {
 		return ""
 	}
-	if r := p.Template.Rank; len(r) > 0 && r[0] != constraints.ByError {
+	if r := p.Spec.Template.Rank; len(r) > 0 && r[0] != constraints.ByError {
 		return ""
 	}
 	return fmt.Sprintf("best %s; nothing better than %s can exist", errorText(res.Solutions[0].Score.Error), errorText(res.Bound))
@@ -537,8 +537,8 @@ func roundDuration(d time.Duration) time.Duration {
 // writeFitTable renders the ranked answers for people.
 func writeFitTable(w io.Writer, p *synth.Problem, res *synth.Result) error {
 	var b strings.Builder
-	if p.Template.Name != "" {
-		fmt.Fprintf(&b, "%s\n", p.Template.Name)
+	if p.Spec.Template.Name != "" {
+		fmt.Fprintf(&b, "%s\n", p.Spec.Template.Name)
 	}
 	fmt.Fprintf(&b, "%s\n", summaryLine(p, res))
 	if line := boundLine(p, res); line != "" {
@@ -603,7 +603,7 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 	}
 	tb.cols[len(tb.cols)-1].gap = 0
 	tb.add(head...)
-	nc := len(p.Conditions)
+	nc := len(p.Spec.Conditions)
 	for _, s := range sols {
 		rank := strconv.Itoa(s.Rank)
 		if marked {
@@ -623,7 +623,7 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 			if math.Abs(v) < constraints.TieAbsolute {
 				v = 0 // rounding residue of an exact hit, e.g. a balanced bridge
 			}
-			row = append(row, quantityText(v, p.Template.Targets[g.target].Kind))
+			row = append(row, quantityText(v, p.Spec.Template.Targets[g.target].Kind))
 		}
 		tb.add(row...)
 	}
@@ -644,7 +644,7 @@ func errorText(e float64) string {
 // fitJSON builds the contract's JSON document for a search.
 func fitJSON(p *synth.Problem, res *synth.Result) object {
 	doc := object{
-		{"name", p.Template.Name},
+		{"name", p.Spec.Template.Name},
 		// A shard proves its own part only: the whole is exhaustive once
 		// ohmfit merge has every shard. Its status says how the shard ended.
 		{"exhaustive", res.Status.Exhaustive() && res.Shards <= 1},
@@ -660,7 +660,7 @@ func fitJSON(p *synth.Problem, res *synth.Result) object {
 	if res.Shards > 0 {
 		// What merge needs to rank the shards' answers as one run would.
 		var keys []string
-		for _, k := range p.Template.Rank {
+		for _, k := range p.Spec.Template.Rank {
 			keys = append(keys, k.String())
 		}
 		doc = append(doc, member{"shard", fmt.Sprintf("%d/%d", res.Shard, res.Shards)}, member{"rank", keys}, member{"top", res.Top})
@@ -675,7 +675,7 @@ func fitJSON(p *synth.Problem, res *synth.Result) object {
 // solutionsJSON writes answers with the contract's keys.
 func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 	sols := make([]object, len(list))
-	nc := len(p.Conditions)
+	nc := len(p.Spec.Conditions)
 	for i, s := range list {
 		values, parts, comb := make(object, 0), make(object, 0), make(object, 0)
 		for k, d := range p.Domains {
@@ -685,13 +685,13 @@ func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 			comb = append(comb, member{d.Name, o.Combine.String()})
 		}
 		targets := []object{}
-		for ti, tg := range p.Template.Targets {
-			for ci, c := range p.Conditions {
-				derived := p.Derived[ti] != nil
+		for ti, tg := range p.Spec.Template.Targets {
+			for ci, c := range p.Spec.Conditions {
+				derived := p.Spec.Derived[ti] != nil
 				if derived && ci > 0 {
 					break
 				}
-				if (!derived && !p.Applies[ti][ci]) || c.Hidden {
+				if (!derived && !p.Spec.Applies[ti][ci]) || c.Hidden {
 					continue
 				}
 				name := c.Name
@@ -750,7 +750,7 @@ func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result, robust []vari
 	if err := cw.Write(head); err != nil {
 		return err
 	}
-	nc := len(p.Conditions)
+	nc := len(p.Spec.Conditions)
 	write := func(sols []synth.Solution, list string, robust []variation.Robust, blank bool) error {
 		for i, s := range sols {
 			row := []string{strconv.Itoa(s.Rank)}

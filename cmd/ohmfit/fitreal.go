@@ -65,7 +65,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 	if r == nil || (!r.Check && !r.Robust && r.BOM == "" && r.Plot == "") {
 		return renderFit(o, p, res)
 	}
-	t := p.Template
+	t := p.Spec.Template
 	all := res.Solutions
 	var robust []variation.Robust
 	var proof *variation.RobustRanking
@@ -102,7 +102,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 	var reports []*variation.Report
 	if r.Check {
 		for _, s := range shown.Solutions[:min(len(shown.Solutions), checkedAnswers)] {
-			d, err := variation.NewDesign(p.Problem, s.Options, o.Series, constraints.Ambient{})
+			d, err := variation.NewDesign(p.Spec, s.Options, o.Series, constraints.Ambient{})
 			if err != nil {
 				return err
 			}
@@ -156,7 +156,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 	}
 	if r.BOM != "" {
 		s := all[r.BOMRank-1]
-		d, err := variation.NewDesign(p.Problem, s.Options, o.Series, constraints.Ambient{})
+		d, err := variation.NewDesign(p.Spec, s.Options, o.Series, constraints.Ambient{})
 		if err != nil {
 			return err
 		}

@@ -97,8 +97,8 @@ func plotPareto(w io.Writer, path string, p *synth.Problem, sols []synth.Solutio
 func paretoPlot(p *synth.Problem, sols []synth.Solution, chosen int) (*plot.Plot, error) {
 	pl := plot.New()
 	pl.Title.Text = "error against power"
-	if p.Template.Name != "" {
-		pl.Title.Text = p.Template.Name + ": error against power"
+	if p.Spec.Template.Name != "" {
+		pl.Title.Text = p.Spec.Template.Name + ": error against power"
 	}
 	pl.X.Label.Text = "power dissipated in the resistors, worst condition"
 	pl.Y.Label.Text = "largest goal error"

@@ -381,7 +381,7 @@ func TestBOMTotals(t *testing.T) {
 	for _, nr := range res.Networks {
 		n := nr.Network
 		free := map[int]synth.Option{}
-		for k, i := range n.Problem.Free {
+		for k, i := range n.Problem.Spec.Free {
 			free[i] = nr.Choice().Options[k]
 		}
 		for i, ps := range n.Template.Parts {

@@ -30,7 +30,7 @@ func (r *Result) Check() (*Checked, error) {
 	var lines []variation.BOMLine
 	for _, nr := range r.Networks {
 		n := nr.Network
-		d, err := variation.NewDesign(n.Problem.Problem, nr.Choice().Options, "", constraints.Ambient{})
+		d, err := variation.NewDesign(n.Problem.Spec, nr.Choice().Options, "", constraints.Ambient{})
 		if err != nil {
 			return nil, errorf(err, "%s: %s", n.Name(), constraints.Message(err))
 		}

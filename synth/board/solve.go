@@ -297,11 +297,11 @@ func valueKey(v float64) string { return strconv.FormatFloat(v, 'g', 9, 64) }
 // its template says: the board lists designs by error, so that a cut list
 // keeps the closest ones.
 func errorFirst(p *synth.Problem) *synth.Problem {
-	cp := *p.Problem
+	cp := *p.Spec
 	t := *cp.Template
 	t.Rank = []constraints.RankKey{constraints.ByError, constraints.ByPower, constraints.ByParts}
 	cp.Template = &t
-	return &synth.Problem{Problem: &cp, Domains: p.Domains}
+	return &synth.Problem{Spec: &cp, Domains: p.Domains}
 }
 
 // enumerate lists one network's designs within its cap, and its own best

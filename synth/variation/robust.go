@@ -37,7 +37,7 @@ func Rerank(p *synth.Problem, sols []synth.Solution, series string, ambient cons
 	}
 	items := make([]item, len(sols))
 	for i, s := range sols {
-		d, err := NewDesign(p.Problem, s.Options, series, ambient)
+		d, err := NewDesign(p.Spec, s.Options, series, ambient)
 		if err != nil {
 			return nil, nil, err
 		}
@@ -153,7 +153,7 @@ func robustProof(p *synth.Problem, res *synth.Result, requested, top int, r *Rob
 		r.Reason = "every feasible candidate was re-ranked"
 		return false
 	}
-	rank := p.Template.Rank
+	rank := p.Spec.Template.Rank
 	if len(rank) == 0 || rank[0] != constraints.ByError {
 		r.Reason = "the template ranks by power or parts first, so the pool is not the answers of lowest error"
 		return false
