@@ -7,7 +7,7 @@ import (
 	"strings"
 	"unicode"
 
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"gopkg.in/yaml.v3"
 )
 
@@ -202,12 +202,12 @@ func (d *decoder) errorMax(n *yaml.Node, path, ctx string) (float64, bool) {
 		d.errorf(n, path, "%s: expected a goal error such as 1%% or 0.01, got %s", what, describe(n))
 		return 0, false
 	}
-	q, err := eseries.Parse(n.Value)
+	q, err := units.Parse(n.Value)
 	if err != nil {
 		d.wrapf(n, path, err, "%s: %s", what, strings.TrimPrefix(err.Error(), "eseries: "))
 		return 0, false
 	}
-	if q.Unit != eseries.Percent && q.Unit != eseries.NoUnit {
+	if q.Unit != units.Percent && q.Unit != units.NoUnit {
 		d.errorf(n, path, "%s: expected a goal error such as 1%% or 0.01, got %s", what, n.Value)
 		return 0, false
 	}

@@ -5,7 +5,7 @@ import (
 	"fmt"
 	"math"
 
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 )
 
@@ -151,7 +151,7 @@ func (p *Problem) unexcited() error {
 	e := &Error{File: t.File, Err: ErrDegenerate, Msg: "the network has no source, so every node sits at 0 V and every candidate scores the same; add the supply as a voltage-source"}
 	if first != nil {
 		e.Line, e.Col = first.Pos.Line, first.Pos.Col
-		e.Msg = fmt.Sprintf("part %s: every source is zero in every condition, so every node sits at 0 V and every candidate scores the same; give the sources their working values", eseries.Quote(first.Name))
+		e.Msg = fmt.Sprintf("part %s: every source is zero in every condition, so every node sits at 0 V and every candidate scores the same; give the sources their working values", units.Quote(first.Name))
 	}
 	return e
 }

@@ -17,6 +17,7 @@ import (
 	"unicode/utf8"
 
 	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 	"gopkg.in/yaml.v3"
 )
@@ -400,7 +401,7 @@ func (d *decoder) prescan(n *yaml.Node, depth int) {
 		return
 	}
 	if n.Kind == yaml.AliasNode {
-		d.errorf(n, "", "YAML aliases (*%s) are not supported in templates; write the value out", eseries.Clip(n.Value))
+		d.errorf(n, "", "YAML aliases (*%s) are not supported in templates; write the value out", units.Clip(n.Value))
 		return
 	}
 	for _, c := range n.Content {
@@ -427,7 +428,7 @@ func describe(n *yaml.Node) string {
 		case "!!int", "!!float":
 			return "the number " + n.Value
 		}
-		return eseries.Quote(n.Value)
+		return units.Quote(n.Value)
 	}
 	return "something else"
 }
@@ -470,7 +471,7 @@ func (d *decoder) fields(n *yaml.Node, path, ctx string, allowed []string) (map[
 			d.errorf(k, path, "%sexpected a key name, got %s", pre, describe(k))
 			continue
 		}
-		name := eseries.Clip(k.Value)
+		name := units.Clip(k.Value)
 		kp := joinKey(path, name)
 		if prev, dup := byName[name]; dup {
 			d.errorf(k, kp, "%skey %q appears twice (first on line %d)", pre, name, prev.key.Line)
@@ -534,11 +535,11 @@ func (d *decoder) name(n *yaml.Node, path, ctx string) (string, bool) {
 		return "", false
 	}
 	if strings.IndexFunc(n.Value, func(r rune) bool { return unicode.IsSpace(r) || unicode.IsControl(r) }) >= 0 {
-		d.errorf(n, path, "%s: name %s contains a space; names are single words such as vout or R1", ctx, eseries.Quote(n.Value))
+		d.errorf(n, path, "%s: name %s contains a space; names are single words such as vout or R1", ctx, units.Quote(n.Value))
 		return "", false
 	}
 	if l := utf8.RuneCountInString(n.Value); l > MaxName {
-		d.errorf(n, path, "%s: name %s is %d characters long; names are short words such as vout or R1 (at most %d)", ctx, eseries.Quote(n.Value), l, MaxName)
+		d.errorf(n, path, "%s: name %s is %d characters long; names are short words such as vout or R1 (at most %d)", ctx, units.Quote(n.Value), l, MaxName)
 		return "", false
 	}
 	return n.Value, true
@@ -556,9 +557,9 @@ const (
 	MaxMagnitude = 1e30
 )
 
-// value reads a number in the given unit with eseries.ParseAs, refusing
+// value reads a number in the given unit with units.ParseAs, refusing
 // magnitudes outside MinMagnitude … MaxMagnitude.
-func (d *decoder) value(n *yaml.Node, path, ctx string, unit eseries.Unit) (float64, bool) {
+func (d *decoder) value(n *yaml.Node, path, ctx string, unit units.Unit) (float64, bool) {
 	v, ok := d.number(n, path, ctx, unit)
 	if !ok {
 		return 0, false
@@ -569,22 +570,22 @@ func (d *decoder) value(n *yaml.Node, path, ctx string, unit eseries.Unit) (floa
 		if strings.HasSuffix(path, ".equals") || strings.Contains(path, ".curve") {
 			hint = "for a goal of zero write 0 with an absolute tolerance such as 1m"
 		}
-		d.errorf(n, path, "%s: %s is below 1e-30 in size, smaller than any circuit quantity ohmfit computes with; %s", ctx, eseries.Clip(n.Value), hint)
+		d.errorf(n, path, "%s: %s is below 1e-30 in size, smaller than any circuit quantity ohmfit computes with; %s", ctx, units.Clip(n.Value), hint)
 		return 0, false
 	case a > MaxMagnitude:
-		d.errorf(n, path, "%s: %s is above 1e30 in size, larger than any circuit quantity ohmfit computes with; check the exponent", ctx, eseries.Clip(n.Value))
+		d.errorf(n, path, "%s: %s is above 1e30 in size, larger than any circuit quantity ohmfit computes with; check the exponent", ctx, units.Clip(n.Value))
 		return 0, false
 	}
 	return v, true
 }
 
-// number reads a number in the given unit with eseries.ParseAs.
-func (d *decoder) number(n *yaml.Node, path, ctx string, unit eseries.Unit) (float64, bool) {
+// number reads a number in the given unit with units.ParseAs.
+func (d *decoder) number(n *yaml.Node, path, ctx string, unit units.Unit) (float64, bool) {
 	if n.Kind != yaml.ScalarNode || isNull(n) {
 		d.errorf(n, path, "%s: expected a value such as %s, got %s", ctx, exampleValue(unit), describe(n))
 		return 0, false
 	}
-	v, err := eseries.ParseAs(n.Value, unit)
+	v, err := units.ParseAs(n.Value, unit)
 	if err != nil {
 		d.wrapf(n, path, err, "%s: %s", ctx, Message(err))
 		return 0, false
@@ -592,29 +593,29 @@ func (d *decoder) number(n *yaml.Node, path, ctx string, unit eseries.Unit) (flo
 	return v, true
 }
 
-func exampleValue(u eseries.Unit) string {
+func exampleValue(u units.Unit) string {
 	switch u {
-	case eseries.Ohm:
+	case units.Ohm:
 		return "4.7k"
-	case eseries.Volt:
+	case units.Volt:
 		return "3.3"
-	case eseries.Amp:
+	case units.Amp:
 		return "100u"
-	case eseries.Watt:
+	case units.Watt:
 		return "50m"
 	}
 	return "0.25"
 }
 
 // positive reads a value that must be above zero.
-func (d *decoder) positive(n *yaml.Node, path, ctx string, unit eseries.Unit) (float64, bool) {
+func (d *decoder) positive(n *yaml.Node, path, ctx string, unit units.Unit) (float64, bool) {
 	v, ok := d.value(n, path, ctx, unit)
 	if ok && v <= 0 {
 		hint := ""
-		if unit == eseries.Ohm && v == 0 {
+		if unit == units.Ohm && v == 0 {
 			hint = "; a 0 Ω part is a wire: join its two nodes instead"
 		}
-		d.errorf(n, path, "%s: must be positive, got %s%s", ctx, eseries.Clip(n.Value), hint)
+		d.errorf(n, path, "%s: must be positive, got %s%s", ctx, units.Clip(n.Value), hint)
 		return 0, false
 	}
 	return v, ok
@@ -699,7 +700,7 @@ func (d *decoder) version(root *yaml.Node) bool {
 			return true
 		}
 		if v.Kind == yaml.ScalarNode && v.ShortTag() == "!!int" {
-			d.errorf(v, "ohmfit", "unsupported schema version %s; this ohmfit reads version %d", eseries.Clip(v.Value), SchemaVersion)
+			d.errorf(v, "ohmfit", "unsupported schema version %s; this ohmfit reads version %d", units.Clip(v.Value), SchemaVersion)
 		} else {
 			d.errorf(v, "ohmfit", "ohmfit: expected the schema version %d, got %s", SchemaVersion, describe(v))
 		}
@@ -790,7 +791,7 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 		}
 	}
 	if nameNode != nil && nameNode.Kind == yaml.ScalarNode && nameNode.Value != "" {
-		ctx = "part " + eseries.Quote(nameNode.Value)
+		ctx = "part " + units.Quote(nameNode.Value)
 	}
 	if typeNode == nil {
 		d.missingf(n, joinKey(path, "type"), "%s: missing key \"type\" (one of %s)", ctx, strings.Join(partTypeNames(), ", "))
@@ -877,11 +878,11 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 			d.errorf(e.val, joinKey(path, "value"), "%s: value is empty; leave the key out to let ohmfit choose it", ctx)
 			return PartSpec{}, nil, false
 		}
-		p.Value, ok = d.positive(e.val, joinKey(path, "value"), label(ctx, "value"), eseries.Ohm)
+		p.Value, ok = d.positive(e.val, joinKey(path, "value"), label(ctx, "value"), units.Ohm)
 	case solver.VoltageSource:
-		p.Value, ok = d.value(byName["volts"].val, joinKey(path, "volts"), label(ctx, "volts"), eseries.Volt)
+		p.Value, ok = d.value(byName["volts"].val, joinKey(path, "volts"), label(ctx, "volts"), units.Volt)
 	case solver.CurrentSource:
-		p.Value, ok = d.value(byName["amps"].val, joinKey(path, "amps"), label(ctx, "amps"), eseries.Amp)
+		p.Value, ok = d.value(byName["amps"].val, joinKey(path, "amps"), label(ctx, "amps"), units.Amp)
 	}
 	if ok && !d.realPart(&p, byName, path, ctx) {
 		return PartSpec{}, nil, false
@@ -1029,10 +1030,10 @@ func (d *decoder) target(n *yaml.Node, path string, i int) {
 		if lo.val.Line > hi.val.Line || (lo.val.Line == hi.val.Line && lo.val.Column > hi.val.Column) {
 			at, key = lo.val, "min"
 		}
-		d.errorf(at, joinKey(path, key), "%s: min (%s) is above max (%s); swap them", ctx, eseries.Clip(lo.val.Value), eseries.Clip(hi.val.Value))
+		d.errorf(at, joinKey(path, key), "%s: min (%s) is above max (%s); swap them", ctx, units.Clip(lo.val.Value), units.Clip(hi.val.Value))
 	}
 	if tg.HasEquals && ((tg.HasMin && tg.Equals < tg.Min) || (tg.HasMax && tg.Equals > tg.Max)) {
-		d.errorf(byName["equals"].val, joinKey(path, "equals"), "%s: equals (%s) lies outside min..max, so no design could meet it", ctx, eseries.Clip(byName["equals"].val.Value))
+		d.errorf(byName["equals"].val, joinKey(path, "equals"), "%s: equals (%s) lies outside min..max, so no design could meet it", ctx, units.Clip(byName["equals"].val.Value))
 	}
 	if e, ok := byName["when"]; ok {
 		wpath := joinKey(path, "when")
@@ -1055,12 +1056,12 @@ func (d *decoder) target(n *yaml.Node, path string, i int) {
 
 // tolerance reads "1%" (relative to equals) or a plain value in the
 // quantity's unit (absolute).
-func (d *decoder) tolerance(n *yaml.Node, path, ctx string, unit eseries.Unit, tg *Target) {
+func (d *decoder) tolerance(n *yaml.Node, path, ctx string, unit units.Unit, tg *Target) {
 	if n.Kind == yaml.ScalarNode && !isNull(n) {
-		if q, err := eseries.Parse(n.Value); err == nil && q.Unit == eseries.Percent {
+		if q, err := units.Parse(n.Value); err == nil && q.Unit == units.Percent {
 			tg.Tolerance, tg.TolRelative = q.Value, true
 			if q.Value <= 0 {
-				d.errorf(n, path, "%s: must be positive, got %s", ctx, eseries.Clip(n.Value))
+				d.errorf(n, path, "%s: must be positive, got %s", ctx, units.Clip(n.Value))
 			} else if tg.HasEquals && tg.Equals == 0 {
 				d.errorf(n, path, "%s: a percentage of equals: 0 is zero; give an absolute tolerance such as 5m", ctx)
 			}
@@ -1079,7 +1080,7 @@ func (d *decoder) limits(n *yaml.Node) {
 	d.t.Limits.Pos = Pos{n.Line, n.Column}
 	byName, _ := d.fields(n, "limits", "limits", []string{"supply_power_max", "max_package"})
 	if e, ok := byName["supply_power_max"]; ok {
-		d.t.Limits.SupplyPowerMax, _ = d.positive(e.val, "limits.supply_power_max", "limits: supply_power_max", eseries.Watt)
+		d.t.Limits.SupplyPowerMax, _ = d.positive(e.val, "limits.supply_power_max", "limits: supply_power_max", units.Watt)
 	}
 	if e, ok := byName["max_package"]; ok {
 		d.t.Limits.MaxPackage, _ = d.pkg(e.val, "limits.max_package", "limits: max_package")
@@ -1131,10 +1132,10 @@ func (d *decoder) choice(c *Choice, n *yaml.Node, byName map[string]entry, path,
 		d.series(c, e.val, joinKey(path, "series"), label(ctx, "series"))
 	}
 	if e, ok := byName["min"]; ok {
-		c.Min, _ = d.positive(e.val, joinKey(path, "min"), label(ctx, "min"), eseries.Ohm)
+		c.Min, _ = d.positive(e.val, joinKey(path, "min"), label(ctx, "min"), units.Ohm)
 	}
 	if e, ok := byName["max"]; ok {
-		c.Max, _ = d.positive(e.val, joinKey(path, "max"), label(ctx, "max"), eseries.Ohm)
+		c.Max, _ = d.positive(e.val, joinKey(path, "max"), label(ctx, "max"), units.Ohm)
 	}
 	if e, ok := byName["combine"]; ok {
 		cp := joinKey(path, "combine")
@@ -1167,17 +1168,17 @@ func (d *decoder) choice(c *Choice, n *yaml.Node, byName map[string]entry, path,
 		return at
 	}
 	if c.Min > c.Max {
-		d.errorf(latest("min", "max"), path, "%s: min (%s) is above max (%s); swap them", ctx, eseries.Format(c.Min), eseries.Format(c.Max))
+		d.errorf(latest("min", "max"), path, "%s: min (%s) is above max (%s); swap them", ctx, units.Format(c.Min), units.Format(c.Max))
 		return false
 	}
 	at := latest("series", "min", "max")
 	if c.Stock != nil {
 		if !slices.ContainsFunc(c.Stock, func(v float64) bool { return v >= c.Min && v <= c.Max }) {
-			d.errorf(at, path, "%s: no stock value lies between min (%s) and max (%s)", ctx, eseries.Format(c.Min), eseries.Format(c.Max))
+			d.errorf(at, path, "%s: no stock value lies between min (%s) and max (%s)", ctx, units.Format(c.Min), units.Format(c.Max))
 			return false
 		}
 	} else if s, err := eseries.Lookup(c.Series); err == nil && s.Count(c.Min, c.Max) == 0 {
-		d.errorf(at, path, "%s: no %s value lies between min (%s) and max (%s)", ctx, s.Name, eseries.Format(c.Min), eseries.Format(c.Max))
+		d.errorf(at, path, "%s: no %s value lies between min (%s) and max (%s)", ctx, s.Name, units.Format(c.Min), units.Format(c.Max))
 		return false
 	}
 	return true
@@ -1208,7 +1209,7 @@ func (d *decoder) series(c *Choice, n *yaml.Node, path, ctx string) {
 		}
 		vals := make([]float64, 0, len(n.Content))
 		for _, it := range n.Content {
-			v, ok := d.positive(it, path, ctx, eseries.Ohm)
+			v, ok := d.positive(it, path, ctx, units.Ohm)
 			if !ok {
 				return
 			}
@@ -1219,7 +1220,7 @@ func (d *decoder) series(c *Choice, n *yaml.Node, path, ctx string) {
 		if seriesLike(n.Value) {
 			s, err := eseries.Lookup(n.Value)
 			if err != nil {
-				d.wrapf(n, path, err, "%s: unknown series %s%s; series are %s", ctx, eseries.Quote(n.Value),
+				d.wrapf(n, path, err, "%s: unknown series %s%s; series are %s", ctx, units.Quote(n.Value),
 					suggest(n.Value, eseries.Names()), strings.Join(eseries.Names(), " "))
 				return
 			}
@@ -1246,7 +1247,7 @@ func (d *decoder) stockFile(n *yaml.Node, path, ctx string) ([]float64, string, 
 	data, rerr := readFile(file)
 	if rerr != nil {
 		if errors.Is(rerr.Err, fs.ErrNotExist) {
-			d.wrapf(n, path, rerr.Err, "%s: no series or stock file named %s%s", ctx, eseries.Quote(n.Value), suggest(n.Value, eseries.Names()))
+			d.wrapf(n, path, rerr.Err, "%s: no series or stock file named %s%s", ctx, units.Quote(n.Value), suggest(n.Value, eseries.Names()))
 		} else {
 			d.wrapf(n, path, rerr, "%s: stock file %s: %s", ctx, file, rerr.Msg)
 		}
@@ -1270,15 +1271,15 @@ func (d *decoder) stockFile(n *yaml.Node, path, ctx string) ([]float64, string, 
 				order: Pos{n.Line, n.Column}})
 			return nil, "", false
 		}
-		v, err := eseries.ParseAs(text, eseries.Ohm)
+		v, err := units.ParseAs(text, units.Ohm)
 		if err != nil {
 			return fail(Message(err), err)
 		}
 		if v <= 0 {
-			return fail(fmt.Sprintf("stock value %s is not positive", eseries.Clip(text)), nil)
+			return fail(fmt.Sprintf("stock value %s is not positive", units.Clip(text)), nil)
 		}
 		if v < MinMagnitude || v > MaxMagnitude {
-			return fail(fmt.Sprintf("stock value %s lies outside 1e-30 … 1e30 Ω, the range of any resistor", eseries.Clip(text)), nil)
+			return fail(fmt.Sprintf("stock value %s lies outside 1e-30 … 1e30 Ω, the range of any resistor", units.Clip(text)), nil)
 		}
 		vals = append(vals, v)
 	}
@@ -1366,7 +1367,7 @@ func (d *decoder) rank(n *yaml.Node) {
 		case k < 0:
 			d.errorf(it, path, "rank: expected one of %s, got %s", strings.Join(rankNames, ", "), describe(it))
 		case slices.Contains(keys, RankKey(k)):
-			d.errorf(it, path, "rank: %s appears twice", eseries.Quote(it.Value))
+			d.errorf(it, path, "rank: %s appears twice", units.Quote(it.Value))
 		default:
 			keys = append(keys, RankKey(k))
 		}
@@ -1470,11 +1471,11 @@ func (d *decoder) crossCheck() {
 			d.errorf(s.key, s.path, "%s: part %q is a %s; its value follows the condition's temperature, so set temperature instead", s.ctx, s.part, p.SensorType)
 			continue
 		case p.Kind == solver.Resistor:
-			v, ok = d.positive(s.val, s.path, label(s.ctx, s.part), eseries.Ohm)
+			v, ok = d.positive(s.val, s.path, label(s.ctx, s.part), units.Ohm)
 		case p.Kind == solver.VoltageSource:
-			v, ok = d.value(s.val, s.path, label(s.ctx, s.part), eseries.Volt)
+			v, ok = d.value(s.val, s.path, label(s.ctx, s.part), units.Volt)
 		default:
-			v, ok = d.value(s.val, s.path, label(s.ctx, s.part), eseries.Amp)
+			v, ok = d.value(s.val, s.path, label(s.ctx, s.part), units.Amp)
 		}
 		if ok {
 			c := &t.Conditions[s.cond]

@@ -9,6 +9,7 @@ import (
 	"github.com/ohmfit/ohmfit/constraints/ratings"
 	"github.com/ohmfit/ohmfit/constraints/sensors"
 	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 	"github.com/ohmfit/ohmfit/synth"
 )
@@ -17,9 +18,9 @@ import (
 // do, and leave it out of what constraints.Message gives a person; the
 // sentinels still match with errors.Is.
 func TestMessageLeavesOutThePackage(t *testing.T) {
-	_, parseErr := eseries.Parse("4.7x")
+	_, parseErr := units.Parse("4.7x")
 	_, seriesErr := eseries.Lookup("E25")
-	_, codeErr := eseries.Code(-1)
+	_, codeErr := units.Code(-1)
 	_, pkgErr := ratings.Lookup("0000")
 	_, ntcErr := sensors.Beta{R25: 10e3, Beta: 3950}.Resistance(-300)
 	_, combErr := synth.Combine(-1, nil, synth.CombineSettings{})
@@ -34,9 +35,9 @@ func TestMessageLeavesOutThePackage(t *testing.T) {
 		is     error
 		starts string
 	}{
-		{"value", parseErr, "eseries", eseries.ErrSyntax, "cannot read value"},
+		{"value", parseErr, "units", units.ErrSyntax, "cannot read value"},
 		{"series", seriesErr, "eseries", eseries.ErrUnknownSeries, "unknown series"},
-		{"code", codeErr, "eseries", nil, "no IEC 60062 code"},
+		{"code", codeErr, "units", nil, "no IEC 60062 code"},
 		{"package", pkgErr, "ratings", nil, "unknown package"},
 		{"sensor range", ntcErr, "sensors", sensors.ErrRange, "-300 °C"},
 		{"combine", combErr, "synth", nil, "combine needs"},

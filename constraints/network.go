@@ -7,7 +7,7 @@ import (
 	"slices"
 	"strings"
 
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 )
 
@@ -117,7 +117,7 @@ func (t *Template) NetworkError(err error) *Error {
 			parts := t.partsOn([]string{se.Node})
 			at(parts...)
 			e.Msg += fmt.Sprintf("; the values of %s (at node %s) are too many decades apart to solve together: check their exponents",
-				eseries.List(parts, ", "), se.Node)
+				units.List(parts, ", "), se.Node)
 		} else {
 			at(se.Part)
 			e.Msg += fmt.Sprintf("; check the values around %s for exponents off by many decades", se.Part)
@@ -125,7 +125,7 @@ func (t *Template) NetworkError(err error) *Error {
 	case errors.As(err, &ic):
 		if p, ok := t.outlier(); ok {
 			e.Line, e.Col = p.Pos.Line, p.Pos.Col
-			e.Msg += fmt.Sprintf("; %s (%s) is the value farthest from the rest", p.Name, eseries.FormatUnit(p.Value, eseries.Ohm))
+			e.Msg += fmt.Sprintf("; %s (%s) is the value farthest from the rest", p.Name, units.FormatUnit(p.Value, units.Ohm))
 		}
 	case errors.As(err, &oe):
 		switch {

@@ -6,7 +6,7 @@ import (
 	"strings"
 
 	"github.com/ohmfit/ohmfit/constraints/ratings"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 	"gopkg.in/yaml.v3"
 )
@@ -45,20 +45,20 @@ func ParseTCR(text string) (float64, error) {
 	if rest, ok := strings.CutSuffix(strings.ToLower(s), "ppm"); ok {
 		v, err := strconv.ParseFloat(strings.TrimSpace(rest), 64)
 		if err != nil || !(v >= 0) {
-			return 0, fmt.Errorf("cannot read %s as a temperature coefficient such as 100ppm", eseries.Quote(text))
+			return 0, fmt.Errorf("cannot read %s as a temperature coefficient such as 100ppm", units.Quote(text))
 		}
 		if v > 1e5 {
-			return 0, fmt.Errorf("%s is above 100000 ppm/°C (10 %%/°C), far beyond any resistor; write it like 100ppm", eseries.Quote(text))
+			return 0, fmt.Errorf("%s is above 100000 ppm/°C (10 %%/°C), far beyond any resistor; write it like 100ppm", units.Quote(text))
 		}
 		return v * 1e-6, nil
 	}
-	if q, err := eseries.Parse(s); err == nil && q.Unit == eseries.Percent {
+	if q, err := units.Parse(s); err == nil && q.Unit == units.Percent {
 		if !(q.Value >= 0 && q.Value <= 0.1) {
-			return 0, fmt.Errorf("%s is above 10 %%/°C, far beyond any resistor; write it like 0.01%%/°C", eseries.Quote(text))
+			return 0, fmt.Errorf("%s is above 10 %%/°C, far beyond any resistor; write it like 0.01%%/°C", units.Quote(text))
 		}
 		return q.Value, nil
 	}
-	return 0, fmt.Errorf("cannot read %s as a temperature coefficient; write it like 100ppm or 0.01%%/°C", eseries.Quote(text))
+	return 0, fmt.Errorf("cannot read %s as a temperature coefficient; write it like 100ppm or 0.01%%/°C", units.Quote(text))
 }
 
 // realPart reads `tolerance`, `tcr` and `package` of a part.
@@ -66,23 +66,23 @@ func (d *decoder) realPart(p *PartSpec, byName map[string]entry, path, ctx strin
 	nerr := len(d.errs)
 	if e, ok := byName["tolerance"]; ok {
 		tp, tctx := joinKey(path, "tolerance"), label(ctx, "tolerance")
-		unit := eseries.Ohm
+		unit := units.Ohm
 		switch p.Kind {
 		case solver.VoltageSource:
-			unit = eseries.Volt
+			unit = units.Volt
 		case solver.CurrentSource:
-			unit = eseries.Amp
+			unit = units.Amp
 		}
-		if q, err := eseries.Parse(e.val.Value); e.val.Kind == yaml.ScalarNode && err == nil && q.Unit == eseries.Percent {
+		if q, err := units.Parse(e.val.Value); e.val.Kind == yaml.ScalarNode && err == nil && q.Unit == units.Percent {
 			if q.Value <= 0 || q.Value >= 1 {
-				d.errorf(e.val, tp, "%s: must be above 0%% and below 100%%, got %s", tctx, eseries.Clip(e.val.Value))
+				d.errorf(e.val, tp, "%s: must be above 0%% and below 100%%, got %s", tctx, units.Clip(e.val.Value))
 			} else {
 				p.Tolerance, p.TolRelative = q.Value, true
 			}
 		} else if v, ok := d.positive(e.val, tp, tctx, unit); ok {
 			p.Tolerance = v
 			if p.Kind == solver.Resistor && p.Value > 0 && v >= p.Value {
-				d.errorf(e.val, tp, "%s: ±%s is as large as the value itself", tctx, eseries.Clip(e.val.Value))
+				d.errorf(e.val, tp, "%s: ±%s is as large as the value itself", tctx, units.Clip(e.val.Value))
 			}
 		}
 	}
@@ -103,12 +103,12 @@ func (d *decoder) realPart(p *PartSpec, byName map[string]entry, path, ctx strin
 func (d *decoder) realChoice(c *Choice, byName map[string]entry, path, ctx string) {
 	if e, ok := byName["tolerance"]; ok {
 		tp, tctx := joinKey(path, "tolerance"), label(ctx, "tolerance")
-		q, err := eseries.Parse(e.val.Value)
+		q, err := units.Parse(e.val.Value)
 		switch {
-		case e.val.Kind != yaml.ScalarNode || err != nil || q.Unit != eseries.Percent:
+		case e.val.Kind != yaml.ScalarNode || err != nil || q.Unit != units.Percent:
 			d.errorf(e.val, tp, "%s: expected a percentage such as 1%%, got %s", tctx, describe(e.val))
 		case q.Value <= 0 || q.Value >= 1:
-			d.errorf(e.val, tp, "%s: must be above 0%% and below 100%%, got %s", tctx, eseries.Clip(e.val.Value))
+			d.errorf(e.val, tp, "%s: must be above 0%% and below 100%%, got %s", tctx, units.Clip(e.val.Value))
 		default:
 			c.Tolerance = q.Value
 		}

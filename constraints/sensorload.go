@@ -8,7 +8,7 @@ import (
 	"strings"
 
 	"github.com/ohmfit/ohmfit/constraints/sensors"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 	"gopkg.in/yaml.v3"
 )
@@ -49,8 +49,8 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 			}
 			p.Sensor = sensors.SteinhartHart{A: c[0], B: c[1], C: c[2]}
 		case hasR && hasB:
-			r, ok1 := d.positive(r25.val, joinKey(path, "r25"), label(ctx, "r25"), eseries.Ohm)
-			b, ok2 := d.positive(beta.val, joinKey(path, "beta"), label(ctx, "beta"), eseries.NoUnit)
+			r, ok1 := d.positive(r25.val, joinKey(path, "r25"), label(ctx, "r25"), units.Ohm)
+			b, ok2 := d.positive(beta.val, joinKey(path, "beta"), label(ctx, "beta"), units.NoUnit)
 			if !ok1 || !ok2 || !d.within(r25.val, joinKey(path, "r25"), label(ctx, "r25"), r, r25Range) ||
 				!d.within(beta.val, joinKey(path, "beta"), label(ctx, "beta"), b, betaRange) {
 				return false
@@ -73,7 +73,7 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 			d.missingf(n, joinKey(path, "r0"), "%s: an RTD needs r0, its resistance at 0 °C (100 for a Pt100)", ctx)
 			return false
 		}
-		r, ok := d.positive(r0.val, joinKey(path, "r0"), label(ctx, "r0"), eseries.Ohm)
+		r, ok := d.positive(r0.val, joinKey(path, "r0"), label(ctx, "r0"), units.Ohm)
 		if !ok || !d.within(r0.val, joinKey(path, "r0"), label(ctx, "r0"), r, r0Range) {
 			return false
 		}
@@ -122,7 +122,7 @@ func (d *decoder) sensorModel(p *PartSpec, typ string, n *yaml.Node, byName map[
 // same as a plain fraction (`0.01`).
 func (d *decoder) fraction(n *yaml.Node, path, ctx, example string) (float64, bool) {
 	if n.Kind == yaml.ScalarNode && !isNull(n) {
-		if q, err := eseries.Parse(n.Value); err == nil && (q.Unit == eseries.Percent || q.Unit == eseries.NoUnit) && q.Value > 0 && q.Value < 1 {
+		if q, err := units.Parse(n.Value); err == nil && (q.Unit == units.Percent || q.Unit == units.NoUnit) && q.Value > 0 && q.Value < 1 {
 			return q.Value, true
 		}
 	}
@@ -142,24 +142,24 @@ func (d *decoder) dissipation(n *yaml.Node, path, ctx string) (float64, bool) {
 		if strings.HasSuffix(text, per) {
 			text = strings.TrimSuffix(text, per)
 			if !strings.HasSuffix(text, "W") {
-				d.errorf(n, path, "%s: expected watts per kelvin such as 1.5mW/K, got %s", ctx, eseries.Quote(n.Value))
+				d.errorf(n, path, "%s: expected watts per kelvin such as 1.5mW/K, got %s", ctx, units.Quote(n.Value))
 				return 0, false
 			}
 			break
 		}
 	}
-	v, err := eseries.ParseAs(text, eseries.Watt)
+	v, err := units.ParseAs(text, units.Watt)
 	if err != nil {
-		d.errorf(n, path, "%s: expected a dissipation constant such as 1.5mW/K, got %s", ctx, eseries.Quote(n.Value))
+		d.errorf(n, path, "%s: expected a dissipation constant such as 1.5mW/K, got %s", ctx, units.Quote(n.Value))
 		return 0, false
 	}
 	if !(v > 0) {
-		d.errorf(n, path, "%s: must be positive, got %s", ctx, eseries.Clip(n.Value))
+		d.errorf(n, path, "%s: must be positive, got %s", ctx, units.Clip(n.Value))
 		return 0, false
 	}
 	if v < dissipationRange.lo || v > dissipationRange.hi {
-		d.errorf(n, path, "%s: %s lies outside %s/K … %s/K, %s; check the value and its unit (mW/K is written 1.5mW/K)", ctx, eseries.Clip(n.Value),
-			eseries.FormatUnit(dissipationRange.lo, eseries.Watt), eseries.FormatUnit(dissipationRange.hi, eseries.Watt), dissipationRange.what)
+		d.errorf(n, path, "%s: %s lies outside %s/K … %s/K, %s; check the value and its unit (mW/K is written 1.5mW/K)", ctx, units.Clip(n.Value),
+			units.FormatUnit(dissipationRange.lo, units.Watt), units.FormatUnit(dissipationRange.hi, units.Watt), dissipationRange.what)
 		return 0, false
 	}
 	return v, true
@@ -169,7 +169,7 @@ func (d *decoder) dissipation(n *yaml.Node, path, ctx string) (float64, bool) {
 // value no real part has (a typo, or the wrong unit).
 type paramRange struct {
 	lo, hi float64
-	unit   eseries.Unit
+	unit   units.Unit
 	what   string // what the range is, for the message
 }
 
@@ -177,14 +177,14 @@ type paramRange struct {
 // datasheets give B from about 2000 to 5000 K and R25 from 100 Ω to 1 MΩ;
 // platinum sensors are Pt10 to Pt10000. The bounds leave a margin.
 var (
-	betaRange = paramRange{1000, 10000, eseries.NoUnit, "K, the usual range of an NTC's B constant (common practice, no source)"}
-	r25Range  = paramRange{1, 100e6, eseries.Ohm, "Ω, the usual range of an NTC's resistance at 25 °C (common practice, no source)"}
-	r0Range   = paramRange{1, 100e3, eseries.Ohm, "Ω, the usual range of a platinum sensor's resistance at 0 °C, Pt10 to Pt10000 (common practice, no source)"}
+	betaRange = paramRange{1000, 10000, units.NoUnit, "K, the usual range of an NTC's B constant (common practice, no source)"}
+	r25Range  = paramRange{1, 100e6, units.Ohm, "Ω, the usual range of an NTC's resistance at 25 °C (common practice, no source)"}
+	r0Range   = paramRange{1, 100e3, units.Ohm, "Ω, the usual range of a platinum sensor's resistance at 0 °C, Pt10 to Pt10000 (common practice, no source)"}
 	// Datasheets give dissipation constants from about 0.5 mW/K (a bare
 	// bead in still air) to tens of mW/K (a probe in a stirred liquid or a
 	// large disc): the bounds leave a decade of margin each side, and catch
 	// a constant written in W/K that meant mW/K.
-	dissipationRange = paramRange{10e-6, 1, eseries.NoUnit, "the usual range of a sensor's dissipation constant (common practice, no source)"}
+	dissipationRange = paramRange{10e-6, 1, units.NoUnit, "the usual range of a sensor's dissipation constant (common practice, no source)"}
 )
 
 // within reports v inside r, reporting it at n otherwise.
@@ -192,11 +192,11 @@ func (d *decoder) within(n *yaml.Node, path, ctx string, v float64, r paramRange
 	if v >= r.lo && v <= r.hi {
 		return true
 	}
-	lo, hi := eseries.Format(r.lo), eseries.Format(r.hi)
-	if r.unit == eseries.NoUnit {
+	lo, hi := units.Format(r.lo), units.Format(r.hi)
+	if r.unit == units.NoUnit {
 		lo, hi = strconv.FormatFloat(r.lo, 'g', -1, 64), strconv.FormatFloat(r.hi, 'g', -1, 64)
 	}
-	d.errorf(n, path, "%s: %s lies outside %s … %s %s; check the value and its unit", ctx, eseries.Clip(n.Value), lo, hi, r.what)
+	d.errorf(n, path, "%s: %s lies outside %s … %s %s; check the value and its unit", ctx, units.Clip(n.Value), lo, hi, r.what)
 	return false
 }
 
@@ -243,7 +243,7 @@ func (d *decoder) numbers(n *yaml.Node, path, ctx string, k int, example string)
 	}
 	out := make([]float64, k)
 	for i, it := range n.Content {
-		v, ok := d.value(it, path, ctx, eseries.NoUnit)
+		v, ok := d.value(it, path, ctx, units.NoUnit)
 		if !ok {
 			return nil, false
 		}
@@ -258,7 +258,7 @@ func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
 	if n.Kind == yaml.MappingNode {
 		for j := 0; j+1 < len(n.Content); j += 2 {
 			if k, v := n.Content[j], n.Content[j+1]; k.Value == "name" && v.Kind == yaml.ScalarNode && v.Value != "" {
-				ctx = "part " + eseries.Quote(v.Value)
+				ctx = "part " + units.Quote(v.Value)
 				break
 			}
 		}
@@ -279,7 +279,7 @@ func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
 		return a, nil, false
 	}
 	d.nodeRefs = append(d.nodeRefs, nodeRef{a.Node, byName["in"].val, joinKey(path, "in")})
-	if a.Ref, ok = d.positive(byName["ref"].val, joinKey(path, "ref"), label(ctx, "ref"), eseries.Volt); !ok {
+	if a.Ref, ok = d.positive(byName["ref"].val, joinKey(path, "ref"), label(ctx, "ref"), units.Volt); !ok {
 		return a, nil, false
 	}
 	b := byName["bits"].val
@@ -292,19 +292,19 @@ func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
 	if e, ok := byName["max_source"]; ok {
 		// The source resistance the input sees, for its sampling capacitor
 		// to settle: a resistance target from the input to ground.
-		max, ok := d.positive(e.val, joinKey(path, "max_source"), label(ctx, "max_source"), eseries.Ohm)
+		max, ok := d.positive(e.val, joinKey(path, "max_source"), label(ctx, "max_source"), units.Ohm)
 		if !ok {
 			return a, nil, false
 		}
 		d.t.Targets = append(d.t.Targets, Target{Kind: Resistance, Nodes: []string{a.Node, d.t.Ground}, HasMax: true, Max: max, Pos: Pos{e.val.Line, e.val.Column}})
 	}
 	if e, ok := byName["input"]; ok {
-		if a.Input, ok = d.positive(e.val, joinKey(path, "input"), label(ctx, "input"), eseries.Ohm); !ok {
+		if a.Input, ok = d.positive(e.val, joinKey(path, "input"), label(ctx, "input"), units.Ohm); !ok {
 			return a, nil, false
 		}
 	}
 	if e, ok := byName["leakage"]; ok {
-		if a.Leakage, ok = d.value(e.val, joinKey(path, "leakage"), label(ctx, "leakage"), eseries.Amp); !ok {
+		if a.Leakage, ok = d.value(e.val, joinKey(path, "leakage"), label(ctx, "leakage"), units.Amp); !ok {
 			return a, nil, false
 		}
 		a.HasLeakage = true
@@ -337,9 +337,9 @@ func (d *decoder) addADCLoads() {
 
 // temperature reads a temperature in °C: a plain number (85, -20, 25.5).
 func (d *decoder) temperature(n *yaml.Node, path, ctx string) (float64, bool) {
-	v, ok := d.number(n, path, ctx, eseries.NoUnit)
+	v, ok := d.number(n, path, ctx, units.NoUnit)
 	if ok && !(v > -sensors.ZeroCelsius && v < 1e4) {
-		d.errorf(n, path, "%s: %s °C is not a temperature a circuit meets", ctx, eseries.Clip(n.Value))
+		d.errorf(n, path, "%s: %s °C is not a temperature a circuit meets", ctx, units.Clip(n.Value))
 		return 0, false
 	}
 	return v, ok
@@ -432,7 +432,7 @@ type curvePoint struct {
 }
 
 // curve reads `curve: {-20: 2.9, 25: 1.65, 85: 0.42}` (temperature: value).
-func (d *decoder) curve(n *yaml.Node, path, ctx string, unit eseries.Unit) ([]curvePoint, bool) {
+func (d *decoder) curve(n *yaml.Node, path, ctx string, unit units.Unit) ([]curvePoint, bool) {
 	if !d.expectMapping(n, path, ctx, "{-20: 2.9, 25: 1.65, 85: 0.42}") {
 		return nil, false
 	}
@@ -540,7 +540,7 @@ const HalfStep = 0.5
 func (d *decoder) onFraction(n *yaml.Node) {
 	v, ok := 0.0, false
 	if n.Kind == yaml.ScalarNode {
-		if q, err := eseries.Parse(n.Value); err == nil && (q.Unit == eseries.Percent || q.Unit == eseries.NoUnit) {
+		if q, err := units.Parse(n.Value); err == nil && (q.Unit == units.Percent || q.Unit == units.NoUnit) {
 			v, ok = q.Value, true
 		}
 	}

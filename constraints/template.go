@@ -6,7 +6,7 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 )
 
@@ -121,18 +121,18 @@ func (k TargetKind) String() string {
 }
 
 // Unit returns the unit the quantity is measured in; NoUnit for a ratio.
-func (k TargetKind) Unit() eseries.Unit {
+func (k TargetKind) Unit() units.Unit {
 	switch k {
 	case Voltage:
-		return eseries.Volt
+		return units.Volt
 	case Current:
-		return eseries.Amp
+		return units.Amp
 	case Power:
-		return eseries.Watt
+		return units.Watt
 	case Resistance:
-		return eseries.Ohm
+		return units.Ohm
 	}
-	return eseries.NoUnit
+	return units.NoUnit
 }
 
 // UnitText is the unit of a quantity that eseries has no unit for, as
@@ -165,17 +165,17 @@ func (k TargetKind) Format(v float64) string { return k.FormatSig(v, QuantityDig
 func (k TargetKind) FormatSig(v float64, sig int) string {
 	switch {
 	case math.IsInf(v, 0):
-		return eseries.FormatUnitSig(v, eseries.NoUnit, sig)
+		return units.FormatUnitSig(v, units.NoUnit, sig)
 	case k == Code:
 		return strconv.FormatFloat(v, 'f', 1, 64)
 	case k == Sensitivity:
-		return eseries.FormatUnitSig(v, eseries.Volt, sig) + "/°C"
+		return units.FormatUnitSig(v, units.Volt, sig) + "/°C"
 	}
 	if u := k.UnitText(); u != "" {
 		// No SI prefix before °C: "0.0423 °C/step", not "42.3m °C/step".
 		return strconv.FormatFloat(v, 'g', sig, 64) + " " + u
 	}
-	return eseries.FormatUnitSig(v, k.Unit(), sig)
+	return units.FormatUnitSig(v, k.Unit(), sig)
 }
 
 // Derived reports whether the kind is computed from several conditions at

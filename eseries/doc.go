@@ -1,8 +1,7 @@
 // Package eseries holds the IEC 60063 preferred-number series (E3 … E192),
-// expands them over decades, finds the nearest standard values, and reads and
-// writes component values: plain numbers, SI prefixes, units, percentages and
-// the IEC 60062 letter-and-digit code (4k7, R47, 2M2).
+// expands them over decades and finds the nearest standard values.
 //
-// It is not for choosing values against goals (that is package synth) and it
-// imports nothing else of ohmfit.
+// Reading and writing values (SI prefixes, units, percentages, IEC 60062
+// codes) is package eseries/units. Neither chooses values against goals
+// (that is package synth), and neither imports anything else of ohmfit.
 package eseries

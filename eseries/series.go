@@ -129,7 +129,7 @@ const relTol = 1e-9
 
 // Values returns every series value in [lo, hi], ascending, over as many
 // decades as the bounds span: E12 from 1 to 1M gives 6*12+1 values. Each is
-// the float64 nearest its decimal value, the same one Parse gives, so 4.7k
+// the float64 nearest its decimal value, the same one units.Parse gives, so 4.7k
 // is exactly 4700. A value within relTol (1e-9 relative) of a bound counts
 // as inside. Bounds that are not positive and finite, or hi < lo, give nil.
 func (s *Series) Values(lo, hi float64) []float64 {

@@ -417,33 +417,3 @@ func TestCountDoesNotAllocate(t *testing.T) {
 		t.Errorf("Count allocates %v times per call", n)
 	}
 }
-
-// TestRoundTripSeries: for every value of every series over 0.1 Ω .. 10 GΩ,
-// Parse(Format(v)) and Parse(Code(v)) give back v exactly, since the tables
-// have at most three significant figures and both forms write four.
-func TestRoundTripSeries(t *testing.T) {
-	for _, name := range Names() {
-		s := mustLookup(t, name)
-		vals := s.Values(0.1, 10e9)
-		if len(vals) != 11*s.PerDecade+1 {
-			t.Fatalf("%s: %d values over 0.1..10G", name, len(vals))
-		}
-		for _, v := range vals {
-			f := Format(v)
-			if q, err := Parse(f); err != nil || q.Value != v {
-				t.Fatalf("%s: Parse(Format(%v) = %q) = %v, %v", name, v, f, q.Value, err)
-			}
-			fu := FormatUnit(v, Ohm)
-			if got, err := ParseAs(fu, Ohm); err != nil || got != v {
-				t.Fatalf("%s: ParseAs(FormatUnit(%v) = %q) = %v, %v", name, v, fu, got, err)
-			}
-			c, err := Code(v)
-			if err != nil {
-				t.Fatalf("%s: Code(%v): %v", name, v, err)
-			}
-			if q, err := Parse(c); err != nil || q.Value != v {
-				t.Fatalf("%s: Parse(Code(%v) = %q) = %v, %v", name, v, c, q.Value, err)
-			}
-		}
-	}
-}

@@ -10,7 +10,7 @@ import (
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/examples"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/synth"
 )
 
@@ -88,7 +88,7 @@ func randomBoundTemplate(rng *rand.Rand) string {
 			fmt.Fprintf(&b, "  - {name: %s, type: resistor, from: %s, to: %s}\n", name, a, c)
 			return name
 		}
-		fmt.Fprintf(&b, "  - {name: %s, type: resistor, from: %s, to: %s, value: %s}\n", name, a, c, eseries.Format(1e3*(1+rng.Float64()*20)))
+		fmt.Fprintf(&b, "  - {name: %s, type: resistor, from: %s, to: %s, value: %s}\n", name, a, c, units.Format(1e3*(1+rng.Float64()*20)))
 		return name
 	}
 	nodes := []string{"in", "n1", "n2", "n3"}[:2+rng.IntN(3)]
@@ -108,7 +108,7 @@ func randomBoundTemplate(rng *rand.Rand) string {
 		// Non-inverting stage: gain 1 + RF/RG into a fixed load.
 		fmt.Fprintf(&b, "  - {name: U1, type: opamp, plus: %s, minus: fb, out: o}\n", tap)
 		fmt.Fprintf(&b, "  - {name: RF, type: resistor, from: o, to: fb}\n")
-		fmt.Fprintf(&b, "  - {name: RG, type: resistor, from: fb, to: gnd, value: %s}\n", eseries.Format(1e3*(1+rng.Float64()*9)))
+		fmt.Fprintf(&b, "  - {name: RG, type: resistor, from: fb, to: gnd, value: %s}\n", units.Format(1e3*(1+rng.Float64()*9)))
 		fmt.Fprintf(&b, "  - {name: RL, type: resistor, from: o, to: gnd, value: 10k}\n")
 	}
 	if rng.IntN(3) == 0 {

@@ -6,6 +6,7 @@ import (
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 )
 
 // Option is one way to realise a free position: one standard part, or two in
@@ -91,7 +92,7 @@ func BuildDomain(part int, name string, c constraints.Choice) (Domain, error) {
 	}
 	d := Domain{Part: part, Name: name}
 	if len(base) == 0 {
-		return d, errorf(nil, "position %s: no standard value between %s and %s", name, eseries.Format(c.Min), eseries.Format(c.Max))
+		return d, errorf(nil, "position %s: no standard value between %s and %s", name, units.Format(c.Min), units.Format(c.Max))
 	}
 	if n := OptionCount(len(base), c.Combine); n > MaxOptions {
 		return d, errorf(nil, "position %s: %.3g options (%d base values, combine %s) is more than %d; narrow its min/max or use a coarser series", name, n, len(base), c.Combine, MaxOptions)

@@ -12,6 +12,7 @@ import (
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/examples"
 	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/synth"
 )
 
@@ -101,7 +102,7 @@ func randomTemplate(rng *rand.Rand, series string) string {
 			fmt.Fprintf(&b, "  - {name: R%d, type: resistor, from: %s, to: %s}\n", res, a, c)
 			return
 		}
-		fmt.Fprintf(&b, "  - {name: R%d, type: resistor, from: %s, to: %s, value: %s}\n", res, a, c, eseries.Format(1e3*(1+rng.Float64()*20)))
+		fmt.Fprintf(&b, "  - {name: R%d, type: resistor, from: %s, to: %s, value: %s}\n", res, a, c, units.Format(1e3*(1+rng.Float64()*20)))
 	}
 	for i := 1; i < len(nodes)-1; i++ {
 		addR(nodes[i], nodes[i+1])

@@ -9,7 +9,7 @@ import (
 	"strings"
 
 	"github.com/ohmfit/ohmfit/constraints"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/synth/board"
 	"github.com/ohmfit/ohmfit/synth/variation"
 	"github.com/spf13/cobra"
@@ -228,14 +228,14 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 	}
 	vals := make([]string, len(res.Values))
 	for i, v := range res.Values {
-		vals[i] = eseries.Format(v)
+		vals[i] = units.Format(v)
 	}
 	fmt.Fprintf(&b, "\n  values: %s\n", strings.Join(vals, ", "))
-	fmt.Fprintf(&b, "  largest error relative to its cap %.0f%%; total power %s\n\n", 100*res.RelMax, eseries.FormatUnit(res.Power, eseries.Watt))
+	fmt.Fprintf(&b, "  largest error relative to its cap %.0f%%; total power %s\n\n", 100*res.RelMax, units.FormatUnit(res.Power, units.Watt))
 	bt := table{indent: "  ", cols: []column{{gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {gap: 3}, {right: true}}}
 	bt.add("designators", "value", "tolerance", "package", "quantity")
 	for _, l := range chk.BOM {
-		value := eseries.FormatUnit(l.Value, eseries.Ohm)
+		value := units.FormatUnit(l.Value, units.Ohm)
 		if l.Type != variation.TypeResistor {
 			value = l.Type + " " + value
 		}
@@ -331,7 +331,7 @@ func writeBoardCSV(w io.Writer, res *board.Result) error {
 			o := nr.Choice().Options[k]
 			var ps []string
 			for _, v := range o.PartValues() {
-				ps = append(ps, eseries.Format(v))
+				ps = append(ps, units.Format(v))
 			}
 			row := []string{n.Spec.Prefix, n.Spec.Template, d.Name, strconv.FormatFloat(o.Value, 'g', -1, 64), o.Combine.String(),
 				strings.Join(ps, " "), strconv.FormatFloat(nr.Choice().Score.Error, 'g', -1, 64), strconv.FormatFloat(n.Cap, 'g', -1, 64)}

@@ -7,7 +7,7 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/synth/variation"
 )
 
@@ -42,7 +42,7 @@ func writeBOMLines(w io.Writer, lines []variation.BOMLine) error {
 			tcr = strconv.FormatFloat(l.TCR*1e6, 'g', 4, 64)
 		}
 		row := []string{strings.Join(l.Designators, ", "), l.Type,
-			eseries.FormatUnit(l.Value, eseries.Ohm), l.Code, series,
+			units.FormatUnit(l.Value, units.Ohm), l.Code, series,
 			bomTolerance(l), l.TolFrom, tcr, l.Model,
 			l.Package, rated, strconv.Itoa(l.Quantity())}
 		if err := cw.Write(row); err != nil {
@@ -59,5 +59,5 @@ func bomTolerance(l variation.BOMLine) string {
 	if math.IsNaN(l.Tolerance) {
 		return "-"
 	}
-	return eseries.FormatUnit(l.Tolerance, eseries.Percent)
+	return units.FormatUnit(l.Tolerance, units.Percent)
 }

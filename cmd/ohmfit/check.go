@@ -10,7 +10,7 @@ import (
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/ratings"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 	"github.com/ohmfit/ohmfit/synth"
 	"github.com/ohmfit/ohmfit/synth/variation"
@@ -331,19 +331,19 @@ func tolText(v variation.Varied) string {
 		return "exact"
 	}
 	if v.Relative {
-		return eseries.FormatUnit(v.Tol, eseries.Percent)
+		return units.FormatUnit(v.Tol, units.Percent)
 	}
-	return "±" + eseries.FormatUnit(v.Tol, unitOf(v.Kind))
+	return "±" + units.FormatUnit(v.Tol, unitOf(v.Kind))
 }
 
-func unitOf(k solver.Kind) eseries.Unit {
+func unitOf(k solver.Kind) units.Unit {
 	switch k {
 	case solver.VoltageSource:
-		return eseries.Volt
+		return units.Volt
 	case solver.CurrentSource:
-		return eseries.Amp
+		return units.Amp
 	}
-	return eseries.Ohm
+	return units.Ohm
 }
 
 // ppm shows a TCR: "100 ppm/°C".
@@ -491,9 +491,9 @@ func writePartTable(b *strings.Builder, d *variation.Design, rep *variation.Repo
 			if pkg == "" {
 				pkg = "-"
 			}
-			tb.add(v.Name, eseries.FormatUnit(v.Nominal, eseries.Ohm), tolText(v), "-",
-				eseries.FormatUnit(sl.Watts, eseries.Watt), eseries.FormatUnit(sl.Volts, eseries.Volt), pkg, "-", "sensor")
-			tol := fmt.Sprintf(", ±%s (%s)", eseries.FormatUnit(v.Tol, eseries.Percent), v.TolFrom)
+			tb.add(v.Name, units.FormatUnit(v.Nominal, units.Ohm), tolText(v), "-",
+				units.FormatUnit(sl.Watts, units.Watt), units.FormatUnit(sl.Volts, units.Volt), pkg, "-", "sensor")
+			tol := fmt.Sprintf(", ±%s (%s)", units.FormatUnit(v.Tol, units.Percent), v.TolFrom)
 			if v.Class != "" {
 				tol = "" // the class is in the model
 			}
@@ -503,15 +503,15 @@ func writePartTable(b *strings.Builder, d *variation.Design, rep *variation.Repo
 		}
 		r, ok := rated[v.Name]
 		if !ok {
-			tb.add(v.Name, eseries.FormatUnit(v.Nominal, unitOf(v.Kind)), tolText(v), "", "", "", "", "", "")
+			tb.add(v.Name, units.FormatUnit(v.Nominal, unitOf(v.Kind)), tolText(v), "", "", "", "", "", "")
 			continue
 		}
 		pkg := r.Package
 		if r.Chosen {
 			pkg += " (smallest)"
 		}
-		tb.add(v.Name, eseries.FormatUnit(v.Nominal, eseries.Ohm), tolText(v), ppm(v.TCR),
-			eseries.FormatUnit(r.Watts, eseries.Watt), eseries.FormatUnit(r.Volts, eseries.Volt), pkg,
+		tb.add(v.Name, units.FormatUnit(v.Nominal, units.Ohm), tolText(v), ppm(v.TCR),
+			units.FormatUnit(r.Watts, units.Watt), units.FormatUnit(r.Volts, units.Volt), pkg,
 			loadText(r.Load.PowerFraction), string(r.Verdict))
 	}
 	if err := tb.write(b); err != nil {
@@ -541,7 +541,7 @@ func writeHeatingTable(b *strings.Builder, rep *variation.Report) error {
 		if h.Converged {
 			read = celsius(h.ReadingError)
 		}
-		tb.add(h.Part, h.CondName, eseries.FormatUnit(h.Watts, eseries.Watt), celsius(h.Rise), read, strconv.Itoa(h.Steps))
+		tb.add(h.Part, h.CondName, units.FormatUnit(h.Watts, units.Watt), celsius(h.Rise), read, strconv.Itoa(h.Steps))
 	}
 	return tb.write(b)
 }

@@ -8,7 +8,7 @@ import (
 	"strings"
 
 	"github.com/ohmfit/ohmfit/constraints"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/synth"
 	"github.com/spf13/cobra"
 )
@@ -77,7 +77,7 @@ circuit as data: a number is one part in ohms, {"series": [...]} and
 }
 
 func runCombine(o *combineOptions) error {
-	target, err := readValue("VALUE", o.Value, eseries.Ohm)
+	target, err := readValue("VALUE", o.Value, units.Ohm)
 	if err != nil {
 		return err
 	}
@@ -88,11 +88,11 @@ func runCombine(o *combineOptions) error {
 	if err != nil {
 		return err
 	}
-	lo, err := readValue("--min", o.Min, eseries.Ohm)
+	lo, err := readValue("--min", o.Min, units.Ohm)
 	if err != nil {
 		return err
 	}
-	hi, err := readValue("--max", o.Max, eseries.Ohm)
+	hi, err := readValue("--max", o.Max, units.Ohm)
 	if err != nil {
 		return err
 	}
@@ -101,7 +101,7 @@ func runCombine(o *combineOptions) error {
 	}
 	base := s.Values(lo, hi)
 	if len(base) == 0 {
-		return badInputf("no %s value between %s and %s", s.Name, eseries.Format(lo), eseries.Format(hi))
+		return badInputf("no %s value between %s and %s", s.Name, units.Format(lo), units.Format(hi))
 	}
 	combs, err := synth.Combine(target, base, synth.CombineSettings{MaxParts: o.MaxParts, Top: o.Top})
 	if err != nil {
@@ -117,11 +117,11 @@ func runCombine(o *combineOptions) error {
 		return writeJSON(o.Out, object{{"target", target}, {"series", s.Name}, {"solutions", sols}})
 	}
 	var b strings.Builder
-	fmt.Fprintf(&b, "%s from %s parts (%s … %s), up to %d parts\n\n", eseries.FormatUnit(target, eseries.Ohm), s.Name, eseries.Format(lo), eseries.Format(hi), o.MaxParts)
+	fmt.Fprintf(&b, "%s from %s parts (%s … %s), up to %d parts\n\n", units.FormatUnit(target, units.Ohm), s.Name, units.Format(lo), units.Format(hi), o.MaxParts)
 	tb := table{indent: "  ", cols: []column{{right: true, gap: 2}, {gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {}}}
 	tb.add("rank", "arrangement", "value", "deviation", wordCount)
 	for i, c := range combs {
-		tb.add(strconv.Itoa(i+1), arrangementText(c), eseries.Format(c.Value), signedError(c.Value, target), strconv.Itoa(c.Arrangement.Count()))
+		tb.add(strconv.Itoa(i+1), arrangementText(c), units.Format(c.Value), signedError(c.Value, target), strconv.Itoa(c.Arrangement.Count()))
 	}
 	if err := tb.write(&b); err != nil {
 		return err
@@ -158,7 +158,7 @@ func arrangementData(c synth.Combination) any {
 func arrangementText(c synth.Combination) string {
 	f := make([]string, len(c.Parts))
 	for i, v := range c.Parts {
-		f[i] = eseries.Format(v)
+		f[i] = units.Format(v)
 	}
 	switch c.Arrangement {
 	case synth.ArrSeries:

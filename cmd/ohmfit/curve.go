@@ -13,7 +13,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"github.com/ohmfit/ohmfit/constraints"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/synth"
 )
 
@@ -137,7 +137,7 @@ func transferPlot(p *synth.Problem, sol synth.Solution) (*plot.Plot, error) {
 // curveNode picks the node a transfer curve shows: that of the first code,
 // voltage, linearity or sensitivity target on a single node. A code target
 // makes the curve read in ADC codes.
-func curveNode(t *constraints.Template) (node string, scale float64, unit eseries.Unit, ok bool) {
+func curveNode(t *constraints.Template) (node string, scale float64, unit units.Unit, ok bool) {
 	for _, tg := range t.Targets {
 		if len(tg.Nodes) != 1 {
 			continue
@@ -146,11 +146,11 @@ func curveNode(t *constraints.Template) (node string, scale float64, unit eserie
 		case constraints.Code:
 			for _, a := range t.ADCs {
 				if a.Name == tg.ADC {
-					return a.Node, 1 / a.Step(), eseries.NoUnit, true
+					return a.Node, 1 / a.Step(), units.NoUnit, true
 				}
 			}
 		case constraints.Voltage, constraints.Linearity, constraints.Sensitivity:
-			return tg.Nodes[0], 1, eseries.Volt, true
+			return tg.Nodes[0], 1, units.Volt, true
 		}
 	}
 	return "", 0, 0, false

@@ -6,7 +6,7 @@ import (
 	"math"
 
 	"github.com/ohmfit/ohmfit/constraints"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 	"github.com/spf13/cobra"
 )
@@ -34,10 +34,10 @@ func (c *choiceFlags) apply(t *constraints.Template, series string) (tol float64
 	if series != "" {
 		ch.Series = series
 	}
-	if ch.Min, err = readValue("--min", c.Min, eseries.Ohm); err != nil {
+	if ch.Min, err = readValue("--min", c.Min, units.Ohm); err != nil {
 		return 0, false, err
 	}
-	if ch.Max, err = readValue("--max", c.Max, eseries.Ohm); err != nil {
+	if ch.Max, err = readValue("--max", c.Max, units.Ohm); err != nil {
 		return 0, false, err
 	}
 	if !(ch.Min > 0) || ch.Max < ch.Min {
@@ -58,11 +58,11 @@ func (c *choiceFlags) apply(t *constraints.Template, series string) (tol float64
 	if c.Tolerance == "" {
 		return 0, false, nil
 	}
-	q, perr := eseries.Parse(c.Tolerance)
-	if perr != nil || !(q.Value > 0) || (q.Unit != eseries.Percent && q.Unit != eseries.Volt && q.Unit != eseries.NoUnit) {
+	q, perr := units.Parse(c.Tolerance)
+	if perr != nil || !(q.Value > 0) || (q.Unit != units.Percent && q.Unit != units.Volt && q.Unit != units.NoUnit) {
 		return 0, false, badInputf("--tolerance: want a percentage like 0.5%% or volts like 5m, not %q", c.Tolerance)
 	}
-	return q.Value, q.Unit == eseries.Percent, nil
+	return q.Value, q.Unit == units.Percent, nil
 }
 
 // dividerOptions are the inputs of `ohmfit divider`.
@@ -123,19 +123,19 @@ func (o *dividerOptions) template() (*constraints.Template, error) {
 	if o.Vin == "" || o.Vout == "" {
 		return nil, badInputf("divider needs both --vin and --vout")
 	}
-	vin, err := readValue("--vin", o.Vin, eseries.Volt)
+	vin, err := readValue("--vin", o.Vin, units.Volt)
 	if err != nil {
 		return nil, err
 	}
-	vout, err := readValue("--vout", o.Vout, eseries.Volt)
+	vout, err := readValue("--vout", o.Vout, units.Volt)
 	if err != nil {
 		return nil, err
 	}
 	if vin == 0 || vout == 0 || math.Signbit(vin) != math.Signbit(vout) || math.Abs(vout) >= math.Abs(vin) {
 		return nil, badInputf("a divider makes a voltage between 0 and --vin: --vout %s cannot come from --vin %s",
-			eseries.FormatUnit(vout, eseries.Volt), eseries.FormatUnit(vin, eseries.Volt))
+			units.FormatUnit(vout, units.Volt), units.FormatUnit(vin, units.Volt))
 	}
-	t := constraints.New(fmt.Sprintf("Divider %s to %s", eseries.FormatUnit(vin, eseries.Volt), eseries.FormatUnit(vout, eseries.Volt)))
+	t := constraints.New(fmt.Sprintf("Divider %s to %s", units.FormatUnit(vin, units.Volt), units.FormatUnit(vout, units.Volt)))
 	tol, rel, err := o.choiceFlags.apply(t, o.searchOptions.Series)
 	if err != nil {
 		return nil, err
@@ -144,7 +144,7 @@ func (o *dividerOptions) template() (*constraints.Template, error) {
 	t.AddPart(constraints.PartSpec{Part: solver.Part{Name: "R1", Kind: solver.Resistor, From: "in", To: "out"}})
 	t.AddPart(constraints.PartSpec{Part: solver.Part{Name: "R2", Kind: solver.Resistor, From: "out", To: "gnd"}})
 	if o.Load != "" {
-		rl, err := readValue("--load", o.Load, eseries.Ohm)
+		rl, err := readValue("--load", o.Load, units.Ohm)
 		if err != nil {
 			return nil, err
 		}
@@ -169,7 +169,7 @@ func addCurrentLimit(t *constraints.Template, part, text string, positive bool) 
 	if text == "" {
 		return nil
 	}
-	imax, err := readValue("--max-current", text, eseries.Amp)
+	imax, err := readValue("--max-current", text, units.Amp)
 	if err != nil {
 		return err
 	}

@@ -6,7 +6,7 @@ import (
 	"math"
 
 	"github.com/ohmfit/ohmfit/constraints"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 	"github.com/spf13/cobra"
 )
@@ -73,23 +73,23 @@ func (o *feedbackOptions) template() (*constraints.Template, error) {
 	if o.Vref == "" || o.Vout == "" {
 		return nil, badInputf("feedback needs both --vref and --vout")
 	}
-	vref, err := readValue("--vref", o.Vref, eseries.Volt)
+	vref, err := readValue("--vref", o.Vref, units.Volt)
 	if err != nil {
 		return nil, err
 	}
-	vout, err := readValue("--vout", o.Vout, eseries.Volt)
+	vout, err := readValue("--vout", o.Vout, units.Volt)
 	if err != nil {
 		return nil, err
 	}
-	bias, err := readValue("--bias-current", o.Bias, eseries.Amp)
+	bias, err := readValue("--bias-current", o.Bias, units.Amp)
 	if err != nil {
 		return nil, err
 	}
 	if vref == 0 || math.Signbit(vref) != math.Signbit(vout) || math.Abs(vout) <= math.Abs(vref) {
 		return nil, badInputf("the output must be beyond the reference on the same side of ground: --vout %s cannot come from --vref %s",
-			eseries.FormatUnit(vout, eseries.Volt), eseries.FormatUnit(vref, eseries.Volt))
+			units.FormatUnit(vout, units.Volt), units.FormatUnit(vref, units.Volt))
 	}
-	t := constraints.New(fmt.Sprintf("Regulator feedback, %s from a %s reference", eseries.FormatUnit(vout, eseries.Volt), eseries.FormatUnit(vref, eseries.Volt)))
+	t := constraints.New(fmt.Sprintf("Regulator feedback, %s from a %s reference", units.FormatUnit(vout, units.Volt), units.FormatUnit(vref, units.Volt)))
 	tol, rel, err := o.choiceFlags.apply(t, o.searchOptions.Series)
 	if err != nil {
 		return nil, err

@@ -12,7 +12,7 @@ import (
 	"time"
 
 	"github.com/ohmfit/ohmfit/constraints"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/synth"
 	"github.com/ohmfit/ohmfit/synth/variation"
 	"github.com/spf13/cobra"
@@ -314,13 +314,13 @@ func warnLimitReach(w io.Writer, p *synth.Problem) []synth.LimitReach {
 		}
 		if p.Spec.IsSupplyLimit(r.Target) {
 			warnf(w, "supply_power_max %s can never be broken: no candidate in the space draws more than %s, so the limit does not shape the answer",
-				eseries.FormatUnit(p.Spec.Template.Limits.SupplyPowerMax, eseries.Watt), eseries.FormatUnit(r.Hi, eseries.Watt))
+				units.FormatUnit(p.Spec.Template.Limits.SupplyPowerMax, units.Watt), units.FormatUnit(r.Hi, units.Watt))
 			continue
 		}
 		tg := p.Spec.Template.Targets[r.Target]
 		u := tg.Kind.Unit()
 		warnf(w, "%s %s (line %d) can never be broken: every candidate in the space reads between %s and %s in every condition, so the limit does not shape the answer; check its value and unit",
-			tg.Label(), describeLimit(tg), tg.Pos.Line, eseries.FormatUnit(r.Lo, u), eseries.FormatUnit(r.Hi, u))
+			tg.Label(), describeLimit(tg), tg.Pos.Line, units.FormatUnit(r.Lo, u), units.FormatUnit(r.Hi, u))
 	}
 	return reach
 }
@@ -337,12 +337,12 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitR
 		cond := p.Spec.Conditions[r.Condition].Name
 		if p.Spec.IsSupplyLimit(r.Target) {
 			return fmt.Sprintf("no candidate can meet the hard limits: every candidate in the space draws more than supply_power_max %s in condition %q; raise that limit or the values' minimum",
-				eseries.FormatUnit(t.Limits.SupplyPowerMax, eseries.Watt), cond)
+				units.FormatUnit(t.Limits.SupplyPowerMax, units.Watt), cond)
 		}
 		tg := t.Targets[r.Target]
 		u := tg.Kind.Unit()
 		return fmt.Sprintf("no candidate can meet the hard limits: every candidate in the space breaks %s %s (line %d) in condition %q, where it reads between %s and %s; widen that limit, the value ranges or the series",
-			tg.Label(), describeLimit(tg), tg.Pos.Line, cond, eseries.FormatUnit(r.Lo, u), eseries.FormatUnit(r.Hi, u))
+			tg.Label(), describeLimit(tg), tg.Pos.Line, cond, units.FormatUnit(r.Lo, u), units.FormatUnit(r.Hi, u))
 	}
 	scope := "no candidate meets the hard limits"
 	if res.Shards > 1 {
@@ -358,7 +358,7 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitR
 	cond := p.Spec.Conditions[b.Condition].Name
 	if p.Spec.IsSupplyLimit(b.Target) {
 		return fmt.Sprintf("%s; most were rejected by supply_power_max %s in condition %q", scope,
-			eseries.FormatUnit(t.Limits.SupplyPowerMax, eseries.Watt), cond)
+			units.FormatUnit(t.Limits.SupplyPowerMax, units.Watt), cond)
 	}
 	tg := t.Targets[b.Target]
 	where := fmt.Sprintf("in condition %q", cond)
@@ -382,16 +382,16 @@ func describeLimit(tg constraints.Target) string {
 	var parts []string
 	if tg.HasEquals && tg.Tolerance > 0 {
 		if tg.TolRelative {
-			parts = append(parts, fmt.Sprintf("within %s of %s", eseries.FormatUnit(tg.Tolerance, eseries.Percent), eseries.FormatUnit(tg.Equals, u)))
+			parts = append(parts, fmt.Sprintf("within %s of %s", units.FormatUnit(tg.Tolerance, units.Percent), units.FormatUnit(tg.Equals, u)))
 		} else {
-			parts = append(parts, fmt.Sprintf("within ±%s of %s", eseries.FormatUnit(tg.Tolerance, u), eseries.FormatUnit(tg.Equals, u)))
+			parts = append(parts, fmt.Sprintf("within ±%s of %s", units.FormatUnit(tg.Tolerance, u), units.FormatUnit(tg.Equals, u)))
 		}
 	}
 	if tg.HasMin {
-		parts = append(parts, "min "+eseries.FormatUnit(tg.Min, u))
+		parts = append(parts, "min "+units.FormatUnit(tg.Min, u))
 	}
 	if tg.HasMax {
-		parts = append(parts, "max "+eseries.FormatUnit(tg.Max, u))
+		parts = append(parts, "max "+units.FormatUnit(tg.Max, u))
 	}
 	return strings.Join(parts, ", ")
 }
@@ -412,11 +412,11 @@ func renderFit(o *searchOptions, p *synth.Problem, res *synth.Result) error {
 func positionText(opt synth.Option) string {
 	switch opt.Combine {
 	case constraints.Series:
-		return eseries.Format(opt.Parts[0]) + " + " + eseries.Format(opt.Parts[1])
+		return units.Format(opt.Parts[0]) + " + " + units.Format(opt.Parts[1])
 	case constraints.Parallel:
-		return eseries.Format(opt.Parts[0]) + " ∥ " + eseries.Format(opt.Parts[1])
+		return units.Format(opt.Parts[0]) + " ∥ " + units.Format(opt.Parts[1])
 	}
-	return eseries.Format(opt.Value)
+	return units.Format(opt.Value)
 }
 
 // goalColumn is one goal in one condition, shown as a column of the table.
@@ -617,7 +617,7 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 		for _, o := range s.Options {
 			row = append(row, positionText(o))
 		}
-		row = append(row, errorText(s.Score.Error), eseries.FormatUnit(s.Score.Power, eseries.Watt), strconv.Itoa(s.Parts))
+		row = append(row, errorText(s.Score.Error), units.FormatUnit(s.Score.Power, units.Watt), strconv.Itoa(s.Parts))
 		for _, g := range goals {
 			v := s.Score.Values[g.target*nc+g.cond]
 			if math.Abs(v) < constraints.TieAbsolute {
@@ -811,18 +811,18 @@ func csvName(label string) string {
 func quantityText(v float64, k constraints.TargetKind) string { return k.Format(v) }
 
 // preciseSig is FormatUnit with sig significant digits.
-func preciseSig(v float64, u eseries.Unit, sig int) string { return eseries.FormatUnitSig(v, u, sig) }
+func preciseSig(v float64, u units.Unit, sig int) string { return units.FormatUnitSig(v, u, sig) }
 
 // parseErrorCap reads a goal-error bound: a percentage (5%) or a fraction
 // (0.05). A bare number above 1 is refused: "5" would mean 500 %, and is
 // far more likely a percentage without its sign.
 func parseErrorCap(s string) (float64, error) {
-	q, err := eseries.Parse(s)
-	if err != nil || !(q.Value > 0) || (q.Unit != eseries.Percent && q.Unit != eseries.NoUnit) {
+	q, err := units.Parse(s)
+	if err != nil || !(q.Value > 0) || (q.Unit != units.Percent && q.Unit != units.NoUnit) {
 		return 0, badInputf("--tradeoffs: want a goal error like 1%% or 0.01, not %q", s)
 	}
-	if q.Unit == eseries.NoUnit && q.Value > 1 {
-		return 0, badInputf("--tradeoffs %s would mean %s; write %s%% for a percentage, or a fraction up to 1", s, eseries.FormatUnit(q.Value, eseries.Percent), s)
+	if q.Unit == units.NoUnit && q.Value > 1 {
+		return 0, badInputf("--tradeoffs %s would mean %s; write %s%% for a percentage, or a fraction up to 1", s, units.FormatUnit(q.Value, units.Percent), s)
 	}
 	return q.Value, nil
 }

@@ -8,7 +8,7 @@ import (
 	"strings"
 	"time"
 
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
 )
@@ -142,7 +142,7 @@ func flagError(c *cobra.Command, err error) error {
 		return usagef(path, "--%s needs a value: %s", f.Name, acceptsOf(f))
 	case errors.As(err, &nx):
 		if sh := nx.GetSpecifiedShortnames(); sh != "" {
-			if _, perr := eseries.Parse("-" + sh); perr == nil {
+			if _, perr := units.Parse("-" + sh); perr == nil {
 				return negativeArg(c, "-"+sh)
 			}
 			return usagef(path, "unknown option -%s in -%s%s", nx.GetSpecifiedName(), sh, optionSuggestion(c, nx.GetSpecifiedName()))

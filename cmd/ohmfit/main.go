@@ -14,6 +14,7 @@ import (
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 )
 
@@ -108,7 +109,7 @@ func exitCodeOf(err error) ExitCode {
 		ee *exitError
 		ue *usageError
 		ce *constraints.Error
-		pe *eseries.ParseError
+		pe *units.ParseError
 	)
 	switch {
 	case errors.As(err, &ee):

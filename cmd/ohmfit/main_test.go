@@ -347,7 +347,7 @@ func checkLabels(t *testing.T, code ExitCode, stderr string) {
 	for i, l := range lines {
 		// Library errors reach people through constraints.Message, without
 		// the package names Go errors carry.
-		for _, pkg := range []string{"eseries: ", "solver: ", "constraints: ", "sensors: ", "ratings: ", "synth: ", "variation: ", "board: "} {
+		for _, pkg := range []string{"eseries: ", "units: ", "solver: ", "constraints: ", "sensors: ", "ratings: ", "synth: ", "variation: ", "board: "} {
 			if strings.Contains(l, pkg) {
 				t.Errorf("stderr shows a package name %q: %q", pkg, l)
 			}

@@ -9,7 +9,7 @@ import (
 	"strings"
 
 	"github.com/ohmfit/ohmfit/constraints"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/synth"
 	"github.com/ohmfit/ohmfit/synth/variation"
 	"gonum.org/v1/plot"
@@ -21,7 +21,7 @@ import (
 )
 
 // engTicks labels an axis in engineering units ("200 µW", "1.5 mV").
-type engTicks struct{ unit eseries.Unit }
+type engTicks struct{ unit units.Unit }
 
 // Ticks places gonum's default ticks and relabels the major ones.
 func (e engTicks) Ticks(lo, hi float64) []plot.Tick {
@@ -47,9 +47,9 @@ func (e engTicks) Ticks(lo, hi float64) []plot.Tick {
 }
 
 // engLabel writes v with its unit at sig significant digits.
-func engLabel(v float64, u eseries.Unit, sig int) string {
+func engLabel(v float64, u units.Unit, sig int) string {
 	if sig <= 4 {
-		return eseries.FormatUnit(v, u)
+		return units.FormatUnit(v, u)
 	}
 	return preciseSig(v, u, sig)
 }
@@ -102,7 +102,7 @@ func paretoPlot(p *synth.Problem, sols []synth.Solution, chosen int) (*plot.Plot
 	}
 	pl.X.Label.Text = "power dissipated in the resistors, worst condition"
 	pl.Y.Label.Text = "largest goal error"
-	pl.X.Tick.Marker = engTicks{eseries.Watt}
+	pl.X.Tick.Marker = engTicks{units.Watt}
 	pl.Y.Tick.Marker = percentTicks{}
 	pl.Add(plotter.NewGrid())
 	pts := paretoPoints(sols)

@@ -8,7 +8,7 @@ import (
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/ratings"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 	"github.com/spf13/cobra"
 )
@@ -191,7 +191,7 @@ func writeSolveTable(w io.Writer, t *constraints.Template, results []conditionRe
 		nodes := table{indent: "  ", cols: []column{{gap: 3}, {right: true, gap: 1}, {gap: 2}, {}}}
 		nodes.add("node", "voltage")
 		for _, n := range r.sol.Nodes {
-			num, unit := splitUnit(eseries.FormatUnit(tidy(n.Volts, vs), eseries.Volt))
+			num, unit := splitUnit(units.FormatUnit(tidy(n.Volts, vs), units.Volt))
 			note := ""
 			if n.Name == t.Ground {
 				note = "(reference)"
@@ -212,9 +212,9 @@ func writeSolveTable(w io.Writer, t *constraints.Template, results []conditionRe
 		parts.add("part", "type", "voltage", "", "current", "", "power")
 		delivered, opamps := 0.0, false
 		for j, p := range r.sol.Parts {
-			v, vu := splitUnit(eseries.FormatUnit(tidy(p.Volts, vs), eseries.Volt))
-			a, au := splitUnit(eseries.FormatUnit(tidy(p.Amps, as), eseries.Amp))
-			pw, pu := splitUnit(eseries.FormatUnit(tidy(p.Watts, ws), eseries.Watt))
+			v, vu := splitUnit(units.FormatUnit(tidy(p.Volts, vs), units.Volt))
+			a, au := splitUnit(units.FormatUnit(tidy(p.Amps, as), units.Amp))
+			pw, pu := splitUnit(units.FormatUnit(tidy(p.Watts, ws), units.Watt))
 			kind := p.Kind.String()
 			if st := t.Parts[j].SensorType; st != "" {
 				kind = st // a thermistor or RTD, at the condition's temperature
@@ -234,7 +234,7 @@ func writeSolveTable(w io.Writer, t *constraints.Template, results []conditionRe
 		}
 		b.WriteString("  (passive signs: current into a part's first terminal, power absorbed; a delivering source reads negative)\n")
 		fmt.Fprintf(&b, "\n  resistors dissipate %s; %s %s\n",
-			eseries.FormatUnit(r.sol.ResistorPower, eseries.Watt), who, eseries.FormatUnit(delivered, eseries.Watt))
+			units.FormatUnit(r.sol.ResistorPower, units.Watt), who, units.FormatUnit(delivered, units.Watt))
 	}
 	_, err := io.WriteString(w, b.String())
 	return err

@@ -5,7 +5,7 @@ import (
 	"math"
 	"testing"
 
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
@@ -27,7 +27,7 @@ func checkTicks(t *testing.T, lo, hi float64) {
 			t.Fatalf("drawableRange(%g, %g) = %g, %g leaves out %g", lo, hi, a, b, x)
 		}
 	}
-	for _, m := range []plot.Ticker{engTicks{eseries.Watt}, percentTicks{}, engTicks{eseries.Volt}} {
+	for _, m := range []plot.Ticker{engTicks{units.Watt}, percentTicks{}, engTicks{units.Volt}} {
 		ts := m.Ticks(lo, hi)
 		labelled := 0
 		for _, tk := range ts {
@@ -72,7 +72,7 @@ func TestTicksExtreme(t *testing.T) {
 func TestPlotSinglePoint(t *testing.T) {
 	for _, v := range []float64{1e21, 1e-300, 0, -4.2e200, math.MaxFloat64 / 8} {
 		pl := plot.New()
-		pl.X.Tick.Marker = engTicks{eseries.Watt}
+		pl.X.Tick.Marker = engTicks{units.Watt}
 		pl.Y.Tick.Marker = percentTicks{}
 		sc, err := plotter.NewScatter(plotter.XYs{{X: v, Y: v}})
 		if err != nil {

@@ -10,6 +10,7 @@ import (
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/spf13/cobra"
 )
 
@@ -90,11 +91,11 @@ func runValues(o *valuesOptions) error {
 	if o.NearSet {
 		return runNear(o, s)
 	}
-	lo, err := readValue("--from", o.From, eseries.Ohm)
+	lo, err := readValue("--from", o.From, units.Ohm)
 	if err != nil {
 		return err
 	}
-	hi, err := readValue("--to", o.To, eseries.Ohm)
+	hi, err := readValue("--to", o.To, units.Ohm)
 	if err != nil {
 		return err
 	}
@@ -110,12 +111,12 @@ func runValues(o *valuesOptions) error {
 	}
 	if len(vals) == 0 {
 		// Not an error: the range is valid, it just falls between two values.
-		notef(o.ErrOut, "no %s value lies between %s and %s", s.Name, eseries.Format(lo), eseries.Format(hi))
+		notef(o.ErrOut, "no %s value lies between %s and %s", s.Name, units.Format(lo), units.Format(hi))
 		return nil
 	}
 	var b strings.Builder
 	for _, v := range vals {
-		b.WriteString(eseries.Format(v))
+		b.WriteString(units.Format(v))
 		b.WriteByte('\n')
 	}
 	_, err = io.WriteString(o.Out, b.String())
@@ -131,7 +132,7 @@ type nearValue struct {
 
 // runNear shows the series values nearest o.Near.
 func runNear(o *valuesOptions, s *eseries.Series) error {
-	x, err := readValue("--near", o.Near, eseries.Ohm)
+	x, err := readValue("--near", o.Near, units.Ohm)
 	if err != nil {
 		return err
 	}
@@ -161,16 +162,16 @@ func runNear(o *valuesOptions, s *eseries.Series) error {
 		}
 		return writeJSON(o.Out, obj)
 	}
-	if _, err := fmt.Fprintf(o.Out, "%s around %s\n", s.Name, eseries.FormatUnit(x, eseries.Ohm)); err != nil {
+	if _, err := fmt.Fprintf(o.Out, "%s around %s\n", s.Name, units.FormatUnit(x, units.Ohm)); err != nil {
 		return err
 	}
 	t := table{indent: "  ", cols: []column{{gap: 2}, {right: true, gap: 1}, {gap: 2}, {right: true}}}
 	if exact {
-		num, unit := splitUnit(eseries.FormatUnit(x, eseries.Ohm))
+		num, unit := splitUnit(units.FormatUnit(x, units.Ohm))
 		t.add("exact", num, unit, "an "+s.Name+" value")
 	} else {
 		for _, n := range near {
-			num, unit := splitUnit(eseries.FormatUnit(n.value, eseries.Ohm))
+			num, unit := splitUnit(units.FormatUnit(n.value, units.Ohm))
 			t.add(n.side, num, unit, percent(n.err))
 		}
 	}
@@ -193,10 +194,10 @@ func lookupSeries(name string) (*eseries.Series, error) {
 
 // readValue reads a flag's value in unit want, naming the flag when the text
 // cannot be read.
-func readValue(flag, text string, want eseries.Unit) (float64, error) {
-	v, err := eseries.ParseAs(text, want)
+func readValue(flag, text string, want units.Unit) (float64, error) {
+	v, err := units.ParseAs(text, want)
 	if err != nil {
-		var pe *eseries.ParseError
+		var pe *units.ParseError
 		if errors.As(err, &pe) {
 			return 0, badInputf("%s: cannot read %s (%s); want %s", flag, quoteValue(text), pe.Reason, valueExample(want))
 		}
@@ -206,13 +207,13 @@ func readValue(flag, text string, want eseries.Unit) (float64, error) {
 }
 
 // valueExample says how a value in unit u is written, for a message.
-func valueExample(u eseries.Unit) string {
+func valueExample(u units.Unit) string {
 	switch u {
-	case eseries.Ohm:
+	case units.Ohm:
 		return "a resistance like 4700, 4.7k, 4k7 or 4.7kΩ"
-	case eseries.Volt:
+	case units.Volt:
 		return "a voltage like 3.3, 3.3V or 800m"
-	case eseries.Amp:
+	case units.Amp:
 		return "a current like 100u, 100µA or 1m"
 	}
 	return "a number like 4700, 4.7k or 4k7"

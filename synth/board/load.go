@@ -10,7 +10,7 @@ import (
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/examples"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/synth"
 )
 
@@ -198,4 +198,4 @@ func toleranceCap(t *constraints.Template) (float64, bool) {
 }
 
 // capText writes a cap as a percentage: "0.5 %".
-func capText(c float64) string { return eseries.FormatUnit(c, eseries.Percent) }
+func capText(c float64) string { return units.FormatUnit(c, units.Percent) }

@@ -9,7 +9,7 @@ import (
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/sensors"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 )
 
@@ -119,12 +119,12 @@ func BOM(d *Design, rep *Report) []BOMLine {
 		if lo, hi, set := conditionRange(d.Problem.Template, v.Name); set {
 			l.Type, l.Tolerance, l.TolFrom = TypeStandIn, math.NaN(), ""
 			l.Model = fmt.Sprintf("set by the conditions (%s to %s): a part that varies, modelled as a resistor; order the real part",
-				eseries.FormatUnit(lo, eseries.Ohm), eseries.FormatUnit(hi, eseries.Ohm))
+				units.FormatUnit(lo, units.Ohm), units.FormatUnit(hi, units.Ohm))
 			lines = append(lines, l)
 			continue
 		}
 		l.Type, l.Series, l.TCR, l.HasTCR = TypeResistor, v.Series, v.TCR, true
-		if code, err := eseries.Code(v.Nominal); err == nil {
+		if code, err := units.Code(v.Nominal); err == nil {
 			l.Code = code
 		}
 		r := rated[v.Name]
@@ -199,7 +199,7 @@ func sensorValueName(typ string) string {
 func sensorSpec(ps constraints.PartSpec) (float64, string) {
 	v, s := modelSpec(ps.Sensor, ps.Value)
 	if ps.BetaTolerance > 0 {
-		s += " ±" + eseries.FormatUnit(ps.BetaTolerance, eseries.Percent)
+		s += " ±" + units.FormatUnit(ps.BetaTolerance, units.Percent)
 	}
 	if c, ok := sensors.LookupClass(ps.Class); ok {
 		g := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
@@ -214,15 +214,15 @@ func modelSpec(m sensors.Model, r25 float64) (float64, string) {
 	g := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 	switch m := m.(type) {
 	case sensors.Beta:
-		return m.R25, "R25 " + eseries.FormatUnit(m.R25, eseries.Ohm) + ", B " + g(m.Beta) + " K"
+		return m.R25, "R25 " + units.FormatUnit(m.R25, units.Ohm) + ", B " + g(m.Beta) + " K"
 	case sensors.SteinhartHart:
-		return r25, "R25 " + eseries.FormatUnit(r25, eseries.Ohm) + ", Steinhart–Hart A " + g(m.A) + ", B " + g(m.B) + ", C " + g(m.C)
+		return r25, "R25 " + units.FormatUnit(r25, units.Ohm) + ", Steinhart–Hart A " + g(m.A) + ", B " + g(m.B) + ", C " + g(m.C)
 	case sensors.RTD:
 		coef := "IEC 60751 coefficients"
 		if std := sensors.IEC60751(m.R0); m != std {
 			coef = strings.Join([]string{"A " + g(m.A), "B " + g(m.B), "C " + g(m.C)}, ", ")
 		}
-		return m.R0, "R0 " + eseries.FormatUnit(m.R0, eseries.Ohm) + ", " + coef
+		return m.R0, "R0 " + units.FormatUnit(m.R0, units.Ohm) + ", " + coef
 	}
 	return r25, ""
 }

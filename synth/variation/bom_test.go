@@ -5,7 +5,7 @@ import (
 	"slices"
 	"testing"
 
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 )
 
 // sharedValue is a template where a resistor and a thermistor share 10k
@@ -47,7 +47,7 @@ func TestBOMSensorLines(t *testing.T) {
 			hi = m
 		}
 	}
-	r25 := eseries.FormatUnit(math.Exp(lo), eseries.Ohm)
+	r25 := units.FormatUnit(math.Exp(lo), units.Ohm)
 	type want struct {
 		names      []string
 		typ, model string

@@ -9,7 +9,7 @@ import (
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/ratings"
-	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 )
 
@@ -693,7 +693,7 @@ func (rt *ratingTracker) ratings(st *Settings, t *constraints.Template, r *Repor
 				r.Failures = append(r.Failures, fmt.Sprintf("%s is a %s, larger than the allowed %s", v.Name, rg.Package, maxPkg))
 			case !rg.Fits || ratings.Rank(rg.Package) > ratings.Rank(maxPkg):
 				r.Failures = append(r.Failures, fmt.Sprintf("%s (%s, %s worst case) needs more than a %s gives at half its rating",
-					v.Name, eseries.FormatUnit(rg.Watts, eseries.Watt), eseries.FormatUnit(rg.Volts, eseries.Volt), pkgLimit(rg, maxPkg)))
+					v.Name, units.FormatUnit(rg.Watts, units.Watt), units.FormatUnit(rg.Volts, units.Volt), pkgLimit(rg, maxPkg)))
 			}
 		}
 		out = append(out, rg)
@@ -747,8 +747,8 @@ func (d *Design) warn(r *Report, st *Settings) {
 		switch rg.Verdict {
 		case ratings.VerdictOverload, ratings.VerdictNoPackage:
 			r.Warnings = append(r.Warnings, fmt.Sprintf("%s overloads its %s: %s against %s rated, %s against %s",
-				rg.Part, rg.Package, eseries.FormatUnit(rg.Watts, eseries.Watt), eseries.FormatUnit(rg.Rated, eseries.Watt),
-				eseries.FormatUnit(rg.Volts, eseries.Volt), eseries.FormatUnit(rg.MaxVolts, eseries.Volt)))
+				rg.Part, rg.Package, units.FormatUnit(rg.Watts, units.Watt), units.FormatUnit(rg.Rated, units.Watt),
+				units.FormatUnit(rg.Volts, units.Volt), units.FormatUnit(rg.MaxVolts, units.Volt)))
 			r.Cautions = append(r.Cautions, ratings.RatingCaution(rg.Part, rg.Package, rg.Load))
 		case ratings.VerdictDerating:
 			r.Warnings = append(r.Warnings, fmt.Sprintf("%s runs above half the rating of its %s (%.0f%%); half is the usual derating",

@@ -7,6 +7,7 @@ import (
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/sensors"
 	"github.com/ohmfit/ohmfit/eseries"
+	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
 	"github.com/ohmfit/ohmfit/synth"
 )
@@ -218,7 +219,7 @@ func (d *Design) tolerance(v *Varied, ps constraints.PartSpec, ch constraints.Ch
 		}
 		v.Tol, v.TolFrom = AssumedTolerance, "assumed"
 		d.warnings = append(d.warnings, fmt.Sprintf("%s: no tolerance given and no series to take one from; assumed ±%s (give `tolerance:` on the part or in choose)",
-			v.Name, eseries.FormatUnit(AssumedTolerance, eseries.Percent)))
+			v.Name, units.FormatUnit(AssumedTolerance, units.Percent)))
 	}
 }
 
@@ -238,7 +239,7 @@ func (d *Design) sensorTolerance(v *Varied, ps constraints.PartSpec) {
 	default:
 		v.Tol, v.TolFrom = AssumedTolerance, "assumed"
 		d.warnings = append(d.warnings, fmt.Sprintf("%s: an %s without a tolerance; assumed ±%s of its %s (give `tolerance:` on the part, from its datasheet)",
-			v.Name, SensorKind(ps.SensorType), eseries.FormatUnit(AssumedTolerance, eseries.Percent), sensorValueName(ps.SensorType)))
+			v.Name, SensorKind(ps.SensorType), units.FormatUnit(AssumedTolerance, units.Percent), sensorValueName(ps.SensorType)))
 	}
 }
 

@@ -1,4 +1,4 @@
-package eseries
+package units
 
 import (
 	"errors"
@@ -156,7 +156,7 @@ func TestParseErrors(t *testing.T) {
 				t.Errorf("Parse(%q) error %#v is not a *ParseError with the text", tt.in, err)
 			}
 			msg := err.Error()
-			if !strings.HasPrefix(msg, "eseries: cannot read value \"") {
+			if !strings.HasPrefix(msg, "units: cannot read value \"") {
 				t.Errorf("Parse(%q) error %q lacks the package prefix and quoted text", tt.in, msg)
 			}
 			if !strings.Contains(msg, tt.reason) {
@@ -168,7 +168,7 @@ func TestParseErrors(t *testing.T) {
 
 func TestParseErrorMessage(t *testing.T) {
 	_, err := Parse("4.7x")
-	const want = `eseries: cannot read value "4.7x": unknown suffix "x"`
+	const want = `units: cannot read value "4.7x": unknown suffix "x"`
 	if err == nil || err.Error() != want {
 		t.Errorf("Parse(\"4.7x\") error = %v, want %s", err, want)
 	}

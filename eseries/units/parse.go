@@ -1,4 +1,4 @@
-package eseries
+package units
 
 import (
 	"errors"
@@ -55,7 +55,7 @@ type Quantity struct {
 }
 
 // ErrSyntax is wrapped by every error Parse and ParseAs return.
-var ErrSyntax = errors.New("eseries: cannot read value")
+var ErrSyntax = errors.New("units: cannot read value")
 
 // ParseError reports text that Parse or ParseAs could not read, quoting it.
 // It unwraps to ErrSyntax.
@@ -64,7 +64,7 @@ type ParseError struct {
 	Reason string // what is wrong with it, e.g. `unknown suffix "x"`
 }
 
-// Error returns e.g. `eseries: cannot read value "4.7x": unknown suffix "x"`.
+// Error returns e.g. `units: cannot read value "4.7x": unknown suffix "x"`.
 func (e *ParseError) Error() string {
 	return ErrSyntax.Error() + " " + Quote(e.Text) + ": " + e.Reason
 }
