@@ -246,7 +246,28 @@ func plotHistograms(w io.Writer, path string, t *constraints.Template, rep *vari
 	if len(plots) == 0 {
 		return fmt.Errorf("no Monte Carlo samples to draw (is --samples 0?)")
 	}
-	return savePlots(w, path, plots, 7*vg.Inch, vg.Length(len(plots))*3*vg.Inch)
+	return savePlots(w, path, plots, panelWidth, vg.Length(len(plots))*panelHeight)
+}
+
+// The size of one panel of check --plot.
+const (
+	panelWidth  = 7 * vg.Inch
+	panelHeight = 3 * vg.Inch
+)
+
+// legendRoom raises the top of pl's y axis so that the legend, drawn in
+// the top corner of a panel of the given size, sits above every data
+// point instead of over the lines (a limit at the top edge hid under it).
+// Only the panel's height matters: the title and the x axis take the
+// same room whatever the y range.
+func legendRoom(pl *plot.Plot, width, height vg.Length) {
+	dc := pl.DataCanvas(draw.Canvas{Rectangle: vg.Rectangle{Max: vg.Point{X: width, Y: height}}})
+	h := dc.Max.Y - dc.Min.Y
+	free := h - pl.Legend.Rectangle(dc).Size().Y - vg.Points(6)
+	if free < h/3 || pl.Y.Max <= pl.Y.Min {
+		return // a legend taller than two thirds of the panel: leave the axis alone
+	}
+	pl.Y.Max = pl.Y.Min + (pl.Y.Max-pl.Y.Min)*float64(h/free)
 }
 
 // spreadPlot draws one target over many conditions: its nominal value,
@@ -343,6 +364,7 @@ func spreadPlot(t *constraints.Template, gs []variation.Goal) (*plot.Plot, error
 		pl.Add(ln)
 	}
 	pl.Legend.Top = true
+	legendRoom(pl, panelWidth, panelHeight)
 	return pl, nil
 }
 
