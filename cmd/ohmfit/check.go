@@ -594,7 +594,7 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 			m = append(m, member{"goal", tg.Equals}, member{"worst_error", finite(g.WorstError)})
 		}
 		lo, hi := tg.Band()
-		m = append(m, member{"min", finite(lo)}, member{"max", finite(hi)}, member{"pass", !g.HasBand || g.InBand})
+		m = append(m, member{"min", finite(lo)}, member{"max", finite(hi)}, member{"pass", g.Pass()})
 		if rep.Samples > 0 {
 			mc := g.MonteCarlo
 			m = append(m, member{"monte_carlo", object{{"mean", finite(mc.Mean)}, {"sigma", finite(mc.Sigma)},

@@ -728,7 +728,7 @@ func (d *Design) warn(r *Report, st *Settings) {
 		}
 	}
 	for _, g := range r.Goals {
-		if g.HasBand && !g.InBand {
+		if !g.Pass() {
 			tg := d.Problem.Template.Targets[g.Target]
 			lo, hi := tg.Band()
 			k := tg.Kind
