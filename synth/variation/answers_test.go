@@ -10,9 +10,9 @@ import (
 	"github.com/ohmfit/ohmfit/synth"
 )
 
-// searchRobustDivider compiles robustDivider with band added to its goal
-// (", tolerance: 6%" or "") and returns its best answers.
-func searchRobustDivider(t *testing.T, band string, top int) (*synth.Problem, *synth.Result) {
+// robustProblem compiles robustDivider with band added to its goal
+// (", tolerance: 6%" or "").
+func robustProblem(t *testing.T, band string) *synth.Problem {
 	t.Helper()
 	src := strings.Replace(robustDivider, "equals: 1.2}", "equals: 1.2"+band+"}", 1)
 	tpl, err := constraints.Parse("robust.yaml", []byte(src))
@@ -27,6 +27,13 @@ func searchRobustDivider(t *testing.T, band string, top int) (*synth.Problem, *s
 	if err != nil {
 		t.Fatal(err)
 	}
+	return p
+}
+
+// searchRobustDivider is robustProblem's problem and its top best answers.
+func searchRobustDivider(t *testing.T, band string, top int) (*synth.Problem, *synth.Result) {
+	t.Helper()
+	p := robustProblem(t, band)
 	res, err := synth.Search(context.Background(), p, &synth.Settings{Top: top, Workers: 1}, synth.Rows{})
 	if err != nil {
 		t.Fatal(err)

@@ -55,18 +55,7 @@ func bruteWorst(r1, r2 float64) float64 {
 // starting from a pool far too small and widening it, returns the same
 // first answers and says they are proven.
 func TestRankRobustAgainstBruteForce(t *testing.T) {
-	tpl, err := constraints.Parse("robust.yaml", []byte(robustDivider))
-	if err != nil {
-		t.Fatal(err)
-	}
-	cp, err := constraints.Compile(tpl)
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := synth.NewProblem(cp, "")
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := robustProblem(t, "")
 	search := func(top int) (*synth.Result, error) {
 		return synth.Search(context.Background(), p, &synth.Settings{Top: top, Workers: 1}, synth.Rows{})
 	}
