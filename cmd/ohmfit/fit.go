@@ -12,6 +12,7 @@ import (
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/synth"
+	"github.com/ohmfit/ohmfit/synth/variation"
 	"github.com/spf13/cobra"
 )
 
@@ -233,7 +234,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 		notef(o.ErrOut, "time limit of %v reached; showing the best found so far (not proven)", o.TimeLimit)
 	}
 	if len(res.Solutions) > 0 {
-		writeCautions(o.ErrOut, solutionWatch(p, res.Solutions[0]))
+		writeCautions(o.ErrOut, variation.WatchAnswer(p.Spec, res.Solutions[0].Options))
 	}
 	// --robust may need the search again with a larger list to prove its
 	// ranking.
