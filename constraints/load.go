@@ -582,7 +582,7 @@ func (d *decoder) value(n *yaml.Node, path, ctx string, unit units.Unit) (float6
 // number reads a number in the given unit with units.ParseAs.
 func (d *decoder) number(n *yaml.Node, path, ctx string, unit units.Unit) (float64, bool) {
 	if n.Kind != yaml.ScalarNode || isNull(n) {
-		d.errorf(n, path, "%s: expected a value such as %s, got %s", ctx, exampleValue(unit), describe(n))
+		d.errorf(n, path, "%s: expected %s, got %s", ctx, units.Example(unit), describe(n))
 		return 0, false
 	}
 	v, err := units.ParseAs(n.Value, unit)
@@ -591,20 +591,6 @@ func (d *decoder) number(n *yaml.Node, path, ctx string, unit units.Unit) (float
 		return 0, false
 	}
 	return v, true
-}
-
-func exampleValue(u units.Unit) string {
-	switch u {
-	case units.Ohm:
-		return "4.7k"
-	case units.Volt:
-		return "3.3"
-	case units.Amp:
-		return "100u"
-	case units.Watt:
-		return "50m"
-	}
-	return "0.25"
 }
 
 // positive reads a value that must be above zero.

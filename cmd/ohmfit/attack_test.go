@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"errors"
+	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -139,14 +140,16 @@ func TestFlagErrors(t *testing.T) {
 		{[]string{"fit", "example:feedback", "--series", "E25"}, []string{"unknown series", "E24"}},
 	}
 	for _, c := range cases {
-		start := time.Now()
-		stdout, stderr, code := runCLI(t, c.args...)
-		wantBadInput(t, c.args, stdout, stderr, code, c.want...)
-		if d := time.Since(start); d > 20*time.Second {
-			// Not a timing assertion on the code: a refused flag that takes
-			// this long ran the search it should have refused.
-			t.Errorf("%q took %v", c.args, d)
-		}
+		t.Run(strings.Join(c.args, " "), func(t *testing.T) {
+			start := time.Now()
+			stdout, stderr, code := runCLI(t, c.args...)
+			wantBadInput(t, c.args, stdout, stderr, code, c.want...)
+			if d := time.Since(start); d > 20*time.Second {
+				// Not a timing assertion on the code: a refused flag that takes
+				// this long ran the search it should have refused.
+				t.Errorf("%q took %v", c.args, d)
+			}
+		})
 	}
 }
 
@@ -162,11 +165,13 @@ func TestTinyTimeLimit(t *testing.T) {
 		{"divider", "--vin", "5", "--vout", "1", "--time-limit", "1ns"},
 		{"feedback", "--vref", "0.8", "--vout", "3.3", "--time-limit", "1ns"},
 	} {
-		stdout, stderr, code := runCLI(t, args...)
-		wantBadInput(t, args, stdout, stderr, code, "ran out before any candidate was evaluated", "--time-limit")
-		if strings.Contains(stderr, "hard limits") {
-			t.Errorf("%q: %q speaks of hard limits", args, stderr)
-		}
+		t.Run(strings.Join(args, " "), func(t *testing.T) {
+			stdout, stderr, code := runCLI(t, args...)
+			wantBadInput(t, args, stdout, stderr, code, "ran out before any candidate was evaluated", "--time-limit")
+			if strings.Contains(stderr, "hard limits") {
+				t.Errorf("%q: %q speaks of hard limits", args, stderr)
+			}
+		})
 	}
 	// A heuristic run that did evaluate candidates within 1 ms shows them
 	// (exit 0); one that did not says the time ran out. Neither may speak
@@ -196,17 +201,19 @@ func TestCheckExitStatus(t *testing.T) {
 		{"testdata/check-divider.yaml", ExitNoSolution, "voltage th in \"nominal\" leaves its limits in the worst case"},
 		{"example:feedback", ExitOK, ""}, // fitted, then checked: 1 % parts hold a 2 % goal
 	} {
-		for _, format := range []string{"table", "json"} {
-			stdout, stderr, code := runCLI(t, "check", c.file, "--samples", "200", "--format", format)
-			if code != c.code || stdout == "" {
-				t.Errorf("%s %s: exit %d (want %d), %d bytes of report", c.file, format, code, c.code, len(stdout))
+		t.Run(c.file, func(t *testing.T) {
+			for _, format := range []string{"table", "json"} {
+				stdout, stderr, code := runCLI(t, "check", c.file, "--samples", "200", "--format", format)
+				if code != c.code || stdout == "" {
+					t.Errorf("%s %s: exit %d (want %d), %d bytes of report", c.file, format, code, c.code, len(stdout))
+				}
+				last := stderr[strings.LastIndex(strings.TrimSuffix(stderr, "\n"), "\n")+1:]
+				if c.want != "" && !(strings.HasPrefix(last, notMetLabel) && strings.Contains(last, c.want)) {
+					t.Errorf("%s %s: stderr %q, want a not-met line about %s", c.file, format, stderr, c.want)
+				}
+				checkLabels(t, code, stderr)
 			}
-			last := stderr[strings.LastIndex(strings.TrimSuffix(stderr, "\n"), "\n")+1:]
-			if c.want != "" && !(strings.HasPrefix(last, notMetLabel) && strings.Contains(last, c.want)) {
-				t.Errorf("%s %s: stderr %q, want a not-met line about %s", c.file, format, stderr, c.want)
-			}
-			checkLabels(t, code, stderr)
-		}
+		})
 	}
 }
 
@@ -234,9 +241,11 @@ func TestStdoutWriteFails(t *testing.T) {
 		{"combine", "4.7k"},
 		{"check", "testdata/check-pass.yaml", "--samples", "100"},
 	} {
-		var stderr bytes.Buffer
-		code := run(args, strings.NewReader(""), failingWriter{}, &stderr)
-		wantBadInput(t, args, "", stderr.String(), code, "cannot write to standard output", "no space left on device")
+		t.Run(strings.Join(args, " "), func(t *testing.T) {
+			var stderr bytes.Buffer
+			code := run(args, strings.NewReader(""), failingWriter{}, &stderr)
+			wantBadInput(t, args, "", stderr.String(), code, "cannot write to standard output", "no space left on device")
+		})
 	}
 	// The real thing, where the system has it.
 	if full, err := os.OpenFile("/dev/full", os.O_WRONLY, 0); err == nil {
@@ -306,8 +315,10 @@ func TestOutputsAgainstEachOther(t *testing.T) {
 		{"check", "testdata/check-pass.yaml", "--plot", p("h.png"), "-o", p("h.png")},
 	}
 	for _, args := range cases {
-		stdout, stderr, code := runCLI(t, args...)
-		wantBadInput(t, args, stdout, stderr, code, "give each output its own")
+		t.Run(strings.Join(args, " "), func(t *testing.T) {
+			stdout, stderr, code := runCLI(t, args...)
+			wantBadInput(t, args, stdout, stderr, code, "give each output its own")
+		})
 	}
 	if got := readString(t, p("old.csv")); got != "old\n" {
 		t.Errorf("old.csv now holds %q", got)
@@ -340,27 +351,29 @@ func TestOutputThroughSymlink(t *testing.T) {
 		{"--plot", ".svg", []string{"check", "testdata/check-pass.yaml", "--samples", "100"}},
 		{"-o", ".txt", []string{"check", "testdata/check-pass.yaml", "--samples", "100"}},
 	} {
-		target := filepath.Join(real, "out"+c.ext)
-		writeFile(t, target, "old\n")
-		link := p("link" + c.ext)
-		os.Remove(link)
-		// A relative link, as `ln -s real/out.txt link.txt` makes.
-		if err := os.Symlink(filepath.Join("real", "out"+c.ext), link); err != nil {
-			t.Skipf("no symbolic links here: %v", err)
-		}
-		args := append(append([]string{}, c.args...), c.flag, link)
-		if _, stderr, code := runCLI(t, args...); code != ExitOK {
-			t.Fatalf("%q: exit %d, %s", args, code, stderr)
-		}
-		fi, err := os.Lstat(link)
-		if err != nil || fi.Mode()&os.ModeSymlink == 0 {
-			t.Errorf("%q: the link was replaced (%v)", args, err)
-		}
-		if got := readString(t, target); got == "old\n" || len(got) < 20 {
-			t.Errorf("%q: the link's target holds %q", args, got[:min(len(got), 40)])
-		}
-		noTemps(t, dir)
-		noTemps(t, real)
+		t.Run(c.flag+" "+strings.Join(c.args, " "), func(t *testing.T) {
+			target := filepath.Join(real, "out"+c.ext)
+			writeFile(t, target, "old\n")
+			link := p("link" + c.ext)
+			os.Remove(link)
+			// A relative link, as `ln -s real/out.txt link.txt` makes.
+			if err := os.Symlink(filepath.Join("real", "out"+c.ext), link); err != nil {
+				t.Skipf("no symbolic links here: %v", err)
+			}
+			args := append(append([]string{}, c.args...), c.flag, link)
+			if _, stderr, code := runCLI(t, args...); code != ExitOK {
+				t.Fatalf("%q: exit %d, %s", args, code, stderr)
+			}
+			fi, err := os.Lstat(link)
+			if err != nil || fi.Mode()&os.ModeSymlink == 0 {
+				t.Errorf("%q: the link was replaced (%v)", args, err)
+			}
+			if got := readString(t, target); got == "old\n" || len(got) < 20 {
+				t.Errorf("%q: the link's target holds %q", args, got[:min(len(got), 40)])
+			}
+			noTemps(t, dir)
+			noTemps(t, real)
+		})
 	}
 	// A dangling link: the target is created where it points.
 	if err := os.Symlink(filepath.Join("real", "fresh.txt"), p("fresh.txt")); err != nil {
@@ -386,8 +399,10 @@ func TestAllOutputsOrNone(t *testing.T) {
 		{"check", "testdata/check-pass.yaml", "--samples", "0", "--bom", p("b.csv"), "--plot", p("h.png"), "-o", p("r.txt")},
 		{"check", "testdata/check-pass.yaml", "--samples", "0", "--bom", p("kept.csv"), "--plot", p("h.svg"), "--format", "json"},
 	} {
-		stdout, stderr, code := runCLI(t, args...)
-		wantBadInput(t, args, stdout, stderr, code, "no Monte Carlo samples")
+		t.Run(strings.Join(args, " "), func(t *testing.T) {
+			stdout, stderr, code := runCLI(t, args...)
+			wantBadInput(t, args, stdout, stderr, code, "no Monte Carlo samples")
+		})
 	}
 	if names := dirEntries(t, dir); len(names) != 1 {
 		t.Errorf("failed runs left %v", names)
@@ -514,17 +529,19 @@ func TestNonRegularInputs(t *testing.T) {
 		{[]string{"merge", fifo}, "named pipe"},
 		{[]string{"merge", dir}, "directory"},
 	} {
-		done := make(chan struct{})
-		go func() {
-			defer close(done)
-			stdout, stderr, code := runCLI(t, c.args...)
-			wantBadInput(t, c.args, stdout, stderr, code, c.want, "not a regular file")
-		}()
-		select {
-		case <-done:
-		case <-time.After(30 * time.Second):
-			t.Fatalf("%q hangs", c.args)
-		}
+		t.Run(strings.Join(c.args, " "), func(t *testing.T) {
+			done := make(chan struct{})
+			go func() {
+				defer close(done)
+				stdout, stderr, code := runCLI(t, c.args...)
+				wantBadInput(t, c.args, stdout, stderr, code, c.want, "not a regular file")
+			}()
+			select {
+			case <-done:
+			case <-time.After(30 * time.Second):
+				t.Fatalf("%q hangs", c.args)
+			}
+		})
 	}
 }
 
@@ -537,13 +554,15 @@ func TestStockFileWithBOM(t *testing.T) {
 		"targets:\n  - {voltage: b, equals: 2}\nchoose: {series: stock.csv}\n"
 	var outs []string
 	for _, bom := range []string{"", "\uFEFF"} {
-		writeFile(t, filepath.Join(dir, "stock.csv"), bom+"1k2\n1k5\n2k2\n")
-		writeFile(t, filepath.Join(dir, "t.yaml"), tpl)
-		stdout, stderr, code := runCLI(t, "fit", filepath.Join(dir, "t.yaml"), "--format", "json")
-		if code != ExitOK {
-			t.Fatalf("BOM %q: exit %d, %s", bom, code, stderr)
-		}
-		outs = append(outs, stdout)
+		t.Run(fmt.Sprintf("%q", bom), func(t *testing.T) {
+			writeFile(t, filepath.Join(dir, "stock.csv"), bom+"1k2\n1k5\n2k2\n")
+			writeFile(t, filepath.Join(dir, "t.yaml"), tpl)
+			stdout, stderr, code := runCLI(t, "fit", filepath.Join(dir, "t.yaml"), "--format", "json")
+			if code != ExitOK {
+				t.Fatalf("BOM %q: exit %d, %s", bom, code, stderr)
+			}
+			outs = append(outs, stdout)
+		})
 	}
 	if outs[0] != outs[1] {
 		t.Errorf("with a BOM the answers differ:\n%s\n%s", outs[0], outs[1])
@@ -556,25 +575,27 @@ func TestStockFileWithBOM(t *testing.T) {
 func TestControlCharactersQuoted(t *testing.T) {
 	dir := t.TempDir()
 	for _, name := range []string{"evil\x1b[2J\x1b[31m.yaml", "a\u202egnp.yaml", "bad\xff\xfe.yaml", "bell\a.yaml"} {
-		path := filepath.Join(dir, name)
-		for _, args := range [][]string{
-			{"solve", path},
-			{"fit", path},
-			{"check", path},
-			{"solve", "testdata/bench.yaml", "-o", filepath.Join(path, "out.txt")},
-			{"fit", "example:divider", "--bom", filepath.Join(dir, "no-dir"+name, "b.csv")},
-		} {
-			stdout, stderr, code := runCLI(t, args...)
-			wantBadInput(t, args, stdout, stderr, code)
-			for _, r := range strings.TrimSuffix(stderr, "\n") {
-				if unsafeRune(r) || r == 0xfffd {
-					t.Errorf("%q: raw %U in %q", args, r, stderr)
+		t.Run(fmt.Sprintf("%q", name), func(t *testing.T) {
+			path := filepath.Join(dir, name)
+			for _, args := range [][]string{
+				{"solve", path},
+				{"fit", path},
+				{"check", path},
+				{"solve", "testdata/bench.yaml", "-o", filepath.Join(path, "out.txt")},
+				{"fit", "example:divider", "--bom", filepath.Join(dir, "no-dir"+name, "b.csv")},
+			} {
+				stdout, stderr, code := runCLI(t, args...)
+				wantBadInput(t, args, stdout, stderr, code)
+				for _, r := range strings.TrimSuffix(stderr, "\n") {
+					if unsafeRune(r) || r == 0xfffd {
+						t.Errorf("%q: raw %U in %q", args, r, stderr)
+					}
+				}
+				if !strings.ContainsAny(stderr, `\`) {
+					t.Errorf("%q: %q shows no escape", args, stderr)
 				}
 			}
-			if !strings.ContainsAny(stderr, `\`) {
-				t.Errorf("%q: %q shows no escape", args, stderr)
-			}
-		}
+		})
 	}
 	// The escaping itself.
 	for in, want := range map[string]string{
@@ -585,8 +606,10 @@ func TestControlCharactersQuoted(t *testing.T) {
 		"tab\there":     `tab\x09here`,
 		"c1\u0085":      `c1\x85`,
 	} {
-		if got := safeText(in); got != want {
-			t.Errorf("safeText(%q) = %q, want %q", in, got, want)
-		}
+		t.Run(fmt.Sprintf("%q", in), func(t *testing.T) {
+			if got := safeText(in); got != want {
+				t.Errorf("safeText(%q) = %q, want %q", in, got, want)
+			}
+		})
 	}
 }

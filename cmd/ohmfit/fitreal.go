@@ -67,58 +67,64 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 	}
 	t := p.Spec.Template
 	all := res.Solutions
+	shown := *res
+	shown.Solutions = all[:min(len(all), o.Top)]
 	var robust []variation.Robust
-	var proof *variation.RobustRanking
 	if r.Robust && len(all) > 0 {
-		var err error
-		proof, res, err = variation.RankRobust(p, res, searched, o.Top, o.Series, constraints.Ambient{}, again)
+		proof, widened, err := variation.RankRobust(p, res, searched, o.Top, o.Series, constraints.Ambient{}, again)
 		if err != nil {
 			return err
 		}
-		all, robust = proof.Solutions, proof.Robust
-		verdict := "not proven over the whole space"
-		if proof.Proven {
-			verdict = "proven"
-		}
-		what := fmt.Sprintf("the %d best answers by nominal rank", proof.Pool)
-		if proof.Pool == 1 {
-			what = "the one answer"
-		}
-		notef(o.ErrOut, "--robust: %s re-ranked by worst-case error (tolerances and TCR together); %s: %s", what, verdict, proof.Reason)
-	}
-	shown := *res
-	if proof != nil {
+		noteRobust(o.ErrOut, proof)
+		res, all, robust = widened, proof.Solutions, proof.Robust
 		// The summary and JSON speak of the ranking shown, not of the
 		// nominal search under it.
-		shown.Bound = 0
-		if proof.Proven {
-			shown.Status = synth.Proven
-		} else {
-			shown.Status = synth.Partial
-		}
+		shown = proof.Shown(res, o.Top)
 	}
-	shown.Solutions = all[:min(len(all), o.Top)]
 	var checks []object
 	var reports []*variation.Report
-	if r.Check {
-		for _, s := range shown.Solutions[:min(len(shown.Solutions), checkedAnswers)] {
-			d, err := variation.NewDesign(p.Spec, s.Options, o.Series, constraints.Ambient{})
-			if err != nil {
-				return err
-			}
-			phase("checking")
-			rep, err := variation.Check(d, &variation.Settings{Seed: 1})
-			if err != nil {
-				return templateError(t, err)
-			}
-			reports = append(reports, rep)
-			c := checkJSON(t, d, rep)
-			checks = append(checks, append(object{{"rank", s.Rank}}, c[1:]...))
+	if r.Check && len(shown.Solutions) > 0 {
+		sols := shown.Solutions[:min(len(shown.Solutions), checkedAnswers)]
+		phase("checking")
+		designs, reps, err := variation.CheckAnswers(p.Spec, sols, o.Series, constraints.Ambient{}, &variation.Settings{Seed: 1})
+		if err != nil {
+			return templateError(t, err)
+		}
+		reports = reps
+		for i, rep := range reps {
+			c := checkJSON(t, designs[i], rep)
+			checks = append(checks, append(object{{"rank", sols[i].Rank}}, c[1:]...))
 		}
 	}
+	if err := writeFitReal(o, p, &shown, robust, checks, reports); err != nil {
+		return err
+	}
+	if len(all) == 0 {
+		return nil
+	}
+	return r.writeFiles(o, p, all, res.Front)
+}
+
+// noteRobust says on stderr what --robust re-ranked and what that proves.
+func noteRobust(w io.Writer, proof *variation.RobustRanking) {
+	verdict := "not proven over the whole space"
+	if proof.Proven {
+		verdict = "proven"
+	}
+	what := fmt.Sprintf("the %d best answers by nominal rank", proof.Pool)
+	if proof.Pool == 1 {
+		what = "the one answer"
+	}
+	notef(w, "--robust: %s re-ranked by worst-case error (tolerances and TCR together); %s: %s", what, verdict, proof.Reason)
+}
+
+// writeFitReal writes fit's result with the robust figures (robust, nil
+// without --robust) and the checks (JSON objects and reports, nil without
+// --check) in the chosen format.
+func writeFitReal(o *searchOptions, p *synth.Problem, shown *synth.Result, robust []variation.Robust, checks []object, reports []*variation.Report) error {
 	switch o.Format {
 	case "json":
-		doc := fitJSON(p, &shown)
+		doc := fitJSON(p, shown)
 		if robust != nil {
 			rb := make([]object, len(shown.Solutions))
 			for i, s := range shown.Solutions {
@@ -129,42 +135,33 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 		if checks != nil {
 			doc = append(doc, member{"checks", checks})
 		}
-		if err := writeJSON(o.Out, doc); err != nil {
-			return err
-		}
+		return writeJSON(o.Out, doc)
 	case "csv":
-		if err := writeFitCSV(o.Out, p, &shown, robust); err != nil {
-			return err
-		}
-	default:
-		if err := renderFit(o, p, &shown); err != nil {
-			return err
-		}
-		if o.Format == "table" {
-			if err := writeRealTables(o.Out, p, shown.Solutions, robust, reports); err != nil {
-				return err
-			}
-		}
+		return writeFitCSV(o.Out, p, shown, robust)
 	}
-	if len(all) == 0 {
-		return nil
+	if err := renderFit(o, p, shown); err != nil {
+		return err
 	}
+	if o.Format == "table" {
+		return writeRealTables(o.Out, p, shown.Solutions, robust, reports)
+	}
+	return nil
+}
+
+// writeFiles writes --bom and --plot for the answers all (in the order
+// shown) and the trade-off front.
+func (r *fitReal) writeFiles(o *searchOptions, p *synth.Problem, all, front []synth.Solution) error {
 	if r.BOM != "" || r.Plot != "" {
 		if r.BOMRank > len(all) {
 			return badInputf("--rank %d: the fit has only %d answers", r.BOMRank, len(all))
 		}
 	}
 	if r.BOM != "" {
-		s := all[r.BOMRank-1]
-		d, err := variation.NewDesign(p.Spec, s.Options, o.Series, constraints.Ambient{})
+		lines, err := variation.AnswerBOM(p.Spec, all[r.BOMRank-1].Options, o.Series, constraints.Ambient{})
 		if err != nil {
-			return err
+			return templateError(p.Spec.Template, err)
 		}
-		rep, err := variation.Check(d, &variation.Settings{Samples: -1})
-		if err != nil {
-			return templateError(t, err)
-		}
-		if err := o.outs.stage(r.BOM, func(w io.Writer) error { return writeBOM(w, d, rep) }); err != nil {
+		if err := o.outs.stage(r.BOM, func(w io.Writer) error { return writeBOMLines(w, lines) }); err != nil {
 			return err
 		}
 	}
@@ -172,7 +169,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 		// The trade-off front, when asked for, shows the shape of the
 		// trade better than the ranked list alone: plot both.
 		pts := append([]synth.Solution(nil), all...)
-		for _, f := range res.Front {
+		for _, f := range front {
 			f.Rank = 0 // not a ranked answer: never the one ringed
 			pts = append(pts, f)
 		}
@@ -203,11 +200,7 @@ func writeRealTables(w io.Writer, p *synth.Problem, sols []synth.Solution, robus
 		tb := table{indent: "  ", cols: []column{{right: true, gap: 3}, {right: true, gap: 3}, {gap: 3}, {right: true, gap: 3}, {gap: 3}, {}}}
 		tb.add("rank", "worst error", "limits", "MC yield", "packages", "notes")
 		for i, rep := range reports {
-			pass := true
-			for _, g := range rep.Goals {
-				pass = pass && (!g.HasBand || g.InBand)
-			}
-			lim := verdictWord(pass)
+			lim := verdictWord(rep.LimitsMet())
 			var pk []string
 			for _, rg := range rep.Ratings {
 				pk = append(pk, rg.Part+" "+rg.Package)

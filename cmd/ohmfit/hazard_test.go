@@ -111,13 +111,15 @@ func TestHazardFeedback(t *testing.T) {
 		vout string
 		want int
 	}{{"55", 0}, {"65", 1}} {
-		out, errOut, code := runCLI(t, "feedback", "--vref", "1.25", "--vout", c.vout, "--top", "1", "--workers", "1")
-		if code != ExitOK {
-			t.Fatalf("exit %d: %s", code, errOut)
-		}
-		if got := strings.Count(out+errOut, "CAUTION: hazardous voltage"); got != c.want {
-			t.Errorf("--vout %s: %d hazard cautions, want %d:\n%s%s", c.vout, got, c.want, out, errOut)
-		}
+		t.Run("vout "+c.vout, func(t *testing.T) {
+			out, errOut, code := runCLI(t, "feedback", "--vref", "1.25", "--vout", c.vout, "--top", "1", "--workers", "1")
+			if code != ExitOK {
+				t.Fatalf("exit %d: %s", code, errOut)
+			}
+			if got := strings.Count(out+errOut, "CAUTION: hazardous voltage"); got != c.want {
+				t.Errorf("--vout %s: %d hazard cautions, want %d:\n%s%s", c.vout, got, c.want, out, errOut)
+			}
+		})
 	}
 }
 

@@ -227,10 +227,12 @@ func TestExampleVerbatim(t *testing.T) {
 // changes with the toolchain.
 func TestVersion(t *testing.T) {
 	for _, arg := range []string{"--version", "-v"} {
-		out, errOut, code := runCLI(t, arg)
-		if code != ExitOK || errOut != "" || !strings.HasPrefix(out, "ohmfit dev") || strings.Count(out, "\n") != 1 {
-			t.Errorf("%s: exit %d, stdout %q, stderr %q", arg, code, out, errOut)
-		}
+		t.Run(arg, func(t *testing.T) {
+			out, errOut, code := runCLI(t, arg)
+			if code != ExitOK || errOut != "" || !strings.HasPrefix(out, "ohmfit dev") || strings.Count(out, "\n") != 1 {
+				t.Errorf("%s: exit %d, stdout %q, stderr %q", arg, code, out, errOut)
+			}
+		})
 	}
 }
 
@@ -248,9 +250,11 @@ func TestPercent(t *testing.T) {
 		{1.5e-6, "+0.000150%"},
 	}
 	for _, c := range cases {
-		if got := percent(c.in); got != c.want {
-			t.Errorf("percent(%v) = %q, want %q", c.in, got, c.want)
-		}
+		t.Run(c.want, func(t *testing.T) {
+			if got := percent(c.in); got != c.want {
+				t.Errorf("percent(%v) = %q, want %q", c.in, got, c.want)
+			}
+		})
 	}
 }
 
@@ -265,9 +269,11 @@ func TestDidYouMean(t *testing.T) {
 		{"x", ""},
 	}
 	for _, c := range cases {
-		if got := didYouMean(c.word, cands); got != c.want {
-			t.Errorf("didYouMean(%q) = %q, want %q", c.word, got, c.want)
-		}
+		t.Run(c.word, func(t *testing.T) {
+			if got := didYouMean(c.word, cands); got != c.want {
+				t.Errorf("didYouMean(%q) = %q, want %q", c.word, got, c.want)
+			}
+		})
 	}
 }
 
@@ -301,9 +307,11 @@ func TestTidy(t *testing.T) {
 		{0, 0, 0},
 	}
 	for _, c := range cases {
-		if got := tidy(c.v, c.scale); got != c.want {
-			t.Errorf("tidy(%g, %g) = %g, want %g", c.v, c.scale, got, c.want)
-		}
+		t.Run(fmt.Sprint(c.v, " ", c.scale), func(t *testing.T) {
+			if got := tidy(c.v, c.scale); got != c.want {
+				t.Errorf("tidy(%g, %g) = %g, want %g", c.v, c.scale, got, c.want)
+			}
+		})
 	}
 }
 
@@ -312,23 +320,25 @@ func TestTidy(t *testing.T) {
 // outputs deliver (Tellegen's theorem), in every condition.
 func TestPowerBalance(t *testing.T) {
 	for _, file := range []string{"testdata/bench.yaml", "testdata/preamp.yaml", "testdata/bridge-balanced.yaml"} {
-		tpl, err := loadTemplate(file, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
-		results, err := analyzeAll(tpl)
-		if err != nil {
-			t.Fatalf("%s: %v", file, err)
-		}
-		for _, r := range results {
-			sum := 0.0
-			for _, p := range r.sol.Parts {
-				sum += p.Watts
+		t.Run(file, func(t *testing.T) {
+			tpl, err := loadTemplate(file, nil)
+			if err != nil {
+				t.Fatal(err)
 			}
-			if math.Abs(sum) > 1e-12*r.sol.ResistorPower {
-				t.Errorf("%s, %s: watts absorbed sum to %g, want 0 (resistors %g)", file, r.name, sum, r.sol.ResistorPower)
+			results, err := analyzeAll(tpl)
+			if err != nil {
+				t.Fatalf("%s: %v", file, err)
 			}
-		}
+			for _, r := range results {
+				sum := 0.0
+				for _, p := range r.sol.Parts {
+					sum += p.Watts
+				}
+				if math.Abs(sum) > 1e-12*r.sol.ResistorPower {
+					t.Errorf("%s, %s: watts absorbed sum to %g, want 0 (resistors %g)", file, r.name, sum, r.sol.ResistorPower)
+				}
+			}
+		})
 	}
 }
 
@@ -380,8 +390,10 @@ func TestLoadText(t *testing.T) {
 		f    float64
 		want string
 	}{{0.5, "50%"}, {1.234, "123%"}, {9999.99, "999999%"}, {2.6315789e20, "2.6e+22%"}} {
-		if got := loadText(c.f); got != c.want {
-			t.Errorf("loadText(%g) = %q, want %q", c.f, got, c.want)
-		}
+		t.Run(c.want, func(t *testing.T) {
+			if got := loadText(c.f); got != c.want {
+				t.Errorf("loadText(%g) = %q, want %q", c.f, got, c.want)
+			}
+		})
 	}
 }

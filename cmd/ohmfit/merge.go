@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"sort"
 	"strings"
 
 	"github.com/ohmfit/ohmfit/constraints"
@@ -76,7 +75,51 @@ type rawMember struct {
 // each at the most.
 const maxShardFile = 64 << 20
 
+// mergeShardFiles reads the shards' results and merges them into the
+// result of one whole run.
 func mergeShardFiles(files []string) (object, error) {
+	docs, err := readShards(files)
+	if err != nil {
+		return nil, err
+	}
+	keys, err := shardRankKeys(docs[0])
+	if err != nil {
+		return nil, err
+	}
+	var all []mergedSolution
+	var scores []synth.ScoreKey
+	for _, d := range docs {
+		for _, raw := range d.Solutions {
+			s, err := readMergedSolution(raw)
+			if err != nil {
+				return nil, badInputf("%s: a solution: %v", d.file, err)
+			}
+			all = append(all, s)
+			scores = append(scores, s.key)
+		}
+	}
+	order, pareto := synth.RankMerged(keys, scores, docs[0].Top)
+	sols := make([]object, len(order))
+	for i, k := range order {
+		o := object{}
+		for _, m := range all[k].members {
+			switch m.key {
+			case "rank":
+				o = append(o, member{"rank", i + 1})
+			case "pareto":
+				o = append(o, member{"pareto", pareto[i]})
+			default:
+				o = append(o, member{m.key, m.val})
+			}
+		}
+		sols[i] = o
+	}
+	return mergedDoc(docs, sols), nil
+}
+
+// readShards reads the shards' results and checks that they are every
+// shard of one search, each once.
+func readShards(files []string) ([]*shardDoc, error) {
 	var docs []*shardDoc
 	seen := map[int]string{}
 	n := 0
@@ -123,20 +166,31 @@ func mergeShardFiles(files []string) (object, error) {
 		}
 		return nil, badInputf("merge: shard %s missing", strings.Join(missing, ", "))
 	}
+	return docs, nil
+}
+
+// shardRankKeys reads a shard's "rank" keys, spelt as RankKey.String
+// spells them.
+func shardRankKeys(d *shardDoc) ([]constraints.RankKey, error) {
 	var keys []constraints.RankKey
-	for _, r := range docs[0].Rank {
-		switch r {
-		case "error":
-			keys = append(keys, constraints.ByError)
-		case "power":
-			keys = append(keys, constraints.ByPower)
-		case "parts":
-			keys = append(keys, constraints.ByParts)
-		default:
-			return nil, badInputf("%s: unknown rank key %q", docs[0].file, r)
+	for _, r := range d.Rank {
+		found := false
+		for _, k := range []constraints.RankKey{constraints.ByError, constraints.ByPower, constraints.ByParts} {
+			if k.String() == r {
+				keys, found = append(keys, k), true
+			}
+		}
+		if !found {
+			return nil, badInputf("%s: unknown rank key %q", d.file, r)
 		}
 	}
-	var all []mergedSolution
+	return keys, nil
+}
+
+// mergedDoc is the whole run's document: "evaluated" and "solves" summed,
+// "exhaustive" only when every shard proved its part, the first shard's
+// status that did not, and the smallest bound.
+func mergedDoc(docs []*shardDoc, sols []object) object {
 	exhaustive := true
 	status := ""
 	var evaluated, solves int64
@@ -154,45 +208,12 @@ func mergeShardFiles(files []string) (object, error) {
 		if d.Bound != nil {
 			bound = math.Min(bound, *d.Bound)
 		}
-		for _, raw := range d.Solutions {
-			s, err := readMergedSolution(raw)
-			if err != nil {
-				return nil, badInputf("%s: a solution: %v", d.file, err)
-			}
-			all = append(all, s)
-		}
-	}
-	sort.SliceStable(all, func(i, j int) bool { return synth.CompareScores(keys, all[i].key, all[j].key) < 0 })
-	if len(all) > docs[0].Top {
-		all = all[:docs[0].Top]
 	}
 	if status == "" {
 		status = synth.Proven.String()
-		if len(all) == 0 {
+		if len(sols) == 0 {
 			status = synth.NoFeasible.String()
 		}
-	}
-	sols := make([]object, len(all))
-	for i, s := range all {
-		pareto := true
-		for j := range all {
-			if i != j && synth.DominatesScore(all[j].key, s.key) {
-				pareto = false
-				break
-			}
-		}
-		o := object{}
-		for _, m := range s.members {
-			switch m.key {
-			case "rank":
-				o = append(o, member{"rank", i + 1})
-			case "pareto":
-				o = append(o, member{"pareto", pareto})
-			default:
-				o = append(o, member{m.key, m.val})
-			}
-		}
-		sols[i] = o
 	}
 	doc := object{
 		{"name", docs[0].Name},
@@ -206,8 +227,7 @@ func mergeShardFiles(files []string) (object, error) {
 	if !math.IsInf(bound, 1) {
 		doc = append(doc, member{"bound", bound})
 	}
-	doc = append(doc, member{"solutions", sols})
-	return doc, nil
+	return append(doc, member{"solutions", sols})
 }
 
 // readMergedSolution keeps a solution's members in order and reads what

@@ -90,10 +90,12 @@ func TestMergeRefusesIncomplete(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, args := range [][]string{{"merge", f}, {"merge", f, f}, {"merge"}} {
-		_, errOut, code := runCLI(t, args...)
-		if code != ExitBadInput {
-			t.Errorf("%v: exit %d, want 2 (%s)", args, code, errOut)
-		}
+		t.Run(strings.Join(args, " "), func(t *testing.T) {
+			_, errOut, code := runCLI(t, args...)
+			if code != ExitBadInput {
+				t.Errorf("%v: exit %d, want 2 (%s)", args, code, errOut)
+			}
+		})
 	}
 }
 
@@ -122,10 +124,12 @@ func TestBoundLine(t *testing.T) {
 		{synth.TimeLimit, 0, ""},
 		{synth.Proven, 0.0012, ""},
 	} {
-		got := boundLine(p, &synth.Result{Status: c.status, Bound: c.bound, Solutions: sol})
-		if got != c.want {
-			t.Errorf("%v bound %g: %q, want %q", c.status, c.bound, got, c.want)
-		}
+		t.Run(fmt.Sprint(c.status, " ", c.bound), func(t *testing.T) {
+			got := boundLine(p, &synth.Result{Status: c.status, Bound: c.bound, Solutions: sol})
+			if got != c.want {
+				t.Errorf("%v bound %g: %q, want %q", c.status, c.bound, got, c.want)
+			}
+		})
 	}
 }
 
@@ -166,10 +170,12 @@ func TestNoSolutionMessageNamesTheLimit(t *testing.T) {
 		{0, "most were rejected because voltage t1 is undefined for them in condition \"nominal\" (line 11)"},
 		{1, "most were rejected by voltage t2 max 1.5 V in condition \"nominal\" (line 12)"},
 	} {
-		res := &synth.Result{Status: synth.NoFeasible, Blocking: &synth.Violation{Target: c.target}}
-		got := noSolutionMessage(p, res, nil)
-		if !strings.Contains(got, c.want) || strings.Contains(got, "  ") {
-			t.Errorf("target %d: %q, want it to contain %q and no blank limit", c.target, got, c.want)
-		}
+		t.Run(fmt.Sprint("target ", c.target), func(t *testing.T) {
+			res := &synth.Result{Status: synth.NoFeasible, Blocking: &synth.Violation{Target: c.target}}
+			got := noSolutionMessage(p, res, nil)
+			if !strings.Contains(got, c.want) || strings.Contains(got, "  ") {
+				t.Errorf("target %d: %q, want it to contain %q and no blank limit", c.target, got, c.want)
+			}
+		})
 	}
 }

@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -37,13 +38,15 @@ func TestOutputFlag(t *testing.T) {
 		{"fit", tpl, "--output", tpl},
 		{"check", tpl, "--samples", "0", "--output", tpl},
 	} {
-		_, stderr, code := runCLI(t, args...)
-		if code != ExitBadInput {
-			t.Errorf("%v: exit %d (stderr %q)", args, code, stderr)
-		}
-		if got, _ := os.ReadFile(tpl); string(got) != string(text) {
-			t.Fatalf("%v changed the template", args)
-		}
+		t.Run(strings.Join(args, " "), func(t *testing.T) {
+			_, stderr, code := runCLI(t, args...)
+			if code != ExitBadInput {
+				t.Errorf("%v: exit %d (stderr %q)", args, code, stderr)
+			}
+			if got, _ := os.ReadFile(tpl); string(got) != string(text) {
+				t.Fatalf("%v changed the template", args)
+			}
+		})
 	}
 
 	// Bad input: no output file appears.

@@ -33,9 +33,11 @@ func TestWriteAtomic(t *testing.T) {
 		t.Skip("no hard links here")
 	}
 	for _, target := range []string{in, link, filepath.Join(dir, ".", "design.yaml")} {
-		if err := writeAtomic(target, []string{in}, w); err == nil || exitCodeOf(err) != ExitBadInput {
-			t.Errorf("writing over %s: %v, want a refusal", target, err)
-		}
+		t.Run(target, func(t *testing.T) {
+			if err := writeAtomic(target, []string{in}, w); err == nil || exitCodeOf(err) != ExitBadInput {
+				t.Errorf("writing over %s: %v, want a refusal", target, err)
+			}
+		})
 	}
 	if b, _ := os.ReadFile(in); string(b) != "keep" {
 		t.Errorf("input changed to %q", b)
@@ -57,20 +59,22 @@ func TestCheckBOMAndPlot(t *testing.T) {
 	dir := t.TempDir()
 	bom := filepath.Join(dir, "bom.csv")
 	for _, img := range []string{"mc.svg", "mc.png"} {
-		_, errOut, code := runCLI(t, "check", "testdata/check-divider.yaml", "--samples", "300", "--bom", bom, "--plot", filepath.Join(dir, img))
-		if code != ExitNoSolution {
-			t.Fatalf("exit %d: %s", code, errOut)
-		}
-		b, err := os.ReadFile(filepath.Join(dir, img))
-		if err != nil || len(b) < 500 {
-			t.Errorf("%s: %d bytes, %v", img, len(b), err)
-		}
-		if strings.HasSuffix(img, ".svg") && !strings.Contains(string(b), "<svg") {
-			t.Errorf("%s is not SVG", img)
-		}
-		if strings.HasSuffix(img, ".png") && !strings.HasPrefix(string(b), "\x89PNG") {
-			t.Errorf("%s is not PNG", img)
-		}
+		t.Run(img, func(t *testing.T) {
+			_, errOut, code := runCLI(t, "check", "testdata/check-divider.yaml", "--samples", "300", "--bom", bom, "--plot", filepath.Join(dir, img))
+			if code != ExitNoSolution {
+				t.Fatalf("exit %d: %s", code, errOut)
+			}
+			b, err := os.ReadFile(filepath.Join(dir, img))
+			if err != nil || len(b) < 500 {
+				t.Errorf("%s: %d bytes, %v", img, len(b), err)
+			}
+			if strings.HasSuffix(img, ".svg") && !strings.Contains(string(b), "<svg") {
+				t.Errorf("%s is not SVG", img)
+			}
+			if strings.HasSuffix(img, ".png") && !strings.HasPrefix(string(b), "\x89PNG") {
+				t.Errorf("%s is not PNG", img)
+			}
+		})
 	}
 	rows := readCSV(t, bom)
 	if strings.Join(rows[0], ",") != strings.Join(bomHeader, ",") {

@@ -10,6 +10,7 @@ import (
 	"github.com/ohmfit/ohmfit/constraints/ratings"
 	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/ohmfit/ohmfit/solver"
+	"github.com/ohmfit/ohmfit/synth/variation"
 	"github.com/spf13/cobra"
 )
 
@@ -91,7 +92,7 @@ func runSolve(o *solveOptions) error {
 	}
 	var w ratings.Watch
 	for _, r := range results {
-		watchSolution(&w, t, nil, nil, r.name, r.sol)
+		variation.WatchSolution(&w, t, nil, nil, r.name, r.sol)
 	}
 	writeCautions(o.ErrOut, &w)
 	outs, err := newOutputs(inputFiles(t), &o.Out, o.Output)

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fmt"
 	"io"
 	"math"
 	"testing"
@@ -63,7 +64,9 @@ func TestTicksExtreme(t *testing.T) {
 		{3, 1}, // reversed
 	}
 	for _, c := range cases {
-		checkTicks(t, c[0], c[1])
+		t.Run(fmt.Sprint(c[0], " ", c[1]), func(t *testing.T) {
+			checkTicks(t, c[0], c[1])
+		})
 	}
 }
 
@@ -71,17 +74,19 @@ func TestTicksExtreme(t *testing.T) {
 // --plot does for a single answer: it must draw, not panic.
 func TestPlotSinglePoint(t *testing.T) {
 	for _, v := range []float64{1e21, 1e-300, 0, -4.2e200, math.MaxFloat64 / 8} {
-		pl := plot.New()
-		pl.X.Tick.Marker = engTicks{units.Watt}
-		pl.Y.Tick.Marker = percentTicks{}
-		sc, err := plotter.NewScatter(plotter.XYs{{X: v, Y: v}})
-		if err != nil {
-			t.Fatal(err)
-		}
-		pl.Add(sc)
-		if err := savePlots(io.Discard, "p.svg", []*plot.Plot{pl}, 4*vg.Inch, 3*vg.Inch); err != nil {
-			t.Errorf("%g: %v", v, err)
-		}
+		t.Run(fmt.Sprint(v), func(t *testing.T) {
+			pl := plot.New()
+			pl.X.Tick.Marker = engTicks{units.Watt}
+			pl.Y.Tick.Marker = percentTicks{}
+			sc, err := plotter.NewScatter(plotter.XYs{{X: v, Y: v}})
+			if err != nil {
+				t.Fatal(err)
+			}
+			pl.Add(sc)
+			if err := savePlots(io.Discard, "p.svg", []*plot.Plot{pl}, 4*vg.Inch, 3*vg.Inch); err != nil {
+				t.Errorf("%g: %v", v, err)
+			}
+		})
 	}
 }
 

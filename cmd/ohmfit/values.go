@@ -199,24 +199,11 @@ func readValue(flag, text string, want units.Unit) (float64, error) {
 	if err != nil {
 		var pe *units.ParseError
 		if errors.As(err, &pe) {
-			return 0, badInputf("%s: cannot read %s (%s); want %s", flag, quoteValue(text), pe.Reason, valueExample(want))
+			return 0, badInputf("%s: cannot read %s (%s); want %s", flag, quoteValue(text), pe.Reason, units.Example(want))
 		}
-		return 0, badInputf("%s: %s; want %s", flag, constraints.Message(err), valueExample(want))
+		return 0, badInputf("%s: %s; want %s", flag, constraints.Message(err), units.Example(want))
 	}
 	return v, nil
-}
-
-// valueExample says how a value in unit u is written, for a message.
-func valueExample(u units.Unit) string {
-	switch u {
-	case units.Ohm:
-		return "a resistance like 4700, 4.7k, 4k7 or 4.7kΩ"
-	case units.Volt:
-		return "a voltage like 3.3, 3.3V or 800m"
-	case units.Amp:
-		return "a current like 100u, 100µA or 1m"
-	}
-	return "a number like 4700, 4.7k or 4k7"
 }
 
 // percent writes a fraction as a signed percentage with three significant

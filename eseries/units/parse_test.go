@@ -267,3 +267,25 @@ func FuzzParse(f *testing.F) {
 		}
 	})
 }
+
+// TestExampleReads checks that every value Example offers reads back in its
+// unit, so that no message asks for a form the parser refuses.
+func TestExampleReads(t *testing.T) {
+	for _, u := range []Unit{NoUnit, Ohm, Volt, Amp, Watt, Percent} {
+		t.Run(Example(u), func(t *testing.T) {
+			text := Example(u)
+			_, list, ok := strings.Cut(text, " like ")
+			if !ok {
+				t.Fatalf("%q: no examples", text)
+			}
+			for _, ex := range strings.FieldsFunc(list, func(r rune) bool { return r == ',' }) {
+				ex = strings.TrimSpace(strings.TrimPrefix(strings.TrimSpace(ex), "or "))
+				for _, e := range strings.Split(ex, " or ") {
+					if v, err := ParseAs(e, u); err != nil || !(v > 0) {
+						t.Errorf("%q from %q: %v, %v", e, text, v, err)
+					}
+				}
+			}
+		})
+	}
+}

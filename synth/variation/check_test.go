@@ -52,29 +52,31 @@ func TestWorstCaseDivider(t *testing.T) {
 		{5, 1e3, 1e3, 0.001, 0.005},
 	}
 	for _, c := range cases {
-		d := design(t, divider(c.vin, c.r1, c.r2, pct(c.tol), pct(c.tv), ""))
-		r, err := Check(d, &Settings{Samples: -1})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if r.Method != MethodCorners || r.Corners != 8 {
-			t.Errorf("method %s with %d corners, want corners with 8", r.Method, r.Corners)
-		}
-		vmax := c.vin * (1 + c.tv) * c.r2 * (1 + c.tol) / (c.r1*(1-c.tol) + c.r2*(1+c.tol))
-		vmin := c.vin * (1 - c.tv) * c.r2 * (1 - c.tol) / (c.r1*(1+c.tol) + c.r2*(1-c.tol))
-		g := r.Goals[0]
-		if math.Abs(g.WorstMax-vmax) > 1e-12*vmax || math.Abs(g.WorstMin-vmin) > 1e-12*vmax {
-			t.Errorf("%+v: worst case %.9g … %.9g, closed form %.9g … %.9g", c, g.WorstMin, g.WorstMax, vmin, vmax)
-		}
-		// The linearised method picks the same corners for a monotone
-		// divider, so it must agree exactly.
-		r2, err := Check(d, &Settings{Samples: -1, MaxCornerParts: 1})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if r2.Method != MethodLinearised || r2.Goals[0].WorstMax != g.WorstMax || r2.Goals[0].WorstMin != g.WorstMin {
-			t.Errorf("%+v: linearised %s gives %g … %g, corners %g … %g", c, r2.Method, r2.Goals[0].WorstMin, r2.Goals[0].WorstMax, g.WorstMin, g.WorstMax)
-		}
+		t.Run(fmt.Sprint(c.vin, " ", c.r1, " ", c.r2), func(t *testing.T) {
+			d := design(t, divider(c.vin, c.r1, c.r2, pct(c.tol), pct(c.tv), ""))
+			r, err := Check(d, &Settings{Samples: -1})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if r.Method != MethodCorners || r.Corners != 8 {
+				t.Errorf("method %s with %d corners, want corners with 8", r.Method, r.Corners)
+			}
+			vmax := c.vin * (1 + c.tv) * c.r2 * (1 + c.tol) / (c.r1*(1-c.tol) + c.r2*(1+c.tol))
+			vmin := c.vin * (1 - c.tv) * c.r2 * (1 - c.tol) / (c.r1*(1+c.tol) + c.r2*(1-c.tol))
+			g := r.Goals[0]
+			if math.Abs(g.WorstMax-vmax) > 1e-12*vmax || math.Abs(g.WorstMin-vmin) > 1e-12*vmax {
+				t.Errorf("%+v: worst case %.9g … %.9g, closed form %.9g … %.9g", c, g.WorstMin, g.WorstMax, vmin, vmax)
+			}
+			// The linearised method picks the same corners for a monotone
+			// divider, so it must agree exactly.
+			r2, err := Check(d, &Settings{Samples: -1, MaxCornerParts: 1})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if r2.Method != MethodLinearised || r2.Goals[0].WorstMax != g.WorstMax || r2.Goals[0].WorstMin != g.WorstMin {
+				t.Errorf("%+v: linearised %s gives %g … %g, corners %g … %g", c, r2.Method, r2.Goals[0].WorstMin, r2.Goals[0].WorstMax, g.WorstMin, g.WorstMax)
+			}
+		})
 	}
 }
 
@@ -93,39 +95,41 @@ func TestMonteCarloPropagation(t *testing.T) {
 	const vin, r1, r2, tol, tv = 5.0, 22e3, 10e3, 0.05, 0.02
 	const n = 20000
 	for _, dist := range []Distribution{Uniform, Normal} {
-		d := design(t, divider(vin, r1, r2, pct(tol), pct(tv), ""))
-		r, err := Check(d, &Settings{Samples: n, Seed: 7, Distribution: dist})
-		if err != nil {
-			t.Fatal(err)
-		}
-		k := math.Sqrt(3)
-		if dist == Normal {
-			k = 3
-		}
-		sum := r1 + r2
-		dv := []float64{r2 / sum, -vin * r2 / (sum * sum), vin * r1 / (sum * sum)}
-		sig := []float64{tv * vin / k, tol * r1 / k, tol * r2 / k}
-		var s2 float64
-		for i := range dv {
-			s2 += dv[i] * dv[i] * sig[i] * sig[i]
-		}
-		want := math.Sqrt(s2)
-		v0 := vin * r2 / sum
-		mc := r.Goals[0].MonteCarlo
-		if math.Abs(mc.Mean-v0) > 5*want/math.Sqrt(n)+1e-3*want {
-			t.Errorf("%s: mean %.6g, want %.6g ± %.2g", dist, mc.Mean, v0, 5*want/math.Sqrt(n))
-		}
-		if rel := math.Abs(mc.Sigma-want) / want; rel > 5/math.Sqrt(2*n)+1e-3 {
-			t.Errorf("%s: σ %.6g, first-order propagation %.6g (%.2f%% off)", dist, mc.Sigma, want, 100*rel)
-		}
-		if !(mc.Low < v0 && v0 < mc.High) || mc.Yield <= 0 || mc.Yield > 1 {
-			t.Errorf("%s: points %g … %g around %g, yield %g", dist, mc.Low, mc.High, v0, mc.Yield)
-		}
-		// The same seed gives the same numbers.
-		again, _ := Check(d, &Settings{Samples: n, Seed: 7, Distribution: dist})
-		if again.Goals[0].MonteCarlo != mc {
-			t.Errorf("%s: same seed, different result", dist)
-		}
+		t.Run(dist.String(), func(t *testing.T) {
+			d := design(t, divider(vin, r1, r2, pct(tol), pct(tv), ""))
+			r, err := Check(d, &Settings{Samples: n, Seed: 7, Distribution: dist})
+			if err != nil {
+				t.Fatal(err)
+			}
+			k := math.Sqrt(3)
+			if dist == Normal {
+				k = 3
+			}
+			sum := r1 + r2
+			dv := []float64{r2 / sum, -vin * r2 / (sum * sum), vin * r1 / (sum * sum)}
+			sig := []float64{tv * vin / k, tol * r1 / k, tol * r2 / k}
+			var s2 float64
+			for i := range dv {
+				s2 += dv[i] * dv[i] * sig[i] * sig[i]
+			}
+			want := math.Sqrt(s2)
+			v0 := vin * r2 / sum
+			mc := r.Goals[0].MonteCarlo
+			if math.Abs(mc.Mean-v0) > 5*want/math.Sqrt(n)+1e-3*want {
+				t.Errorf("%s: mean %.6g, want %.6g ± %.2g", dist, mc.Mean, v0, 5*want/math.Sqrt(n))
+			}
+			if rel := math.Abs(mc.Sigma-want) / want; rel > 5/math.Sqrt(2*n)+1e-3 {
+				t.Errorf("%s: σ %.6g, first-order propagation %.6g (%.2f%% off)", dist, mc.Sigma, want, 100*rel)
+			}
+			if !(mc.Low < v0 && v0 < mc.High) || mc.Yield <= 0 || mc.Yield > 1 {
+				t.Errorf("%s: points %g … %g around %g, yield %g", dist, mc.Low, mc.High, v0, mc.Yield)
+			}
+			// The same seed gives the same numbers.
+			again, _ := Check(d, &Settings{Samples: n, Seed: 7, Distribution: dist})
+			if again.Goals[0].MonteCarlo != mc {
+				t.Errorf("%s: same seed, different result", dist)
+			}
+		})
 	}
 }
 
@@ -135,18 +139,20 @@ func TestMonteCarloPropagation(t *testing.T) {
 // (∂V/∂Vin)(Vin/V) = 1.
 func TestSensitivityDivider(t *testing.T) {
 	for _, c := range []struct{ r1, r2 float64 }{{31.6e3, 10e3}, {1e3, 99e3}, {4.7e3, 4.7e3}} {
-		d := design(t, divider(3.3, c.r1, c.r2, "1%", "1%", ""))
-		r, err := Check(d, &Settings{Samples: -1})
-		if err != nil {
-			t.Fatal(err)
-		}
-		s := r.Goals[0].Sens
-		want := []float64{1, -c.r1 / (c.r1 + c.r2), c.r1 / (c.r1 + c.r2)}
-		for i, w := range want {
-			if math.Abs(s[i].Normalised-w) > 1e-12 {
-				t.Errorf("%+v: S(%s) = %.15g, want %.15g", c, s[i].Part, s[i].Normalised, w)
+		t.Run(fmt.Sprint(c.r1, " ", c.r2), func(t *testing.T) {
+			d := design(t, divider(3.3, c.r1, c.r2, "1%", "1%", ""))
+			r, err := Check(d, &Settings{Samples: -1})
+			if err != nil {
+				t.Fatal(err)
 			}
-		}
+			s := r.Goals[0].Sens
+			want := []float64{1, -c.r1 / (c.r1 + c.r2), c.r1 / (c.r1 + c.r2)}
+			for i, w := range want {
+				if math.Abs(s[i].Normalised-w) > 1e-12 {
+					t.Errorf("%+v: S(%s) = %.15g, want %.15g", c, s[i].Part, s[i].Normalised, w)
+				}
+			}
+		})
 	}
 }
 
@@ -240,21 +246,23 @@ func TestHazardThreshold(t *testing.T) {
 		volts float64
 		want  bool
 	}{{59.99, false}, {60, false}, {60.01, true}, {-60, false}, {-60.01, true}} {
-		d := design(t, fmt.Sprintf(`ohmfit: 1
+		t.Run(fmt.Sprint(c.volts), func(t *testing.T) {
+			d := design(t, fmt.Sprintf(`ohmfit: 1
 parts:
   - {name: V, type: voltage-source, plus: hv, minus: gnd, volts: %g}
   - {name: R1, type: resistor, from: hv, to: gnd, value: 1M, tolerance: 0.1%%}
 targets:
   - {current: R1, max: 1m}
 `, c.volts))
-		r, err := Check(d, &Settings{Samples: -1})
-		if err != nil {
-			t.Fatal(err)
-		}
-		got := len(r.Cautions) > 0 && strings.Contains(r.Cautions[0], "IEC 62368-1")
-		if got != c.want {
-			t.Errorf("%g V: caution %v, want %v (%q)", c.volts, got, c.want, r.Cautions)
-		}
+			r, err := Check(d, &Settings{Samples: -1})
+			if err != nil {
+				t.Fatal(err)
+			}
+			got := len(r.Cautions) > 0 && strings.Contains(r.Cautions[0], "IEC 62368-1")
+			if got != c.want {
+				t.Errorf("%g V: caution %v, want %v (%q)", c.volts, got, c.want, r.Cautions)
+			}
+		})
 	}
 }
 

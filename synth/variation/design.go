@@ -412,11 +412,7 @@ func (d *Design) physical(s *solver.Solver, j int, dev []float64) (volts, watts 
 	if v.pair == 0 {
 		return pv, pv * pa
 	}
-	r := v.Nominal * (1 + dev[j])
-	if v.combine == constraints.Parallel {
-		return pv, pv * pv / r
-	}
-	return pa * r, pa * pa * r
+	return PartLoad(v.combine, v.Nominal*(1+dev[j]), pv, pa)
 }
 
 // Warnings returns what NewDesign had to assume.

@@ -47,13 +47,7 @@ func Rerank(p *synth.Problem, sols []synth.Solution, series string, ambient cons
 			items[i] = item{s, Robust{WorstError: math.Inf(1)}}
 			continue
 		}
-		in := true
-		for _, g := range rep.Goals {
-			if g.HasBand && !g.InBand {
-				in = false
-			}
-		}
-		items[i] = item{s, Robust{WorstError: rep.WorstErrorDesign, InBand: in, Method: rep.Method}}
+		items[i] = item{s, Robust{WorstError: rep.WorstErrorDesign, InBand: rep.LimitsMet(), Method: rep.Method}}
 	}
 	sort.SliceStable(items, func(a, b int) bool {
 		x, y := items[a].r, items[b].r

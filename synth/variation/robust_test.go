@@ -2,6 +2,7 @@ package variation
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"sort"
 	"testing"
@@ -55,18 +56,7 @@ func bruteWorst(r1, r2 float64) float64 {
 // starting from a pool far too small and widening it, returns the same
 // first answers and says they are proven.
 func TestRankRobustAgainstBruteForce(t *testing.T) {
-	tpl, err := constraints.Parse("robust.yaml", []byte(robustDivider))
-	if err != nil {
-		t.Fatal(err)
-	}
-	cp, err := constraints.Compile(tpl)
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := synth.NewProblem(cp, "")
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := robustProblem(t, "")
 	search := func(top int) (*synth.Result, error) {
 		return synth.Search(context.Background(), p, &synth.Settings{Top: top, Workers: 1}, synth.Rows{})
 	}
@@ -93,26 +83,28 @@ func TestRankRobustAgainstBruteForce(t *testing.T) {
 		t.Fatalf("the robust best is the nominal best here; the test would not tell a re-ranking of the nominal list from a proof")
 	}
 	for _, top := range []int{1, 3, 5} {
-		res, err := search(4)
-		if err != nil {
-			t.Fatal(err)
-		}
-		got, _, err := RankRobust(p, res, 4, top, "", constraints.Ambient{}, search)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if !got.Proven {
-			t.Fatalf("top %d: not proven (%s) with a pool of %d", top, got.Reason, got.Pool)
-		}
-		for i := 0; i < top; i++ {
-			v := got.Solutions[i].Values()
-			if v[0] != want[i].r1 || v[1] != want[i].r2 {
-				t.Errorf("top %d, rank %d: R1 %g R2 %g, brute force R1 %g R2 %g", top, i+1, v[0], v[1], want[i].r1, want[i].r2)
+		t.Run(fmt.Sprint("top ", top), func(t *testing.T) {
+			res, err := search(4)
+			if err != nil {
+				t.Fatal(err)
 			}
-			if math.Abs(got.Robust[i].WorstError-want[i].worst) > 1e-9 {
-				t.Errorf("top %d, rank %d: worst error %g, corners give %g", top, i+1, got.Robust[i].WorstError, want[i].worst)
+			got, _, err := RankRobust(p, res, 4, top, "", constraints.Ambient{}, search)
+			if err != nil {
+				t.Fatal(err)
 			}
-		}
+			if !got.Proven {
+				t.Fatalf("top %d: not proven (%s) with a pool of %d", top, got.Reason, got.Pool)
+			}
+			for i := 0; i < top; i++ {
+				v := got.Solutions[i].Values()
+				if v[0] != want[i].r1 || v[1] != want[i].r2 {
+					t.Errorf("top %d, rank %d: R1 %g R2 %g, brute force R1 %g R2 %g", top, i+1, v[0], v[1], want[i].r1, want[i].r2)
+				}
+				if math.Abs(got.Robust[i].WorstError-want[i].worst) > 1e-9 {
+					t.Errorf("top %d, rank %d: worst error %g, corners give %g", top, i+1, got.Robust[i].WorstError, want[i].worst)
+				}
+			}
+		})
 	}
 	// Without a way to widen, a pool of 4 proves nothing beyond itself.
 	res, _ := search(4)
