@@ -126,8 +126,8 @@ func paretoPlot(p *synth.Problem, sols []synth.Solution, chosen int) (*plot.Plot
 		pl.Add(sc)
 		pl.Legend.Add(fmt.Sprintf("%d parts", n), sc)
 	}
-	// Pareto front: by rising power, each point with a lower error than
-	// every point of lower or equal power.
+	// The error-power staircase: by rising power, each point with a lower
+	// error than every point of lower or equal power.
 	sorted := append([]paretoPoint(nil), pts...)
 	sort.Slice(sorted, func(a, b int) bool {
 		if sorted[a].power != sorted[b].power {
@@ -151,7 +151,7 @@ func paretoPlot(p *synth.Problem, sols []synth.Solution, chosen int) (*plot.Plot
 		ln.LineStyle.Color = color.RGBA{R: 120, G: 120, B: 120, A: 255}
 		ln.LineStyle.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
 		pl.Add(ln)
-		pl.Legend.Add(wordFront, ln)
+		pl.Legend.Add(wordPowerFront, ln)
 	}
 	for _, q := range pts {
 		if q.rank != chosen {

@@ -100,8 +100,13 @@ func TestFitPlotAndBOM(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, errOut)
 	}
 	b, err := os.ReadFile(filepath.Join(dir, "front.svg"))
-	if err != nil || !strings.Contains(string(b), wordFront) {
+	if err != nil || !strings.Contains(string(b), wordPowerFront) {
 		t.Errorf("plot: %v, legend missing", err)
+	}
+	// The staircase is the front on error and power alone; calling it the
+	// trade-off front (error, power and count) would claim more than it shows.
+	if strings.Contains(string(b), wordFront) {
+		t.Errorf("plot legend says %q of a line that ignores the part count", wordFront)
 	}
 	c, err := os.ReadFile(filepath.Join(dir, "bom.csv"))
 	if err != nil || !strings.Contains(string(c), "3K6") {

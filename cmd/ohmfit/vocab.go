@@ -12,8 +12,12 @@ const (
 	// wordNoLimit stands in a pass/fail column for a quantity without limits.
 	wordNoLimit = "-"
 	// wordFront names the set of answers that nothing beats on error,
-	// power and count at once (fit --tradeoffs, its heading and plot).
+	// power and count at once (fit --tradeoffs and its heading).
 	wordFront = "trade-off front"
+	// wordPowerFront labels the plot's staircase: the answers nothing beats
+	// on error and power alone. It is only part of the trade-off front
+	// (which also keeps answers with fewer parts), so it has its own name.
+	wordPowerFront = "lowest error for its power"
 	// wordCount heads the column of physical resistors an answer uses
 	// (JSON part_count; the rank key "parts").
 	wordCount = "count"
