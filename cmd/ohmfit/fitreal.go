@@ -45,6 +45,12 @@ func (r *fitReal) validate(cmd *cobra.Command) error {
 		// cannot hold them.
 		return usagef(cmd.CommandPath(), "--check has no CSV form: use --format json (or table), or ohmfit check --rank N --format json on the fitted template")
 	}
+	if changed(cmd.Flags(), "bom-rank") {
+		if changed(cmd.Flags(), "rank") {
+			return usagef(cmd.CommandPath(), "--bom-rank is the old name of --rank: give one of them")
+		}
+		notef(cmd.ErrOrStderr(), "--bom-rank is the old name of --rank and may be removed in a later release: use --rank")
+	}
 	return checkOutputFlags(cmd, r.BOM, r.Plot)
 }
 

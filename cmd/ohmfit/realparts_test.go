@@ -115,19 +115,27 @@ func TestFitPlotAndBOM(t *testing.T) {
 }
 
 // TestFitBOMRankAlias: --bom-rank, the old name of fit's --rank, still
-// picks the same answer, and is hidden from the help.
+// picks the same answer, says it is the old name, is hidden from the help,
+// and cannot be given beside --rank (one would silently win).
 func TestFitBOMRankAlias(t *testing.T) {
 	dir := t.TempDir()
 	for _, name := range []string{"--rank", "--bom-rank"} {
 		t.Run(name, func(t *testing.T) {
 			bom := filepath.Join(dir, name[2:]+".csv")
-			if _, errOut, code := runCLI(t, "fit", "example:divider", "--workers", "1", "--bom", bom, name, "2"); code != ExitOK {
+			_, errOut, code := runCLI(t, "fit", "example:divider", "--workers", "1", "--bom", bom, name, "2")
+			if code != ExitOK {
 				t.Fatalf("exit %d: %s", code, errOut)
 			}
 			if c, err := os.ReadFile(bom); err != nil || !strings.Contains(string(c), "3K6") {
 				t.Errorf("bom for rank 2 (3.6k, 8.2k): %q, %v", c, err)
 			}
+			if old := strings.Contains(errOut, "old name of --rank"); old != (name == "--bom-rank") {
+				t.Errorf("%s: stderr %q: want the old-name note only for --bom-rank", name, errOut)
+			}
 		})
+	}
+	if _, errOut, code := runCLI(t, "fit", "example:divider", "--rank", "2", "--bom-rank", "3"); code != ExitBadInput || !strings.Contains(errOut, "give one of them") {
+		t.Errorf("--rank with --bom-rank: exit %d, %q; want a refusal", code, errOut)
 	}
 	help, _, _ := runCLI(t, "fit", "--help")
 	if strings.Contains(help, "bom-rank") || !strings.Contains(help, "--rank N") {
