@@ -64,8 +64,8 @@ func derivedFor(t *Template, tg Target, node int) (*DerivedProbe, error) {
 			t float64
 		}
 		var pts []pt
-		for ci, c := range t.Conditions {
-			if c.HasTemperature && !c.Hidden {
+		for ci, c := range t.VisibleConditions() {
+			if c.HasTemperature {
 				pts = append(pts, pt{ci, c.Temperature})
 			}
 		}

@@ -250,7 +250,8 @@ type Condition struct {
 	HasTemperature bool
 	// Hidden conditions are added by ohmfit (half a degree either side of a
 	// sensitivity's temperature, to take the derivative); output leaves
-	// them out.
+	// them out. Callers ask Template.Visible or Problem.Visible rather
+	// than read it.
 	Hidden bool
 }
 

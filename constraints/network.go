@@ -151,12 +151,10 @@ func (t *Template) ConditionError(ci int, err error) *Error {
 		return nil
 	}
 	visible := 0
-	for _, c := range t.Conditions {
-		if !c.Hidden {
-			visible++
-		}
+	for range t.VisibleConditions() {
+		visible++
 	}
-	if ci >= 0 && ci < len(t.Conditions) && (visible > 1 || t.Conditions[ci].Hidden) {
+	if ci >= 0 && ci < len(t.Conditions) && (visible > 1 || !t.Visible(ci)) {
 		e.Msg = fmt.Sprintf("condition %q: %s", t.Conditions[ci].Name, e.Msg)
 	}
 	return e

@@ -3,6 +3,7 @@ package constraints
 import (
 	"errors"
 	"fmt"
+	"iter"
 	"math"
 
 	"github.com/ohmfit/ohmfit/solver"
@@ -131,7 +132,7 @@ func (p Probe) Read(s *solver.Solver) (float64, error) {
 type CondValues struct {
 	Name   string
 	Values []float64 // per part, template order; free parts hold 0
-	Hidden bool      // added by ohmfit for a derivative; output leaves it out
+	hidden bool      // added by ohmfit for a derivative (see Problem.Visible)
 }
 
 // Problem is a template compiled against its network: everything needed to
@@ -173,7 +174,7 @@ func Compile(t *Template) (*Problem, error) {
 		if err != nil {
 			return nil, err
 		}
-		p.Conditions = append(p.Conditions, CondValues{Name: cond.Name, Values: vals, Hidden: cond.Hidden})
+		p.Conditions = append(p.Conditions, CondValues{Name: cond.Name, Values: vals, hidden: !t.Visible(ci)})
 	}
 	p.OnFraction = t.OnFraction
 	if p.OnFraction == 0 {
@@ -210,9 +211,9 @@ func Compile(t *Template) (*Problem, error) {
 				p.slots[c] = append(p.slots[c], pointSlot{index: dp.Offset + k, node: dp.Node})
 			}
 		} else {
-			for ci, cv := range p.Conditions {
-				// Hidden conditions exist only for sweep-wide targets' derivatives.
-				app[ci] = tg.Applies(cv.Name) && !cv.Hidden
+			for ci, cv := range p.VisibleConditions() {
+				// The added conditions exist only for sweep-wide targets' derivatives.
+				app[ci] = tg.Applies(cv.Name)
 			}
 		}
 		p.Applies = append(p.Applies, app)
@@ -225,6 +226,26 @@ func Compile(t *Template) (*Problem, error) {
 		return nil, err
 	}
 	return p, nil
+}
+
+// Visible reports whether condition ci is one the template states rather
+// than one added for a sweep-wide target's derivative (see
+// Template.Visible): only a visible condition has a power figure, limits
+// and goals of its own (Applies is false in the others), and only visible
+// conditions appear in output. A hidden condition is solved only for the
+// node voltages a derivative reads.
+func (p *Problem) Visible(ci int) bool { return !p.Conditions[ci].hidden }
+
+// VisibleConditions yields, in order, the index and values of each visible
+// condition (see Visible).
+func (p *Problem) VisibleConditions() iter.Seq2[int, CondValues] {
+	return func(yield func(int, CondValues) bool) {
+		for ci, cv := range p.Conditions {
+			if p.Visible(ci) && !yield(ci, cv) {
+				return
+			}
+		}
+	}
 }
 
 // trial solves every condition once with each free position at the
@@ -354,7 +375,7 @@ func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, afte
 			return err
 		}
 		pw := s.ResistorPower() * p.OnFraction
-		if cv.Hidden {
+		if !p.Visible(ci) {
 			pw = 0 // a derivative's helper condition has no power figure of its own
 		}
 		if pw > sc.Power {

@@ -205,7 +205,7 @@ func (d *decoder) within(n *yaml.Node, path, ctx string, v float64, r paramRange
 // at the condition (or the target whose derivative added it).
 func (d *decoder) checkSensorRanges() {
 	t := d.t
-	for _, c := range t.Conditions {
+	for ci, c := range t.Conditions {
 		for _, p := range t.Parts {
 			if p.Sensor == nil {
 				continue
@@ -216,7 +216,7 @@ func (d *decoder) checkSensorRanges() {
 			}
 			at := c.Pos
 			what := fmt.Sprintf("condition %q", c.Name)
-			if c.Hidden {
+			if !t.Visible(ci) {
 				for _, tg := range t.Targets {
 					if (tg.Kind == Sensitivity || tg.Kind == Resolution) && math.Abs(math.Abs(c.Temperature-tg.At)-HalfStep) < 1e-9 {
 						at, what = tg.Pos, fmt.Sprintf("the %s target at %g °C", tg.Kind, tg.At)
@@ -458,8 +458,8 @@ func (d *decoder) curve(n *yaml.Node, path, ctx string, unit units.Unit) ([]curv
 
 // conditionAt finds the visible condition at a temperature.
 func (t *Template) conditionAt(celsius float64) (int, bool) {
-	for i, c := range t.Conditions {
-		if c.HasTemperature && !c.Hidden && math.Abs(c.Temperature-celsius) <= 1e-9 {
+	for i, c := range t.VisibleConditions() {
+		if c.HasTemperature && math.Abs(c.Temperature-celsius) <= 1e-9 {
 			return i, true
 		}
 	}
@@ -469,8 +469,8 @@ func (t *Template) conditionAt(celsius float64) (int, bool) {
 // temperatureNames lists the temperatures the conditions have, for messages.
 func (t *Template) temperatureNames() string {
 	var out []string
-	for _, c := range t.Conditions {
-		if c.HasTemperature && !c.Hidden {
+	for _, c := range t.VisibleConditions() {
+		if c.HasTemperature {
 			out = append(out, strconv.FormatFloat(c.Temperature, 'g', -1, 64))
 		}
 	}
@@ -591,8 +591,8 @@ func (d *decoder) checkSensors() {
 		}
 		if tg.Kind == Linearity {
 			n := 0
-			for _, c := range t.Conditions {
-				if c.HasTemperature && !c.Hidden {
+			for _, c := range t.VisibleConditions() {
+				if c.HasTemperature {
 					n++
 				}
 			}

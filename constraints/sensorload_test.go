@@ -50,6 +50,36 @@ func TestSweepExpansion(t *testing.T) {
 			t.Errorf("%s: hidden %v", c.Name, c.Hidden)
 		}
 	}
+	// The visible conditions are the stated ones, for the template and the
+	// compiled problem alike, and no goal applies in an added one.
+	p, err := Compile(tp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var tv, pv []string
+	for _, c := range tp.VisibleConditions() {
+		tv = append(tv, c.Name)
+	}
+	for ci, c := range p.VisibleConditions() {
+		pv = append(pv, c.Name)
+		if !p.Visible(ci) || !tp.Visible(ci) {
+			t.Errorf("%s yielded but not visible", c.Name)
+		}
+	}
+	wantVisible := "cold-start 0C 12.5C 25C 37.5C 50C"
+	if got := strings.Join(tv, " "); got != wantVisible {
+		t.Errorf("template's visible conditions %q, want %q", got, wantVisible)
+	}
+	if got := strings.Join(pv, " "); got != wantVisible {
+		t.Errorf("problem's visible conditions %q, want %q", got, wantVisible)
+	}
+	for ti := range p.Probes {
+		for ci := range p.Conditions {
+			if p.Applies[ti][ci] && !p.Visible(ci) {
+				t.Errorf("target %d applies in added condition %s", ti, p.Conditions[ci].Name)
+			}
+		}
+	}
 	if tp.OnFraction != 0.02 {
 		t.Errorf("on_fraction %g", tp.OnFraction)
 	}

@@ -2,6 +2,7 @@ package constraints
 
 import (
 	"fmt"
+	"iter"
 	"math"
 	"strconv"
 	"strings"
@@ -99,6 +100,27 @@ func (t *Template) Part(name string) (int, bool) {
 // one network that can be analysed as it stands.
 func (t *Template) Valued() bool {
 	return len(t.FreeParts()) == 0
+}
+
+// Visible reports whether condition ci is one the template states (written,
+// or expanded from a sweep) rather than one ohmfit added half a degree
+// either side of a sensitivity's temperature to take its derivative
+// (Condition.Hidden). Only visible conditions have a power figure and
+// limits of their own, and only they appear in output. It is the one rule
+// for skipping the added conditions; a caller holding a Problem asks it
+// (Problem.Visible).
+func (t *Template) Visible(ci int) bool { return !t.Conditions[ci].Hidden }
+
+// VisibleConditions yields, in order, the index and the condition of each
+// visible condition (see Visible).
+func (t *Template) VisibleConditions() iter.Seq2[int, Condition] {
+	return func(yield func(int, Condition) bool) {
+		for ci, c := range t.Conditions {
+			if t.Visible(ci) && !yield(ci, c) {
+				return
+			}
+		}
+	}
 }
 
 // ConditionIndex returns the index in Conditions of the named condition.

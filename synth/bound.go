@@ -635,7 +635,7 @@ func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 // condition ci says about the box: the determinant's sign, the ratio
 // denominators' signs and the parts' voltages, currents and powers.
 func (w *bbWorker) afterCond(ci int) {
-	if w.p.Spec.Conditions[ci].Hidden {
+	if !w.p.Spec.Visible(ci) {
 		return
 	}
 	s, nc := w.s, w.nc
@@ -782,7 +782,7 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 	b.bounded = true
 	lim := p.Spec.Template.Limits.SupplyPowerMax
 	for c := 0; c < nc; c++ {
-		if p.Spec.Conditions[c].Hidden || w.det[c] == 2 || w.det[c] == 0 {
+		if !p.Spec.Visible(c) || w.det[c] == 2 || w.det[c] == 0 {
 			continue // a pole inside: nothing is monotone in this condition
 		}
 		for ti := range p.Spec.Probes {

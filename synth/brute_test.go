@@ -262,7 +262,7 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 				}
 			}
 			pw *= tp.OnFraction // average power of a duty-cycled supply
-			if cond.Hidden {
+			if tp.Conditions[ci].Hidden { // the template's own flag, read directly
 				pw = 0 // helper conditions of a derivative carry no power figure
 			}
 			c.power = math.Max(c.power, pw)
@@ -278,7 +278,7 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 					}
 					continue
 				}
-				if !tg.Applies(cond.Name) || cond.Hidden {
+				if !tg.Applies(cond.Name) || tp.Conditions[ci].Hidden {
 					continue
 				}
 				var v float64

@@ -68,7 +68,7 @@ func ReachLimits(p *Problem) []LimitReach {
 		never, seen := true, false
 		all := LimitReach{Target: ti, Condition: -1, Lo: math.Inf(1), Hi: math.Inf(-1)}
 		for c := 0; c < nc; c++ {
-			if p.Spec.Conditions[c].Hidden || !p.Spec.Applies[ti][c] {
+			if !p.Spec.Applies[ti][c] { // false in the conditions added for a derivative
 				continue
 			}
 			lo, hi, ok := 0.0, 0.0, steady(c)
@@ -115,7 +115,7 @@ func ReachLimits(p *Problem) []LimitReach {
 func (w *bbWorker) powerCeiling(steady func(int) bool) (float64, bool) {
 	nc, top := w.nc, 0.0
 	for c := 0; c < nc; c++ {
-		if w.p.Spec.Conditions[c].Hidden {
+		if !w.p.Spec.Visible(c) {
 			continue
 		}
 		if !steady(c) {

@@ -246,7 +246,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 	for c := range w.cond {
 		rc := &w.cond[c]
 		rc.vals = make([]float64, len(parts))
-		rc.hidden = p.Spec.Conditions[c].Hidden
+		rc.hidden = !p.Spec.Visible(c)
 		rc.x0 = make([]float64, n+1)
 		rc.w = make([]float64, n+1)
 		rc.r0 = make([]float64, len(p.Spec.Probes))

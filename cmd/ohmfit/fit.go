@@ -444,7 +444,7 @@ func goalColumns(p *synth.Problem) []goalColumn {
 			continue
 		}
 		for ci, c := range p.Spec.Conditions {
-			if !p.Spec.Applies[ti][ci] || c.Hidden {
+			if !p.Spec.Applies[ti][ci] { // false in the conditions added for a derivative
 				continue
 			}
 			label := tg.Label()
@@ -691,7 +691,7 @@ func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 				if derived && ci > 0 {
 					break
 				}
-				if (!derived && !p.Spec.Applies[ti][ci]) || c.Hidden {
+				if (!derived && !p.Spec.Applies[ti][ci]) || !p.Spec.Visible(ci) {
 					continue
 				}
 				name := c.Name

@@ -135,10 +135,7 @@ func requireValued(t *constraints.Template) error {
 // the circuit with the condition's settings applied.
 func analyzeAll(t *constraints.Template) ([]conditionResult, error) {
 	results := make([]conditionResult, 0, len(t.Conditions))
-	for ci, cond := range t.Conditions {
-		if cond.Hidden {
-			continue // a derivative's helper condition, not one the user wrote
-		}
+	for ci, cond := range t.VisibleConditions() {
 		c, err := t.ConditionCircuit(ci)
 		if err != nil {
 			// The loader checks settings; this guards a template built in code.

@@ -227,7 +227,7 @@ func (d *Design) nominal(s *solver.Solver, r *Report) error {
 			return t.ConditionError(ci, err)
 		}
 		for ti, pr := range p.Probes {
-			if !p.Applies[ti][ci] || p.Conditions[ci].Hidden {
+			if !p.Applies[ti][ci] { // false in the conditions added for a derivative
 				continue
 			}
 			x, err := pr.Read(s)
@@ -528,7 +528,7 @@ func (d *Design) monteCarlo(s *solver.Solver, r *Report, st *Settings, rt *ratin
 		for ci := range p.Conditions {
 			d.setValues(s, ci, dev)
 			solved := s.Solve() == nil
-			if solved && !p.Conditions[ci].Hidden {
+			if solved && p.Visible(ci) {
 				pw := s.ResistorPower() * p.OnFraction
 				if lim := t.Limits.SupplyPowerMax; lim > 0 && pw > lim && !constraints.Same(pw, lim) {
 					ok = false
@@ -656,7 +656,7 @@ func (rt *ratingTracker) observe(s *solver.Solver, ci int, dev []float64) {
 			rt.nominal[j] = math.Max(rt.nominal[j], math.Abs(w))
 		}
 	}
-	if rt.d.Problem.Conditions[ci].Hidden {
+	if !rt.d.Problem.Visible(ci) {
 		return // a derivative's helper condition, not one the user wrote
 	}
 	for k := range rt.nodes {

@@ -55,10 +55,7 @@ func (d *Design) SelfHeating() ([]Heating, error) {
 	rise := make([]float64, len(heated))
 	next := make([]float64, len(heated))
 	var out []Heating
-	for ci, cv := range p.Conditions {
-		if cv.Hidden {
-			continue
-		}
+	for ci, cv := range p.VisibleConditions() {
 		d.setValues(s, ci, zero)
 		if err := s.Solve(); err != nil {
 			return nil, t.ConditionError(ci, err)

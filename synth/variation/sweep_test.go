@@ -46,7 +46,7 @@ func TestSweepGoals(t *testing.T) {
 	sweep := 0
 	for gi := range r.Goals {
 		g := &r.Goals[gi]
-		if p.Conditions[max(g.Condition, 0)].Hidden {
+		if !p.Visible(max(g.Condition, 0)) {
 			t.Errorf("goal %s shows a hidden condition", g.Label)
 		}
 		switch g.Label {
