@@ -41,7 +41,7 @@ func (p *Problem) degenerate() error {
 	s := p.Network.NewSolver()
 	sc := p.NewScore()
 	free := make([]float64, len(p.Free))
-	var seen [][]float64 // per solved point, a copy of sc.Values
+	var seen [][]float64 // per solved point, a copy of sc.values
 	for k := 0; k < points; k++ {
 		for j, i := range p.Free {
 			ch := t.Choose.For(t.Parts[i].Name)
@@ -57,7 +57,7 @@ func (p *Problem) degenerate() error {
 		if err := p.Evaluate(s, free, sc); err != nil {
 			continue // a candidate that cannot be solved is judged by the search
 		}
-		seen = append(seen, append([]float64(nil), sc.Values...))
+		seen = append(seen, append([]float64(nil), sc.values...))
 	}
 	if len(seen) < 2 {
 		return nil

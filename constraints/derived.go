@@ -14,9 +14,8 @@ type DerivedProbe struct {
 	Conds []int     // conditions read, in increasing temperature
 	Temps []float64 // their temperatures, °C
 	Step  float64   // Resolution: the ADC's code step, volts
-	// Offset is where this probe's points start in a shared scratch slice
-	// (Score keeps one for Evaluate; the search keeps its own).
-	Offset int
+	// offset is where this probe's points start in a Points gatherer.
+	offset int
 }
 
 // Value computes the target from the node's voltage in each of Conds

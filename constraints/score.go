@@ -202,13 +202,13 @@ func Compile(t *Template) (*Problem, error) {
 			if dp, err = derivedFor(t, tg, pr.A); err != nil {
 				return nil, err
 			}
-			dp.Offset = p.npoints
+			dp.offset = p.npoints
 			p.npoints += len(dp.Conds)
 			if p.slots == nil {
 				p.slots = make([][]pointSlot, len(p.Conditions))
 			}
 			for k, c := range dp.Conds {
-				p.slots[c] = append(p.slots[c], pointSlot{index: dp.Offset + k, node: dp.Node})
+				p.slots[c] = append(p.slots[c], pointSlot{index: dp.offset + k, node: dp.Node})
 			}
 		} else {
 			for ci, cv := range p.VisibleConditions() {
@@ -321,30 +321,41 @@ type Score struct {
 	Feasible bool
 	Error    float64 // largest goal error over goals and conditions
 	Power    float64 // largest total resistor power over conditions, watts
-	// Values holds each target's value per condition, target-major:
-	// Values[t*len(Conditions)+c]; NaN where the target does not apply.
-	Values []float64
-	// Violated names the first hard limit the candidate fails (target index,
-	// condition index), or -1, -1. Problem.SupplyLimit stands for
-	// supply_power_max.
-	ViolatedTarget, ViolatedCondition int
+	// Violated names the first hard limit the candidate fails, when it is
+	// not Feasible.
+	Violated Violation
 
-	points *Points // node voltages the derived probes read
+	values []float64 // per target and condition, target-major (see Value)
+	nc     int       // conditions
+	points *Points   // node voltages the derived probes read
 }
 
-// SupplyLimit is the index that stands for the supply_power_max limit
-// wherever an index names the hard limit a candidate breaks
-// (Score.ViolatedTarget, synth.Violation, synth.LimitReach): one past the
-// targets, which take 0 … len(Targets)-1.
-func (p *Problem) SupplyLimit() int { return len(p.Probes) }
+// Value returns target's value in condition cond (indices into
+// Template.Targets and Problem.Conditions): NaN where the target does not
+// apply. A sweep-wide target's one value is at condition 0.
+func (sc *Score) Value(target, cond int) float64 { return sc.values[target*sc.nc+cond] }
 
-// IsSupplyLimit reports whether limit index i names supply_power_max
-// rather than a target.
-func (p *Problem) IsSupplyLimit(i int) bool { return i == len(p.Probes) }
+// LimitKind says which sort of hard limit a Violation names.
+type LimitKind uint8
+
+// The sorts of hard limit.
+const (
+	TargetLimit      LimitKind = iota // a target's tolerance band, min or max (Violation.Target)
+	SupplyPowerLimit                  // limits.supply_power_max, on the total resistor power
+)
+
+// Violation names a hard limit a candidate breaks and a condition it
+// breaks it in.
+type Violation struct {
+	Kind      LimitKind
+	Target    int // TargetLimit: index into Template.Targets; -1 otherwise
+	Condition int // index into Problem.Conditions
+}
 
 // NewScore returns a Score sized for the problem, to be reused across calls.
 func (p *Problem) NewScore() *Score {
-	return &Score{Values: make([]float64, len(p.Probes)*len(p.Conditions)), points: p.NewPoints()}
+	nc := len(p.Conditions)
+	return &Score{values: make([]float64, len(p.Probes)*nc), nc: nc, points: p.NewPoints()}
 }
 
 // Evaluate scores one assignment of the free positions (ohms, in Free
@@ -362,7 +373,7 @@ func (p *Problem) Evaluate(s *solver.Solver, free []float64, sc *Score) error {
 func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, after func(ci int)) error {
 	nc := len(p.Conditions)
 	sc.Feasible, sc.Error, sc.Power = true, 0, 0
-	sc.ViolatedTarget, sc.ViolatedCondition = -1, -1
+	sc.Violated = Violation{Target: -1, Condition: -1}
 	for ci, cv := range p.Conditions {
 		for i, v := range cv.Values {
 			s.SetValue(i, v)
@@ -383,12 +394,12 @@ func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, afte
 		}
 		if lim := p.Template.Limits.SupplyPowerMax; lim > 0 && pw > lim && !Same(pw, lim) && sc.Feasible {
 			sc.Feasible = false
-			sc.ViolatedTarget, sc.ViolatedCondition = p.SupplyLimit(), ci
+			sc.Violated = Violation{Kind: SupplyPowerLimit, Target: -1, Condition: ci}
 		}
 		for ti, pr := range p.Probes {
 			k := ti*nc + ci
 			if !p.Applies[ti][ci] {
-				sc.Values[k] = math.NaN()
+				sc.values[k] = math.NaN()
 				continue
 			}
 			v, err := pr.Read(s)
@@ -396,11 +407,11 @@ func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, afte
 				sc.Feasible = false
 				return err
 			}
-			sc.Values[k] = v
+			sc.values[k] = v
 			tg := &p.Template.Targets[ti]
 			if !tg.Meets(v) && sc.Feasible {
 				sc.Feasible = false
-				sc.ViolatedTarget, sc.ViolatedCondition = ti, ci
+				sc.Violated = Violation{Kind: TargetLimit, Target: ti, Condition: ci}
 			}
 			if e := tg.GoalError(v); e > sc.Error || math.IsNaN(e) {
 				sc.Error = e
@@ -411,25 +422,24 @@ func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, afte
 			after(ci)
 		}
 	}
-	p.scoreDerived(sc.points.v, sc)
+	p.scoreDerived(sc)
 	return nil
 }
 
-// scoreDerived computes the sweep-wide targets from the node voltages in
-// points (laid out by each probe's Offset), records them at condition 0, and
-// folds them into the score's feasibility and error.
-func (p *Problem) scoreDerived(points []float64, sc *Score) {
-	nc := len(p.Conditions)
+// scoreDerived computes the sweep-wide targets from the node voltages the
+// score's points gathered, records them at condition 0, and folds them into
+// the score's feasibility and error.
+func (p *Problem) scoreDerived(sc *Score) {
 	for ti, dp := range p.Derived {
 		if dp == nil {
 			continue
 		}
-		v := dp.Value(points[dp.Offset : dp.Offset+len(dp.Conds)])
-		sc.Values[ti*nc] = v
+		v := sc.points.Derived(ti)
+		sc.values[ti*sc.nc] = v
 		tg := &p.Template.Targets[ti]
 		if !tg.Meets(v) && sc.Feasible {
 			sc.Feasible = false
-			sc.ViolatedTarget, sc.ViolatedCondition = ti, dp.Conds[0]
+			sc.Violated = Violation{Kind: TargetLimit, Target: ti, Condition: dp.Conds[0]}
 		}
 		if e := tg.GoalError(v); e > sc.Error || math.IsNaN(e) {
 			sc.Error = e
@@ -495,5 +505,5 @@ func (pt *Points) Fail(ci int) {
 // Derived computes sweep-wide target ti from the points gathered.
 func (pt *Points) Derived(ti int) float64 {
 	dp := pt.p.Derived[ti]
-	return dp.Value(pt.v[dp.Offset : dp.Offset+len(dp.Conds)])
+	return dp.Value(pt.v[dp.offset : dp.offset+len(dp.Conds)])
 }

@@ -143,7 +143,7 @@ func TestSensorValuesPerCondition(t *testing.T) {
 // sensitivity: |dV/dT| by central difference over ±0.5 °C; resolution: the
 // code step over the sensitivity).
 func TestDerivedTargetsClosedForm(t *testing.T) {
-	tp, p, sc := evaluateText(t, valuedSweep(sweepTemplate))
+	tp, _, sc := evaluateText(t, valuedSweep(sweepTemplate))
 	ntc := sensors.Beta{R25: 10e3, Beta: 3435}
 	v := func(c float64) float64 {
 		r, _ := ntc.Resistance(c)
@@ -158,14 +158,13 @@ func TestDerivedTargetsClosedForm(t *testing.T) {
 	}
 	sens25 := math.Abs(v(25.5)-v(24.5)) / 1
 	sens50 := math.Abs(v(50.5)-v(49.5)) / 1
-	nc := len(p.Conditions)
 	want := map[TargetKind]float64{Linearity: lin, Sensitivity: sens25, Resolution: (3.0 / 4096) / sens50}
 	for ti, tg := range tp.Targets {
 		w, ok := want[tg.Kind]
 		if !ok {
 			continue
 		}
-		if got := sc.Values[ti*nc]; math.Abs(got-w) > 1e-9*w {
+		if got := sc.Value(ti, 0); math.Abs(got-w) > 1e-9*w {
 			t.Errorf("%s: %g, closed form %g", tg.Label(), got, w)
 		}
 	}
@@ -258,12 +257,12 @@ targets:
 	r0 := 10e3 * math.Exp(3950*(1/273.15-1/298.15))
 	want := []float64{0.1815, rise(r0)}
 	for ci, w := range want {
-		if got := sc.Values[ci]; math.Abs(got-w) > 1e-12*w {
+		if got := sc.Value(0, ci); math.Abs(got-w) > 1e-12*w {
 			t.Errorf("%s: rise %.15g °C, closed form %.15g °C", p.Conditions[ci].Name, got, w)
 		}
 	}
 	if !sc.Feasible {
-		t.Errorf("rises %v within 0.2 °C, but the score is infeasible", sc.Values)
+		t.Errorf("rises %v within 0.2 °C, but the score is infeasible", sc.values)
 	}
 	// A limit below the room rise rejects the design.
 	_, _, sc = evaluateText(t, strings.Replace(text, "max: 0.2", "max: 0.18", 1))

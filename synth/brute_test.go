@@ -262,7 +262,8 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 				}
 			}
 			pw *= tp.OnFraction // average power of a duty-cycled supply
-			if tp.Conditions[ci].Hidden { // the template's own flag, read directly
+			// The template's own flag, read directly (not Problem.Visible).
+			if tp.Conditions[ci].Hidden {
 				pw = 0 // helper conditions of a derivative carry no power figure
 			}
 			c.power = math.Max(c.power, pw)

@@ -312,7 +312,7 @@ func warnLimitReach(w io.Writer, p *synth.Problem) []synth.LimitReach {
 		if !r.Never {
 			continue
 		}
-		if p.Spec.IsSupplyLimit(r.Target) {
+		if r.Kind == constraints.SupplyPowerLimit {
 			warnf(w, "supply_power_max %s can never be broken: no candidate in the space draws more than %s, so the limit does not shape the answer",
 				units.FormatUnit(p.Spec.Template.Limits.SupplyPowerMax, units.Watt), units.FormatUnit(r.Hi, units.Watt))
 			continue
@@ -335,7 +335,7 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitR
 			continue
 		}
 		cond := p.Spec.Conditions[r.Condition].Name
-		if p.Spec.IsSupplyLimit(r.Target) {
+		if r.Kind == constraints.SupplyPowerLimit {
 			return fmt.Sprintf("no candidate can meet the hard limits: every candidate in the space draws more than supply_power_max %s in condition %q; raise that limit or the values' minimum",
 				units.FormatUnit(t.Limits.SupplyPowerMax, units.Watt), cond)
 		}
@@ -356,7 +356,7 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitR
 		return scope
 	}
 	cond := p.Spec.Conditions[b.Condition].Name
-	if p.Spec.IsSupplyLimit(b.Target) {
+	if b.Kind == constraints.SupplyPowerLimit {
 		return fmt.Sprintf("%s; most were rejected by supply_power_max %s in condition %q", scope,
 			units.FormatUnit(t.Limits.SupplyPowerMax, units.Watt), cond)
 	}
@@ -603,7 +603,6 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 	}
 	tb.cols[len(tb.cols)-1].gap = 0
 	tb.add(head...)
-	nc := len(p.Spec.Conditions)
 	for _, s := range sols {
 		rank := strconv.Itoa(s.Rank)
 		if marked {
@@ -619,7 +618,7 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 		}
 		row = append(row, errorText(s.Score.Error), units.FormatUnit(s.Score.Power, units.Watt), strconv.Itoa(s.Parts))
 		for _, g := range goals {
-			v := s.Score.Values[g.target*nc+g.cond]
+			v := s.Score.Value(g.target, g.cond)
 			if math.Abs(v) < constraints.TieAbsolute {
 				v = 0 // rounding residue of an exact hit, e.g. a balanced bridge
 			}
@@ -675,7 +674,6 @@ func fitJSON(p *synth.Problem, res *synth.Result) object {
 // solutionsJSON writes answers with the contract's keys.
 func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 	sols := make([]object, len(list))
-	nc := len(p.Spec.Conditions)
 	for i, s := range list {
 		values, parts, comb := make(object, 0), make(object, 0), make(object, 0)
 		for k, d := range p.Domains {
@@ -698,7 +696,7 @@ func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 				if derived {
 					name = "sweep" // one figure over the temperature conditions
 				}
-				v := s.Score.Values[ti*nc+ci]
+				v := s.Score.Value(ti, ci)
 				m := object{{"target", tg.Label()}, {"kind", targetKind(tg.HasEquals)}, {"condition", name}, {"value", v}}
 				if tg.HasEquals {
 					m = append(m, member{"goal", tg.Equals}, member{"error", tg.GoalError(v)})
@@ -750,7 +748,6 @@ func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result, robust []vari
 	if err := cw.Write(head); err != nil {
 		return err
 	}
-	nc := len(p.Spec.Conditions)
 	write := func(sols []synth.Solution, list string, robust []variation.Robust, blank bool) error {
 		for i, s := range sols {
 			row := []string{strconv.Itoa(s.Rank)}
@@ -763,7 +760,7 @@ func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result, robust []vari
 			}
 			row = append(row, csvNumber(s.Score.Error), csvNumber(s.Score.Power), strconv.Itoa(s.Parts), strconv.FormatBool(s.Pareto))
 			for _, g := range goals {
-				row = append(row, csvNumber(s.Score.Values[g.target*nc+g.cond]))
+				row = append(row, csvNumber(s.Score.Value(g.target, g.cond)))
 			}
 			switch {
 			case robust != nil:
