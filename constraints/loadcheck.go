@@ -20,6 +20,24 @@ func (d *decoder) crossCheck() {
 	if len(d.errs) > 0 {
 		return
 	}
+	d.checkNodes()
+	var names []string
+	for _, p := range t.Parts {
+		names = append(names, p.Name)
+	}
+	d.checkNames(names)
+	d.applySettings(names)
+	if len(d.errs) == 0 {
+		// Last, so that no check above counts them as the user's parts
+		// (an ADC's node is connected only by what the user wires to it).
+		d.addADCLoads()
+	}
+}
+
+// checkNodes checks that the ground node and every node a target names are
+// connected, that no ratio divides by ground, and that no node dangles.
+func (d *decoder) checkNodes() {
+	t := d.t
 	var nodes []string
 	for _, p := range t.Parts {
 		for _, n := range []string{p.From, p.To, p.Plus, p.Minus, p.Out} {
@@ -46,10 +64,12 @@ func (d *decoder) crossCheck() {
 		}
 	}
 	d.checkDangling(nodes)
-	var names []string
-	for _, p := range t.Parts {
-		names = append(names, p.Name)
-	}
+}
+
+// checkNames checks the parts targets name (names: every part's), the
+// conditions `when` names and the free parts choose overrides.
+func (d *decoder) checkNames(names []string) {
+	t := d.t
 	for _, r := range d.partRefs {
 		if !slices.Contains(names, r.name) {
 			d.errorf(r.n, r.key, "target names part %q, which is not in parts%s", r.name, suggest(r.name, names))
@@ -79,6 +99,12 @@ func (d *decoder) crossCheck() {
 			d.errorf(r.n, r.key, "choose: overrides: part %q is a %s with a value; overrides apply to resistors ohmfit chooses", r.name, t.Parts[i].Kind)
 		}
 	}
+}
+
+// applySettings reads each condition's settings, now that the parts they
+// set are known (names: every part's), and adds them to their conditions.
+func (d *decoder) applySettings(names []string) {
+	t := d.t
 	for _, s := range d.setRefs {
 		i, ok := t.Part(s.part)
 		if !ok {
@@ -108,11 +134,6 @@ func (d *decoder) crossCheck() {
 			c := &t.Conditions[s.cond]
 			c.Set = append(c.Set, Setting{Part: s.part, Value: v})
 		}
-	}
-	if len(d.errs) == 0 {
-		// Last, so that no check above counts them as the user's parts
-		// (an ADC's node is connected only by what the user wires to it).
-		d.addADCLoads()
 	}
 }
 

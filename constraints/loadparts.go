@@ -102,11 +102,7 @@ func (d *decoder) version(root *yaml.Node) bool {
 
 // partTypes maps each type name to its kind and keys; required keys are all
 // but "value", which a resistor may leave out to be chosen.
-var partTypes = []struct {
-	name string
-	kind solver.Kind
-	keys []string
-}{
+var partTypes = []partType{
 	{"resistor", solver.Resistor, []string{"name", "type", "from", "to", "value", "tolerance", "tcr", "package"}},
 	{"voltage-source", solver.VoltageSource, []string{"name", "type", "plus", "minus", "volts", "tolerance"}},
 	{"current-source", solver.CurrentSource, []string{"name", "type", "from", "to", "amps", "tolerance"}},
@@ -116,6 +112,14 @@ var partTypes = []struct {
 	{"rtd", solver.Resistor, append([]string{"name", "type", "from", "to"}, sensorKeys["rtd"]...)},
 }
 
+// partType is one entry of partTypes.
+type partType struct {
+	name string
+	kind solver.Kind
+	keys []string
+}
+
+// partTypeNames lists the type names, as messages offer them.
 func partTypeNames() []string {
 	names := make([]string, len(partTypes))
 	for i, p := range partTypes {
@@ -164,12 +168,51 @@ func (d *decoder) parts(n *yaml.Node) {
 // optionalPartKeys may be left out of a part.
 var optionalPartKeys = []string{"value", "tolerance", "tcr", "package"}
 
+// part reads one entry of parts: its type first (which says what keys it
+// takes), then its terminals, then its value and real-part keys. It
+// returns the part and its name's node, for the duplicate check.
 func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, bool) {
 	ctx := fmt.Sprintf("part %d", i+1)
 	if !d.expectMapping(n, path, ctx, "{name: R1, type: resistor, from: a, to: b}") {
 		return PartSpec{}, nil, false
 	}
-	// Name and type are needed before the other keys can be judged.
+	pt, ctx, ok := d.partType(n, path, ctx)
+	if !ok {
+		return PartSpec{}, nil, false
+	}
+	nerr := len(d.errs)
+	byName, _ := d.fields(n, path, ctx, pt.keys)
+	for _, k := range pt.keys {
+		if _, ok := byName[k]; !ok && !slices.Contains(optionalPartKeys, k) && !slices.Contains(sensorKeys[pt.name], k) {
+			d.missingf(n, joinKey(path, k), "%s: missing key %q for a %s", ctx, k, pt.name)
+		}
+	}
+	if len(d.errs) > nerr {
+		return PartSpec{}, nil, false
+	}
+	p := PartSpec{Part: solver.Part{Kind: pt.kind}, Pos: Pos{n.Line, n.Column}}
+	if !d.partTerminals(&p, pt, byName, path, ctx) {
+		return PartSpec{}, nil, false
+	}
+	if _, sensor := sensorKeys[pt.name]; sensor {
+		if !d.sensorModel(&p, pt.name, n, byName, path, ctx) || !d.realPart(&p, byName, path, ctx) {
+			return PartSpec{}, nil, false
+		}
+		return p, byName["name"].val, true
+	}
+	if !d.partValue(&p, byName, path, ctx) {
+		return p, byName["name"].val, false
+	}
+	if !d.realPart(&p, byName, path, ctx) {
+		return PartSpec{}, nil, false
+	}
+	return p, byName["name"].val, true
+}
+
+// partType finds the part's type, which must be known before its other
+// keys can be judged, and names the part in ctx by its name when it has
+// one.
+func (d *decoder) partType(n *yaml.Node, path, ctx string) (partType, string, bool) {
 	var nameNode, typeNode *yaml.Node
 	for j := 0; j+1 < len(n.Content); j += 2 {
 		switch k := n.Content[j]; {
@@ -185,17 +228,11 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 	}
 	if typeNode == nil {
 		d.missingf(n, joinKey(path, "type"), "%s: missing key \"type\" (one of %s)", ctx, strings.Join(partTypeNames(), ", "))
-		return PartSpec{}, nil, false
+		return partType{}, ctx, false
 	}
 	ti := -1
 	if typeNode.Kind == yaml.ScalarNode {
-		ti = slices.IndexFunc(partTypes, func(p struct {
-			name string
-			kind solver.Kind
-			keys []string
-		}) bool {
-			return p.name == typeNode.Value
-		})
+		ti = slices.IndexFunc(partTypes, func(p partType) bool { return p.name == typeNode.Value })
 	}
 	if ti < 0 {
 		what := describe(typeNode)
@@ -204,20 +241,14 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 		} else {
 			d.errorf(typeNode, joinKey(path, "type"), "%s: unknown part type %s; types are %s", ctx, what, strings.Join(partTypeNames(), ", "))
 		}
-		return PartSpec{}, nil, false
+		return partType{}, ctx, false
 	}
-	pt := partTypes[ti]
-	nerr := len(d.errs)
-	byName, _ := d.fields(n, path, ctx, pt.keys)
-	for _, k := range pt.keys {
-		if _, ok := byName[k]; !ok && !slices.Contains(optionalPartKeys, k) && !slices.Contains(sensorKeys[pt.name], k) {
-			d.missingf(n, joinKey(path, k), "%s: missing key %q for a %s", ctx, k, pt.name)
-		}
-	}
-	if len(d.errs) > nerr {
-		return PartSpec{}, nil, false
-	}
-	p := PartSpec{Part: solver.Part{Kind: pt.kind}, Pos: Pos{n.Line, n.Column}}
+	return partTypes[ti], ctx, true
+}
+
+// partTerminals reads the part's name and the nodes it connects, and
+// refuses a two-terminal part with both ends on one node.
+func (d *decoder) partTerminals(p *PartSpec, pt partType, byName map[string]entry, path, ctx string) bool {
 	ok := true
 	str := func(key string, dst *string) {
 		if v, good := d.name(byName[key].val, joinKey(path, key), label(ctx, key)); good {
@@ -241,7 +272,7 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 		str("out", &p.Out)
 	}
 	if !ok {
-		return PartSpec{}, nil, false
+		return false
 	}
 	if pt.kind != solver.OpAmp && p.From == p.To {
 		second := "to"
@@ -249,15 +280,16 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 			second = "minus"
 		}
 		d.errorf(byName[second].val, joinKey(path, second), "%s: both ends are on node %q, so the part does nothing", ctx, p.From)
-		return PartSpec{}, nil, false
+		return false
 	}
-	if _, sensor := sensorKeys[pt.name]; sensor {
-		if !d.sensorModel(&p, pt.name, n, byName, path, ctx) || !d.realPart(&p, byName, path, ctx) {
-			return PartSpec{}, nil, false
-		}
-		return p, byName["name"].val, true
-	}
-	switch pt.kind {
+	return true
+}
+
+// partValue reads a resistor's value (none: the part is free), a voltage
+// source's volts or a current source's amps.
+func (d *decoder) partValue(p *PartSpec, byName map[string]entry, path, ctx string) bool {
+	ok := true
+	switch p.Kind {
 	case solver.Resistor:
 		e, has := byName["value"]
 		if !has {
@@ -266,7 +298,7 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 		}
 		if isNull(e.val) {
 			d.errorf(e.val, joinKey(path, "value"), "%s: value is empty; leave the key out to let ohmfit choose it", ctx)
-			return PartSpec{}, nil, false
+			return false
 		}
 		p.Value, ok = d.positive(e.val, joinKey(path, "value"), label(ctx, "value"), units.Ohm)
 	case solver.VoltageSource:
@@ -274,8 +306,5 @@ func (d *decoder) part(n *yaml.Node, path string, i int) (PartSpec, *yaml.Node, 
 	case solver.CurrentSource:
 		p.Value, ok = d.value(byName["amps"].val, joinKey(path, "amps"), label(ctx, "amps"), units.Amp)
 	}
-	if ok && !d.realPart(&p, byName, path, ctx) {
-		return PartSpec{}, nil, false
-	}
-	return p, byName["name"].val, ok
+	return ok
 }
