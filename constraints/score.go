@@ -130,7 +130,7 @@ func (p Probe) Read(s *solver.Solver) (float64, error) {
 
 // CondValues is one condition as a full vector of part values.
 type CondValues struct {
-	Name   string
+	Name   string    // the condition's name, as Template.Conditions has it
 	Values []float64 // per part, template order; free parts hold 0
 	hidden bool      // added by ohmfit for a derivative (see Problem.Visible)
 }
@@ -138,9 +138,12 @@ type CondValues struct {
 // Problem is a template compiled against its network: everything needed to
 // score a set of free values quickly and repeatedly.
 type Problem struct {
-	Template   *Template
-	Network    *solver.Network
-	Free       []int // part indices of the free positions, template order
+	Template *Template       // the template it was compiled from
+	Network  *solver.Network // its network (free parts at 1 Ω: the values are set per solve)
+	Free     []int           // part indices of the free positions, template order
+	// Conditions holds one entry per condition, in the template's order
+	// (so an index names the same condition in both); only those for which
+	// Visible is true are the template's own.
 	Conditions []CondValues
 	Probes     []Probe  // one per target
 	Applies    [][]bool // [target][condition]; false everywhere for sweep-wide targets
@@ -318,7 +321,7 @@ func probeFor(net *solver.Network, t Target) (Probe, error) {
 
 // Score is the outcome of one candidate over all conditions.
 type Score struct {
-	Feasible bool
+	Feasible bool    // every hard limit met, in every condition (see Violated)
 	Error    float64 // largest goal error over goals and conditions
 	Power    float64 // largest total resistor power over conditions, watts
 	// Violated names the first hard limit the candidate fails, when it is
@@ -347,9 +350,9 @@ const (
 // Violation names a hard limit a candidate breaks and a condition it
 // breaks it in.
 type Violation struct {
-	Kind      LimitKind
-	Target    int // TargetLimit: index into Template.Targets; -1 otherwise
-	Condition int // index into Problem.Conditions
+	Kind      LimitKind // a target's limit or supply_power_max
+	Target    int       // TargetLimit: index into Template.Targets; -1 otherwise
+	Condition int       // index into Problem.Conditions
 }
 
 // NewScore returns a Score sized for the problem, to be reused across calls.
@@ -450,8 +453,10 @@ func (p *Problem) scoreDerived(sc *Score) {
 // Points holds the node voltages the sweep-wide targets (linearity,
 // sensitivity, resolution) read, gathered condition by condition, for a
 // caller that scores without Evaluate (a search's update formula, a
-// Monte Carlo draw). One per goroutine; it does not allocate after
-// NewPoints.
+// Monte Carlo draw). It is exported for those callers, synth and
+// synth/variation; which voltages it keeps, and where, stays here, so
+// every caller gathers them the one way. One per goroutine; it does not
+// allocate after NewPoints.
 type Points struct {
 	p *Problem
 	v []float64
