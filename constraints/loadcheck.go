@@ -12,7 +12,6 @@ import (
 func (d *decoder) crossCheck() {
 	t := d.t
 	d.expandCurves()
-	t.addHiddenConditions()
 	d.checkSensors()
 	if len(d.errs) == 0 {
 		d.checkSensorRanges()

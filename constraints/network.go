@@ -179,17 +179,13 @@ func (t *Template) explainValues(e *Error, err error) {
 }
 
 // ConditionError is NetworkError for a failure in condition ci, naming the
-// condition when the template has more than one the user can see.
+// condition when the template has more than one.
 func (t *Template) ConditionError(ci int, err error) *Error {
 	e := t.NetworkError(err)
 	if e == nil {
 		return nil
 	}
-	visible := 0
-	for range t.VisibleConditions() {
-		visible++
-	}
-	if ci >= 0 && ci < len(t.Conditions) && (visible > 1 || !t.Visible(ci)) {
+	if ci >= 0 && ci < len(t.Conditions) && len(t.Conditions) > 1 {
 		e.Msg = fmt.Sprintf("condition %q: %s", t.Conditions[ci].Name, e.Msg)
 	}
 	return e

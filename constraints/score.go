@@ -128,11 +128,16 @@ func (p Probe) Read(s *solver.Solver) (float64, error) {
 	return 0, fmt.Errorf("constraints: unknown target kind %d", p.Kind)
 }
 
-// CondValues is one condition as a full vector of part values.
+// CondValues is one condition as compiled: its temperature and a full
+// vector of part values.
 type CondValues struct {
-	Name   string    // the condition's name, as Template.Conditions has it
-	Values []float64 // per part, template order; free parts hold 0
-	hidden bool      // added by ohmfit for a derivative (see Problem.Visible)
+	Name string // the condition's name
+	// Temperature is the condition's temperature in °C (ReferenceCelsius
+	// when it gives none); HasTemperature says it gave one.
+	Temperature    float64
+	HasTemperature bool
+	Values         []float64 // per part, template order; free parts hold 0
+	hidden         bool      // added for a derivative (see Problem.Visible)
 }
 
 // Problem is a template compiled against its network: everything needed to
@@ -141,9 +146,10 @@ type Problem struct {
 	Template *Template       // the template it was compiled from
 	Network  *solver.Network // its network (free parts at 1 Ω: the values are set per solve)
 	Free     []int           // part indices of the free positions, template order
-	// Conditions holds one entry per condition, in the template's order
-	// (so an index names the same condition in both); only those for which
-	// Visible is true are the template's own.
+	// Conditions holds the template's conditions, in its order (so an
+	// index below len(Template.Conditions) names the same condition in
+	// both), then those Compile adds for the derivatives of sensitivity and
+	// resolution targets (see Visible).
 	Conditions []CondValues
 	Probes     []Probe  // one per target
 	Applies    [][]bool // [target][condition]; false everywhere for sweep-wide targets
@@ -177,7 +183,10 @@ func Compile(t *Template) (*Problem, error) {
 		if err != nil {
 			return nil, err
 		}
-		p.Conditions = append(p.Conditions, CondValues{Name: cond.Name, Values: vals, hidden: !t.Visible(ci)})
+		p.Conditions = append(p.Conditions, CondValues{Name: cond.Name, Temperature: cond.Temperature, HasTemperature: cond.HasTemperature, Values: vals})
+	}
+	if err := p.addDerivativeConditions(); err != nil {
+		return nil, err
 	}
 	p.OnFraction = t.OnFraction
 	if p.OnFraction == 0 {
@@ -202,7 +211,7 @@ func Compile(t *Template) (*Problem, error) {
 		app := make([]bool, len(p.Conditions))
 		var dp *DerivedProbe
 		if tg.Kind.Derived() {
-			if dp, err = derivedFor(t, tg, pr.A); err != nil {
+			if dp, err = p.derivedFor(tg, pr.A); err != nil {
 				return nil, err
 			}
 			dp.offset = p.npoints
@@ -231,12 +240,13 @@ func Compile(t *Template) (*Problem, error) {
 	return p, nil
 }
 
-// Visible reports whether condition ci is one the template states rather
-// than one added for a sweep-wide target's derivative (see
-// Template.Visible): only a visible condition has a power figure, limits
-// and goals of its own (Applies is false in the others), and only visible
-// conditions appear in output. A hidden condition is solved only for the
-// node voltages a derivative reads.
+// Visible reports whether condition ci is one the template states (written,
+// or expanded from a sweep) rather than one Compile added half a degree
+// either side of a sensitivity's or resolution's temperature to take its
+// derivative. Only a visible condition has a power figure, limits and
+// goals of its own (Applies is false in the others), and only visible
+// conditions appear in output; a hidden one is solved only for the node
+// voltages a derivative reads. It is the one rule for skipping them.
 func (p *Problem) Visible(ci int) bool { return !p.Conditions[ci].hidden }
 
 // VisibleConditions yields, in order, the index and values of each visible
@@ -251,6 +261,20 @@ func (p *Problem) VisibleConditions() iter.Seq2[int, CondValues] {
 	}
 }
 
+// ConditionError is Template.ConditionError for condition ci of the
+// problem, which names a condition added for a derivative always (the
+// template has no entry for it).
+func (p *Problem) ConditionError(ci int, err error) *Error {
+	if ci < len(p.Template.Conditions) || ci >= len(p.Conditions) {
+		return p.Template.ConditionError(ci, err)
+	}
+	e := p.Template.NetworkError(err)
+	if e != nil {
+		e.Msg = fmt.Sprintf("condition %q: %s", p.Conditions[ci].Name, e.Msg)
+	}
+	return e
+}
+
 // trial solves every condition once with each free position at the
 // geometric middle of its range: values off by many decades (a source of
 // 1e300 V) overflow there too, and are better refused now, with the
@@ -259,10 +283,10 @@ func (p *Problem) VisibleConditions() iter.Seq2[int, CondValues] {
 // any failure to solve it is refused here.
 func (p *Problem) trial() error {
 	t := p.Template
-	for ci := range t.Conditions {
-		c, err := t.ConditionCircuit(ci)
-		if err != nil {
-			return err
+	for ci, cv := range p.Conditions {
+		c := t.Circuit()
+		for i := range c.Parts {
+			c.Parts[i].Value = cv.Values[i]
 		}
 		for _, i := range p.Free {
 			ch := t.Choose.For(t.Parts[i].Name)
@@ -273,7 +297,7 @@ func (p *Problem) trial() error {
 			// failure of a network without free parts is its only answer.
 			var oe *solver.OverflowError
 			if errors.As(err, &oe) || len(p.Free) == 0 {
-				return t.ConditionError(ci, err)
+				return p.ConditionError(ci, err)
 			}
 		}
 	}

@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"github.com/ohmfit/ohmfit/constraints/sensors"
+	"github.com/ohmfit/ohmfit/solver"
 )
 
 const sweepTemplate = `ohmfit: 1
@@ -37,41 +38,47 @@ func TestSweepExpansion(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var names []string
+	// The template holds the conditions it states; Compile adds the
+	// derivative's, hidden, after them.
+	names := func(conds []string) string { return strings.Join(conds, " ") }
+	var tn []string
 	for _, c := range tp.Conditions {
-		names = append(names, c.Name)
+		tn = append(tn, c.Name)
 	}
-	want := "cold-start 0C 12.5C 25C 37.5C 50C ~24.5C ~25.5C ~49.5C ~50.5C"
-	if got := strings.Join(names, " "); got != want {
-		t.Errorf("conditions %q, want %q", got, want)
+	wantVisible := "cold-start 0C 12.5C 25C 37.5C 50C"
+	if got := names(tn); got != wantVisible {
+		t.Errorf("template's conditions %q, want %q", got, wantVisible)
 	}
-	for _, c := range tp.Conditions {
-		if c.Hidden != strings.HasPrefix(c.Name, "~") {
-			t.Errorf("%s: hidden %v", c.Name, c.Hidden)
-		}
-	}
-	// The visible conditions are the stated ones, for the template and the
-	// compiled problem alike, and no goal applies in an added one.
 	p, err := Compile(tp)
 	if err != nil {
 		t.Fatal(err)
 	}
-	var tv, pv []string
-	for _, c := range tp.VisibleConditions() {
-		tv = append(tv, c.Name)
+	var all, visible []string
+	for ci, c := range p.Conditions {
+		all = append(all, c.Name)
+		if p.Visible(ci) == strings.HasPrefix(c.Name, "~") {
+			t.Errorf("%s: visible %v", c.Name, p.Visible(ci))
+		}
 	}
 	for ci, c := range p.VisibleConditions() {
-		pv = append(pv, c.Name)
-		if !p.Visible(ci) || !tp.Visible(ci) {
+		visible = append(visible, c.Name)
+		if !p.Visible(ci) {
 			t.Errorf("%s yielded but not visible", c.Name)
 		}
 	}
-	wantVisible := "cold-start 0C 12.5C 25C 37.5C 50C"
-	if got := strings.Join(tv, " "); got != wantVisible {
-		t.Errorf("template's visible conditions %q, want %q", got, wantVisible)
+	if got, want := names(all), wantVisible+" ~24.5C ~25.5C ~49.5C ~50.5C"; got != want {
+		t.Errorf("problem's conditions %q, want %q", got, want)
 	}
-	if got := strings.Join(pv, " "); got != wantVisible {
+	if got := names(visible); got != wantVisible {
 		t.Errorf("problem's visible conditions %q, want %q", got, wantVisible)
+	}
+	for ci, c := range p.Conditions {
+		if want := ci >= len(tp.Conditions); !p.Visible(ci) != want {
+			t.Errorf("%s: hidden %v, want %v", c.Name, !p.Visible(ci), want)
+		}
+		if ci >= len(tp.Conditions) && (!c.HasTemperature || "~"+TemperatureName(c.Temperature) != c.Name) {
+			t.Errorf("%s: temperature %g (given %v)", c.Name, c.Temperature, c.HasTemperature)
+		}
 	}
 	for ti := range p.Probes {
 		for ci := range p.Conditions {
@@ -268,5 +275,44 @@ targets:
 	_, _, sc = evaluateText(t, strings.Replace(text, "max: 0.2", "max: 0.18", 1))
 	if sc.Feasible {
 		t.Errorf("rise 0.1815 °C passed a 0.18 °C limit")
+	}
+}
+
+// A failure in a condition Compile added for a derivative names it, even
+// in a template with one condition of its own (whose failures need no
+// name); the conditions it adds carry their temperature, so that TCR drift
+// and sensors follow it.
+func TestAddedConditionError(t *testing.T) {
+	text := `ohmfit: 1
+parts:
+  - {name: V1, type: voltage-source, plus: vcc, minus: gnd, volts: 3}
+  - {name: R1, type: resistor, from: vcc, to: s}
+  - {name: RT1, type: ntc, from: s, to: gnd, r25: 10k, beta: 3435}
+targets:
+  - {voltage: s, equals: 1.5}
+  - {sensitivity: s, at: 25, min: 1m}
+`
+	tp, err := Parse("one.yaml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := Compile(tp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(tp.Conditions) != 1 || len(p.Conditions) != 3 {
+		t.Fatalf("%d template conditions, %d compiled; want 1 and 3", len(tp.Conditions), len(p.Conditions))
+	}
+	for ci, want := range []string{"", `condition "~24.5C": `, `condition "~25.5C": `} {
+		e := p.ConditionError(ci, solver.ErrSingular)
+		if got := strings.TrimSuffix(e.Msg, Message(solver.ErrSingular)); got != want {
+			t.Errorf("condition %d: %q, want the prefix %q", ci, e.Msg, want)
+		}
+	}
+	for ci, want := range []float64{24.5, 25.5} {
+		c := p.Conditions[ci+1]
+		if !c.HasTemperature || c.Temperature != want {
+			t.Errorf("%s: temperature %g (given %v), want %g", c.Name, c.Temperature, c.HasTemperature, want)
+		}
 	}
 }

@@ -2,7 +2,6 @@ package constraints
 
 import (
 	"fmt"
-	"iter"
 	"math"
 	"strconv"
 	"strings"
@@ -34,19 +33,24 @@ func (t *Template) ConditionValues(ci int) ([]float64, error) {
 // ValuesAt is ConditionValues with every sensor at celsius instead of the
 // condition's own temperature: for a curve drawn between the conditions.
 func (t *Template) ValuesAt(ci int, celsius float64) ([]float64, error) {
-	cond := t.Conditions[ci]
+	return t.valuesWith(t.Conditions[ci].Name, t.Conditions[ci].Set, celsius)
+}
+
+// valuesWith returns every part's value with the settings set and every
+// sensor at celsius, in a condition named name (for messages).
+func (t *Template) valuesWith(name string, set []Setting, celsius float64) ([]float64, error) {
 	vals := make([]float64, len(t.Parts))
 	for i, ps := range t.Parts {
 		if !ps.Free {
 			vals[i] = ps.Value
 		}
 	}
-	for _, set := range cond.Set {
-		i, ok := t.Part(set.Part)
+	for _, st := range set {
+		i, ok := t.Part(st.Part)
 		if !ok {
-			return nil, fmt.Errorf("constraints: condition %q sets unknown part %q", cond.Name, set.Part)
+			return nil, fmt.Errorf("constraints: condition %q sets unknown part %q", name, st.Part)
 		}
-		vals[i] = set.Value
+		vals[i] = st.Value
 	}
 	for i, ps := range t.Parts {
 		if ps.Sensor == nil {
@@ -54,7 +58,7 @@ func (t *Template) ValuesAt(ci int, celsius float64) ([]float64, error) {
 		}
 		r, err := ps.Sensor.Resistance(celsius)
 		if err != nil {
-			return nil, &Error{Msg: fmt.Sprintf("part %s in condition %q: %s", ps.Name, cond.Name, Message(err)), Err: err}
+			return nil, &Error{Msg: fmt.Sprintf("part %s in condition %q: %s", ps.Name, name, Message(err)), Err: err}
 		}
 		vals[i] = r
 	}
@@ -100,27 +104,6 @@ func (t *Template) Part(name string) (int, bool) {
 // one network that can be analysed as it stands.
 func (t *Template) Valued() bool {
 	return len(t.FreeParts()) == 0
-}
-
-// Visible reports whether condition ci is one the template states (written,
-// or expanded from a sweep) rather than one ohmfit added half a degree
-// either side of a sensitivity's temperature to take its derivative
-// (Condition.Hidden). Only visible conditions have a power figure and
-// limits of their own, and only they appear in output. It is the one rule
-// for skipping the added conditions; a caller holding a Problem asks it
-// (Problem.Visible).
-func (t *Template) Visible(ci int) bool { return !t.Conditions[ci].Hidden }
-
-// VisibleConditions yields, in order, the index and the condition of each
-// visible condition (see Visible).
-func (t *Template) VisibleConditions() iter.Seq2[int, Condition] {
-	return func(yield func(int, Condition) bool) {
-		for ci, c := range t.Conditions {
-			if t.Visible(ci) && !yield(ci, c) {
-				return
-			}
-		}
-	}
 }
 
 // ConditionIndex returns the index in Conditions of the named condition.

@@ -31,7 +31,7 @@ func transferPlot(p *synth.Problem, sol synth.Solution) (*plot.Plot, error) {
 	}
 	var temps []float64
 	var condAt []int
-	for ci, c := range t.VisibleConditions() {
+	for ci, c := range t.Conditions {
 		if c.HasTemperature {
 			temps = append(temps, c.Temperature)
 			condAt = append(condAt, ci)

@@ -135,7 +135,7 @@ func requireValued(t *constraints.Template) error {
 // the circuit with the condition's settings applied.
 func analyzeAll(t *constraints.Template) ([]conditionResult, error) {
 	results := make([]conditionResult, 0, len(t.Conditions))
-	for ci, cond := range t.VisibleConditions() {
+	for ci, cond := range t.Conditions {
 		c, err := t.ConditionCircuit(ci)
 		if err != nil {
 			// The loader checks settings; this guards a template built in code.
