@@ -68,7 +68,7 @@ func writeCautions(out io.Writer, w *ratings.Watch) {
 func solutionWatch(p *synth.Problem, sol synth.Solution) *ratings.Watch {
 	w := &ratings.Watch{}
 	t := p.Spec.Template
-	for ci, c := range p.Spec.VisibleConditions() {
+	for ci, c := range t.Conditions {
 		circ, err := t.ConditionCircuit(ci)
 		if err != nil {
 			continue
