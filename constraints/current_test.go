@@ -37,11 +37,11 @@ targets:
 		t.Fatal(err)
 	}
 	for i, want := range []float64{12.0 / 10e3, 12.0 / 10e3, 1e-3} {
-		if got := sc.Values[i]; math.Abs(got-want) > 1e-15 {
+		if got := sc.Value(i, 0); math.Abs(got-want) > 1e-15 {
 			t.Errorf("%s reads %g A, want %g A", tp.Targets[i].Label(), got, want)
 		}
 	}
-	if sc.Feasible || sc.ViolatedTarget != 0 {
-		t.Errorf("a 100 µA budget passed a 1.2 mA draw (feasible %v, violated %d)", sc.Feasible, sc.ViolatedTarget)
+	if sc.Feasible || sc.Violated != (Violation{Kind: TargetLimit, Target: 0, Condition: 0}) {
+		t.Errorf("a 100 µA budget passed a 1.2 mA draw (feasible %v, violated %+v)", sc.Feasible, sc.Violated)
 	}
 }

@@ -30,18 +30,32 @@ var ErrDegenerate = errors.New("constraints: every candidate scores the same")
 // Only problems with free positions are checked: a valued network has one
 // answer, which solve and check report as it is.
 func (p *Problem) degenerate() error {
-	t := p.Template
 	if len(p.Free) == 0 {
 		return nil
 	}
 	if err := p.unexcited(); err != nil {
 		return err
 	}
+	seen := p.samples()
+	if len(seen) < 2 {
+		return nil
+	}
+	if err := p.undefinedEverywhere(seen); err != nil {
+		return err
+	}
+	return p.constantGoals(seen)
+}
+
+// samples scores three designs spread over the free ranges and returns,
+// per design that could be solved, a copy of its values (laid out as
+// Score's).
+func (p *Problem) samples() [][]float64 {
+	t := p.Template
 	const points = 3
 	s := p.Network.NewSolver()
 	sc := p.NewScore()
 	free := make([]float64, len(p.Free))
-	var seen [][]float64 // per solved point, a copy of sc.Values
+	var seen [][]float64
 	for k := 0; k < points; k++ {
 		for j, i := range p.Free {
 			ch := t.Choose.For(t.Parts[i].Name)
@@ -57,27 +71,34 @@ func (p *Problem) degenerate() error {
 		if err := p.Evaluate(s, free, sc); err != nil {
 			continue // a candidate that cannot be solved is judged by the search
 		}
-		seen = append(seen, append([]float64(nil), sc.Values...))
+		seen = append(seen, append([]float64(nil), sc.values...))
 	}
-	if len(seen) < 2 {
-		return nil
-	}
+	return seen
+}
+
+// valueSlots lists the indices into a sample's values where target ti is
+// read: condition 0 for a sweep-wide target, else each condition it
+// applies in.
+func (p *Problem) valueSlots(ti int) []int {
 	nc := len(p.Conditions)
-	// slots lists the value indices where target ti is read.
-	slots := func(ti int) []int {
-		if p.Derived[ti] != nil {
-			return []int{ti * nc}
-		}
-		var out []int
-		for ci := range p.Conditions {
-			if p.Applies[ti][ci] {
-				out = append(out, ti*nc+ci)
-			}
-		}
-		return out
+	if p.Derived[ti] != nil {
+		return []int{ti * nc}
 	}
-	for ti, tg := range t.Targets {
-		for _, k := range slots(ti) {
+	var out []int
+	for ci := range p.Conditions {
+		if p.Applies[ti][ci] {
+			out = append(out, ti*nc+ci)
+		}
+	}
+	return out
+}
+
+// undefinedEverywhere refuses a target whose figure is undefined in some
+// condition at every sample.
+func (p *Problem) undefinedEverywhere(seen [][]float64) error {
+	nc := len(p.Conditions)
+	for ti, tg := range p.Template.Targets {
+		for _, k := range p.valueSlots(ti) {
 			undefined := true
 			for _, v := range seen {
 				if !math.IsNaN(v[k]) && !math.IsInf(v[k], 0) {
@@ -89,6 +110,13 @@ func (p *Problem) degenerate() error {
 			}
 		}
 	}
+	return nil
+}
+
+// constantGoals refuses a problem whose goals read the same at every
+// sample although the free values vary.
+func (p *Problem) constantGoals(seen [][]float64) error {
+	t := p.Template
 	// With every range a single value there is nothing to vary, and one
 	// candidate scoring like itself is no fault.
 	varies := false
@@ -108,7 +136,7 @@ func (p *Problem) degenerate() error {
 		if first == nil {
 			first = tg
 		}
-		for _, k := range slots(ti) {
+		for _, k := range p.valueSlots(ti) {
 			for _, v := range seen[1:] {
 				if !Same(v[k], seen[0][k]) {
 					constant = false
@@ -116,17 +144,17 @@ func (p *Problem) degenerate() error {
 			}
 		}
 	}
-	if goals > 0 && constant {
-		what := fmt.Sprintf("goal %s", first.Label())
-		if goals > 1 {
-			what = fmt.Sprintf("none of the %d goals (the first is %s)", goals, first.Label())
-			return &Error{File: t.File, Line: first.Pos.Line, Col: first.Pos.Col,
-				Err: ErrDegenerate, Msg: fmt.Sprintf("%s depends on the values ohmfit chooses, so every candidate scores the same; put a free resistor where it moves a goal, or give the goals to the nodes the free resistors set", what)}
-		}
-		return &Error{File: t.File, Line: first.Pos.Line, Col: first.Pos.Col,
-			Err: ErrDegenerate, Msg: fmt.Sprintf("%s does not depend on the values ohmfit chooses, so every candidate scores the same; put a free resistor where it moves the goal, or give the goal to a node the free resistors set", what)}
+	if goals == 0 || !constant {
+		return nil
 	}
-	return nil
+	what := fmt.Sprintf("goal %s", first.Label())
+	if goals > 1 {
+		what = fmt.Sprintf("none of the %d goals (the first is %s)", goals, first.Label())
+		return &Error{File: t.File, Line: first.Pos.Line, Col: first.Pos.Col,
+			Err: ErrDegenerate, Msg: fmt.Sprintf("%s depends on the values ohmfit chooses, so every candidate scores the same; put a free resistor where it moves a goal, or give the goals to the nodes the free resistors set", what)}
+	}
+	return &Error{File: t.File, Line: first.Pos.Line, Col: first.Pos.Col,
+		Err: ErrDegenerate, Msg: fmt.Sprintf("%s does not depend on the values ohmfit chooses, so every candidate scores the same; put a free resistor where it moves the goal, or give the goal to a node the free resistors set", what)}
 }
 
 // unexcited refuses a network whose every source is zero in every

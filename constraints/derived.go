@@ -14,9 +14,8 @@ type DerivedProbe struct {
 	Conds []int     // conditions read, in increasing temperature
 	Temps []float64 // their temperatures, °C
 	Step  float64   // Resolution: the ADC's code step, volts
-	// Offset is where this probe's points start in a shared scratch slice
-	// (Score keeps one for Evaluate; the search keeps its own).
-	Offset int
+	// offset is where this probe's points start in a Points gatherer.
+	offset int
 }
 
 // Value computes the target from the node's voltage in each of Conds
@@ -55,7 +54,8 @@ func (d *DerivedProbe) Value(v []float64) float64 {
 }
 
 // derivedFor builds the probe of a sweep-wide target.
-func derivedFor(t *Template, tg Target, node int) (*DerivedProbe, error) {
+func (p *Problem) derivedFor(tg Target, node int) (*DerivedProbe, error) {
+	t := p.Template
 	d := &DerivedProbe{Kind: tg.Kind, Node: node}
 	switch tg.Kind {
 	case Linearity:
@@ -65,7 +65,7 @@ func derivedFor(t *Template, tg Target, node int) (*DerivedProbe, error) {
 		}
 		var pts []pt
 		for ci, c := range t.Conditions {
-			if c.HasTemperature && !c.Hidden {
+			if c.HasTemperature {
 				pts = append(pts, pt{ci, c.Temperature})
 			}
 		}
@@ -73,13 +73,13 @@ func derivedFor(t *Template, tg Target, node int) (*DerivedProbe, error) {
 		if len(pts) < 3 {
 			return nil, fmt.Errorf("constraints: %s needs at least three temperatures", tg.Label())
 		}
-		for _, p := range pts {
-			d.Conds = append(d.Conds, p.c)
-			d.Temps = append(d.Temps, p.t)
+		for _, pt := range pts {
+			d.Conds = append(d.Conds, pt.c)
+			d.Temps = append(d.Temps, pt.t)
 		}
 	case Sensitivity, Resolution:
 		for _, dt := range []float64{-HalfStep, HalfStep} {
-			ci, ok := t.ConditionIndex("~" + TemperatureName(tg.At+dt))
+			ci, ok := p.conditionIndex(derivativeName(tg.At + dt))
 			if !ok {
 				return nil, fmt.Errorf("constraints: %s has no condition at %g °C", tg.Label(), tg.At+dt)
 			}
@@ -95,4 +95,44 @@ func derivedFor(t *Template, tg Target, node int) (*DerivedProbe, error) {
 		}
 	}
 	return d, nil
+}
+
+// addDerivativeConditions adds, for each sensitivity and resolution target,
+// the two conditions half a degree either side of its temperature that the
+// derivative is taken from (a central difference: its error is second order
+// in the step, far below any sensor's tolerance). They are hidden (see
+// Visible): the template's own values, every sensor at that temperature.
+func (p *Problem) addDerivativeConditions() error {
+	t := p.Template
+	for _, tg := range t.Targets {
+		if tg.Kind != Sensitivity && tg.Kind != Resolution {
+			continue
+		}
+		for _, dt := range []float64{-HalfStep, HalfStep} {
+			name := derivativeName(tg.At + dt)
+			if _, ok := p.conditionIndex(name); ok {
+				continue
+			}
+			vals, err := t.valuesWith(name, nil, tg.At+dt)
+			if err != nil {
+				return err
+			}
+			p.Conditions = append(p.Conditions, CondValues{Name: name, Temperature: tg.At + dt, HasTemperature: true, Values: vals, hidden: true})
+		}
+	}
+	return nil
+}
+
+// derivativeName names the condition added at celsius for a derivative:
+// "~24.5C". A template condition of that name is read in its place.
+func derivativeName(celsius float64) string { return "~" + TemperatureName(celsius) }
+
+// conditionIndex returns the index in Conditions of the named condition.
+func (p *Problem) conditionIndex(name string) (int, bool) {
+	for i, c := range p.Conditions {
+		if c.Name == name {
+			return i, true
+		}
+	}
+	return -1, false
 }

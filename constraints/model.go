@@ -248,10 +248,6 @@ type Condition struct {
 
 	Temperature    float64 // °C; ReferenceCelsius when not given
 	HasTemperature bool
-	// Hidden conditions are added by ohmfit (half a degree either side of a
-	// sensitivity's temperature, to take the derivative); output leaves
-	// them out.
-	Hidden bool
 }
 
 // RankKey is one key of the ranking order.

@@ -23,14 +23,27 @@ func (t *Template) NetworkError(err error) *Error {
 		return nil
 	}
 	e := &Error{File: t.File, Msg: Message(err), Err: err}
-	at := func(names ...string) {
-		for _, p := range t.Parts {
-			if slices.Contains(names, p.Name) {
-				e.Line, e.Col = p.Pos.Line, p.Pos.Col
-				return
-			}
+	if !t.explainGraph(e, err) {
+		t.explainValues(e, err)
+	}
+	return e
+}
+
+// placeAt puts e at the first part, in file order, that names holds.
+func (t *Template) placeAt(e *Error, names ...string) {
+	for _, p := range t.Parts {
+		if slices.Contains(names, p.Name) {
+			e.Line, e.Col = p.Pos.Line, p.Pos.Col
+			return
 		}
 	}
+}
+
+// explainGraph places and explains a fault of the network's graph (a
+// floating group, a loop of sources, a cutset of current sources, an op-amp
+// without negative feedback, a shorted part, a name used twice). It
+// reports whether err was one.
+func (t *Template) explainGraph(e *Error, err error) bool {
 	var (
 		fl *solver.FloatingError
 		sl *solver.SourceLoopError
@@ -39,16 +52,11 @@ func (t *Template) NetworkError(err error) *Error {
 		fb *solver.OpAmpFeedbackError
 		sh *solver.ShortedError
 		du *solver.DuplicatePartError
-		pe *solver.PartError
-		ve *solver.ValueError
-		se *solver.SingularError
-		ic *solver.IllConditionedError
-		oe *solver.OverflowError
 	)
 	switch {
 	case errors.As(err, &fl):
 		parts := t.partsOn(fl.Nodes)
-		at(parts...)
+		t.placeAt(e, parts...)
 		them := "it"
 		if len(fl.Nodes) > 1 {
 			them = "them"
@@ -56,35 +64,24 @@ func (t *Template) NetworkError(err error) *Error {
 		e.Msg += fmt.Sprintf("; connect %s to the rest of the circuit or to %s (through a resistor, say), or remove %s",
 			them, t.Ground, strings.Join(parts, ", "))
 	case errors.As(err, &sl):
-		at(sl.Sources...)
+		t.placeAt(e, sl.Sources...)
 		if len(sl.Sources) == 1 {
 			e.Msg += fmt.Sprintf("; connect its out to a node of its own, not to %s", t.Ground)
 		} else {
 			e.Msg += "; remove one of them or put a resistor in series with one"
 		}
 	case errors.As(err, &il):
-		at(il.Parts...)
+		t.placeAt(e, il.Parts...)
 		e.Msg += "; drive one of the op-amp inputs through a resistor, or remove one of the sources"
 	case errors.As(err, &cc):
-		at(cc.Sources...)
+		t.placeAt(e, cc.Sources...)
 		e.Msg += fmt.Sprintf("; add a resistor from %s to %s or to the rest of the circuit",
 			strings.Join(cc.Nodes, " or "), t.Ground)
 	case errors.As(err, &fb):
-		at(fb.OpAmp)
-		if fb.Positive {
-			if i, ok := t.Part(fb.OpAmp); ok {
-				p := t.Parts[i]
-				e.Msg += fmt.Sprintf("; swap plus (%s) and minus (%s), or connect the feedback from out (%s) to minus", p.Plus, p.Minus, p.Out)
-			}
-		} else if fb.Input != "" {
-			e.Msg += fmt.Sprintf("; give node %s a path to %s of its own (a resistor, say)", fb.Input, t.Ground)
-		} else if i, ok := t.Part(fb.OpAmp); ok {
-			p := t.Parts[i]
-			e.Msg += fmt.Sprintf("; for negative feedback connect its out (%s) to its minus input (%s), directly or through a resistor",
-				p.Out, p.Minus)
-		}
+		t.placeAt(e, fb.OpAmp)
+		e.Msg += t.feedbackAdvice(fb)
 	case errors.As(err, &sh):
-		at(sh.Part)
+		t.placeAt(e, sh.Part)
 		if sh.Kind == solver.OpAmp {
 			e.Msg += "; connect plus and minus to different nodes"
 		} else {
@@ -103,23 +100,62 @@ func (t *Template) NetworkError(err error) *Error {
 			}
 		}
 		e.Msg += "; give each part its own name"
+	default:
+		return false
+	}
+	return true
+}
+
+// feedbackAdvice says how to give an op-amp the negative feedback it
+// lacks: swap its inputs, give its input node a path of its own, or
+// connect out to minus.
+func (t *Template) feedbackAdvice(fb *solver.OpAmpFeedbackError) string {
+	i, ok := t.Part(fb.OpAmp)
+	switch {
+	case fb.Positive:
+		if ok {
+			p := t.Parts[i]
+			return fmt.Sprintf("; swap plus (%s) and minus (%s), or connect the feedback from out (%s) to minus", p.Plus, p.Minus, p.Out)
+		}
+	case fb.Input != "":
+		return fmt.Sprintf("; give node %s a path to %s of its own (a resistor, say)", fb.Input, t.Ground)
+	case ok:
+		p := t.Parts[i]
+		return fmt.Sprintf("; for negative feedback connect its out (%s) to its minus input (%s), directly or through a resistor",
+			p.Out, p.Minus)
+	}
+	return ""
+}
+
+// explainValues places and explains a fault of the values: a bad value,
+// values too many decades apart to solve together, a solution that
+// overflows.
+func (t *Template) explainValues(e *Error, err error) {
+	var (
+		pe *solver.PartError
+		ve *solver.ValueError
+		se *solver.SingularError
+		ic *solver.IllConditionedError
+		oe *solver.OverflowError
+	)
+	switch {
 	case errors.As(err, &pe):
 		if pe.Index >= 0 && pe.Index < len(t.Parts) {
 			p := t.Parts[pe.Index].Pos
 			e.Line, e.Col = p.Line, p.Col
 		}
 	case errors.As(err, &ve):
-		at(ve.Part)
+		t.placeAt(e, ve.Part)
 	case errors.As(err, &se):
 		// A pivot lost where the graph checks saw none: values so far apart
 		// that one swamps another in floating point.
 		if se.Node != "" {
 			parts := t.partsOn([]string{se.Node})
-			at(parts...)
+			t.placeAt(e, parts...)
 			e.Msg += fmt.Sprintf("; the values of %s (at node %s) are too many decades apart to solve together: check their exponents",
 				units.List(parts, ", "), se.Node)
 		} else {
-			at(se.Part)
+			t.placeAt(e, se.Part)
 			e.Msg += fmt.Sprintf("; check the values around %s for exponents off by many decades", se.Part)
 		}
 	case errors.As(err, &ic):
@@ -130,9 +166,9 @@ func (t *Template) NetworkError(err error) *Error {
 	case errors.As(err, &oe):
 		switch {
 		case oe.Part != "":
-			at(oe.Part)
+			t.placeAt(e, oe.Part)
 		case oe.Node != "":
-			at(t.partsOn([]string{oe.Node})...)
+			t.placeAt(e, t.partsOn([]string{oe.Node})...)
 		default:
 			if p, ok := t.largestSource(); ok {
 				e.Line, e.Col = p.Pos.Line, p.Pos.Col
@@ -140,23 +176,16 @@ func (t *Template) NetworkError(err error) *Error {
 			}
 		}
 	}
-	return e
 }
 
 // ConditionError is NetworkError for a failure in condition ci, naming the
-// condition when the template has more than one the user can see.
+// condition when the template has more than one.
 func (t *Template) ConditionError(ci int, err error) *Error {
 	e := t.NetworkError(err)
 	if e == nil {
 		return nil
 	}
-	visible := 0
-	for _, c := range t.Conditions {
-		if !c.Hidden {
-			visible++
-		}
-	}
-	if ci >= 0 && ci < len(t.Conditions) && (visible > 1 || t.Conditions[ci].Hidden) {
+	if ci >= 0 && ci < len(t.Conditions) && len(t.Conditions) > 1 {
 		e.Msg = fmt.Sprintf("condition %q: %s", t.Conditions[ci].Name, e.Msg)
 	}
 	return e

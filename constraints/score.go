@@ -1,7 +1,6 @@
 package constraints
 
 import (
-	"errors"
 	"fmt"
 	"math"
 
@@ -127,203 +126,46 @@ func (p Probe) Read(s *solver.Solver) (float64, error) {
 	return 0, fmt.Errorf("constraints: unknown target kind %d", p.Kind)
 }
 
-// CondValues is one condition as a full vector of part values.
-type CondValues struct {
-	Name   string
-	Values []float64 // per part, template order; free parts hold 0
-	Hidden bool      // added by ohmfit for a derivative; output leaves it out
-}
-
-// Problem is a template compiled against its network: everything needed to
-// score a set of free values quickly and repeatedly.
-type Problem struct {
-	Template   *Template
-	Network    *solver.Network
-	Free       []int // part indices of the free positions, template order
-	Conditions []CondValues
-	Probes     []Probe  // one per target
-	Applies    [][]bool // [target][condition]; false everywhere for sweep-wide targets
-	// Derived holds, per target, the probe of a sweep-wide target
-	// (linearity, sensitivity, resolution), or nil. Its value goes in the
-	// Score at condition 0.
-	Derived []*DerivedProbe
-	// npoints is the scratch length the derived probes need; slots lists,
-	// per condition, which scratch points they read in it (see Points).
-	npoints int
-	slots   [][]pointSlot
-	// OnFraction scales every power figure (see Template.OnFraction).
-	OnFraction float64
-}
-
-// Compile checks the template's network and prepares it for scoring. A
-// network the solver refuses gives an *Error from Template.NetworkError.
-func Compile(t *Template) (*Problem, error) {
-	c := t.Circuit()
-	// Free parts need some positive value for the graph checks to see a resistor.
-	for _, i := range t.FreeParts() {
-		c.Parts[i].Value = 1
-	}
-	net, err := solver.Compile(c)
-	if err != nil {
-		return nil, t.NetworkError(err)
-	}
-	p := &Problem{Template: t, Network: net, Free: t.FreeParts()}
-	for ci, cond := range t.Conditions {
-		vals, err := t.ConditionValues(ci)
-		if err != nil {
-			return nil, err
-		}
-		p.Conditions = append(p.Conditions, CondValues{Name: cond.Name, Values: vals, Hidden: cond.Hidden})
-	}
-	p.OnFraction = t.OnFraction
-	if p.OnFraction == 0 {
-		p.OnFraction = 1
-	}
-	for _, tg := range t.Targets {
-		pr, err := probeFor(net, tg)
-		if err != nil {
-			return nil, err
-		}
-		if tg.Kind == SelfHeating {
-			pr.Scale = 1 / t.Parts[pr.Part].Dissipation
-		}
-		if tg.Kind == Code {
-			for _, a := range t.ADCs {
-				if a.Name == tg.ADC {
-					pr.Scale = 1 / a.Step()
-				}
-			}
-		}
-		p.Probes = append(p.Probes, pr)
-		app := make([]bool, len(p.Conditions))
-		var dp *DerivedProbe
-		if tg.Kind.Derived() {
-			if dp, err = derivedFor(t, tg, pr.A); err != nil {
-				return nil, err
-			}
-			dp.Offset = p.npoints
-			p.npoints += len(dp.Conds)
-			if p.slots == nil {
-				p.slots = make([][]pointSlot, len(p.Conditions))
-			}
-			for k, c := range dp.Conds {
-				p.slots[c] = append(p.slots[c], pointSlot{index: dp.Offset + k, node: dp.Node})
-			}
-		} else {
-			for ci, cv := range p.Conditions {
-				// Hidden conditions exist only for sweep-wide targets' derivatives.
-				app[ci] = tg.Applies(cv.Name) && !cv.Hidden
-			}
-		}
-		p.Applies = append(p.Applies, app)
-		p.Derived = append(p.Derived, dp)
-	}
-	if err := p.trial(); err != nil {
-		return nil, err
-	}
-	if err := p.degenerate(); err != nil {
-		return nil, err
-	}
-	return p, nil
-}
-
-// trial solves every condition once with each free position at the
-// geometric middle of its range: values off by many decades (a source of
-// 1e300 V) overflow there too, and are better refused now, with the
-// solver's own explanation at the part at fault, than turned into infinite
-// powers later. A network without free parts has only this one answer, so
-// any failure to solve it is refused here.
-func (p *Problem) trial() error {
-	t := p.Template
-	for ci := range t.Conditions {
-		c, err := t.ConditionCircuit(ci)
-		if err != nil {
-			return err
-		}
-		for _, i := range p.Free {
-			ch := t.Choose.For(t.Parts[i].Name)
-			c.Parts[i].Value = math.Sqrt(ch.Min * ch.Max)
-		}
-		if _, err := solver.Analyze(c); err != nil {
-			// An overflow at the middle of the ranges is one everywhere; any
-			// failure of a network without free parts is its only answer.
-			var oe *solver.OverflowError
-			if errors.As(err, &oe) || len(p.Free) == 0 {
-				return t.ConditionError(ci, err)
-			}
-		}
-	}
-	return nil
-}
-
-func probeFor(net *solver.Network, t Target) (Probe, error) {
-	pr := Probe{Kind: t.Kind}
-	node := func(name string) (int, error) {
-		i, ok := net.NodeIndex(name)
-		if !ok {
-			return 0, fmt.Errorf("constraints: target %s names node %q, which no part connects", t.Label(), name)
-		}
-		return i, nil
-	}
-	var err error
-	switch t.Kind {
-	case Current, Power, SelfHeating:
-		i, ok := net.PartIndex(t.Part)
-		if !ok {
-			return pr, fmt.Errorf("constraints: target %s names unknown part %q", t.Label(), t.Part)
-		}
-		pr.Part = i
-		for _, e := range net.Edges() {
-			if e.Part == i {
-				pr.Sign = CurrentSign(e.Kind)
-			}
-		}
-	default:
-		if len(t.Nodes) == 0 {
-			return pr, fmt.Errorf("constraints: target %s names no node", t.Label())
-		}
-		if pr.A, err = node(t.Nodes[0]); err != nil {
-			return pr, err
-		}
-		pr.B = 0 // ground is node 0
-		if len(t.Nodes) > 1 {
-			if pr.B, err = node(t.Nodes[1]); err != nil {
-				return pr, err
-			}
-		}
-	}
-	return pr, nil
-}
-
 // Score is the outcome of one candidate over all conditions.
 type Score struct {
-	Feasible bool
+	Feasible bool    // every hard limit met, in every condition (see Violated)
 	Error    float64 // largest goal error over goals and conditions
 	Power    float64 // largest total resistor power over conditions, watts
-	// Values holds each target's value per condition, target-major:
-	// Values[t*len(Conditions)+c]; NaN where the target does not apply.
-	Values []float64
-	// Violated names the first hard limit the candidate fails (target index,
-	// condition index), or -1, -1. Problem.SupplyLimit stands for
-	// supply_power_max.
-	ViolatedTarget, ViolatedCondition int
+	// Violated names the first hard limit the candidate fails, when it is
+	// not Feasible.
+	Violated Violation
 
-	points *Points // node voltages the derived probes read
+	values []float64 // per target and condition, target-major (see Value)
+	nc     int       // conditions
+	points *Points   // node voltages the derived probes read
 }
 
-// SupplyLimit is the index that stands for the supply_power_max limit
-// wherever an index names the hard limit a candidate breaks
-// (Score.ViolatedTarget, synth.Violation, synth.LimitReach): one past the
-// targets, which take 0 … len(Targets)-1.
-func (p *Problem) SupplyLimit() int { return len(p.Probes) }
+// Value returns target's value in condition cond (indices into
+// Template.Targets and Problem.Conditions): NaN where the target does not
+// apply. A sweep-wide target's one value is at condition 0.
+func (sc *Score) Value(target, cond int) float64 { return sc.values[target*sc.nc+cond] }
 
-// IsSupplyLimit reports whether limit index i names supply_power_max
-// rather than a target.
-func (p *Problem) IsSupplyLimit(i int) bool { return i == len(p.Probes) }
+// LimitKind says which sort of hard limit a Violation names.
+type LimitKind uint8
+
+// The sorts of hard limit.
+const (
+	TargetLimit      LimitKind = iota // a target's tolerance band, min or max (Violation.Target)
+	SupplyPowerLimit                  // limits.supply_power_max, on the total resistor power
+)
+
+// Violation names a hard limit a candidate breaks and a condition it
+// breaks it in.
+type Violation struct {
+	Kind      LimitKind // a target's limit or supply_power_max
+	Target    int       // TargetLimit: index into Template.Targets; -1 otherwise
+	Condition int       // index into Problem.Conditions
+}
 
 // NewScore returns a Score sized for the problem, to be reused across calls.
 func (p *Problem) NewScore() *Score {
-	return &Score{Values: make([]float64, len(p.Probes)*len(p.Conditions)), points: p.NewPoints()}
+	nc := len(p.Conditions)
+	return &Score{values: make([]float64, len(p.Probes)*nc), nc: nc, points: p.NewPoints()}
 }
 
 // Evaluate scores one assignment of the free positions (ohms, in Free
@@ -341,7 +183,7 @@ func (p *Problem) Evaluate(s *solver.Solver, free []float64, sc *Score) error {
 func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, after func(ci int)) error {
 	nc := len(p.Conditions)
 	sc.Feasible, sc.Error, sc.Power = true, 0, 0
-	sc.ViolatedTarget, sc.ViolatedCondition = -1, -1
+	sc.Violated = Violation{Target: -1, Condition: -1}
 	for ci, cv := range p.Conditions {
 		for i, v := range cv.Values {
 			s.SetValue(i, v)
@@ -354,7 +196,7 @@ func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, afte
 			return err
 		}
 		pw := s.ResistorPower() * p.OnFraction
-		if cv.Hidden {
+		if !p.Visible(ci) {
 			pw = 0 // a derivative's helper condition has no power figure of its own
 		}
 		if pw > sc.Power {
@@ -362,12 +204,12 @@ func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, afte
 		}
 		if lim := p.Template.Limits.SupplyPowerMax; lim > 0 && pw > lim && !Same(pw, lim) && sc.Feasible {
 			sc.Feasible = false
-			sc.ViolatedTarget, sc.ViolatedCondition = p.SupplyLimit(), ci
+			sc.Violated = Violation{Kind: SupplyPowerLimit, Target: -1, Condition: ci}
 		}
 		for ti, pr := range p.Probes {
 			k := ti*nc + ci
 			if !p.Applies[ti][ci] {
-				sc.Values[k] = math.NaN()
+				sc.values[k] = math.NaN()
 				continue
 			}
 			v, err := pr.Read(s)
@@ -375,11 +217,11 @@ func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, afte
 				sc.Feasible = false
 				return err
 			}
-			sc.Values[k] = v
+			sc.values[k] = v
 			tg := &p.Template.Targets[ti]
 			if !tg.Meets(v) && sc.Feasible {
 				sc.Feasible = false
-				sc.ViolatedTarget, sc.ViolatedCondition = ti, ci
+				sc.Violated = Violation{Kind: TargetLimit, Target: ti, Condition: ci}
 			}
 			if e := tg.GoalError(v); e > sc.Error || math.IsNaN(e) {
 				sc.Error = e
@@ -390,89 +232,27 @@ func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, afte
 			after(ci)
 		}
 	}
-	p.scoreDerived(sc.points.v, sc)
+	p.scoreDerived(sc)
 	return nil
 }
 
-// scoreDerived computes the sweep-wide targets from the node voltages in
-// points (laid out by each probe's Offset), records them at condition 0, and
-// folds them into the score's feasibility and error.
-func (p *Problem) scoreDerived(points []float64, sc *Score) {
-	nc := len(p.Conditions)
+// scoreDerived computes the sweep-wide targets from the node voltages the
+// score's points gathered, records them at condition 0, and folds them into
+// the score's feasibility and error.
+func (p *Problem) scoreDerived(sc *Score) {
 	for ti, dp := range p.Derived {
 		if dp == nil {
 			continue
 		}
-		v := dp.Value(points[dp.Offset : dp.Offset+len(dp.Conds)])
-		sc.Values[ti*nc] = v
+		v := sc.points.Derived(ti)
+		sc.values[ti*sc.nc] = v
 		tg := &p.Template.Targets[ti]
 		if !tg.Meets(v) && sc.Feasible {
 			sc.Feasible = false
-			sc.ViolatedTarget, sc.ViolatedCondition = ti, dp.Conds[0]
+			sc.Violated = Violation{Kind: TargetLimit, Target: ti, Condition: dp.Conds[0]}
 		}
 		if e := tg.GoalError(v); e > sc.Error || math.IsNaN(e) {
 			sc.Error = e
 		}
 	}
-}
-
-// Points holds the node voltages the sweep-wide targets (linearity,
-// sensitivity, resolution) read, gathered condition by condition, for a
-// caller that scores without Evaluate (a search's update formula, a
-// Monte Carlo draw). One per goroutine; it does not allocate after
-// NewPoints.
-type Points struct {
-	p *Problem
-	v []float64
-}
-
-// pointSlot is one node voltage a sweep-wide target reads in a condition.
-type pointSlot struct {
-	index int // into Points.v
-	node  int // node index
-}
-
-// NewPoints returns an empty gatherer for the problem's sweep-wide targets.
-func (p *Problem) NewPoints() *Points {
-	return &Points{p: p, v: make([]float64, p.npoints)}
-}
-
-// Gather records, after condition ci was solved by s, the node voltages
-// the sweep-wide targets read in it.
-func (pt *Points) Gather(ci int, s *solver.Solver) {
-	if pt.p.slots == nil {
-		return
-	}
-	for _, ps := range pt.p.slots[ci] {
-		pt.v[ps.index] = s.Voltage(ps.node)
-	}
-}
-
-// GatherUpdated records condition ci's node voltages from a rank-one
-// update of a solution, node voltage x0[n] - w[n]·u (the layout of
-// solver.Solver.X with the ground node first).
-func (pt *Points) GatherUpdated(ci int, x0, w []float64, u float64) {
-	if pt.p.slots == nil {
-		return
-	}
-	for _, ps := range pt.p.slots[ci] {
-		pt.v[ps.index] = x0[ps.node] - w[ps.node]*u
-	}
-}
-
-// Fail marks condition ci's points as unknown (its solve failed), so that
-// every sweep-wide target reading it comes out NaN.
-func (pt *Points) Fail(ci int) {
-	if pt.p.slots == nil {
-		return
-	}
-	for _, ps := range pt.p.slots[ci] {
-		pt.v[ps.index] = math.NaN()
-	}
-}
-
-// Derived computes sweep-wide target ti from the points gathered.
-func (pt *Points) Derived(ti int) float64 {
-	dp := pt.p.Derived[ti]
-	return dp.Value(pt.v[dp.Offset : dp.Offset+len(dp.Conds)])
 }

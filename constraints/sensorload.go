@@ -202,37 +202,49 @@ func (d *decoder) within(n *yaml.Node, path, ctx string, v float64, r paramRange
 
 // checkSensorRanges refuses a condition whose temperature lies outside the
 // range of a sensor part's model (an RTD at −250 °C, an NTC at −270 °C),
-// at the condition (or the target whose derivative added it).
+// at the condition, or a sensitivity or resolution target whose derivative
+// would need a condition there (half a degree either side of its
+// temperature: Problem adds those conditions), at the target.
 func (d *decoder) checkSensorRanges() {
 	t := d.t
 	for _, c := range t.Conditions {
-		for _, p := range t.Parts {
-			if p.Sensor == nil {
-				continue
-			}
-			r, err := p.Sensor.Resistance(c.Temperature)
-			if err == nil && r >= MinMagnitude && r <= MaxMagnitude {
-				continue
-			}
-			at := c.Pos
-			what := fmt.Sprintf("condition %q", c.Name)
-			if c.Hidden {
-				for _, tg := range t.Targets {
-					if (tg.Kind == Sensitivity || tg.Kind == Resolution) && math.Abs(math.Abs(c.Temperature-tg.At)-HalfStep) < 1e-9 {
-						at, what = tg.Pos, fmt.Sprintf("the %s target at %g °C", tg.Kind, tg.At)
-						break
-					}
-				}
-			}
-			why := fmt.Sprintf("its model gives no usable resistance at %g °C", c.Temperature)
-			if err != nil {
-				why = Message(err)
-			}
-			d.errorf(&yaml.Node{Line: at.Line, Column: at.Col}, "conditions",
-				"%s: part %q: %s; keep the temperatures within the sensor's range", what, p.Name, why)
+		if !d.sensorsWork(c.Temperature, c.Pos, fmt.Sprintf("condition %q", c.Name)) {
 			return
 		}
 	}
+	for _, tg := range t.Targets {
+		if tg.Kind != Sensitivity && tg.Kind != Resolution {
+			continue
+		}
+		for _, dt := range []float64{-HalfStep, HalfStep} {
+			if !d.sensorsWork(tg.At+dt, tg.Pos, fmt.Sprintf("the %s target at %g °C", tg.Kind, tg.At)) {
+				return
+			}
+		}
+	}
+}
+
+// sensorsWork reports whether every sensor part's model gives a usable
+// resistance at celsius, and refuses the first that does not, at at, for
+// what (the condition or target that needs the temperature).
+func (d *decoder) sensorsWork(celsius float64, at Pos, what string) bool {
+	for _, p := range d.t.Parts {
+		if p.Sensor == nil {
+			continue
+		}
+		r, err := p.Sensor.Resistance(celsius)
+		if err == nil && r >= MinMagnitude && r <= MaxMagnitude {
+			continue
+		}
+		why := fmt.Sprintf("its model gives no usable resistance at %g °C", celsius)
+		if err != nil {
+			why = Message(err)
+		}
+		d.errorf(&yaml.Node{Line: at.Line, Column: at.Col}, "conditions",
+			"%s: part %q: %s; keep the temperatures within the sensor's range", what, p.Name, why)
+		return false
+	}
+	return true
 }
 
 // numbers reads a list of exactly k plain numbers.
@@ -459,7 +471,7 @@ func (d *decoder) curve(n *yaml.Node, path, ctx string, unit units.Unit) ([]curv
 // conditionAt finds the visible condition at a temperature.
 func (t *Template) conditionAt(celsius float64) (int, bool) {
 	for i, c := range t.Conditions {
-		if c.HasTemperature && !c.Hidden && math.Abs(c.Temperature-celsius) <= 1e-9 {
+		if c.HasTemperature && math.Abs(c.Temperature-celsius) <= 1e-9 {
 			return i, true
 		}
 	}
@@ -470,7 +482,7 @@ func (t *Template) conditionAt(celsius float64) (int, bool) {
 func (t *Template) temperatureNames() string {
 	var out []string
 	for _, c := range t.Conditions {
-		if c.HasTemperature && !c.Hidden {
+		if c.HasTemperature {
 			out = append(out, strconv.FormatFloat(c.Temperature, 'g', -1, 64))
 		}
 	}
@@ -511,25 +523,6 @@ func (d *decoder) expandCurves() {
 		}
 	}
 	t.Targets = out
-}
-
-// addHiddenConditions adds, for each sensitivity and resolution target, the
-// two conditions half a degree either side of its temperature that the
-// derivative is taken from (a central difference: its error is second order
-// in the step, far below any sensor's tolerance).
-func (t *Template) addHiddenConditions() {
-	for _, tg := range t.Targets {
-		if tg.Kind != Sensitivity && tg.Kind != Resolution {
-			continue
-		}
-		for _, dt := range []float64{-HalfStep, HalfStep} {
-			name := "~" + TemperatureName(tg.At+dt)
-			if _, ok := t.ConditionIndex(name); ok {
-				continue
-			}
-			t.Conditions = append(t.Conditions, Condition{Name: name, Temperature: tg.At + dt, HasTemperature: true, Hidden: true})
-		}
-	}
 }
 
 // HalfStep is half the temperature step of the central difference behind
@@ -592,7 +585,7 @@ func (d *decoder) checkSensors() {
 		if tg.Kind == Linearity {
 			n := 0
 			for _, c := range t.Conditions {
-				if c.HasTemperature && !c.Hidden {
+				if c.HasTemperature {
 					n++
 				}
 			}

@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"github.com/ohmfit/ohmfit/constraints/sensors"
+	"github.com/ohmfit/ohmfit/solver"
 )
 
 const sweepTemplate = `ohmfit: 1
@@ -37,17 +38,53 @@ func TestSweepExpansion(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var names []string
+	// The template holds the conditions it states; Compile adds the
+	// derivative's, hidden, after them.
+	names := func(conds []string) string { return strings.Join(conds, " ") }
+	var tn []string
 	for _, c := range tp.Conditions {
-		names = append(names, c.Name)
+		tn = append(tn, c.Name)
 	}
-	want := "cold-start 0C 12.5C 25C 37.5C 50C ~24.5C ~25.5C ~49.5C ~50.5C"
-	if got := strings.Join(names, " "); got != want {
-		t.Errorf("conditions %q, want %q", got, want)
+	wantVisible := "cold-start 0C 12.5C 25C 37.5C 50C"
+	if got := names(tn); got != wantVisible {
+		t.Errorf("template's conditions %q, want %q", got, wantVisible)
 	}
-	for _, c := range tp.Conditions {
-		if c.Hidden != strings.HasPrefix(c.Name, "~") {
-			t.Errorf("%s: hidden %v", c.Name, c.Hidden)
+	p, err := Compile(tp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var all, visible []string
+	for ci, c := range p.Conditions {
+		all = append(all, c.Name)
+		if p.Visible(ci) == strings.HasPrefix(c.Name, "~") {
+			t.Errorf("%s: visible %v", c.Name, p.Visible(ci))
+		}
+	}
+	for ci, c := range p.VisibleConditions() {
+		visible = append(visible, c.Name)
+		if !p.Visible(ci) {
+			t.Errorf("%s yielded but not visible", c.Name)
+		}
+	}
+	if got, want := names(all), wantVisible+" ~24.5C ~25.5C ~49.5C ~50.5C"; got != want {
+		t.Errorf("problem's conditions %q, want %q", got, want)
+	}
+	if got := names(visible); got != wantVisible {
+		t.Errorf("problem's visible conditions %q, want %q", got, wantVisible)
+	}
+	for ci, c := range p.Conditions {
+		if want := ci >= len(tp.Conditions); !p.Visible(ci) != want {
+			t.Errorf("%s: hidden %v, want %v", c.Name, !p.Visible(ci), want)
+		}
+		if ci >= len(tp.Conditions) && (!c.HasTemperature || "~"+TemperatureName(c.Temperature) != c.Name) {
+			t.Errorf("%s: temperature %g (given %v)", c.Name, c.Temperature, c.HasTemperature)
+		}
+	}
+	for ti := range p.Probes {
+		for ci := range p.Conditions {
+			if p.Applies[ti][ci] && !p.Visible(ci) {
+				t.Errorf("target %d applies in added condition %s", ti, p.Conditions[ci].Name)
+			}
 		}
 	}
 	if tp.OnFraction != 0.02 {
@@ -113,7 +150,7 @@ func TestSensorValuesPerCondition(t *testing.T) {
 // sensitivity: |dV/dT| by central difference over ±0.5 °C; resolution: the
 // code step over the sensitivity).
 func TestDerivedTargetsClosedForm(t *testing.T) {
-	tp, p, sc := evaluateText(t, valuedSweep(sweepTemplate))
+	tp, _, sc := evaluateText(t, valuedSweep(sweepTemplate))
 	ntc := sensors.Beta{R25: 10e3, Beta: 3435}
 	v := func(c float64) float64 {
 		r, _ := ntc.Resistance(c)
@@ -128,14 +165,13 @@ func TestDerivedTargetsClosedForm(t *testing.T) {
 	}
 	sens25 := math.Abs(v(25.5)-v(24.5)) / 1
 	sens50 := math.Abs(v(50.5)-v(49.5)) / 1
-	nc := len(p.Conditions)
 	want := map[TargetKind]float64{Linearity: lin, Sensitivity: sens25, Resolution: (3.0 / 4096) / sens50}
 	for ti, tg := range tp.Targets {
 		w, ok := want[tg.Kind]
 		if !ok {
 			continue
 		}
-		if got := sc.Values[ti*nc]; math.Abs(got-w) > 1e-9*w {
+		if got := sc.Value(ti, 0); math.Abs(got-w) > 1e-9*w {
 			t.Errorf("%s: %g, closed form %g", tg.Label(), got, w)
 		}
 	}
@@ -228,16 +264,55 @@ targets:
 	r0 := 10e3 * math.Exp(3950*(1/273.15-1/298.15))
 	want := []float64{0.1815, rise(r0)}
 	for ci, w := range want {
-		if got := sc.Values[ci]; math.Abs(got-w) > 1e-12*w {
+		if got := sc.Value(0, ci); math.Abs(got-w) > 1e-12*w {
 			t.Errorf("%s: rise %.15g °C, closed form %.15g °C", p.Conditions[ci].Name, got, w)
 		}
 	}
 	if !sc.Feasible {
-		t.Errorf("rises %v within 0.2 °C, but the score is infeasible", sc.Values)
+		t.Errorf("rises %v within 0.2 °C, but the score is infeasible", sc.values)
 	}
 	// A limit below the room rise rejects the design.
 	_, _, sc = evaluateText(t, strings.Replace(text, "max: 0.2", "max: 0.18", 1))
 	if sc.Feasible {
 		t.Errorf("rise 0.1815 °C passed a 0.18 °C limit")
+	}
+}
+
+// A failure in a condition Compile added for a derivative names it, even
+// in a template with one condition of its own (whose failures need no
+// name); the conditions it adds carry their temperature, so that TCR drift
+// and sensors follow it.
+func TestAddedConditionError(t *testing.T) {
+	text := `ohmfit: 1
+parts:
+  - {name: V1, type: voltage-source, plus: vcc, minus: gnd, volts: 3}
+  - {name: R1, type: resistor, from: vcc, to: s}
+  - {name: RT1, type: ntc, from: s, to: gnd, r25: 10k, beta: 3435}
+targets:
+  - {voltage: s, equals: 1.5}
+  - {sensitivity: s, at: 25, min: 1m}
+`
+	tp, err := Parse("one.yaml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := Compile(tp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(tp.Conditions) != 1 || len(p.Conditions) != 3 {
+		t.Fatalf("%d template conditions, %d compiled; want 1 and 3", len(tp.Conditions), len(p.Conditions))
+	}
+	for ci, want := range []string{"", `condition "~24.5C": `, `condition "~25.5C": `} {
+		e := p.ConditionError(ci, solver.ErrSingular)
+		if got := strings.TrimSuffix(e.Msg, Message(solver.ErrSingular)); got != want {
+			t.Errorf("condition %d: %q, want the prefix %q", ci, e.Msg, want)
+		}
+	}
+	for ci, want := range []float64{24.5, 25.5} {
+		c := p.Conditions[ci+1]
+		if !c.HasTemperature || c.Temperature != want {
+			t.Errorf("%s: temperature %g (given %v), want %g", c.Name, c.Temperature, c.HasTemperature, want)
+		}
 	}
 }

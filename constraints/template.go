@@ -33,19 +33,24 @@ func (t *Template) ConditionValues(ci int) ([]float64, error) {
 // ValuesAt is ConditionValues with every sensor at celsius instead of the
 // condition's own temperature: for a curve drawn between the conditions.
 func (t *Template) ValuesAt(ci int, celsius float64) ([]float64, error) {
-	cond := t.Conditions[ci]
+	return t.valuesWith(t.Conditions[ci].Name, t.Conditions[ci].Set, celsius)
+}
+
+// valuesWith returns every part's value with the settings set and every
+// sensor at celsius, in a condition named name (for messages).
+func (t *Template) valuesWith(name string, set []Setting, celsius float64) ([]float64, error) {
 	vals := make([]float64, len(t.Parts))
 	for i, ps := range t.Parts {
 		if !ps.Free {
 			vals[i] = ps.Value
 		}
 	}
-	for _, set := range cond.Set {
-		i, ok := t.Part(set.Part)
+	for _, st := range set {
+		i, ok := t.Part(st.Part)
 		if !ok {
-			return nil, fmt.Errorf("constraints: condition %q sets unknown part %q", cond.Name, set.Part)
+			return nil, fmt.Errorf("constraints: condition %q sets unknown part %q", name, st.Part)
 		}
-		vals[i] = set.Value
+		vals[i] = st.Value
 	}
 	for i, ps := range t.Parts {
 		if ps.Sensor == nil {
@@ -53,7 +58,7 @@ func (t *Template) ValuesAt(ci int, celsius float64) ([]float64, error) {
 		}
 		r, err := ps.Sensor.Resistance(celsius)
 		if err != nil {
-			return nil, &Error{Msg: fmt.Sprintf("part %s in condition %q: %s", ps.Name, cond.Name, Message(err)), Err: err}
+			return nil, &Error{Msg: fmt.Sprintf("part %s in condition %q: %s", ps.Name, name, Message(err)), Err: err}
 		}
 		vals[i] = r
 	}

@@ -93,8 +93,8 @@ type box struct {
 	err, power float64 // lower bounds on goal error and power (0 when not bounded)
 	parts      int     // lower bound on the part count
 	infeasible bool    // no candidate can meet the hard limits
-	violTarget int     // the limit that showed it, as in Violation
-	violCond   int
+	// viol is the limit that showed it.
+	viol constraints.Violation
 }
 
 func (b *box) clone() *box {
@@ -577,7 +577,7 @@ func (w *bbWorker) progress(set *Settings, b *box) {
 // message when nothing is feasible.
 func (w *bbWorker) count(b *box) {
 	if b.infeasible && w.rw.top.worst() == nil {
-		w.rw.viol[b.violTarget*w.nc+b.violCond] += int64(b.sizeOf())
+		w.rw.viol.add(b.viol, int64(b.sizeOf()))
 	}
 }
 
@@ -635,7 +635,7 @@ func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 // condition ci says about the box: the determinant's sign, the ratio
 // denominators' signs and the parts' voltages, currents and powers.
 func (w *bbWorker) afterCond(ci int) {
-	if w.p.Spec.Conditions[ci].Hidden {
+	if !w.p.Spec.Visible(ci) {
 		return
 	}
 	s, nc := w.s, w.nc
@@ -762,7 +762,7 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 					continue
 				}
 				k := ti*nc + c
-				v := w.sc.Values[k]
+				v := w.sc.Value(ti, c)
 				if math.IsNaN(v) || math.IsInf(v, 0) {
 					w.qnan[k] = true
 					continue
@@ -782,7 +782,7 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 	b.bounded = true
 	lim := p.Spec.Template.Limits.SupplyPowerMax
 	for c := 0; c < nc; c++ {
-		if p.Spec.Conditions[c].Hidden || w.det[c] == 2 || w.det[c] == 0 {
+		if !p.Spec.Visible(c) || w.det[c] == 2 || w.det[c] == 0 {
 			continue // a pole inside: nothing is monotone in this condition
 		}
 		for ti := range p.Spec.Probes {
@@ -796,7 +796,7 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 			tg := &p.Spec.Template.Targets[ti]
 			blo, bhi := tg.Band()
 			if (hi < blo && !constraints.Same(hi, blo)) || (lo > bhi && !constraints.Same(lo, bhi)) {
-				b.infeasible, b.violTarget, b.violCond = true, ti, c
+				b.infeasible, b.viol = true, constraints.Violation{Kind: constraints.TargetLimit, Target: ti, Condition: c}
 			}
 			if tg.HasEquals {
 				d := 0.0
@@ -851,7 +851,7 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 		pw = math.Max(pw, sum*(1-boundSlack)) * p.Spec.OnFraction
 		b.power = math.Max(b.power, pw)
 		if lim > 0 && pw > lim && !constraints.Same(pw, lim) {
-			b.infeasible, b.violTarget, b.violCond = true, p.Spec.SupplyLimit(), c
+			b.infeasible, b.viol = true, constraints.Violation{Kind: constraints.SupplyPowerLimit, Target: -1, Condition: c}
 		}
 	}
 }

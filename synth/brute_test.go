@@ -262,7 +262,10 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 				}
 			}
 			pw *= tp.OnFraction // average power of a duty-cycled supply
-			if cond.Hidden {
+			// Conditions past the template's own are those added for a
+			// derivative (read directly, not through Problem.Visible).
+			added := ci >= len(tp.Conditions)
+			if added {
 				pw = 0 // helper conditions of a derivative carry no power figure
 			}
 			c.power = math.Max(c.power, pw)
@@ -278,7 +281,7 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 					}
 					continue
 				}
-				if !tg.Applies(cond.Name) || cond.Hidden {
+				if !tg.Applies(cond.Name) || added {
 					continue
 				}
 				var v float64

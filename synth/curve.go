@@ -48,7 +48,7 @@ func Curve(p *Problem, options []Option) (c *TransferCurve, ok bool) {
 	var temps []float64
 	var condAt []int
 	for ci, c := range t.Conditions {
-		if c.HasTemperature && !c.Hidden {
+		if c.HasTemperature {
 			temps = append(temps, c.Temperature)
 			condAt = append(condAt, ci)
 		}

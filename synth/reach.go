@@ -10,8 +10,10 @@ import (
 // as proven by the corner bounds of BranchBound (see its doc comment for
 // why a quantity's range over a box is spanned by the box's corners).
 type LimitReach struct {
-	// Target is the index into Template.Targets, or Problem.SupplyLimit for the
-	// supply_power_max limit.
+	// Kind says whether the limit is a target's or supply_power_max.
+	Kind constraints.LimitKind
+	// Target is, for a TargetLimit, the index into Template.Targets; -1
+	// for supply_power_max.
 	Target int
 	// Never is true when no candidate in the space breaks the limit, in any
 	// condition it applies in: the limit cannot change the answer.
@@ -68,7 +70,7 @@ func ReachLimits(p *Problem) []LimitReach {
 		never, seen := true, false
 		all := LimitReach{Target: ti, Condition: -1, Lo: math.Inf(1), Hi: math.Inf(-1)}
 		for c := 0; c < nc; c++ {
-			if p.Spec.Conditions[c].Hidden || !p.Spec.Applies[ti][c] {
+			if !p.Spec.Applies[ti][c] { // false in the conditions added for a derivative
 				continue
 			}
 			lo, hi, ok := 0.0, 0.0, steady(c)
@@ -98,11 +100,11 @@ func ReachLimits(p *Problem) []LimitReach {
 		}
 	}
 	if lim := p.Spec.Template.Limits.SupplyPowerMax; lim > 0 {
-		supply := p.Spec.SupplyLimit()
-		if root.infeasible && root.violTarget == supply {
-			out = append(out, LimitReach{Target: supply, Always: true, Condition: root.violCond, Lo: math.NaN(), Hi: math.NaN()})
+		supply := constraints.SupplyPowerLimit
+		if root.infeasible && root.viol.Kind == supply {
+			out = append(out, LimitReach{Kind: supply, Target: -1, Always: true, Condition: root.viol.Condition, Lo: math.NaN(), Hi: math.NaN()})
 		} else if up, ok := w.powerCeiling(steady); ok && up <= lim {
-			out = append(out, LimitReach{Target: supply, Never: true, Condition: -1, Lo: math.NaN(), Hi: up})
+			out = append(out, LimitReach{Kind: supply, Target: -1, Never: true, Condition: -1, Lo: math.NaN(), Hi: up})
 		}
 	}
 	return out
@@ -115,7 +117,7 @@ func ReachLimits(p *Problem) []LimitReach {
 func (w *bbWorker) powerCeiling(steady func(int) bool) (float64, bool) {
 	nc, top := w.nc, 0.0
 	for c := 0; c < nc; c++ {
-		if w.p.Spec.Conditions[c].Hidden {
+		if !w.p.Spec.Visible(c) {
 			continue
 		}
 		if !steady(c) {

@@ -7,11 +7,12 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/synth"
 )
 
 // spaceValues scores every candidate of the space (brute-force enumeration)
-// and returns each one's target values (target-major, as Score.Values) and
+// and returns each one's target values (target-major: t·nc+c) and
 // total power, skipping candidates whose network cannot be solved.
 func spaceValues(t *testing.T, p *synth.Problem) (vals [][]float64, power []float64) {
 	t.Helper()
@@ -24,7 +25,13 @@ func spaceValues(t *testing.T, p *synth.Problem) (vals [][]float64, power []floa
 			free[i] = d.Options[idx[i]].Value
 		}
 		if err := p.Spec.Evaluate(s, free, sc); err == nil {
-			vals = append(vals, append([]float64(nil), sc.Values...))
+			v := make([]float64, 0, len(p.Spec.Probes)*len(p.Spec.Conditions))
+			for ti := range p.Spec.Probes {
+				for c := range p.Spec.Conditions {
+					v = append(v, sc.Value(ti, c))
+				}
+			}
+			vals = append(vals, v)
 			power = append(power, sc.Power)
 		}
 		k := len(idx) - 1
@@ -108,8 +115,8 @@ func TestReachLimitsAgainstEnumeration(t *testing.T) {
 			reach := synth.ReachLimits(p)
 			found := map[int]bool{}
 			for _, r := range reach {
-				found[r.Target] = true
-				if r.Target == len(p.Spec.Probes) {
+				found[r.Target] = true // supply_power_max's Target is -1
+				if r.Kind == constraints.SupplyPowerLimit {
 					for k, w := range power {
 						lim := p.Spec.Template.Limits.SupplyPowerMax
 						if r.Never && w > lim {
@@ -155,7 +162,7 @@ func TestReachLimitsAgainstEnumeration(t *testing.T) {
 					t.Errorf("%s (mode %d) not settled; reach %+v", p.Spec.Template.Targets[ti].Label(), m, reach)
 				}
 			}
-			if passive && pmode == 1 && !found[len(p.Spec.Probes)] {
+			if passive && pmode == 1 && !found[-1] {
 				t.Errorf("supply_power_max 1.2× the largest power not found never to bind")
 			}
 		})

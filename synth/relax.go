@@ -132,7 +132,7 @@ func (rx *relaxer) relaxed(x, lo, hi []float64) float64 {
 	for ti, tg := range p.Spec.Template.Targets {
 		blo, bhi := tg.Band()
 		for c := 0; c < nc; c++ {
-			v := rx.sc.Values[ti*nc+c]
+			v := rx.sc.Value(ti, c)
 			if math.IsNaN(v) {
 				if p.Spec.Applies[ti][c] {
 					pen += 1

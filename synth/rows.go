@@ -141,7 +141,7 @@ func runNoFree(p *Problem, st *runState) error {
 	if sc.Feasible && withinCap(sc.Error, st.errCap) {
 		st.top.offer(&candidate{Opt: []int32{}, Error: sc.Error, Power: sc.Power})
 	} else {
-		st.viol[sc.ViolatedTarget*st.nc+sc.ViolatedCondition]++
+		st.viol.add(sc.Violated, 1)
 	}
 	return nil
 }
@@ -175,7 +175,7 @@ type rowWorker struct {
 	cond   []rowCond
 	top    *topList
 	cand   candidate
-	viol   []int64
+	viol   violations
 	stats  Stats
 	nc     int
 	free   []float64
@@ -212,7 +212,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		cond: make([]rowCond, nc),
 		top:  newTopList(r, top, len(p.Domains)),
 		cand: candidate{Opt: make([]int32, len(p.Domains))},
-		viol: make([]int64, (len(p.Spec.Probes)+1)*nc),
+		viol: newViolations(p),
 		nc:   nc, free: make([]float64, len(p.Domains)), sc: p.Spec.NewScore(),
 		port: make([]float64, n+1),
 		keys: p.Spec.Template.Rank, lim: p.Spec.Template.Limits.SupplyPowerMax,
@@ -246,7 +246,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 	for c := range w.cond {
 		rc := &w.cond[c]
 		rc.vals = make([]float64, len(parts))
-		rc.hidden = p.Spec.Conditions[c].Hidden
+		rc.hidden = !p.Spec.Visible(c)
 		rc.x0 = make([]float64, n+1)
 		rc.w = make([]float64, n+1)
 		rc.r0 = make([]float64, len(p.Spec.Probes))
@@ -465,7 +465,7 @@ func (w *rowWorker) scoreOption(i int) {
 				powMax = pw
 			}
 			if w.lim > 0 && pw > w.lim && !constraints.Same(pw, w.lim) {
-				w.viol[p.Spec.SupplyLimit()*w.nc+c]++
+				w.viol.supply(c, 1)
 				return
 			}
 		}
@@ -476,7 +476,7 @@ func (w *rowWorker) scoreOption(i int) {
 			v := w.probe(rc, ti, s, g)
 			tg := &p.Spec.Template.Targets[ti]
 			if !tg.Meets(v) {
-				w.viol[ti*w.nc+c]++
+				w.viol.target(ti, c, 1)
 				return
 			}
 			if e := tg.GoalError(v); e > errMax {
@@ -493,7 +493,7 @@ func (w *rowWorker) scoreOption(i int) {
 		v := w.points.Derived(ti)
 		tg := &p.Spec.Template.Targets[ti]
 		if !tg.Meets(v) {
-			w.viol[ti*w.nc+dp.Conds[0]]++
+			w.viol.target(ti, dp.Conds[0], 1)
 			return
 		}
 		if e := tg.GoalError(v); e > errMax || math.IsNaN(e) {
@@ -545,7 +545,7 @@ func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
 			return
 		}
 		if !w.sc.Feasible {
-			w.viol[w.sc.ViolatedTarget*w.nc+w.sc.ViolatedCondition]++
+			w.viol.add(w.sc.Violated, 1)
 			return
 		}
 		errMax, powMax = w.sc.Error, w.sc.Power
@@ -575,7 +575,7 @@ func (w *rowWorker) slowRow(lo, hi int) {
 			continue
 		}
 		if !w.sc.Feasible {
-			w.viol[w.sc.ViolatedTarget*w.nc+w.sc.ViolatedCondition]++
+			w.viol.add(w.sc.Violated, 1)
 			continue
 		}
 		w.offer(i, w.sc.Error, w.sc.Power, true)
@@ -689,7 +689,7 @@ func (w *rowWorker) hardLimits(lo, hi int) (int, int) {
 			nlo, nhi := w.bisect(lo, hi, math.Inf(-1), w.lim, rc, -1)
 			if nlo > nhi {
 				if counting {
-					w.viol[p.Spec.SupplyLimit()*w.nc+c] += int64(hi - lo + 1)
+					w.viol.supply(c, int64(hi-lo+1))
 				}
 				return 1, 0
 			}
@@ -706,7 +706,7 @@ func (w *rowWorker) hardLimits(lo, hi int) (int, int) {
 			nlo, nhi := w.bisect(lo, hi, blo, bhi, rc, ti)
 			if nlo > nhi {
 				if counting {
-					w.viol[ti*w.nc+c] += int64(hi - lo + 1)
+					w.viol.target(ti, c, int64(hi-lo+1))
 				}
 				return 1, 0
 			}

@@ -222,12 +222,11 @@ func (s *Solution) Values() []float64 {
 	return out
 }
 
-// Violation says which hard limit blocked the most candidates, for the
-// message when nothing is feasible.
+// Violation says which hard limit blocked the most candidates, and in
+// which condition, for the message when nothing is feasible.
 type Violation struct {
-	Target    int // index into Template.Targets, or Problem.SupplyLimit
-	Condition int // index into Problem.Conditions
-	Count     int64
+	constraints.Violation
+	Count int64 // candidates it rejected there
 }
 
 // Result is the outcome of a search.
@@ -346,8 +345,7 @@ type runState struct {
 	front    *frontList // nil unless Settings.FrontErrorCap > 0
 	frontCap float64
 	errCap   float64 // Settings.ErrorMax; 0: none
-	viol     []int64 // per (target or power limit) × condition
-	nc       int
+	viol     violations
 	status   Status
 	stats    Stats
 	// open is a lower bound on the goal error of every candidate the method
@@ -358,7 +356,6 @@ type runState struct {
 
 func newRunState(p *Problem, s *Settings) *runState {
 	r := &ranker{keys: p.Spec.Template.Rank, domains: p.Domains}
-	nc := len(p.Spec.Conditions)
 	var front *frontList
 	if s.FrontErrorCap > 0 {
 		front = &frontList{r: r}
@@ -370,14 +367,13 @@ func newRunState(p *Problem, s *Settings) *runState {
 		frontCap: s.FrontErrorCap,
 		errCap:   s.ErrorMax,
 		top:      newTopList(r, s.Top+topMargin, len(p.Domains)),
-		viol:     make([]int64, (len(p.Spec.Probes)+1)*nc),
-		nc:       nc,
+		viol:     newViolations(p),
 	}
 }
 
 // merge folds a worker's results into the shared state. Called once per
 // worker after it stops, so no locking is needed beyond the caller's.
-func (st *runState) merge(w *topList, front *frontList, viol []int64, stats Stats) {
+func (st *runState) merge(w *topList, front *frontList, viol violations, stats Stats) {
 	for _, c := range w.items {
 		st.top.offer(c)
 	}
@@ -386,25 +382,66 @@ func (st *runState) merge(w *topList, front *frontList, viol []int64, stats Stat
 			st.front.offer(c)
 		}
 	}
-	for i, v := range viol {
-		st.viol[i] += v
-	}
+	st.viol.merge(viol)
 	st.stats.Rows += stats.Rows
 	st.stats.Evaluated += stats.Evaluated
 	st.stats.Solves += stats.Solves
 }
 
-func (st *runState) blocking() *Violation {
+func (st *runState) blocking() *Violation { return st.viol.most() }
+
+// violations counts, per hard limit and condition, the candidates each
+// limit rejected: slot t·nc+c for target t, then nc slots for
+// supply_power_max. The search counts by index in its inner loops; the
+// layout stays here.
+type violations struct {
+	nc int
+	n  []int64
+}
+
+func newViolations(p *Problem) violations {
+	nc := len(p.Spec.Conditions)
+	return violations{nc: nc, n: make([]int64, (len(p.Spec.Probes)+1)*nc)}
+}
+
+// target counts n candidates that break target ti's limits in condition c.
+func (v violations) target(ti, c int, n int64) { v.n[ti*v.nc+c] += n }
+
+// supply counts n candidates that break supply_power_max in condition c.
+func (v violations) supply(c int, n int64) { v.n[len(v.n)-v.nc+c] += n }
+
+// add counts n candidates that break the limit x names.
+func (v violations) add(x constraints.Violation, n int64) {
+	if x.Kind == constraints.SupplyPowerLimit {
+		v.supply(x.Condition, n)
+		return
+	}
+	v.target(x.Target, x.Condition, n)
+}
+
+func (v violations) merge(o violations) {
+	for i, k := range o.n {
+		v.n[i] += k
+	}
+}
+
+// most returns the limit that rejected the most candidates (the first such
+// in slot order), or nil when none rejected any.
+func (v violations) most() *Violation {
 	best := -1
-	for i, v := range st.viol {
-		if v > 0 && (best < 0 || v > st.viol[best]) {
+	for i, k := range v.n {
+		if k > 0 && (best < 0 || k > v.n[best]) {
 			best = i
 		}
 	}
 	if best < 0 {
 		return nil
 	}
-	return &Violation{Target: best / st.nc, Condition: best % st.nc, Count: st.viol[best]}
+	x := constraints.Violation{Kind: constraints.TargetLimit, Target: best / v.nc, Condition: best % v.nc}
+	if best >= len(v.n)-v.nc {
+		x.Kind, x.Target = constraints.SupplyPowerLimit, -1
+	}
+	return &Violation{Violation: x, Count: v.n[best]}
 }
 
 // finish re-scores the kept candidates with full nodal solves (the numbers

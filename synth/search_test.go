@@ -262,19 +262,45 @@ func TestInterrupted(t *testing.T) {
 	}
 }
 
-// Nothing feasible: the status says so and the blocking limit is named.
+// Nothing feasible: the status says so and the blocking limit is named,
+// a target's or supply_power_max (a 5 V divider of at most 2 MΩ draws at
+// least 25 V² / 2 MΩ = 12.5 µW, by Ohm's law, so a 1 nW limit is broken by
+// every candidate).
 func TestNoFeasible(t *testing.T) {
-	text := strings.Replace(dividerYAML, "targets:\n", "targets:\n  - {current: R1, max: 1n}\n", 1)
-	p := problemFromYAML(t, text, "")
-	res, err := synth.Search(context.Background(), p, nil, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if res.Status != synth.NoFeasible || len(res.Solutions) != 0 {
-		t.Fatalf("status %v, %d solutions", res.Status, len(res.Solutions))
-	}
-	if res.Blocking == nil || p.Spec.Template.Targets[res.Blocking.Target].Label() != "current R1" {
-		t.Fatalf("blocking %+v", res.Blocking)
+	for _, c := range []struct {
+		name, extra string
+		kind        constraints.LimitKind
+		label       string
+	}{
+		{"target", "targets:\n  - {current: R1, max: 1n}\n", constraints.TargetLimit, "current R1"},
+		{"supply", "limits: {supply_power_max: 1n}\ntargets:\n", constraints.SupplyPowerLimit, ""},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			p := problemFromYAML(t, strings.Replace(dividerYAML, "targets:\n", c.extra, 1), "")
+			res, err := synth.Search(context.Background(), p, nil, nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if res.Status != synth.NoFeasible || len(res.Solutions) != 0 {
+				t.Fatalf("status %v, %d solutions", res.Status, len(res.Solutions))
+			}
+			b := res.Blocking
+			if b == nil || b.Kind != c.kind || b.Count <= 0 {
+				t.Fatalf("blocking %+v", b)
+			}
+			if c.kind == constraints.TargetLimit && p.Spec.Template.Targets[b.Target].Label() != c.label {
+				t.Fatalf("blocking %+v, want %s", b, c.label)
+			}
+			if c.kind == constraints.SupplyPowerLimit {
+				if b.Target != -1 {
+					t.Errorf("supply limit with target %d", b.Target)
+				}
+				reach := synth.ReachLimits(p)
+				if len(reach) != 1 || reach[0].Kind != constraints.SupplyPowerLimit || !reach[0].Always {
+					t.Errorf("reach %+v, want supply_power_max always broken", reach)
+				}
+			}
+		})
 	}
 }
 

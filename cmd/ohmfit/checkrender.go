@@ -66,7 +66,7 @@ func writeCheckTable(w io.Writer, t *constraints.Template, d *variation.Design, 
 	}
 	if a := rep.Ambient; a.Set {
 		fmt.Fprintf(&b, "ambient: %g … %g °C (TCR referred to %g °C)\n", a.Min, a.Max, constraints.ReferenceCelsius)
-	} else if hasTemperatures(t) {
+	} else if hasTemperatures(d.Problem) {
 		fmt.Fprintf(&b, "temperature: each resistor drifts by its TCR at its condition's temperature (referred to %g °C)\n", constraints.ReferenceCelsius)
 	}
 	b.WriteByte('\n')
@@ -394,8 +394,8 @@ func nonNilStrings(s []string) []string {
 }
 
 // hasTemperatures reports whether any condition carries a temperature.
-func hasTemperatures(t *constraints.Template) bool {
-	for _, c := range t.Conditions {
+func hasTemperatures(p *constraints.Problem) bool {
+	for _, c := range p.Conditions {
 		if c.HasTemperature {
 			return true
 		}

@@ -310,7 +310,7 @@ func warnLimitReach(w io.Writer, p *synth.Problem) []synth.LimitReach {
 		if !r.Never {
 			continue
 		}
-		if p.Spec.IsSupplyLimit(r.Target) {
+		if r.Kind == constraints.SupplyPowerLimit {
 			warnf(w, "supply_power_max %s can never be broken: no candidate in the space draws more than %s, so the limit does not shape the answer",
 				units.FormatUnit(p.Spec.Template.Limits.SupplyPowerMax, units.Watt), units.FormatUnit(r.Hi, units.Watt))
 			continue
@@ -333,7 +333,7 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitR
 			continue
 		}
 		cond := p.Spec.Conditions[r.Condition].Name
-		if p.Spec.IsSupplyLimit(r.Target) {
+		if r.Kind == constraints.SupplyPowerLimit {
 			return fmt.Sprintf("no candidate can meet the hard limits: every candidate in the space draws more than supply_power_max %s in condition %q; raise that limit or the values' minimum",
 				units.FormatUnit(t.Limits.SupplyPowerMax, units.Watt), cond)
 		}
@@ -354,7 +354,7 @@ func noSolutionMessage(p *synth.Problem, res *synth.Result, reach []synth.LimitR
 		return scope
 	}
 	cond := p.Spec.Conditions[b.Condition].Name
-	if p.Spec.IsSupplyLimit(b.Target) {
+	if b.Kind == constraints.SupplyPowerLimit {
 		return fmt.Sprintf("%s; most were rejected by supply_power_max %s in condition %q", scope,
 			units.FormatUnit(t.Limits.SupplyPowerMax, units.Watt), cond)
 	}

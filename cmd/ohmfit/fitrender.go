@@ -63,7 +63,7 @@ func goalColumns(p *synth.Problem) []goalColumn {
 			continue
 		}
 		for ci, c := range p.Spec.Conditions {
-			if !p.Spec.Applies[ti][ci] || c.Hidden {
+			if !p.Spec.Applies[ti][ci] { // false in the conditions added for a derivative
 				continue
 			}
 			label := tg.Label()
@@ -211,7 +211,6 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 	}
 	tb.cols[len(tb.cols)-1].gap = 0
 	tb.add(head...)
-	nc := len(p.Spec.Conditions)
 	for _, s := range sols {
 		rank := strconv.Itoa(s.Rank)
 		if marked {
@@ -227,7 +226,7 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 		}
 		row = append(row, errorText(s.Score.Error), units.FormatUnit(s.Score.Power, units.Watt), strconv.Itoa(s.Parts))
 		for _, g := range goals {
-			v := s.Score.Values[g.target*nc+g.cond]
+			v := s.Score.Value(g.target, g.cond)
 			if math.Abs(v) < constraints.TieAbsolute {
 				v = 0 // rounding residue of an exact hit, e.g. a balanced bridge
 			}
@@ -283,7 +282,6 @@ func fitJSON(p *synth.Problem, res *synth.Result) object {
 // solutionsJSON writes answers with the contract's keys.
 func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 	sols := make([]object, len(list))
-	nc := len(p.Spec.Conditions)
 	for i, s := range list {
 		values, parts, comb := make(object, 0), make(object, 0), make(object, 0)
 		for k, d := range p.Domains {
@@ -299,14 +297,14 @@ func solutionsJSON(p *synth.Problem, list []synth.Solution) []object {
 				if derived && ci > 0 {
 					break
 				}
-				if (!derived && !p.Spec.Applies[ti][ci]) || c.Hidden {
+				if (!derived && !p.Spec.Applies[ti][ci]) || !p.Spec.Visible(ci) {
 					continue
 				}
 				name := c.Name
 				if derived {
 					name = "sweep" // one figure over the temperature conditions
 				}
-				v := s.Score.Values[ti*nc+ci]
+				v := s.Score.Value(ti, ci)
 				m := object{{"target", tg.Label()}, {"kind", targetKind(tg.HasEquals)}, {"condition", name}, {"value", v}}
 				if tg.HasEquals {
 					m = append(m, member{"goal", tg.Equals}, member{"error", tg.GoalError(v)})
@@ -358,7 +356,6 @@ func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result, robust []vari
 	if err := cw.Write(head); err != nil {
 		return err
 	}
-	nc := len(p.Spec.Conditions)
 	write := func(sols []synth.Solution, list string, robust []variation.Robust, blank bool) error {
 		for i, s := range sols {
 			row := []string{strconv.Itoa(s.Rank)}
@@ -371,7 +368,7 @@ func writeFitCSV(w io.Writer, p *synth.Problem, res *synth.Result, robust []vari
 			}
 			row = append(row, csvNumber(s.Score.Error), csvNumber(s.Score.Power), strconv.Itoa(s.Parts), strconv.FormatBool(s.Pareto))
 			for _, g := range goals {
-				row = append(row, csvNumber(s.Score.Values[g.target*nc+g.cond]))
+				row = append(row, csvNumber(s.Score.Value(g.target, g.cond)))
 			}
 			switch {
 			case robust != nil:

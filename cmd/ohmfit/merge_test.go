@@ -171,7 +171,7 @@ func TestNoSolutionMessageNamesTheLimit(t *testing.T) {
 		{1, "most were rejected by voltage t2 max 1.5 V in condition \"nominal\" (line 12)"},
 	} {
 		t.Run(fmt.Sprint("target ", c.target), func(t *testing.T) {
-			res := &synth.Result{Status: synth.NoFeasible, Blocking: &synth.Violation{Target: c.target}}
+			res := &synth.Result{Status: synth.NoFeasible, Blocking: &synth.Violation{Violation: constraints.Violation{Kind: constraints.TargetLimit, Target: c.target}}}
 			got := noSolutionMessage(p, res, nil)
 			if !strings.Contains(got, c.want) || strings.Contains(got, "  ") {
 				t.Errorf("target %d: %q, want it to contain %q and no blank limit", c.target, got, c.want)

@@ -137,9 +137,6 @@ func requireValued(t *constraints.Template) error {
 func analyzeAll(t *constraints.Template) ([]conditionResult, error) {
 	results := make([]conditionResult, 0, len(t.Conditions))
 	for ci, cond := range t.Conditions {
-		if cond.Hidden {
-			continue // a derivative's helper condition, not one the user wrote
-		}
 		c, err := t.ConditionCircuit(ci)
 		if err != nil {
 			// The loader checks settings; this guards a template built in code.

@@ -271,7 +271,7 @@ func (d *Design) sensorParams(i int, ps constraints.PartSpec) {
 func (d *Design) sensorValue(i, c int, idx []int, dev []float64) float64 {
 	t := d.Problem.Template
 	ps := t.Parts[i]
-	celsius := t.Conditions[c].Temperature
+	celsius := d.Problem.Conditions[c].Temperature
 	r := d.Problem.Conditions[c].Values[i]
 	e := 0.0
 	for _, j := range idx {
@@ -304,13 +304,12 @@ func (d *Design) sensorValue(i, c int, idx []int, dev []float64) float64 {
 // its class slope in °C/°C), with r the sensor's resistance there.
 func (d *Design) paramSlope(j, c int, r float64) float64 {
 	v := d.Parts[j]
-	t := d.Problem.Template
-	celsius := t.Conditions[c].Temperature
+	celsius := d.Problem.Conditions[c].Temperature
 	switch v.Param {
 	case ParamBeta:
 		return r * (1/(celsius+sensors.ZeroCelsius) - 1/(constraints.ReferenceCelsius+sensors.ZeroCelsius))
 	case ParamClassOffset, ParamClassSlope:
-		k, err := sensors.Slope(t.Parts[v.Part].Sensor, celsius)
+		k, err := sensors.Slope(d.Problem.Template.Parts[v.Part].Sensor, celsius)
 		if err != nil {
 			return math.NaN()
 		}
@@ -428,7 +427,7 @@ func (d *Design) Warnings() []string { return append([]string(nil), d.warnings..
 func (d *Design) factor(j, c int, dev []float64) float64 {
 	f := 1 + dev[j]
 	v := d.Parts[j]
-	cond := d.Problem.Template.Conditions[c]
+	cond := d.Problem.Conditions[c]
 	if d.ambient.Set || !cond.HasTemperature || v.Kind != solver.Resistor || !v.Relative ||
 		d.Problem.Template.Parts[v.Part].Sensor != nil {
 		return f
@@ -451,7 +450,7 @@ func (d *Design) conditionTemperatures() bool {
 	if d.ambient.Set {
 		return false
 	}
-	for _, c := range d.Problem.Template.Conditions {
+	for _, c := range d.Problem.Conditions {
 		if c.HasTemperature {
 			return true
 		}

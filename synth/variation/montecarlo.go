@@ -97,7 +97,7 @@ func (mc *sampleRun) sample(k int) bool {
 	for ci := range p.Conditions {
 		d.setValues(s, ci, mc.dev)
 		solved := s.Solve() == nil
-		if solved && !p.Conditions[ci].Hidden {
+		if solved && p.Visible(ci) {
 			pw := s.ResistorPower() * p.OnFraction
 			if lim := t.Limits.SupplyPowerMax; lim > 0 && pw > lim && !constraints.Same(pw, lim) {
 				ok = false

@@ -17,10 +17,10 @@ func (d *Design) nominal(s *solver.Solver, r *Report) error {
 		d.setValues(s, ci, zero)
 		if err := s.Solve(); err != nil {
 			// The template's terms: the part at fault and what to change.
-			return t.ConditionError(ci, err)
+			return p.ConditionError(ci, err)
 		}
 		for ti, pr := range p.Probes {
-			if !p.Applies[ti][ci] || p.Conditions[ci].Hidden {
+			if !p.Applies[ti][ci] { // false in the conditions added for a derivative
 				continue
 			}
 			x, err := pr.Read(s)

@@ -42,7 +42,7 @@ func (rt *ratingTracker) observe(s *solver.Solver, ci int, dev []float64) {
 			rt.nominal[j] = math.Max(rt.nominal[j], math.Abs(w))
 		}
 	}
-	if rt.d.Problem.Conditions[ci].Hidden {
+	if !rt.d.Problem.Visible(ci) {
 		return // a derivative's helper condition, not one the user wrote
 	}
 	for k := range rt.nodes {

@@ -55,13 +55,10 @@ func (d *Design) SelfHeating() ([]Heating, error) {
 	rise := make([]float64, len(heated))
 	next := make([]float64, len(heated))
 	var out []Heating
-	for ci, cv := range p.Conditions {
-		if cv.Hidden {
-			continue
-		}
+	for ci, cv := range p.VisibleConditions() {
 		d.setValues(s, ci, zero)
 		if err := s.Solve(); err != nil {
-			return nil, t.ConditionError(ci, err)
+			return nil, p.ConditionError(ci, err)
 		}
 		first := len(out)
 		for k, i := range heated {
@@ -86,7 +83,7 @@ func (d *Design) SelfHeating() ([]Heating, error) {
 // rises there. It reports the steps taken and whether they settled.
 func (d *Design) settle(s *solver.Solver, ci int, heated []int, rise, next []float64) (int, bool) {
 	t := d.Problem.Template
-	t0 := t.Conditions[ci].Temperature
+	t0 := d.Problem.Conditions[ci].Temperature
 	for step := 1; step <= MaxHeatingSteps; step++ {
 		for k, i := range heated {
 			r, err := t.Parts[i].Sensor.Resistance(t0 + rise[k])

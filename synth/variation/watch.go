@@ -66,9 +66,6 @@ func WatchAnswer(p *constraints.Problem, options []synth.Option) *ratings.Watch 
 	w := &ratings.Watch{}
 	t := p.Template
 	for ci, c := range t.Conditions {
-		if c.Hidden {
-			continue
-		}
 		circ, err := t.ConditionCircuit(ci)
 		if err != nil {
 			continue
