@@ -123,7 +123,7 @@ func (d *decoder) applySettings(names []string) {
 			d.errorf(s.key, s.path, "%s: part %q is a %s; its value follows the condition's temperature, so set temperature instead", s.ctx, s.part, p.SensorType)
 			continue
 		case p.Kind == solver.Resistor:
-			v, ok = d.positive(s.val, s.path, label(s.ctx, s.part), units.Ohm)
+			v, ok = d.positiveOr(s.val, s.path, label(s.ctx, s.part), units.Ohm, zeroResistor)
 		case p.Kind == solver.VoltageSource:
 			v, ok = d.value(s.val, s.path, label(s.ctx, s.part), units.Volt)
 		default:

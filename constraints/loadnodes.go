@@ -437,11 +437,24 @@ func (d *decoder) number(n *yaml.Node, path, ctx string, unit units.Unit) (float
 
 // positive reads a value that must be above zero.
 func (d *decoder) positive(n *yaml.Node, path, ctx string, unit units.Unit) (float64, bool) {
+	return d.positiveOr(n, path, ctx, unit, "")
+}
+
+// Hints for a zero where a resistance must be positive: what a zero means
+// depends on what the resistance is.
+const (
+	zeroResistor = "a 0 Ω part is a wire: join its two nodes instead"
+	zeroADCInput = "give the converter's input resistance in ohms, or leave input out for an ideal input"
+)
+
+// positiveOr is positive that adds zeroHint to the message when the value
+// given is exactly zero.
+func (d *decoder) positiveOr(n *yaml.Node, path, ctx string, unit units.Unit, zeroHint string) (float64, bool) {
 	v, ok := d.value(n, path, ctx, unit)
 	if ok && v <= 0 {
 		hint := ""
-		if unit == units.Ohm && v == 0 {
-			hint = "; a 0 Ω part is a wire: join its two nodes instead"
+		if v == 0 && zeroHint != "" {
+			hint = "; " + zeroHint
 		}
 		d.errorf(n, path, "%s: must be positive, got %s%s", ctx, units.Clip(n.Value), hint)
 		return 0, false

@@ -300,7 +300,7 @@ func (d *decoder) partValue(p *PartSpec, byName map[string]entry, path, ctx stri
 			d.errorf(e.val, joinKey(path, "value"), "%s: value is empty; leave the key out to let ohmfit choose it", ctx)
 			return false
 		}
-		p.Value, ok = d.positive(e.val, joinKey(path, "value"), label(ctx, "value"), units.Ohm)
+		p.Value, ok = d.positiveOr(e.val, joinKey(path, "value"), label(ctx, "value"), units.Ohm, zeroResistor)
 	case solver.VoltageSource:
 		p.Value, ok = d.value(byName["volts"].val, joinKey(path, "volts"), label(ctx, "volts"), units.Volt)
 	case solver.CurrentSource:

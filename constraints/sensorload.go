@@ -311,7 +311,7 @@ func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
 		d.t.Targets = append(d.t.Targets, Target{Kind: Resistance, Nodes: []string{a.Node, d.t.Ground}, HasMax: true, Max: max, Pos: Pos{e.val.Line, e.val.Column}})
 	}
 	if e, ok := byName["input"]; ok {
-		if a.Input, ok = d.positive(e.val, joinKey(path, "input"), label(ctx, "input"), units.Ohm); !ok {
+		if a.Input, ok = d.positiveOr(e.val, joinKey(path, "input"), label(ctx, "input"), units.Ohm, zeroADCInput); !ok {
 			return a, nil, false
 		}
 	}
