@@ -96,12 +96,18 @@ type box struct {
 	violTarget int     // the limit that showed it, as in Violation
 	violCond   int
 	dim        int // the position to split on, chosen from the corners; -1: by width
+
+	recs     []float64 // its corners' records (bound_corners.go), or nil
+	sgns     []int8
+	parent   *box // the box it was split from, until it is bounded
+	splitPos int  // the position that split made it on
 }
 
 func (b *box) clone() *box {
 	c := *b
 	c.lo = append([]int32(nil), b.lo...)
 	c.hi = append([]int32(nil), b.hi...)
+	c.recs, c.sgns, c.parent = nil, nil, nil
 	return &c
 }
 
@@ -341,6 +347,8 @@ func (sh *bbShared) split(b *box) (*box, *box) {
 	c.lo[d] = mid + 1
 	a.depth, c.depth = b.depth+1, b.depth+1
 	a.dim, c.dim = -1, -1 // until bounded
+	a.parent, c.parent = b, b
+	a.splitPos, c.splitPos = d, d
 	a.size, c.size = a.sizeOf(), c.sizeOf()
 	return a, c
 }

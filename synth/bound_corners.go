@@ -4,6 +4,99 @@ import (
 	"math"
 )
 
+// A corner record is what one corner's solve says about a box: every
+// target's value per condition, the total power, the parts' voltages,
+// currents and powers that the bounds read, and the signs of the
+// determinant and of the ratio denominators. A box keeps the records of
+// its corners, so that each of its two halves takes half of its own from
+// it (the face on its side of the split) and solves only the new face at
+// the split point.
+
+// maxKeptDims is the most varying positions whose corner records a box
+// keeps (2^maxKeptDims records); a box with more is bounded from scratch
+// each time.
+const maxKeptDims = 10
+
+// recordLayout places the slots of a corner record: floats first, then the
+// signs (an int8 each).
+type recordLayout struct {
+	n, ns                         int // floats and signs per record
+	oq, ov, oi, ow, orv, oov, ooi int // float offsets, each ×nc per item
+	opow                          int // the total power
+	sden, sfail                   int // sign offsets (the determinant's are 0…nc-1)
+}
+
+func newRecordLayout(probes, pparts, srcs, res, amps, nc int) recordLayout {
+	var l recordLayout
+	at := 0
+	next := func(items int) int {
+		o := at
+		at += items * nc
+		return o
+	}
+	l.oq = next(probes)
+	l.ov, l.oi = next(pparts), next(pparts)
+	l.ow = next(srcs)
+	l.orv = next(res)
+	l.oov, l.ooi = next(amps), next(amps)
+	l.opow = at
+	l.n = at + 1
+	l.sden = nc
+	l.sfail = nc + probes*nc
+	l.ns = l.sfail + 1
+	return l
+}
+
+// varying returns the positions whose range in the box holds more than
+// one option.
+func varying(b *box, vary []int) []int {
+	vary = vary[:0]
+	for i := range b.lo {
+		if b.lo[i] != b.hi[i] {
+			vary = append(vary, i)
+		}
+	}
+	return vary
+}
+
+// cornerOf writes the box's corner mask (a bit per varying position: its
+// lowest or highest option) into corner.
+func cornerOf(b *box, vary []int, mask int, corner []int32) {
+	copy(corner, b.lo)
+	for k, i := range vary {
+		if mask>>k&1 == 1 {
+			corner[i] = b.hi[i]
+		}
+	}
+}
+
+// solveCorner scores the corner with full solves into record rec and signs
+// sg, and offers it to the worker's corner list when it is feasible.
+func (w *bbWorker) solveCorner(corner []int32, rec []float64, sg []int8) {
+	p, l := w.p, &w.lay
+	for i, d := range p.Domains {
+		w.free[i] = d.Options[corner[i]].Value
+	}
+	w.corners++
+	w.solves += int64(w.nc)
+	w.rec, w.rsg = rec, sg
+	clear(sg)
+	if err := p.Spec.EvaluateWith(w.s, w.free, w.sc, w.after); err != nil {
+		sg[l.sfail] = 1 // a corner that cannot be solved: no bound, split
+		return
+	}
+	copy(rec[l.oq:], w.sc.Values)
+	rec[l.opow] = w.sc.Power
+	if w.sc.Feasible {
+		copy(w.cand.Opt, corner)
+		w.cand.Error, w.cand.Power, w.cand.Parts = w.sc.Error, w.sc.Power, 0
+		for i, d := range p.Domains {
+			w.cand.Parts += d.Options[corner[i]].Count
+		}
+		w.inc.offerUnique(&w.cand)
+	}
+}
+
 // afterCond records, for the corner being scored, what its solution in
 // condition ci says about the box: the determinant's sign, the ratio
 // denominators' signs and the parts' voltages, currents and powers.
@@ -11,44 +104,160 @@ func (w *bbWorker) afterCond(ci int) {
 	if w.p.Spec.Conditions[ci].Hidden {
 		return
 	}
-	s, nc := w.s, w.nc
-	first := w.det[ci] == 0
-	w.det[ci] = mergeSign(w.det[ci], s.DetSign())
+	s, nc, l, rec := w.s, w.nc, &w.lay, w.rec
+	w.rsg[ci] = int8(s.DetSign())
 	for _, ti := range w.ratios {
 		if !w.p.Spec.Applies[ti][ci] {
 			continue
 		}
 		v := s.Voltage(w.p.Spec.Probes[ti].B)
-		sg := 0
+		sg := int8(0)
 		if v > 0 {
 			sg = 1
 		} else if v < 0 {
 			sg = -1
 		}
-		k := ti*nc + ci
-		if sg == 0 {
-			w.den[k] = 2
-		} else {
-			w.den[k] = mergeSign(w.den[k], sg)
-		}
+		w.rsg[l.sden+ti*nc+ci] = sg
 	}
 	for k, part := range w.pparts {
 		e := w.edges[part]
-		v := s.Voltage(e.From) - s.Voltage(e.To)
-		widenRange(w.vlo, w.vhi, k*nc+ci, v, first)
-		widenRange(w.ilo, w.ihi, k*nc+ci, s.Amps(part), first)
+		rec[l.ov+k*nc+ci] = s.Voltage(e.From) - s.Voltage(e.To)
+		rec[l.oi+k*nc+ci] = s.Amps(part)
 	}
 	for k, part := range w.srcs {
-		widenRange(w.wlo, w.whi, k*nc+ci, s.Watts(part), first)
+		rec[l.ow+k*nc+ci] = s.Watts(part)
 	}
 	for k, part := range w.res {
 		e := w.edges[part]
-		widenRange(w.rvlo, w.rvhi, k*nc+ci, s.Voltage(e.From)-s.Voltage(e.To), first)
+		rec[l.orv+k*nc+ci] = s.Voltage(e.From) - s.Voltage(e.To)
 	}
 	for k, part := range w.amps {
-		widenRange(w.ovlo, w.ovhi, k*nc+ci, s.Voltage(w.edges[part].To), first)
-		widenRange(w.oilo, w.oihi, k*nc+ci, s.Amps(part), first)
+		rec[l.oov+k*nc+ci] = s.Voltage(w.edges[part].To)
+		rec[l.ooi+k*nc+ci] = s.Amps(part)
 	}
+}
+
+// takeCorners gives the box the records of every corner, from its parent
+// (the box it was just split from) where they share a face, else from new
+// solves, and gathers them into the worker's ranges. It reports false when
+// a corner's solve failed.
+func (w *bbWorker) takeCorners(b *box) bool {
+	par := b.parent
+	b.parent = nil
+	w.vary = varying(b, w.vary)
+	n := 1 << len(w.vary)
+	keep := len(w.vary) <= maxKeptDims
+	l := &w.lay
+	recs, sgns := w.scratch(n)
+	if keep {
+		recs, sgns = make([]float64, n*l.n), make([]int8, n*l.ns)
+	}
+	if par != nil && par.recs != nil {
+		w.inherit(b, par, recs, sgns)
+	} else {
+		for mask := 0; mask < n; mask++ {
+			cornerOf(b, w.vary, mask, w.corner)
+			w.solveCorner(w.corner, recs[mask*l.n:(mask+1)*l.n], sgns[mask*l.ns:(mask+1)*l.ns])
+		}
+	}
+	if keep {
+		b.recs, b.sgns = recs, sgns
+	}
+	if !w.gather(recs, sgns, n) {
+		return false
+	}
+	b.dim = w.influence(b, recs, n)
+	return true
+}
+
+// scratch returns the worker's reusable record space for n corners.
+func (w *bbWorker) scratch(n int) ([]float64, []int8) {
+	if len(w.tmpRecs) < n*w.lay.n {
+		w.tmpRecs, w.tmpSgns = make([]float64, n*w.lay.n), make([]int8, n*w.lay.ns)
+	}
+	return w.tmpRecs[:n*w.lay.n], w.tmpSgns[:n*w.lay.ns]
+}
+
+// inherit fills the records of box b, just split from par on position
+// b.splitPos: the corners on par's face that b keeps come from par's
+// records, those on the new face are solved.
+func (w *bbWorker) inherit(b, par *box, recs []float64, sgns []int8) {
+	l := &w.lay
+	d := b.splitPos
+	w.pvary = varying(par, w.pvary)
+	for mask := 0; mask < 1<<len(w.vary); mask++ {
+		cornerOf(b, w.vary, mask, w.corner)
+		rec, sg := recs[mask*l.n:(mask+1)*l.n], sgns[mask*l.ns:(mask+1)*l.ns]
+		if v := w.corner[d]; v != par.lo[d] && v != par.hi[d] {
+			w.solveCorner(w.corner, rec, sg)
+			continue
+		}
+		pm := 0
+		for k, i := range w.pvary {
+			if w.corner[i] == par.hi[i] {
+				pm |= 1 << k
+			}
+		}
+		copy(rec, par.recs[pm*l.n:(pm+1)*l.n])
+		copy(sg, par.sgns[pm*l.ns:(pm+1)*l.ns])
+	}
+}
+
+// gather takes n corner records into the worker's ranges (qlo/qhi, det,
+// …), as the bounds read them; false when a corner's solve failed.
+func (w *bbWorker) gather(recs []float64, sgns []int8, n int) bool {
+	p, nc, l := w.p, w.nc, &w.lay
+	clear(w.det)
+	clear(w.den)
+	clear(w.qnan)
+	for mask := 0; mask < n; mask++ {
+		rec, sg := recs[mask*l.n:(mask+1)*l.n], sgns[mask*l.ns:(mask+1)*l.ns]
+		if sg[l.sfail] != 0 {
+			return false
+		}
+		first := mask == 0
+		for k := range len(p.Spec.Probes) * nc {
+			if !p.Spec.Applies[k/nc][k%nc] {
+				continue
+			}
+			v := rec[l.oq+k]
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				w.qnan[k] = true
+				continue
+			}
+			widenRange(w.qlo, w.qhi, k, v, first)
+		}
+		for c := 0; c < nc; c++ {
+			if p.Spec.Conditions[c].Hidden {
+				continue
+			}
+			w.det[c] = mergeSign(w.det[c], int(sg[c]))
+			for _, ti := range w.ratios {
+				if k := ti*nc + c; p.Spec.Applies[ti][c] {
+					if s := sg[l.sden+k]; s == 0 {
+						w.den[k] = 2
+					} else {
+						w.den[k] = mergeSign(w.den[k], int(s))
+					}
+				}
+			}
+			for k := range w.pparts {
+				widenRange(w.vlo, w.vhi, k*nc+c, rec[l.ov+k*nc+c], first)
+				widenRange(w.ilo, w.ihi, k*nc+c, rec[l.oi+k*nc+c], first)
+			}
+			for k := range w.srcs {
+				widenRange(w.wlo, w.whi, k*nc+c, rec[l.ow+k*nc+c], first)
+			}
+			for k := range w.res {
+				widenRange(w.rvlo, w.rvhi, k*nc+c, rec[l.orv+k*nc+c], first)
+			}
+			for k := range w.amps {
+				widenRange(w.ovlo, w.ovhi, k*nc+c, rec[l.oov+k*nc+c], first)
+				widenRange(w.oilo, w.oihi, k*nc+c, rec[l.ooi+k*nc+c], first)
+			}
+		}
+	}
+	return true
 }
 
 func mergeSign(seen int8, sg int) int8 {
@@ -89,42 +298,43 @@ func product(a, b, c, d float64) (float64, float64) {
 }
 
 // influence returns the varying position whose values move the goals or
-// the power most over the box's corners, to split the box on: a box is
-// ruled out when a goal's range, or the power's, moves clear of the bar,
-// and halving the position that spans most of a range narrows it most. The
-// measure is the mean change, over the corner pairs that differ in that
-// position alone, of each goal's value relative to the goal and of the power
-// relative to its largest corner value; the largest of these counts. -1
-// when nothing moves or a value is not finite (the caller then splits by
-// width). (Measured on synth/testdata/scale: a half to a quarter of the
-// solves of splitting the widest position, which halves the row position as
-// often as any other although the leaves score it along a row at the cost
-// of one solve.)
-func (w *bbWorker) influence(vary []int, ng int) int {
-	n := 1 << len(vary)
+// the power most over the box's corners (records recs, n of them), to
+// split the box on: a box is ruled out when a goal's range, or the
+// power's, moves clear of the bar, and halving the position that spans
+// most of a range narrows it most. The measure is the mean change, over the
+// corner pairs that differ in that position alone, of each goal's value
+// relative to the goal and of the power relative to its largest corner
+// value; the largest of these counts. -1 when nothing moves or a value is
+// not finite (the caller then splits by width). (Measured on
+// synth/testdata/scale: a half to a quarter of the solves of splitting the
+// widest position, which halves the row position as often as any other
+// although the leaves score it along a row at the cost of one solve.)
+func (w *bbWorker) influence(b *box, recs []float64, n int) int {
+	l := &w.lay
 	top := 0.0 // the largest corner power
 	for mask := 0; mask < n; mask++ {
-		top = math.Max(top, math.Abs(w.cval[mask*ng+ng-1]))
+		top = math.Max(top, math.Abs(recs[mask*l.n+l.opow]))
 	}
 	best, most := -1, 0.0
-	for k, i := range vary {
+	for k, i := range w.vary {
 		bit := 1 << k
 		eff := 0.0
-		for g := 0; g < ng; g++ {
+		for g := 0; g <= len(w.gslot); g++ {
+			off, scale := l.opow, 1.0
+			if g < len(w.gslot) {
+				off, scale = l.oq+w.gslot[g], w.gscale[g]
+			} else if top == 0 {
+				continue
+			} else {
+				scale = 1 / top
+			}
 			sum := 0.0
 			for mask := 0; mask < n; mask++ {
 				if mask&bit == 0 {
-					sum += math.Abs(w.cval[(mask|bit)*ng+g] - w.cval[mask*ng+g])
+					sum += math.Abs(recs[(mask|bit)*l.n+off] - recs[mask*l.n+off])
 				}
 			}
-			sum /= float64(n / 2)
-			if g == ng-1 {
-				if top == 0 {
-					continue
-				}
-				sum /= top
-			}
-			eff = math.Max(eff, sum)
+			eff = math.Max(eff, sum*scale/float64(n/2))
 		}
 		if math.IsNaN(eff) || math.IsInf(eff, 0) {
 			return -1

@@ -12,149 +12,114 @@ import (
 // power, so the power bound may assume every goal within that error (see
 // voltBand).
 func (w *bbWorker) bound(b *box, worst *candidate) {
-	p, nc := w.p, w.nc
-	b.bounded, b.infeasible, b.err, b.power = false, false, 0, 0
-	b.dim = -1
+	b.bounded, b.infeasible, b.err, b.power, b.dim = false, false, 0, 0, -1
 	b.size = b.sizeOf()
-	b.parts = 0
-	for i, pre := range w.sh.single {
-		if pre[b.hi[i]+1]-pre[b.lo[i]] > 0 {
-			b.parts++
-		} else {
-			b.parts += 2
-		}
-	}
-	clear(w.det)
-	clear(w.den)
-	clear(w.qnan)
-	var vary []int
-	for i := range b.lo {
-		if b.lo[i] != b.hi[i] {
-			vary = append(vary, i)
-		}
-	}
-	ng := len(w.gslot) + 1
-	if need := ng << len(vary); len(w.cval) < need {
-		w.cval = make([]float64, need)
-	}
-	for mask := 0; mask < 1<<len(vary); mask++ {
-		copy(w.corner, b.lo)
-		for k, i := range vary {
-			if mask>>k&1 == 1 {
-				w.corner[i] = b.hi[i]
-			}
-		}
-		for i, d := range p.Domains {
-			w.free[i] = d.Options[w.corner[i]].Value
-		}
-		w.corners++
-		w.solves += int64(nc)
-		if err := p.Spec.EvaluateWith(w.s, w.free, w.sc, w.after); err != nil {
-			return // a corner that cannot be solved: no bound, split
-		}
-		for ti := range p.Spec.Probes {
-			for c := 0; c < nc; c++ {
-				if !p.Spec.Applies[ti][c] {
-					continue
-				}
-				k := ti*nc + c
-				v := w.sc.Values[k]
-				if math.IsNaN(v) || math.IsInf(v, 0) {
-					w.qnan[k] = true
-					continue
-				}
-				widenRange(w.qlo, w.qhi, k, v, mask == 0)
-			}
-		}
-		for g, k := range w.gslot {
-			w.cval[mask*ng+g] = w.sc.Values[k] * w.gscale[g]
-		}
-		w.cval[mask*ng+ng-1] = w.sc.Power
-		if w.sc.Feasible {
-			copy(w.cand.Opt, w.corner)
-			w.cand.Error, w.cand.Power, w.cand.Parts = w.sc.Error, w.sc.Power, 0
-			for i, d := range p.Domains {
-				w.cand.Parts += d.Options[w.corner[i]].Count
-			}
-			w.inc.offerUnique(&w.cand)
-		}
+	b.parts = w.partsBound(b)
+	if !w.takeCorners(b) {
+		return // a corner that cannot be solved: no bound, split
 	}
 	b.bounded = true
-	b.dim = w.influence(vary, ng)
-	lim := p.Spec.Template.Limits.SupplyPowerMax
-	for c := 0; c < nc; c++ {
-		if p.Spec.Conditions[c].Hidden || w.det[c] == 2 || w.det[c] == 0 {
+	for c := 0; c < w.nc; c++ {
+		if w.p.Spec.Conditions[c].Hidden || w.det[c] == 2 || w.det[c] == 0 {
 			continue // a pole inside: nothing is monotone in this condition
 		}
-		for ti := range p.Spec.Probes {
-			if !p.Spec.Applies[ti][c] {
-				continue
-			}
-			lo, hi, ok := w.enclose(ti, c)
-			if !ok {
-				continue
-			}
-			tg := &p.Spec.Template.Targets[ti]
-			blo, bhi := tg.Band()
-			if (hi < blo && !constraints.Same(hi, blo)) || (lo > bhi && !constraints.Same(lo, bhi)) {
-				b.infeasible, b.violTarget, b.violCond = true, ti, c
-			}
-			if tg.HasEquals {
-				d := 0.0
-				if tg.Equals < lo {
-					d = lo - tg.Equals
-				} else if tg.Equals > hi {
-					d = tg.Equals - hi
-				}
-				if tg.Equals != 0 {
-					d /= math.Abs(tg.Equals)
-				}
-				b.err = math.Max(b.err, d)
-			}
-		}
-		// Tellegen: the resistors dissipate what the sources and op-amp
-		// outputs deliver, minus nothing else.
-		pw, scale := 0.0, 0.0
-		for k := range w.srcs {
-			_, hi := padded(w.wlo[k*nc+c], w.whi[k*nc+c])
-			pw -= hi
-			scale += math.Abs(hi)
-		}
-		for k := range w.amps {
-			vlo, vhi := padded(w.ovlo[k*nc+c], w.ovhi[k*nc+c])
-			ilo, ihi := padded(w.oilo[k*nc+c], w.oihi[k*nc+c])
-			lo, _ := product(vlo, vhi, ilo, ihi) // delivered V(out)·I
-			pw += lo
-			scale += math.Abs(lo)
-		}
-		pw = math.Max(0, pw-boundSlack*scale)
-		// Each resistor dissipates V²·G: at least the smallest V² of its
-		// voltage range times its smallest conductance. The sum is often
-		// the tighter bound where an op-amp output's product is loose.
-		sum := 0.0
-		for k, part := range w.res {
-			lo, hi := padded(w.rvlo[k*nc+c], w.rvhi[k*nc+c])
-			lo, hi = w.voltBand(k, c, lo, hi, worst)
-			if lo > hi {
-				sum = math.Inf(1) // no candidate left to count: nothing here can rank
-				break
-			}
-			if lo <= 0 && hi >= 0 {
-				continue
-			}
-			v := math.Min(math.Abs(lo), math.Abs(hi))
-			r := p.Spec.Conditions[c].Values[part]
-			if i := w.pos[part]; i >= 0 {
-				r = p.Domains[i].Options[b.hi[i]].Value
-			}
-			sum += v * v / r
-		}
-		pw = math.Max(pw, sum*(1-boundSlack)) * p.Spec.OnFraction
+		w.boundTargets(b, c)
+		pw := w.powerBound(b, c, worst)
 		b.power = math.Max(b.power, pw)
-		if lim > 0 && pw > lim && !constraints.Same(pw, lim) {
-			b.infeasible, b.violTarget, b.violCond = true, p.Spec.SupplyLimit(), c
+		if lim := w.p.Spec.Template.Limits.SupplyPowerMax; lim > 0 && pw > lim && !constraints.Same(pw, lim) {
+			b.infeasible, b.violTarget, b.violCond = true, w.p.Spec.SupplyLimit(), c
 		}
 	}
+}
+
+// partsBound returns the fewest parts a candidate of the box can have: one
+// per position that offers a single part in its range, else two.
+func (w *bbWorker) partsBound(b *box) int {
+	n := 0
+	for i, pre := range w.sh.single {
+		if pre[b.hi[i]+1]-pre[b.lo[i]] > 0 {
+			n++
+		} else {
+			n += 2
+		}
+	}
+	return n
+}
+
+// boundTargets bounds the box's goal error and checks its hard limits in
+// condition c from the corner ranges.
+func (w *bbWorker) boundTargets(b *box, c int) {
+	p := w.p
+	for ti := range p.Spec.Probes {
+		if !p.Spec.Applies[ti][c] {
+			continue
+		}
+		lo, hi, ok := w.enclose(ti, c)
+		if !ok {
+			continue
+		}
+		tg := &p.Spec.Template.Targets[ti]
+		blo, bhi := tg.Band()
+		if (hi < blo && !constraints.Same(hi, blo)) || (lo > bhi && !constraints.Same(lo, bhi)) {
+			b.infeasible, b.violTarget, b.violCond = true, ti, c
+		}
+		if tg.HasEquals {
+			d := 0.0
+			if tg.Equals < lo {
+				d = lo - tg.Equals
+			} else if tg.Equals > hi {
+				d = tg.Equals - hi
+			}
+			if tg.Equals != 0 {
+				d /= math.Abs(tg.Equals)
+			}
+			b.err = math.Max(b.err, d)
+		}
+	}
+}
+
+// powerBound returns a lower bound on the total power in condition c of
+// every candidate of the box that is not ruled out (see voltBand).
+func (w *bbWorker) powerBound(b *box, c int, worst *candidate) float64 {
+	p, nc := w.p, w.nc
+	// Tellegen: the resistors dissipate what the sources and op-amp
+	// outputs deliver, minus nothing else.
+	pw, scale := 0.0, 0.0
+	for k := range w.srcs {
+		_, hi := padded(w.wlo[k*nc+c], w.whi[k*nc+c])
+		pw -= hi
+		scale += math.Abs(hi)
+	}
+	for k := range w.amps {
+		vlo, vhi := padded(w.ovlo[k*nc+c], w.ovhi[k*nc+c])
+		ilo, ihi := padded(w.oilo[k*nc+c], w.oihi[k*nc+c])
+		lo, _ := product(vlo, vhi, ilo, ihi) // delivered V(out)·I
+		pw += lo
+		scale += math.Abs(lo)
+	}
+	pw = math.Max(0, pw-boundSlack*scale)
+	// Each resistor dissipates V²·G: at least the smallest V² of its
+	// voltage range times its smallest conductance. The sum is often
+	// the tighter bound where an op-amp output's product is loose.
+	sum := 0.0
+	for k, part := range w.res {
+		lo, hi := padded(w.rvlo[k*nc+c], w.rvhi[k*nc+c])
+		lo, hi = w.voltBand(k, c, lo, hi, worst)
+		if lo > hi {
+			sum = math.Inf(1) // no candidate left to count: nothing here can rank
+			break
+		}
+		if lo <= 0 && hi >= 0 {
+			continue
+		}
+		v := math.Min(math.Abs(lo), math.Abs(hi))
+		r := p.Spec.Conditions[c].Values[part]
+		if i := w.pos[part]; i >= 0 {
+			r = p.Domains[i].Options[b.hi[i]].Value
+		}
+		sum += v * v / r
+	}
+	return math.Max(pw, sum*(1-boundSlack)) * p.Spec.OnFraction
 }
 
 // voltBand narrows resistor k's voltage range in condition c to what a

@@ -48,7 +48,14 @@ type bbWorker struct {
 	corner     []int32
 	gslot      []int     // goal slots (target×nc + condition) the split choice reads
 	gscale     []float64 // per goal slot: 1/|goal|
-	cval       []float64 // per corner: its goal slots' values, scaled
+
+	// Corner records (bound_corners.go).
+	lay         recordLayout
+	rec         []float64 // the record afterCond writes
+	rsg         []int8
+	vary, pvary []int // varying positions of the box and its parent
+	tmpRecs     []float64
+	tmpSgns     []int8
 }
 
 func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
@@ -117,6 +124,7 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 			}
 		}
 	}
+	w.lay = newRecordLayout(len(p.Spec.Probes), len(w.pparts), len(w.srcs), len(w.res), len(w.amps), nc)
 	w.rvlo, w.rvhi = make([]float64, len(w.res)*nc), make([]float64, len(w.res)*nc)
 	w.det = make([]int8, nc)
 	w.den = make([]int8, len(p.Spec.Probes)*nc)
@@ -176,14 +184,18 @@ func (w *bbWorker) loop(ctx context.Context, set *Settings) {
 			a, c := sh.split(b)
 			w.bound(a, worst)
 			w.bound(c, worst)
+			b.recs, b.sgns = nil, nil // both halves have theirs
 			worst = w.sync()
 			for _, k := range []*box{a, c} {
 				if sh.ruledOut(k, worst) {
 					w.count(k)
 					w.progress(set, k)
-				} else {
-					kids = append(kids, k)
+					continue
 				}
+				if sh.isLeaf(k) {
+					k.recs, k.sgns = nil, nil // finished by rows, never split
+				}
+				kids = append(kids, k)
 			}
 		}
 		sh.mu.Lock()
