@@ -166,7 +166,6 @@ type rowWorker struct {
 	p      *Problem
 	net    *solver.Network
 	s      *solver.Solver
-	exact  *solver.Solver // with refinement: scores what enters the lists
 	j      int // row position (index into Domains)
 	jPart  int
 	ja, jb int // row position's nodes
@@ -207,7 +206,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 	n := net.Unknowns()
 	nc := len(p.Spec.Conditions)
 	w := &rowWorker{
-		p: p, net: net, s: net.NewSolver(), exact: net.NewSolver(), j: j, outer: outer,
+		p: p, net: net, s: net.NewSolver(), j: j, outer: outer,
 		jPart: p.Domains[j].Part, opts: p.Domains[j].Options,
 		cur:  make([]int32, len(p.Domains)),
 		cond: make([]rowCond, nc),
@@ -219,7 +218,6 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		keys: p.Spec.Template.Rank, lim: p.Spec.Template.Limits.SupplyPowerMax,
 		ranges: make([][2]int, 0, 2),
 	}
-	w.exact.SetRefinement(true)
 	parts := net.Parts()
 	w.edges = make([]solver.Edge, len(parts))
 	for _, e := range net.Edges() {
@@ -502,7 +500,7 @@ func (w *rowWorker) scoreOption(i int) {
 			errMax = e
 		}
 	}
-	w.offer(i, errMax, powMax)
+	w.offer(i, errMax, powMax, false)
 }
 
 // rescoreSlack is how far, at most, the update formula's goal error (in
@@ -513,17 +511,17 @@ func (w *rowWorker) scoreOption(i int) {
 // tolerance, and would otherwise be ranked by rounding instead of by power.
 const rescoreSlack = 1e-9
 
-// offer offers option i of the row, scored errMax and powMax (by the update
-// formula or a plain full solve), to the worker's lists. A candidate that
-// could be kept within rescoreSlack is scored again with refined solves
-// first (the numbers the final list shows, see runState.rescore): a plain
-// solve of an exact tie still rounds to errors some 1e-15 apart, more than
-// the tie tolerance, and a list kept by those would depend on the order
-// candidates came in (TestBranchBoundWorkersDeterministicTies).
-func (w *rowWorker) offer(i int, errMax, powMax float64) {
-	// The error cap is a hard limit; rounding is allowed for here and the
-	// cap checked again on the refined solve below.
-	if !withinCap(max(0, errMax-rescoreSlack), w.errCap) {
+// offer offers option i of the row, scored errMax and powMax, to the
+// worker's lists. exact says the scores come from full solves; otherwise a
+// candidate that could be kept is scored again with full solves first.
+func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
+	// The error cap is a hard limit; the update formula's rounding is
+	// allowed for here and the cap checked again on the full solve below.
+	lowest := errMax
+	if !exact {
+		lowest = max(0, errMax-rescoreSlack)
+	}
+	if !withinCap(lowest, w.errCap) {
 		return
 	}
 	copy(w.cand.Opt, w.cur)
@@ -532,26 +530,28 @@ func (w *rowWorker) offer(i int, errMax, powMax float64) {
 	for k, d := range w.p.Domains {
 		parts += d.Options[w.cand.Opt[k]].Count
 	}
-	w.cand.Error, w.cand.Power, w.cand.Parts = max(0, errMax-rescoreSlack), powMax*(1-rescoreSlack), parts
-	top := !w.top.full() || w.top.r.less(&w.cand, w.top.worst())
-	front := w.front != nil && errMax <= w.frontCap+rescoreSlack && w.front.mayTake(&w.cand)
-	if !top && !front {
-		return
-	}
-	for k, d := range w.p.Domains {
-		w.free[k] = d.Options[w.cand.Opt[k]].Value
-	}
-	w.stats.Solves += int64(w.nc)
-	if err := w.p.Spec.Evaluate(w.exact, w.free, w.sc); err != nil {
-		return
-	}
-	if !w.sc.Feasible {
-		w.viol[w.sc.ViolatedTarget*w.nc+w.sc.ViolatedCondition]++
-		return
-	}
-	errMax, powMax = w.sc.Error, w.sc.Power
-	if !withinCap(errMax, w.errCap) {
-		return
+	if !exact {
+		w.cand.Error, w.cand.Power, w.cand.Parts = max(0, errMax-rescoreSlack), powMax*(1-rescoreSlack), parts
+		top := !w.top.full() || w.top.r.less(&w.cand, w.top.worst())
+		front := w.front != nil && errMax <= w.frontCap+rescoreSlack && w.front.mayTake(&w.cand)
+		if !top && !front {
+			return
+		}
+		for k, d := range w.p.Domains {
+			w.free[k] = d.Options[w.cand.Opt[k]].Value
+		}
+		w.stats.Solves += int64(w.nc)
+		if err := w.p.Spec.Evaluate(w.s, w.free, w.sc); err != nil {
+			return
+		}
+		if !w.sc.Feasible {
+			w.viol[w.sc.ViolatedTarget*w.nc+w.sc.ViolatedCondition]++
+			return
+		}
+		errMax, powMax = w.sc.Error, w.sc.Power
+		if !withinCap(errMax, w.errCap) {
+			return
+		}
 	}
 	w.cand.Error, w.cand.Power, w.cand.Parts = errMax, powMax, parts
 	w.top.offer(&w.cand)
@@ -578,7 +578,7 @@ func (w *rowWorker) slowRow(lo, hi int) {
 			w.viol[w.sc.ViolatedTarget*w.nc+w.sc.ViolatedCondition]++
 			continue
 		}
-		w.offer(i, w.sc.Error, w.sc.Power)
+		w.offer(i, w.sc.Error, w.sc.Power, true)
 	}
 }
 
