@@ -158,7 +158,7 @@ func (w *bbWorker) takeCorners(b *box) bool {
 	l := &w.lay
 	recs, sgns := w.scratch(n)
 	if keep {
-		recs, sgns = make([]float64, n*l.n), make([]int8, n*l.ns)
+		recs, sgns = w.newRecords(n)
 	}
 	if par != nil && par.recs != nil {
 		w.inherit(b, par, recs, sgns)
@@ -176,6 +176,33 @@ func (w *bbWorker) takeCorners(b *box) bool {
 	}
 	b.dim = w.influence(recs, n)
 	return true
+}
+
+// newRecords returns record space for n corners a box will keep: from the
+// worker's pool of released ones when it has one of that size.
+func (w *bbWorker) newRecords(n int) ([]float64, []int8) {
+	if k := len(w.pool[n]); k > 0 {
+		r := w.pool[n][k-1]
+		w.pool[n] = w.pool[n][:k-1]
+		return r.recs, r.sgns
+	}
+	return make([]float64, n*w.lay.n), make([]int8, n*w.lay.ns)
+}
+
+// release returns a box's records to the worker's pool: the box will not
+// be split again (it was split, ruled out or is a leaf).
+func (w *bbWorker) release(b *box) {
+	if b.recs != nil {
+		n := len(b.sgns) / w.lay.ns
+		w.pool[n] = append(w.pool[n], records{b.recs, b.sgns})
+		b.recs, b.sgns = nil, nil
+	}
+}
+
+// records is the record space of one box.
+type records struct {
+	recs []float64
+	sgns []int8
 }
 
 // scratch returns the worker's reusable record space for n corners.

@@ -53,7 +53,8 @@ type bbWorker struct {
 	lay         recordLayout
 	rec         []float64 // the record afterCond writes
 	rsg         []int8
-	vary, pvary []int // varying positions of the box and its parent
+	vary, pvary []int             // varying positions of the box and its parent
+	pool        map[int][]records // released record space, by corner count
 	tmpRecs     []float64
 	tmpSgns     []int8
 }
@@ -124,6 +125,7 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 			}
 		}
 	}
+	w.pool = map[int][]records{}
 	w.lay = newRecordLayout(len(p.Spec.Probes), len(w.pparts), len(w.srcs), len(w.res), len(w.amps), nc)
 	w.rvlo, w.rvhi = make([]float64, len(w.res)*nc), make([]float64, len(w.res)*nc)
 	w.det = make([]int8, nc)
@@ -174,6 +176,7 @@ func (w *bbWorker) loop(ctx context.Context, set *Settings) {
 		var kids []*box
 		switch {
 		case sh.ruledOut(b, worst):
+			w.release(b)
 			w.count(b)
 			w.progress(set, b)
 		case sh.isLeaf(b):
@@ -184,16 +187,17 @@ func (w *bbWorker) loop(ctx context.Context, set *Settings) {
 			a, c := sh.split(b)
 			w.bound(a, worst)
 			w.bound(c, worst)
-			b.recs, b.sgns = nil, nil // both halves have theirs
+			w.release(b) // both halves have theirs
 			worst = w.sync()
 			for _, k := range []*box{a, c} {
 				if sh.ruledOut(k, worst) {
+					w.release(k)
 					w.count(k)
 					w.progress(set, k)
 					continue
 				}
 				if sh.isLeaf(k) {
-					k.recs, k.sgns = nil, nil // finished by rows, never split
+					w.release(k) // finished by rows, never split
 				}
 				kids = append(kids, k)
 			}
