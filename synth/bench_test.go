@@ -109,4 +109,5 @@ func benchMethod(b *testing.B, p *synth.Problem, workers int, m synth.Method) {
 	}
 	b.ReportMetric(float64(res.Stats.Evaluated), "scored/op")
 	b.ReportMetric(float64(res.Stats.Solves), "solves/op")
+	b.ReportMetric(float64(res.Stats.Rows), "rows/op")
 }

@@ -1,0 +1,388 @@
+package synth
+
+import (
+	"math"
+)
+
+// A corner record is what one corner's solve says about a box: every
+// target's value per condition, the total power, the parts' voltages,
+// currents and powers that the bounds read, and the signs of the
+// determinant and of the ratio denominators. A box keeps the records of
+// its corners, so that each of its two halves takes half of its own from
+// it (the face on its side of the split) and solves only the new face at
+// the split point.
+
+// rowInfluence discounts the row position's influence in the split choice:
+// a leaf scores that position along each row at the cost of one solve, so
+// a box left wide in it costs little more to finish. (Measured on
+// synth/testdata/scale, in solves: 0.25 saves 40 % on taps5-e24 and 20 % on
+// diff4-e96 against no discount, and changes skew4-e96 by 1 %; 0.5 saves
+// less on those and 12 % on skew4; 0.15 and 2 were worse.)
+const rowInfluence = 0.25
+
+// maxKeptDims is the most varying positions whose corner records a box
+// keeps (2^maxKeptDims records); a box with more is bounded from scratch
+// each time.
+const maxKeptDims = 10
+
+// recordLayout places the slots of a corner record: floats first, then the
+// signs (an int8 each).
+type recordLayout struct {
+	n, ns                         int // floats and signs per record
+	oq, ov, oi, ow, orv, oov, ooi int // float offsets, each ×nc per item
+	opow                          int // the total power
+	sden, sfail                   int // sign offsets (the determinant's are 0…nc-1)
+}
+
+func newRecordLayout(probes, pparts, srcs, res, amps, nc int) recordLayout {
+	var l recordLayout
+	at := 0
+	next := func(items int) int {
+		o := at
+		at += items * nc
+		return o
+	}
+	l.oq = next(probes)
+	l.ov, l.oi = next(pparts), next(pparts)
+	l.ow = next(srcs)
+	l.orv = next(res)
+	l.oov, l.ooi = next(amps), next(amps)
+	l.opow = at
+	l.n = at + 1
+	l.sden = nc
+	l.sfail = nc + probes*nc
+	l.ns = l.sfail + 1
+	return l
+}
+
+// varying returns the positions whose range in the box holds more than
+// one option.
+func varying(b *box, vary []int) []int {
+	vary = vary[:0]
+	for i := range b.lo {
+		if b.lo[i] != b.hi[i] {
+			vary = append(vary, i)
+		}
+	}
+	return vary
+}
+
+// cornerOf writes the box's corner mask (a bit per varying position: its
+// lowest or highest option) into corner.
+func cornerOf(b *box, vary []int, mask int, corner []int32) {
+	copy(corner, b.lo)
+	for k, i := range vary {
+		if mask>>k&1 == 1 {
+			corner[i] = b.hi[i]
+		}
+	}
+}
+
+// solveCorner scores the corner with full solves into record rec and signs
+// sg, and offers it to the worker's corner list when it is feasible.
+func (w *bbWorker) solveCorner(corner []int32, rec []float64, sg []int8) {
+	p, l := w.p, &w.lay
+	for i, d := range p.Domains {
+		w.free[i] = d.Options[corner[i]].Value
+	}
+	w.corners++
+	w.solves += int64(w.nc)
+	w.rec, w.rsg = rec, sg
+	clear(sg)
+	if err := p.Spec.EvaluateWith(w.s, w.free, w.sc, w.after); err != nil {
+		sg[l.sfail] = 1 // a corner that cannot be solved: no bound, split
+		return
+	}
+	for ti := range p.Spec.Probes {
+		for c := 0; c < w.nc; c++ {
+			rec[l.oq+ti*w.nc+c] = w.sc.Value(ti, c)
+		}
+	}
+	rec[l.opow] = w.sc.Power
+	if w.sc.Feasible {
+		copy(w.cand.Opt, corner)
+		w.cand.Error, w.cand.Power, w.cand.Parts = w.sc.Error, w.sc.Power, 0
+		for i, d := range p.Domains {
+			w.cand.Parts += d.Options[corner[i]].Count
+		}
+		w.inc.offerUnique(&w.cand)
+	}
+}
+
+// afterCond records, for the corner being scored, what its solution in
+// condition ci says about the box: the determinant's sign, the ratio
+// denominators' signs and the parts' voltages, currents and powers.
+func (w *bbWorker) afterCond(ci int) {
+	if !w.p.Spec.Visible(ci) {
+		return
+	}
+	s, nc, l, rec := w.s, w.nc, &w.lay, w.rec
+	w.rsg[ci] = int8(s.DetSign())
+	for _, ti := range w.ratios {
+		if !w.p.Spec.Applies[ti][ci] {
+			continue
+		}
+		v := s.Voltage(w.p.Spec.Probes[ti].B)
+		sg := int8(0)
+		if v > 0 {
+			sg = 1
+		} else if v < 0 {
+			sg = -1
+		}
+		w.rsg[l.sden+ti*nc+ci] = sg
+	}
+	for k, part := range w.pparts {
+		e := w.edges[part]
+		rec[l.ov+k*nc+ci] = s.Voltage(e.From) - s.Voltage(e.To)
+		rec[l.oi+k*nc+ci] = s.Amps(part)
+	}
+	for k, part := range w.srcs {
+		rec[l.ow+k*nc+ci] = s.Watts(part)
+	}
+	for k, part := range w.res {
+		e := w.edges[part]
+		rec[l.orv+k*nc+ci] = s.Voltage(e.From) - s.Voltage(e.To)
+	}
+	for k, part := range w.amps {
+		rec[l.oov+k*nc+ci] = s.Voltage(w.edges[part].To)
+		rec[l.ooi+k*nc+ci] = s.Amps(part)
+	}
+}
+
+// takeCorners gives the box the records of every corner, from its parent
+// (the box it was just split from) where they share a face, else from new
+// solves, and gathers them into the worker's ranges. It reports false when
+// a corner's solve failed.
+func (w *bbWorker) takeCorners(b *box) bool {
+	par := b.parent
+	b.parent = nil
+	w.vary = varying(b, w.vary)
+	n := 1 << len(w.vary)
+	keep := len(w.vary) <= maxKeptDims
+	l := &w.lay
+	recs, sgns := w.scratch(n)
+	if keep {
+		recs, sgns = w.newRecords(n)
+	}
+	if par != nil && par.recs != nil {
+		w.inherit(b, par, recs, sgns)
+	} else {
+		for mask := 0; mask < n; mask++ {
+			cornerOf(b, w.vary, mask, w.corner)
+			w.solveCorner(w.corner, recs[mask*l.n:(mask+1)*l.n], sgns[mask*l.ns:(mask+1)*l.ns])
+		}
+	}
+	if keep {
+		b.recs, b.sgns = recs, sgns
+	}
+	if !w.gather(recs, sgns, n) {
+		return false
+	}
+	b.dim = w.influence(recs, n)
+	return true
+}
+
+// newRecords returns record space for n corners a box will keep: from the
+// worker's pool of released ones when it has one of that size.
+func (w *bbWorker) newRecords(n int) ([]float64, []int8) {
+	if k := len(w.pool[n]); k > 0 {
+		r := w.pool[n][k-1]
+		w.pool[n] = w.pool[n][:k-1]
+		return r.recs, r.sgns
+	}
+	return make([]float64, n*w.lay.n), make([]int8, n*w.lay.ns)
+}
+
+// release returns a box's records to the worker's pool: the box will not
+// be split again (it was split, ruled out or is a leaf).
+func (w *bbWorker) release(b *box) {
+	if b.recs != nil {
+		n := len(b.sgns) / w.lay.ns
+		w.pool[n] = append(w.pool[n], records{b.recs, b.sgns})
+		b.recs, b.sgns = nil, nil
+	}
+}
+
+// records is the record space of one box.
+type records struct {
+	recs []float64
+	sgns []int8
+}
+
+// scratch returns the worker's reusable record space for n corners.
+func (w *bbWorker) scratch(n int) ([]float64, []int8) {
+	if len(w.tmpRecs) < n*w.lay.n {
+		w.tmpRecs, w.tmpSgns = make([]float64, n*w.lay.n), make([]int8, n*w.lay.ns)
+	}
+	return w.tmpRecs[:n*w.lay.n], w.tmpSgns[:n*w.lay.ns]
+}
+
+// inherit fills the records of box b, just split from par on position
+// b.splitPos: the corners on par's face that b keeps come from par's
+// records, those on the new face are solved.
+func (w *bbWorker) inherit(b, par *box, recs []float64, sgns []int8) {
+	l := &w.lay
+	d := b.splitPos
+	w.pvary = varying(par, w.pvary)
+	for mask := 0; mask < 1<<len(w.vary); mask++ {
+		cornerOf(b, w.vary, mask, w.corner)
+		rec, sg := recs[mask*l.n:(mask+1)*l.n], sgns[mask*l.ns:(mask+1)*l.ns]
+		if v := w.corner[d]; v != par.lo[d] && v != par.hi[d] {
+			w.solveCorner(w.corner, rec, sg)
+			continue
+		}
+		pm := 0
+		for k, i := range w.pvary {
+			if w.corner[i] == par.hi[i] {
+				pm |= 1 << k
+			}
+		}
+		copy(rec, par.recs[pm*l.n:(pm+1)*l.n])
+		copy(sg, par.sgns[pm*l.ns:(pm+1)*l.ns])
+	}
+}
+
+// gather takes n corner records into the worker's ranges (qlo/qhi, det,
+// …), as the bounds read them; false when a corner's solve failed.
+func (w *bbWorker) gather(recs []float64, sgns []int8, n int) bool {
+	p, nc, l := w.p, w.nc, &w.lay
+	clear(w.det)
+	clear(w.den)
+	clear(w.qnan)
+	for mask := 0; mask < n; mask++ {
+		rec, sg := recs[mask*l.n:(mask+1)*l.n], sgns[mask*l.ns:(mask+1)*l.ns]
+		if sg[l.sfail] != 0 {
+			return false
+		}
+		first := mask == 0
+		for k := range len(p.Spec.Probes) * nc {
+			if !p.Spec.Applies[k/nc][k%nc] {
+				continue
+			}
+			v := rec[l.oq+k]
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				w.qnan[k] = true
+				continue
+			}
+			widenRange(w.qlo, w.qhi, k, v, first)
+		}
+		for c := 0; c < nc; c++ {
+			if !p.Spec.Visible(c) {
+				continue
+			}
+			w.det[c] = mergeSign(w.det[c], int(sg[c]))
+			for _, ti := range w.ratios {
+				if k := ti*nc + c; p.Spec.Applies[ti][c] {
+					if s := sg[l.sden+k]; s == 0 {
+						w.den[k] = 2
+					} else {
+						w.den[k] = mergeSign(w.den[k], int(s))
+					}
+				}
+			}
+			for k := range w.pparts {
+				widenRange(w.vlo, w.vhi, k*nc+c, rec[l.ov+k*nc+c], first)
+				widenRange(w.ilo, w.ihi, k*nc+c, rec[l.oi+k*nc+c], first)
+			}
+			for k := range w.srcs {
+				widenRange(w.wlo, w.whi, k*nc+c, rec[l.ow+k*nc+c], first)
+			}
+			for k := range w.res {
+				widenRange(w.rvlo, w.rvhi, k*nc+c, rec[l.orv+k*nc+c], first)
+			}
+			for k := range w.amps {
+				widenRange(w.ovlo, w.ovhi, k*nc+c, rec[l.oov+k*nc+c], first)
+				widenRange(w.oilo, w.oihi, k*nc+c, rec[l.ooi+k*nc+c], first)
+			}
+		}
+	}
+	return true
+}
+
+func mergeSign(seen int8, sg int) int8 {
+	switch {
+	case sg == 0 || seen == 2:
+		return 2
+	case seen == 0:
+		return int8(sg)
+	case int(seen) != sg:
+		return 2
+	}
+	return seen
+}
+
+func widenRange(lo, hi []float64, k int, v float64, first bool) {
+	if first {
+		lo[k], hi[k] = v, v
+		return
+	}
+	lo[k] = math.Min(lo[k], v)
+	hi[k] = math.Max(hi[k], v)
+}
+
+// padded returns [lo, hi] widened by the rounding allowance.
+func padded(lo, hi float64) (float64, float64) {
+	d := boundSlack * math.Max(math.Abs(lo), math.Abs(hi))
+	return lo - d, hi + d
+}
+
+// product returns the range of x·y for x in [a, b] and y in [c, d].
+func product(a, b, c, d float64) (float64, float64) {
+	p := [4]float64{a * c, a * d, b * c, b * d}
+	lo, hi := p[0], p[0]
+	for _, v := range p[1:] {
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
+	return lo, hi
+}
+
+// influence returns the varying position whose values move the goals or
+// the power most over the box's corners (records recs, n of them), to
+// split the box on: a box is ruled out when a goal's range, or the
+// power's, moves clear of the bar, and halving the position that spans
+// most of a range narrows it most. The measure is the mean change, over the
+// corner pairs that differ in that position alone, of each goal's value
+// relative to the goal and of the power relative to its largest corner
+// value; the largest of these counts, the row position's discounted by
+// rowInfluence. -1 when nothing moves or a value is not finite (the caller
+// then splits by width). (Measured on synth/testdata/scale: a half to a
+// quarter of the solves of splitting the widest position.)
+func (w *bbWorker) influence(recs []float64, n int) int {
+	l := &w.lay
+	top := 0.0 // the largest corner power
+	for mask := 0; mask < n; mask++ {
+		top = math.Max(top, math.Abs(recs[mask*l.n+l.opow]))
+	}
+	best, most := -1, 0.0
+	for k, i := range w.vary {
+		bit := 1 << k
+		eff := 0.0
+		for g := 0; g <= len(w.gslot); g++ {
+			off, scale := l.opow, 1.0
+			if g < len(w.gslot) {
+				off, scale = l.oq+w.gslot[g], w.gscale[g]
+			} else if top == 0 {
+				continue
+			} else {
+				scale = 1 / top
+			}
+			sum := 0.0
+			for mask := 0; mask < n; mask++ {
+				if mask&bit == 0 {
+					sum += math.Abs(recs[(mask|bit)*l.n+off] - recs[mask*l.n+off])
+				}
+			}
+			eff = math.Max(eff, sum*scale/float64(n/2))
+		}
+		if math.IsNaN(eff) || math.IsInf(eff, 0) {
+			return -1
+		}
+		if i == w.sh.j {
+			eff *= rowInfluence
+		}
+		if eff > most {
+			best, most = i, eff
+		}
+	}
+	return best
+}
