@@ -27,6 +27,11 @@ type Solver struct {
 	refine        bool
 	orig, origRHS []float64
 	resid         []float64
+	// lo holds, per matrix entry, what rounding left out of it: the
+	// remainders of each 1/R and of each sum of conductances. The
+	// residual adds it back, so that refinement converges to the solution
+	// for the resistances as given, not for their rounded conductances.
+	lo []float64
 }
 
 // NewSolver returns a Solver for the network, loaded with the parts' Value
@@ -114,20 +119,26 @@ func (s *Solver) Solve() error {
 
 // SetRefinement turns iterative refinement on or off for every later Solve:
 // twice, the residual b − A·x, computed in twice the working precision
-// (exact products by fused multiply-add, compensated sums), is solved for
-// with the same factors and added back. It costs about two thirds of a
-// solve more and brings the answer close to full float64 accuracy on the wide-ranging
-// values of real networks (a 120 Ω and a 910 kΩ in one ladder), so that two
-// designs equal in exact arithmetic — one a decade-scaled copy of the other —
-// also come out equal within the ranking's tie tolerance. The search's hot
-// path leaves it off; the results people see turn it on. It allocates its
-// buffers once, here.
+// (exact products by fused multiply-add, compensated sums, and the
+// rounding of each conductance 1/R and of each sum of conductances added
+// back), is solved for with the same factors and added back. It costs
+// about two thirds of a solve more and brings the answer to full float64
+// accuracy for the resistances as given, on the wide-ranging values of
+// real networks (a 120 Ω and a 910 kΩ in one ladder), so that two designs
+// equal in exact arithmetic — one a decade-scaled copy of the other — also
+// come out equal within the ranking's tie tolerance, even in a stage whose
+// output is a difference of larger terms (a gain-10 difference stage
+// spread its exact ties over 1e-16 … 1.1e-15 without the conductances'
+// rounding added back). The search's hot path leaves it off; every figure
+// a kept candidate carries, and the results people see, turn it on. It
+// allocates its buffers once, here.
 func (s *Solver) SetRefinement(on bool) {
 	s.refine = on
 	if on && s.orig == nil {
 		s.orig = make([]float64, s.n*s.n)
 		s.origRHS = make([]float64, s.n)
 		s.resid = make([]float64, s.n+1)
+		s.lo = make([]float64, s.n*s.n+1) // the scratch slot too, as in a
 	}
 }
 
@@ -138,7 +149,7 @@ func (s *Solver) finish() {
 		n, x, r := s.n, s.rhs, s.resid
 		for range 2 {
 			for i := 0; i < n; i++ {
-				r[i] = residual(s.origRHS[i], s.orig[i*n:i*n+n], x)
+				r[i] = residual(s.origRHS[i], s.orig[i*n:i*n+n], x) - dot(s.lo[i*n:i*n+n], x)
 			}
 			r[n] = 0
 			s.substitute(r)
@@ -156,12 +167,16 @@ func (s *Solver) finish() {
 func (s *Solver) stamp() {
 	a, rhs, vals := s.a, s.rhs, s.vals
 	copy(a, s.net.base)
-	for _, r := range s.net.resStamps {
-		g := 1 / vals[r.part]
-		a[r.aa] += g
-		a[r.bb] += g
-		a[r.ab] -= g
-		a[r.ba] -= g
+	if s.refine {
+		s.stampExact()
+	} else {
+		for _, r := range s.net.resStamps {
+			g := 1 / vals[r.part]
+			a[r.aa] += g
+			a[r.bb] += g
+			a[r.ab] -= g
+			a[r.ba] -= g
+		}
 	}
 	clear(rhs)
 	for _, v := range s.net.vStamps {
@@ -174,6 +189,42 @@ func (s *Solver) stamp() {
 		rhs[c.from] -= i
 		rhs[c.to] += i
 	}
+}
+
+// stampExact stamps the conductances as stamp does and records in s.lo
+// what each entry lost to rounding: g = 1/R leaves 1 − g·R (exact by a
+// fused multiply-add) over R, and each sum its TwoSum remainder (Knuth,
+// The Art of Computer Programming vol. 2, 4.2.2; from memory).
+func (s *Solver) stampExact() {
+	a, lo := s.a, s.lo
+	clear(lo)
+	add := func(k int32, g, glo float64) {
+		sum := a[k] + g
+		z := sum - a[k]
+		lo[k] += (a[k] - (sum - z)) + (g - z) + glo
+		a[k] = sum
+	}
+	for _, r := range s.net.resStamps {
+		R := s.vals[r.part]
+		g := 1 / R
+		glo := math.FMA(-g, R, 1) / R
+		add(r.aa, g, glo)
+		add(r.bb, g, glo)
+		add(r.ab, -g, -glo)
+		add(r.ba, -g, -glo)
+	}
+}
+
+// dot returns Σ a[j]·x[j] in working precision: for the small remainders
+// of s.lo, whose own rounding is far below a unit in the last place.
+func dot(a, x []float64) float64 {
+	sum := 0.0
+	for j, v := range a {
+		if v != 0 {
+			sum += v * x[j]
+		}
+	}
+	return sum
 }
 
 // factor overwrites s.a with its LU factors (unit lower L below the

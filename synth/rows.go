@@ -166,7 +166,8 @@ type rowWorker struct {
 	p      *Problem
 	net    *solver.Network
 	s      *solver.Solver
-	j      int // row position (index into Domains)
+	fine   *solver.Solver // refined solves: the figures a kept candidate is compared by
+	j      int            // row position (index into Domains)
 	jPart  int
 	ja, jb int // row position's nodes
 	opts   []Option
@@ -206,7 +207,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 	n := net.Unknowns()
 	nc := len(p.Spec.Conditions)
 	w := &rowWorker{
-		p: p, net: net, s: net.NewSolver(), j: j, outer: outer,
+		p: p, net: net, s: net.NewSolver(), fine: refinedSolver(net), j: j, outer: outer,
 		jPart: p.Domains[j].Part, opts: p.Domains[j].Options,
 		cur:  make([]int32, len(p.Domains)),
 		cond: make([]rowCond, nc),
@@ -512,8 +513,13 @@ func (w *rowWorker) scoreOption(i int) {
 const rescoreSlack = 1e-9
 
 // offer offers option i of the row, scored errMax and powMax, to the
-// worker's lists. exact says the scores come from full solves; otherwise a
-// candidate that could be kept is scored again with full solves first.
+// worker's lists. exact says the scores come from full solves; otherwise
+// they may be off by rescoreSlack. Either way a candidate that could be
+// kept is scored again with refined solves (fine) before it is compared:
+// the figures kept are those the results show, whatever path found the
+// candidate, so that which of two near-ties is kept does not hang on the
+// rounding of one path (a gain-10 difference stage's exact ties spread
+// over 1e-16 … 3e-15 in plain solves, past the contract's 1e-15 tie).
 func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
 	// The error cap is a hard limit; the update formula's rounding is
 	// allowed for here and the cap checked again on the full solve below.
@@ -530,7 +536,7 @@ func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
 	for k, d := range w.p.Domains {
 		parts += d.Options[w.cand.Opt[k]].Count
 	}
-	if !exact {
+	{
 		w.cand.Error, w.cand.Power, w.cand.Parts = max(0, errMax-rescoreSlack), powMax*(1-rescoreSlack), parts
 		top := !w.top.full() || w.top.r.less(&w.cand, w.top.worst())
 		front := w.front != nil && errMax <= w.frontCap+rescoreSlack && w.front.mayTake(&w.cand)
@@ -541,7 +547,7 @@ func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
 			w.free[k] = d.Options[w.cand.Opt[k]].Value
 		}
 		w.stats.Solves += int64(w.nc)
-		if err := w.p.Spec.Evaluate(w.s, w.free, w.sc); err != nil {
+		if err := w.p.Spec.Evaluate(w.fine, w.free, w.sc); err != nil {
 			return
 		}
 		if !w.sc.Feasible {
@@ -842,4 +848,12 @@ func (w *rowWorker) bisect(lo, hi int, a, b float64, rc *rowCond, ti int) (int, 
 		return l
 	}
 	return first(lo, hi, true), first(lo, hi, false) - 1
+}
+
+// refinedSolver returns a solver for net with iterative refinement on: the
+// one kind of solve whose figures a kept candidate carries.
+func refinedSolver(net *solver.Network) *solver.Solver {
+	s := net.NewSolver()
+	s.SetRefinement(true)
+	return s
 }

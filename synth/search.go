@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 	"sort"
 	"strings"
 	"sync/atomic"
@@ -449,10 +450,10 @@ func (v violations) most() *Violation {
 // search used), ranks them again on those numbers, and marks the
 // Pareto-optimal ones.
 func (st *runState) finish(p *Problem, res *Result) error {
-	s := p.Spec.Network.NewSolver()
 	// Refined solves, so that designs equal in exact arithmetic (a
-	// decade-scaled copy) tie as the contract's tolerances intend.
-	s.SetRefinement(true)
+	// decade-scaled copy) tie as the contract's tolerances intend; the
+	// same solves the workers compared kept candidates by.
+	s := refinedSolver(p.Spec.Network)
 	res.Solutions = st.rescore(p, s, st.top.items)
 	if len(res.Solutions) > st.want {
 		res.Solutions = res.Solutions[:st.want]
@@ -511,7 +512,12 @@ func (st *runState) rescore(p *Problem, s *solver.Solver, cands []*candidate) []
 	}
 	// Rank again on the solver's own numbers; they agree with the search's
 	// within rounding, so this only settles near-ties the same way a plain
-	// enumeration would.
+	// enumeration would. The tie tolerances make "equal" intransitive where
+	// computed errors spread past them (exact ties in a stage with
+	// cancellation), and then a stable sort's result hangs on the order it
+	// is given: the kept set goes in by its values first, so the same set
+	// gives the same list however many workers found it.
+	sort.Slice(kept, func(i, j int) bool { return slices.Compare(kept[i].c.Opt, kept[j].c.Opt) < 0 })
 	sort.SliceStable(kept, func(i, j int) bool { return st.r.less(kept[i].c, kept[j].c) })
 	out := make([]Solution, len(kept))
 	for k, sc := range kept {
