@@ -3,6 +3,7 @@ package board
 import (
 	"context"
 	"fmt"
+	"math/bits"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -440,4 +441,130 @@ func TestBOMTotals(t *testing.T) {
 	if strings.Join(chosen, " ") != strings.Join(vals, " ") || res.Distinct != len(vals) {
 		t.Errorf("chosen values %v, result %v (%d)", chosen, vals, res.Distinct)
 	}
+}
+
+// fewestBySubsets is the fewest distinct values of any selection, by brute
+// force over value sets: every subset of the values, smallest first, until
+// one contains a design of every network. It shares no code with the
+// search, so it checks the search's bounds and memo on boards deeper than
+// the enumeration of combinations can reach.
+func fewestBySubsets(nets [][]item, nvals int) int {
+	for size := 0; size <= nvals; size++ {
+		for mask := 0; mask < 1<<nvals; mask++ {
+			if bits.OnesCount(uint(mask)) != size {
+				continue
+			}
+			all := true
+			for _, its := range nets {
+				ok := false
+				for _, it := range its {
+					inside := true
+					for _, v := range it.vals {
+						inside = inside && mask&(1<<v) != 0
+					}
+					ok = ok || inside
+				}
+				all = all && ok
+			}
+			if all {
+				return size
+			}
+		}
+	}
+	return -1
+}
+
+// randomDeep makes a random selection problem of up to sixteen networks
+// over up to thirteen values.
+func randomDeep(rng *rand.Rand) ([][]item, int) {
+	nvals := 6 + rng.IntN(8)
+	nets := make([][]item, 4+rng.IntN(13))
+	for r := range nets {
+		for i := range 2 + rng.IntN(10) {
+			var vals []int32
+			for range 1 + rng.IntN(3) {
+				vals = append(vals, int32(rng.IntN(nvals)))
+			}
+			slices.Sort(vals)
+			nets[r] = append(nets[r], item{vals: slices.Compact(vals), rel: float64(rng.IntN(4)) / 4, pow: 1, idx: i})
+		}
+	}
+	return nets, nvals
+}
+
+// TestChooseDeepBoards compares the exact selection's count and its proof
+// with the brute force over value sets, on random boards of up to sixteen
+// networks over up to thirteen values (randomDeep): deep enough that the search stacks
+// several levels of lists, bounds and remembered subproblems.
+func TestChooseDeepBoards(t *testing.T) {
+	n := 1500
+	if testing.Short() {
+		n = 200
+	}
+	rng := rand.New(rand.NewPCG(14, 3))
+	for k := range n {
+		nets, nvals := randomDeep(rng)
+		want := fewestBySubsets(nets, nvals)
+		sel := choose(context.Background(), prune(nets), nvals, DefaultMaxNodes)
+		if got := bruteObjective(prune(nets), sel.choice).distinct; got != want || sel.obj.distinct != want {
+			t.Fatalf("case %d %v: chosen %d (says %d), brute force over value sets %d", k, nets, got, sel.obj.distinct, want)
+		}
+		if !sel.proven || sel.bound != want {
+			t.Fatalf("case %d: proven %v, bound %d (minimum %d)", k, sel.proven, sel.bound, want)
+		}
+	}
+}
+
+// TestStagesMatchSubsets runs the search's stages one by one on random
+// boards, k rising from the trivial bound and, on a second selector,
+// falling from every value: each stage must find a set exactly when the
+// brute force over value sets says one of k values exists. The subproblems
+// the stages prove are kept from one stage to the next, so a fact recorded
+// under the wrong key shows here as a set missed.
+func TestStagesMatchSubsets(t *testing.T) {
+	n := 1500
+	if testing.Short() {
+		n = 200
+	}
+	rng := rand.New(rand.NewPCG(14, 4))
+	for c := range n {
+		nets, nvals := randomDeep(rng)
+		nets = prune(nets)
+		want := fewestBySubsets(nets, nvals)
+		up, down := newSelector(context.Background(), nets, nvals), newSelector(context.Background(), nets, nvals)
+		check := func(s *selector, k int) {
+			found, finished := s.exists(k, DefaultMaxNodes)
+			if !finished || found != (k >= want) {
+				t.Fatalf("case %d %v: k %d: found %v, finished %v; brute force over value sets: fewest %d", c, nets, k, found, finished, want)
+			}
+			if found && (len(s.bestSet) > k || !feasible(nets, nvals, s.bestSet)) {
+				t.Fatalf("case %d: k %d: the set found %v does not serve every network", c, k, s.bestSet)
+			}
+		}
+		for k := up.lb; k <= want; k++ {
+			check(up, k)
+		}
+		for k := nvals; k >= max(want-1, 0); k-- {
+			check(down, k)
+		}
+	}
+}
+
+// TestBrokenBoundIsCaught lifts the packing bound by one value, a bound
+// that claims more than is proven, and checks that the comparison with the
+// brute force over value sets then fails on some board: the tests above
+// can catch a wrong bound.
+func TestBrokenBoundIsCaught(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 5))
+	for range 200 {
+		nets, nvals := randomDeep(rng)
+		nets = prune(nets)
+		want := fewestBySubsets(nets, nvals)
+		s := newSelector(context.Background(), nets, nvals)
+		s.lift = 1
+		if found, _ := s.exists(want, DefaultMaxNodes); !found {
+			return // caught: a set of the fewest values was missed
+		}
+	}
+	t.Fatal("a packing bound lifted by one never missed a set: the comparisons could not catch a wrong bound")
 }
