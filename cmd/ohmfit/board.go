@@ -7,6 +7,7 @@ import (
 	"io"
 	"strconv"
 	"strings"
+	"time"
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/eseries/units"
@@ -20,6 +21,8 @@ type boardOptions struct {
 	File   string
 	Format string // table, json or csv
 	BOM    string // --bom FILE.csv; "" for none
+	// TimeLimit stops the run after this long (0: none), as fit's does.
+	TimeLimit time.Duration
 
 	Out, ErrOut io.Writer
 }
@@ -57,11 +60,18 @@ its template's rank keys). The BOM lists every resistor of every network,
 the templates' fixed ones too, designators prefixed (U3-R1), one line per
 item to order, with the columns of check --bom.
 
+--time-limit stops the run after that long, as for fit: the best
+selection found so far is shown, marked not proven, with the count of
+values proven needed (JSON "status": "time-limit" and "bound"). A limit
+that ends while the designs are still being listed leaves nothing to show
+(exit 2).
+
 Exit status: 0 chosen; 1 a network has no design within its cap (the
 message names it and the error it can reach); 2 bad usage or bad input.
 
 JSON output (--format json):
-  {"board": "...", "proven": true, "distinct": 7, "alone": 11, "bound": 7,
+  {"board": "...", "status": "proven", "proven": true, "distinct": 7,
+   "alone": 11, "bound": 7,
    "networks": [{"template": "rail-3v3.yaml", "prefix": "U3",
      "values": {"R1": 30100, "R2": 9530}, "error": 0.0012, ...}],
    "bom": [{"value": 30100, "designators": ["U3-R1"], "quantity": 1, ...}]}`,
@@ -85,6 +95,7 @@ JSON output (--format json):
 	f := cmd.Flags()
 	f.StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table, json or csv")
 	f.StringVar(&o.BOM, "bom", "", "also write the board's bill of materials to `FILE.csv`")
+	timeLimitVar(f, &o.TimeLimit)
 	return cmd
 }
 
@@ -122,7 +133,7 @@ func boardInputs(b *board.Board) []string {
 func solveBoard(o *boardOptions, outs *outputs, b *board.Board) error {
 	ctx, searched, release := searchInterrupt()
 	defer release()
-	res, err := board.Solve(ctx, b, nil)
+	res, err := board.Solve(ctx, b, &board.Settings{TimeLimit: o.TimeLimit})
 	searched()
 	var inf *board.InfeasibleError
 	switch {
@@ -130,11 +141,14 @@ func solveBoard(o *boardOptions, outs *outputs, b *board.Board) error {
 		return &exitError{code: ExitNoSolution, err: errors.New(inf.Message())}
 	case errors.Is(err, board.ErrInterrupted):
 		return badInputf("interrupted while listing the networks' designs, so there is nothing to show")
+	case errors.Is(err, board.ErrTimeLimit):
+		return badInputf("the time limit of %v ran out while listing the networks' designs, so there is nothing to show; "+
+			"allow more time (--time-limit 10s, say) or leave the limit out", o.TimeLimit)
 	case err != nil:
 		return badInputf("%s", constraints.Message(err))
 	}
-	if res.Stop == board.StopInterrupted {
-		notef(o.ErrOut, "interrupted; showing the best selection found so far (not proven)")
+	if note := stopNote(res, o.TimeLimit); note != "" {
+		notef(o.ErrOut, "%s", note)
 	}
 	for _, nr := range res.Networks {
 		if nr.Cut {
@@ -166,6 +180,24 @@ func solveBoard(o *boardOptions, outs *outputs, b *board.Board) error {
 		return outs.stage(o.BOM, func(w io.Writer) error { return writeBOMLines(w, chk.BOM) })
 	}
 	return nil
+}
+
+// stopNote says what an early stop of the selection leaves unproven: the
+// count, or only the tie-break when the count was proven first.
+func stopNote(res *board.Result, limit time.Duration) string {
+	var why string
+	switch res.Stop {
+	case board.StopInterrupted:
+		why = "interrupted"
+	case board.StopTime:
+		why = fmt.Sprintf("time limit of %v reached", limit)
+	default:
+		return ""
+	}
+	if res.Proven {
+		return why + " in the tie-break; the count is proven, the tie-break among selections of that size is not"
+	}
+	return why + "; showing the best selection found so far (not proven)"
 }
 
 // boardVerdict says in words how far the board's count is proven.
@@ -314,8 +346,8 @@ func boardJSON(res *board.Result, chk *board.Checked) object {
 		bom[i] = object{{"value", l.Value}, {"designators", l.Designators}, {"quantity", l.Quantity()},
 			{"type", l.Type}, {"tolerance", l.Tolerance}, {"package", l.Package}}
 	}
-	return object{{"board", res.Board.Spec.Name}, {"proven", res.Proven}, {"distinct", res.Distinct}, {"alone", res.Alone},
-		{"bound", res.Bound}, {"values", res.Values}, {"networks", nets}, {"bom", bom}}
+	return object{{"board", res.Board.Spec.Name}, {"status", res.Status().String()}, {"proven", res.Proven},
+		{"distinct", res.Distinct}, {"alone", res.Alone}, {"bound", res.Bound}, {"values", res.Values}, {"networks", nets}, {"bom", bom}}
 }
 
 // writeBoardCSV writes one row per chosen position of every network.

@@ -2,6 +2,7 @@ package board
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math/bits"
 	"math/rand/v2"
@@ -11,6 +12,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/solver"
@@ -567,4 +569,68 @@ func TestBrokenBoundIsCaught(t *testing.T) {
 		}
 	}
 	t.Fatal("a packing bound lifted by one never missed a set: the comparisons could not catch a wrong bound")
+}
+
+// TestChooseExpiredContext runs the selection with a context whose time
+// has run out: every stage stops at once, so the greedy choice is kept;
+// it is proven only when it meets the trivial bound, and the bound stated
+// is never above the minimum (brute force over value sets) nor the count
+// below it.
+func TestChooseExpiredContext(t *testing.T) {
+	ctx, cancel := context.WithTimeout(context.Background(), -time.Second)
+	defer cancel()
+	rng := rand.New(rand.NewPCG(14, 6))
+	stopped := 0
+	for c := range 300 {
+		nets, nvals := randomDeep(rng)
+		nets = prune(nets)
+		want := fewestBySubsets(nets, nvals)
+		sel := choose(ctx, nets, nvals, DefaultMaxNodes)
+		if sel.proven && sel.obj.distinct != want {
+			t.Fatalf("case %d: proven with %d values, brute force %d", c, sel.obj.distinct, want)
+		}
+		if sel.tiesProven || !sel.out || sel.bound > want || sel.obj.distinct < want {
+			t.Fatalf("case %d: ties proven %v, out %v, bound %d, count %d; minimum %d", c, sel.tiesProven, sel.out, sel.bound, sel.obj.distinct, want)
+		}
+		if !sel.proven {
+			stopped++
+		}
+	}
+	if stopped == 0 {
+		t.Fatal("the greedy choice met the trivial bound on every board: the stop was never tested")
+	}
+}
+
+// TestResultStatus maps the board's proof and stop reason to the statuses
+// every search uses (constraints/README.md, Statuses).
+func TestResultStatus(t *testing.T) {
+	tests := []struct {
+		res  Result
+		want synth.Status
+	}{
+		{Result{Proven: true}, synth.Proven},
+		{Result{Proven: true, Stop: StopTime}, synth.Proven}, // only the tie-break was cut short
+		{Result{Stop: StopTime}, synth.TimeLimit},
+		{Result{Stop: StopInterrupted}, synth.Interrupted},
+		{Result{Stop: StopNodes}, synth.Heuristic},
+		{Result{}, synth.Heuristic}, // finished, but a network's list was cut
+	}
+	for _, tc := range tests {
+		t.Run(tc.want.String(), func(t *testing.T) {
+			if got := tc.res.Status(); got != tc.want {
+				t.Errorf("%+v: %v, want %v", tc.res, got, tc.want)
+			}
+		})
+	}
+}
+
+// TestSolveTimeLimitWhileListing: a time limit that ends before the first
+// network is listed leaves nothing to choose from: ErrTimeLimit, not an
+// interruption and not a selection.
+func TestSolveTimeLimitWhileListing(t *testing.T) {
+	b := smallBoards(t)["three dividers"]
+	res, err := Solve(context.Background(), b, &Settings{TimeLimit: time.Nanosecond})
+	if !errors.Is(err, ErrTimeLimit) || errors.Is(err, ErrInterrupted) || res != nil {
+		t.Fatalf("result %v, error %v; want ErrTimeLimit", res, err)
+	}
 }

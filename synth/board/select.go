@@ -730,6 +730,10 @@ func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selecti
 // within the node budget until (counted over all stages) and the context.
 func (s *selector) exists(k int, until int64) (found, finished bool) {
 	s.k, s.enum, s.bestSet, s.out, s.budget = k, false, nil, false, until
+	if s.out = s.ctx.Err() != nil; s.out {
+		// A stage that starts after the limit stops at once.
+		return false, false
+	}
 	found = s.run(s.all, 0)
 	return found, !s.out
 }
@@ -740,6 +744,8 @@ func (s *selector) exists(k int, until int64) (found, finished bool) {
 func (s *selector) ties(best objective, set []int32, until int64) ([]int32, objective, bool) {
 	s.k, s.seen, s.enum, s.out, s.budget = best.distinct, map[string]struct{}{}, true, false, until
 	s.best, s.bestSet = best, set
-	s.run(s.all, 0)
+	if s.out = s.ctx.Err() != nil; !s.out {
+		s.run(s.all, 0)
+	}
 	return s.bestSet, s.best, !s.out
 }
