@@ -54,7 +54,10 @@ search (up to 2,000 per network, the closest first; a network with more is
 named, and the result is then not proven). The selection is then searched
 exactly: "proven" means no selection with fewer distinct values exists.
 
-"distinct" counts the distinct values of the chosen parts; "alone" counts
+"distinct" counts the distinct resistance values of the chosen parts (each
+physical part of a position made of two); the templates' fixed resistors,
+sensors and stand-ins are not counted, and a value ordered at two
+tolerances or packages is one value (and two BOM lines). "alone" counts
 them when every network takes its own best answer within its cap (rank 1 by
 its template's rank keys). The BOM lists every resistor of every network,
 the templates' fixed ones too, designators prefixed (U3-R1), one line per
@@ -242,7 +245,7 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 		name = res.Board.Spec.File
 	}
 	fmt.Fprintf(&b, "%s\n", name)
-	fmt.Fprintf(&b, "%d networks; %d distinct values (alone %d, saving %d); %s\n\n",
+	fmt.Fprintf(&b, "%d networks; %d distinct values in the chosen parts (alone %d, saving %d); %s\n\n",
 		len(res.Networks), res.Distinct, res.Alone, res.Alone-res.Distinct, boardVerdict(res))
 	tb := table{indent: "  ", cols: []column{{gap: 2}, {gap: 3}, {gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {right: true}}}
 	tb.add("network", "template", "choice", "error", "cap", "designs")
@@ -262,7 +265,7 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 	for i, v := range res.Values {
 		vals[i] = units.Format(v)
 	}
-	fmt.Fprintf(&b, "\n  values: %s\n", strings.Join(vals, ", "))
+	fmt.Fprintf(&b, "\n  chosen values: %s\n", strings.Join(vals, ", "))
 	fmt.Fprintf(&b, "  largest error relative to its cap %.0f%%; total power %s\n\n", 100*res.RelMax, units.FormatUnit(res.Power, units.Watt))
 	bt := table{indent: "  ", cols: []column{{gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {gap: 3}, {right: true}}}
 	bt.add("designators", "value", "tolerance", "package", "quantity")
@@ -284,8 +287,9 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 }
 
 // bomNote explains why the BOM has more lines than the board has distinct
-// values, when it does: the templates' fixed resistors are on it, and a
-// value ordered at two tolerances or packages is two lines.
+// chosen values, when it does: the templates' fixed resistors, sensors and
+// stand-ins are on it but not counted, and a value ordered at two
+// tolerances or packages is two lines.
 func bomNote(res *board.Result, chk *board.Checked) string {
 	if len(chk.BOM) == res.Distinct {
 		return ""
@@ -297,7 +301,7 @@ func bomNote(res *board.Result, chk *board.Checked) string {
 			chosen[name], chosen[name+"a"], chosen[name+"b"] = true, nr.Choice().Options[k].Count == 2, nr.Choice().Options[k].Count == 2
 		}
 	}
-	fixed, lines := false, map[float64]int{}
+	fixed, other, lines := false, false, map[float64]int{}
 	for _, l := range chk.BOM {
 		for _, d := range l.Designators {
 			if chosen[d] {
@@ -306,7 +310,10 @@ func bomNote(res *board.Result, chk *board.Checked) string {
 			}
 		}
 		for _, d := range l.Designators {
-			fixed = fixed || !chosen[d]
+			if !chosen[d] {
+				fixed = fixed || l.Type == variation.TypeResistor
+				other = other || l.Type != variation.TypeResistor
+			}
 		}
 	}
 	split := false
@@ -314,13 +321,18 @@ func bomNote(res *board.Result, chk *board.Checked) string {
 		split = split || n > 1
 	}
 	var why []string
-	if fixed {
-		why = append(why, "the templates' fixed resistors are on it too")
+	switch {
+	case fixed && other:
+		why = append(why, "the templates' fixed resistors, sensors and stand-ins are on it too, not counted")
+	case fixed:
+		why = append(why, "the templates' fixed resistors are on it too, not counted")
+	case other:
+		why = append(why, "the templates' sensors and stand-ins are on it too, not counted")
 	}
 	if split {
-		why = append(why, "a value ordered at two tolerances or packages is two lines")
+		why = append(why, "a value ordered at two tolerances or packages is one value and two lines")
 	}
-	return fmt.Sprintf("%d BOM lines for %d distinct values: %s.", len(chk.BOM), res.Distinct, strings.Join(why, "; "))
+	return fmt.Sprintf("%d BOM lines for %d distinct chosen values: %s.", len(chk.BOM), res.Distinct, strings.Join(why, "; "))
 }
 
 // boardJSON builds the board's JSON document (keys as the contract fixes

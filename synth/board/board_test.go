@@ -477,15 +477,27 @@ func fewestBySubsets(nets [][]item, nvals int) int {
 }
 
 // randomDeep makes a random selection problem of up to sixteen networks
-// over up to thirteen values.
+// over up to thirteen values. Half of them are two groups of networks (like
+// E96 dividers beside E24 ladders) whose values overlap in a few only, the
+// case groupBound is for.
 func randomDeep(rng *rand.Rand) ([][]item, int) {
 	nvals := 6 + rng.IntN(8)
 	nets := make([][]item, 4+rng.IntN(13))
+	split := rng.IntN(2) == 0
 	for r := range nets {
+		lo, n := 0, nvals
+		if split {
+			// The first group takes the lower 60 % of the values, the
+			// second the upper 60 %.
+			n = (nvals*3 + 4) / 5
+			if r%2 == 1 {
+				lo = nvals - n
+			}
+		}
 		for i := range 2 + rng.IntN(10) {
 			var vals []int32
 			for range 1 + rng.IntN(3) {
-				vals = append(vals, int32(rng.IntN(nvals)))
+				vals = append(vals, int32(lo+rng.IntN(n)))
 			}
 			slices.Sort(vals)
 			nets[r] = append(nets[r], item{vals: slices.Compact(vals), rel: float64(rng.IntN(4)) / 4, pow: 1, idx: i})
