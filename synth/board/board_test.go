@@ -646,3 +646,88 @@ func TestSolveTimeLimitWhileListing(t *testing.T) {
 		t.Fatalf("result %v, error %v; want ErrTimeLimit", res, err)
 	}
 }
+
+// needBySubsets is the fewest values, outside the set given, that serve
+// the networks listed, by brute force over value sets (-1 when none do).
+func needBySubsets(nets [][]item, nvals int, given []bool, which []int) int {
+	best := -1
+	for mask := 0; mask < 1<<nvals; mask++ {
+		n := bits.OnesCount(uint(mask))
+		if best >= 0 && n >= best {
+			continue
+		}
+		all := true
+		for _, r := range which {
+			ok := false
+			for _, it := range nets[r] {
+				inside := true
+				for _, v := range it.vals {
+					inside = inside && (given[v] || mask&(1<<v) != 0)
+				}
+				ok = ok || inside
+			}
+			all = all && ok
+		}
+		if all {
+			best = n
+		}
+	}
+	return best
+}
+
+// TestGroupBoundHolds checks groupBound against brute force: on random
+// boards of two groups with a random set already chosen, each group's
+// waiting networks are given their true need (brute force over value
+// sets) as the remembered fact, the strongest there can be; the bound must
+// still be no more than the true need of all waiting networks together.
+func TestGroupBoundHolds(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 8))
+	tight := 0
+	for c := 0; c < 400; {
+		nets, nvals := randomDeep(rng)
+		nets = prune(nets)
+		s := newSelector(context.Background(), nets, nvals)
+		if len(s.groups) < 2 {
+			continue
+		}
+		c++
+		s.k = nvals
+		for range rng.IntN(3) {
+			if v := int32(rng.IntN(nvals)); !s.in[v] {
+				s.in[v] = true
+				s.used = append(s.used, v)
+			}
+		}
+		nd, ok := s.narrow(s.all, 0, s.k-len(s.used))
+		if !ok || len(nd.needs) < 2 {
+			continue
+		}
+		var waiting []int
+		for _, n := range nd.needs {
+			waiting = append(waiting, n.r)
+		}
+		for g := range s.groups {
+			var part []need
+			var which []int
+			for _, n := range nd.needs {
+				if s.group[n.r] == g {
+					part, which = append(part, n), append(which, n.r)
+				}
+			}
+			if len(part) > 0 {
+				s.needs[s.subproblem(part)] = needBySubsets(nets, nvals, s.in, which)
+			}
+		}
+		want := needBySubsets(nets, nvals, s.in, waiting)
+		got := s.groupBound(nd)
+		if got > want {
+			t.Fatalf("case %d %v, set %v: group bound %d, the waiting networks need %d (brute force)", c, nets, s.used, got, want)
+		}
+		if got == want && got > s.packing(nd) {
+			tight++
+		}
+	}
+	if tight == 0 {
+		t.Fatal("the group bound never beat the packing bound: the test did not exercise it")
+	}
+}
