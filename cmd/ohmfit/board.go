@@ -7,6 +7,7 @@ import (
 	"io"
 	"strconv"
 	"strings"
+	"time"
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/eseries/units"
@@ -20,6 +21,8 @@ type boardOptions struct {
 	File   string
 	Format string // table, json or csv
 	BOM    string // --bom FILE.csv; "" for none
+	// TimeLimit stops the run after this long (0: none), as fit's does.
+	TimeLimit time.Duration
 
 	Out, ErrOut io.Writer
 }
@@ -51,17 +54,27 @@ search (up to 2,000 per network, the closest first; a network with more is
 named, and the result is then not proven). The selection is then searched
 exactly: "proven" means no selection with fewer distinct values exists.
 
-"distinct" counts the distinct values of the chosen parts; "alone" counts
+"distinct" counts the distinct resistance values of the chosen parts (each
+physical part of a position made of two); the templates' fixed resistors,
+sensors and stand-ins are not counted, and a value ordered at two
+tolerances or packages is one value (and two BOM lines). "alone" counts
 them when every network takes its own best answer within its cap (rank 1 by
 its template's rank keys). The BOM lists every resistor of every network,
 the templates' fixed ones too, designators prefixed (U3-R1), one line per
 item to order, with the columns of check --bom.
 
+--time-limit stops the run after that long, as for fit: the best
+selection found so far is shown, marked not proven, with the count of
+values proven needed (JSON "status": "time-limit" and "bound"). A limit
+that ends while the designs are still being listed leaves nothing to show
+(exit 2).
+
 Exit status: 0 chosen; 1 a network has no design within its cap (the
 message names it and the error it can reach); 2 bad usage or bad input.
 
 JSON output (--format json):
-  {"board": "...", "proven": true, "distinct": 7, "alone": 11, "bound": 7,
+  {"board": "...", "status": "proven", "proven": true, "distinct": 7,
+   "alone": 11, "bound": 7,
    "networks": [{"template": "rail-3v3.yaml", "prefix": "U3",
      "values": {"R1": 30100, "R2": 9530}, "error": 0.0012, ...}],
    "bom": [{"value": 30100, "designators": ["U3-R1"], "quantity": 1, ...}]}`,
@@ -85,6 +98,7 @@ JSON output (--format json):
 	f := cmd.Flags()
 	f.StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table, json or csv")
 	f.StringVar(&o.BOM, "bom", "", "also write the board's bill of materials to `FILE.csv`")
+	timeLimitVar(f, &o.TimeLimit)
 	return cmd
 }
 
@@ -122,7 +136,7 @@ func boardInputs(b *board.Board) []string {
 func solveBoard(o *boardOptions, outs *outputs, b *board.Board) error {
 	ctx, searched, release := searchInterrupt()
 	defer release()
-	res, err := board.Solve(ctx, b, nil)
+	res, err := board.Solve(ctx, b, &board.Settings{TimeLimit: o.TimeLimit})
 	searched()
 	var inf *board.InfeasibleError
 	switch {
@@ -130,11 +144,14 @@ func solveBoard(o *boardOptions, outs *outputs, b *board.Board) error {
 		return &exitError{code: ExitNoSolution, err: errors.New(inf.Message())}
 	case errors.Is(err, board.ErrInterrupted):
 		return badInputf("interrupted while listing the networks' designs, so there is nothing to show")
+	case errors.Is(err, board.ErrTimeLimit):
+		return badInputf("the time limit of %v ran out while listing the networks' designs, so there is nothing to show; "+
+			"allow more time (--time-limit 10s, say) or leave the limit out", o.TimeLimit)
 	case err != nil:
 		return badInputf("%s", constraints.Message(err))
 	}
-	if res.Stop == board.StopInterrupted {
-		notef(o.ErrOut, "interrupted; showing the best selection found so far (not proven)")
+	if note := stopNote(res, o.TimeLimit); note != "" {
+		notef(o.ErrOut, "%s", note)
 	}
 	for _, nr := range res.Networks {
 		if nr.Cut {
@@ -166,6 +183,24 @@ func solveBoard(o *boardOptions, outs *outputs, b *board.Board) error {
 		return outs.stage(o.BOM, func(w io.Writer) error { return writeBOMLines(w, chk.BOM) })
 	}
 	return nil
+}
+
+// stopNote says what an early stop of the selection leaves unproven: the
+// count, or only the tie-break when the count was proven first.
+func stopNote(res *board.Result, limit time.Duration) string {
+	var why string
+	switch res.Stop {
+	case board.StopInterrupted:
+		why = "interrupted"
+	case board.StopTime:
+		why = fmt.Sprintf("time limit of %v reached", limit)
+	default:
+		return ""
+	}
+	if res.Proven {
+		return why + " in the tie-break; the count is proven, the tie-break among selections of that size is not"
+	}
+	return why + "; showing the best selection found so far (not proven)"
 }
 
 // boardVerdict says in words how far the board's count is proven.
@@ -210,7 +245,7 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 		name = res.Board.Spec.File
 	}
 	fmt.Fprintf(&b, "%s\n", name)
-	fmt.Fprintf(&b, "%d networks; %d distinct values (alone %d, saving %d); %s\n\n",
+	fmt.Fprintf(&b, "%d networks; %d distinct values in the chosen parts (alone %d, saving %d); %s\n\n",
 		len(res.Networks), res.Distinct, res.Alone, res.Alone-res.Distinct, boardVerdict(res))
 	tb := table{indent: "  ", cols: []column{{gap: 2}, {gap: 3}, {gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {right: true}}}
 	tb.add("network", "template", "choice", "error", "cap", "designs")
@@ -230,7 +265,7 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 	for i, v := range res.Values {
 		vals[i] = units.Format(v)
 	}
-	fmt.Fprintf(&b, "\n  values: %s\n", strings.Join(vals, ", "))
+	fmt.Fprintf(&b, "\n  chosen values: %s\n", strings.Join(vals, ", "))
 	fmt.Fprintf(&b, "  largest error relative to its cap %.0f%%; total power %s\n\n", 100*res.RelMax, units.FormatUnit(res.Power, units.Watt))
 	bt := table{indent: "  ", cols: []column{{gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {gap: 3}, {right: true}}}
 	bt.add("designators", "value", "tolerance", "package", "quantity")
@@ -252,8 +287,9 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 }
 
 // bomNote explains why the BOM has more lines than the board has distinct
-// values, when it does: the templates' fixed resistors are on it, and a
-// value ordered at two tolerances or packages is two lines.
+// chosen values, when it does: the templates' fixed resistors, sensors and
+// stand-ins are on it but not counted, and a value ordered at two
+// tolerances or packages is two lines.
 func bomNote(res *board.Result, chk *board.Checked) string {
 	if len(chk.BOM) == res.Distinct {
 		return ""
@@ -265,7 +301,7 @@ func bomNote(res *board.Result, chk *board.Checked) string {
 			chosen[name], chosen[name+"a"], chosen[name+"b"] = true, nr.Choice().Options[k].Count == 2, nr.Choice().Options[k].Count == 2
 		}
 	}
-	fixed, lines := false, map[float64]int{}
+	fixed, other, lines := false, false, map[float64]int{}
 	for _, l := range chk.BOM {
 		for _, d := range l.Designators {
 			if chosen[d] {
@@ -274,7 +310,10 @@ func bomNote(res *board.Result, chk *board.Checked) string {
 			}
 		}
 		for _, d := range l.Designators {
-			fixed = fixed || !chosen[d]
+			if !chosen[d] {
+				fixed = fixed || l.Type == variation.TypeResistor
+				other = other || l.Type != variation.TypeResistor
+			}
 		}
 	}
 	split := false
@@ -282,13 +321,18 @@ func bomNote(res *board.Result, chk *board.Checked) string {
 		split = split || n > 1
 	}
 	var why []string
-	if fixed {
-		why = append(why, "the templates' fixed resistors are on it too")
+	switch {
+	case fixed && other:
+		why = append(why, "the templates' fixed resistors, sensors and stand-ins are on it too, not counted")
+	case fixed:
+		why = append(why, "the templates' fixed resistors are on it too, not counted")
+	case other:
+		why = append(why, "the templates' sensors and stand-ins are on it too, not counted")
 	}
 	if split {
-		why = append(why, "a value ordered at two tolerances or packages is two lines")
+		why = append(why, "a value ordered at two tolerances or packages is one value and two lines")
 	}
-	return fmt.Sprintf("%d BOM lines for %d distinct values: %s.", len(chk.BOM), res.Distinct, strings.Join(why, "; "))
+	return fmt.Sprintf("%d BOM lines for %d distinct chosen values: %s.", len(chk.BOM), res.Distinct, strings.Join(why, "; "))
 }
 
 // boardJSON builds the board's JSON document (keys as the contract fixes
@@ -314,8 +358,8 @@ func boardJSON(res *board.Result, chk *board.Checked) object {
 		bom[i] = object{{"value", l.Value}, {"designators", l.Designators}, {"quantity", l.Quantity()},
 			{"type", l.Type}, {"tolerance", l.Tolerance}, {"package", l.Package}}
 	}
-	return object{{"board", res.Board.Spec.Name}, {"proven", res.Proven}, {"distinct", res.Distinct}, {"alone", res.Alone},
-		{"bound", res.Bound}, {"values", res.Values}, {"networks", nets}, {"bom", bom}}
+	return object{{"board", res.Board.Spec.Name}, {"status", res.Status().String()}, {"proven", res.Proven},
+		{"distinct", res.Distinct}, {"alone", res.Alone}, {"bound", res.Bound}, {"values", res.Values}, {"networks", nets}, {"bom", bom}}
 }
 
 // writeBoardCSV writes one row per chosen position of every network.

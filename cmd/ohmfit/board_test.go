@@ -3,6 +3,8 @@ package main
 import (
 	"bytes"
 	"encoding/csv"
+	"encoding/json"
+	"io"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -100,5 +102,63 @@ func TestBoardInterrupt(t *testing.T) {
 	if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != int(ExitBadInput) ||
 		!strings.Contains(errOut.String(), "interrupted while listing") || out.Len() != 0 || strings.Count(errOut.String(), "\n") != 1 {
 		t.Errorf("ended with %v\nstdout: %s\nstderr: %s", err, out.String(), errOut.String())
+	}
+}
+
+// TestBoardTimeLimit gives the board of twenty networks a short time
+// limit. If it ends in the selection, the best selection so far is shown,
+// exit 0, with status time-limit, not proven, and a bound no larger than
+// the count; if it ends while the designs are still being listed, one
+// line on stderr names the time limit, exit 2. Which of the two happens
+// depends on the machine; both are checked.
+func TestBoardTimeLimit(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a long board")
+	}
+	stdout, stderr, code := runCLI(t, "board", "testdata/board/twenty/board.yaml", "--time-limit", "1500ms", "--format", "json")
+	if code == ExitBadInput {
+		if !strings.Contains(stderr, "time limit of 1.5s ran out while listing") || stdout != "" || strings.Count(stderr, "\n") != 1 {
+			t.Errorf("exit 2 with\nstdout: %s\nstderr: %s", stdout, stderr)
+		}
+		return
+	}
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var doc struct {
+		Status          string
+		Proven          bool
+		Distinct, Bound int
+	}
+	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if doc.Proven {
+		t.Skip("the machine proved the board within the limit; nothing was cut short")
+	}
+	if doc.Status != "time-limit" || doc.Bound > doc.Distinct || doc.Bound < 1 ||
+		!strings.Contains(stderr, "time limit of 1.5s reached; showing the best selection found so far (not proven)") {
+		t.Errorf("status %q, bound %d of %d; stderr: %s", doc.Status, doc.Bound, doc.Distinct, stderr)
+	}
+}
+
+// TestTimeLimitWording: board's --time-limit is fit's, word for word (one
+// help text, timeLimitUsage, for one meaning).
+func TestTimeLimitWording(t *testing.T) {
+	root := newRootCmd(strings.NewReader(""), io.Discard, io.Discard)
+	var usages []string
+	for _, name := range []string{"fit", "board"} {
+		cmd, _, err := root.Find([]string{name})
+		if err != nil {
+			t.Fatal(err)
+		}
+		f := cmd.Flags().Lookup("time-limit")
+		if f == nil {
+			t.Fatalf("%s has no --time-limit", name)
+		}
+		usages = append(usages, f.Usage)
+	}
+	if usages[0] != usages[1] || usages[1] != timeLimitUsage {
+		t.Errorf("fit: %q\nboard: %q", usages[0], usages[1])
 	}
 }

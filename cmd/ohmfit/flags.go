@@ -60,6 +60,15 @@ func (c *countValue) accepts() string {
 // durationValue is a time limit: a duration with a unit, zero for none.
 type durationValue struct{ p *time.Duration }
 
+// timeLimitUsage is the help of --time-limit, one wording for every
+// command that has it: the search stops and shows its best, not proven.
+const timeLimitUsage = "stop after this long (`DURATION`, e.g. 30s) and show the best found so far, marked not proven"
+
+// timeLimitVar binds --time-limit to p.
+func timeLimitVar(f *pflag.FlagSet, p *time.Duration) {
+	durationVar(f, p, "time-limit", timeLimitUsage)
+}
+
 // durationVar binds a time-limit option to p.
 func durationVar(f *pflag.FlagSet, p *time.Duration, name string, usage string) {
 	f.Var(&durationValue{p: p}, name, usage)

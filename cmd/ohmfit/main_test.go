@@ -174,6 +174,8 @@ func TestGolden(t *testing.T) {
 		{"board-err-overwrite", []string{"board", "testdata/board/stocked-board.yaml", "--bom", "testdata/board/drawer.csv"}, ExitBadInput},
 		{"board-err-bom", []string{"board", "testdata/board/two.yaml", "--bom", "parts.txt"}, ExitBadInput},
 		{"board-err-format", []string{"board", "testdata/board/two.yaml", "--format", "xml"}, ExitBadInput},
+		{"board-err-time-limit", []string{"board", "example:controller", "--time-limit", "1ns"}, ExitBadInput},
+		{"board-err-time-limit-unit", []string{"board", "example:controller", "--time-limit", "5"}, ExitBadInput},
 
 		// examples
 		{"examples-list", []string{"examples"}, ExitOK},

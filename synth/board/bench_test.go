@@ -95,6 +95,8 @@ func BenchmarkBoard(b *testing.B) {
 		b.ReportMetric(float64(res.Alone), "alone")
 		b.ReportMetric(float64(designs), "designs")
 		b.ReportMetric(map[bool]float64{true: 1}[res.Proven], "proven")
+		b.ReportMetric(float64(res.Bound), "bound")
+		b.ReportMetric(map[bool]float64{true: 1}[res.TiesProven], "ties-proven")
 	})
 	nets, nvals := items(res)
 	b.Run("select/exact", func(b *testing.B) {

@@ -2,7 +2,9 @@ package board
 
 import (
 	"context"
+	"errors"
 	"fmt"
+	"math/bits"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -10,6 +12,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/solver"
@@ -439,5 +442,292 @@ func TestBOMTotals(t *testing.T) {
 	}
 	if strings.Join(chosen, " ") != strings.Join(vals, " ") || res.Distinct != len(vals) {
 		t.Errorf("chosen values %v, result %v (%d)", chosen, vals, res.Distinct)
+	}
+}
+
+// fewestBySubsets is the fewest distinct values of any selection, by brute
+// force over value sets: every subset of the values, smallest first, until
+// one contains a design of every network. It shares no code with the
+// search, so it checks the search's bounds and memo on boards deeper than
+// the enumeration of combinations can reach.
+func fewestBySubsets(nets [][]item, nvals int) int {
+	for size := 0; size <= nvals; size++ {
+		for mask := 0; mask < 1<<nvals; mask++ {
+			if bits.OnesCount(uint(mask)) != size {
+				continue
+			}
+			all := true
+			for _, its := range nets {
+				ok := false
+				for _, it := range its {
+					inside := true
+					for _, v := range it.vals {
+						inside = inside && mask&(1<<v) != 0
+					}
+					ok = ok || inside
+				}
+				all = all && ok
+			}
+			if all {
+				return size
+			}
+		}
+	}
+	return -1
+}
+
+// randomDeep makes a random selection problem of up to sixteen networks
+// over up to thirteen values. Half of them are two groups of networks (like
+// E96 dividers beside E24 ladders) whose values overlap in a few only, the
+// case groupBound is for.
+func randomDeep(rng *rand.Rand) ([][]item, int) {
+	nvals := 6 + rng.IntN(8)
+	nets := make([][]item, 4+rng.IntN(13))
+	split := rng.IntN(2) == 0
+	for r := range nets {
+		lo, n := 0, nvals
+		if split {
+			// The first group takes the lower 60 % of the values, the
+			// second the upper 60 %.
+			n = (nvals*3 + 4) / 5
+			if r%2 == 1 {
+				lo = nvals - n
+			}
+		}
+		for i := range 2 + rng.IntN(10) {
+			var vals []int32
+			for range 1 + rng.IntN(3) {
+				vals = append(vals, int32(lo+rng.IntN(n)))
+			}
+			slices.Sort(vals)
+			nets[r] = append(nets[r], item{vals: slices.Compact(vals), rel: float64(rng.IntN(4)) / 4, pow: 1, idx: i})
+		}
+	}
+	return nets, nvals
+}
+
+// TestChooseDeepBoards compares the exact selection's count and its proof
+// with the brute force over value sets, on random boards of up to sixteen
+// networks over up to thirteen values (randomDeep): deep enough that the search stacks
+// several levels of lists, bounds and remembered subproblems.
+func TestChooseDeepBoards(t *testing.T) {
+	n := 1500
+	if testing.Short() {
+		n = 200
+	}
+	rng := rand.New(rand.NewPCG(14, 3))
+	for k := range n {
+		nets, nvals := randomDeep(rng)
+		want := fewestBySubsets(nets, nvals)
+		sel := choose(context.Background(), prune(nets), nvals, DefaultMaxNodes)
+		if got := bruteObjective(prune(nets), sel.choice).distinct; got != want || sel.obj.distinct != want {
+			t.Fatalf("case %d %v: chosen %d (says %d), brute force over value sets %d", k, nets, got, sel.obj.distinct, want)
+		}
+		if !sel.proven || sel.bound != want {
+			t.Fatalf("case %d: proven %v, bound %d (minimum %d)", k, sel.proven, sel.bound, want)
+		}
+	}
+}
+
+// TestStagesMatchSubsets runs the search's stages one by one on random
+// boards, k rising from the trivial bound and, on a second selector,
+// falling from every value: each stage must find a set exactly when the
+// brute force over value sets says one of k values exists. The subproblems
+// the stages prove are kept from one stage to the next, so a fact recorded
+// under the wrong key shows here as a set missed.
+func TestStagesMatchSubsets(t *testing.T) {
+	n := 1500
+	if testing.Short() {
+		n = 200
+	}
+	rng := rand.New(rand.NewPCG(14, 4))
+	for c := range n {
+		nets, nvals := randomDeep(rng)
+		nets = prune(nets)
+		want := fewestBySubsets(nets, nvals)
+		up, down := newSelector(context.Background(), nets, nvals), newSelector(context.Background(), nets, nvals)
+		check := func(s *selector, k int) {
+			found, finished := s.exists(k, DefaultMaxNodes)
+			if !finished || found != (k >= want) {
+				t.Fatalf("case %d %v: k %d: found %v, finished %v; brute force over value sets: fewest %d", c, nets, k, found, finished, want)
+			}
+			if found && (len(s.bestSet) > k || !feasible(nets, nvals, s.bestSet)) {
+				t.Fatalf("case %d: k %d: the set found %v does not serve every network", c, k, s.bestSet)
+			}
+		}
+		for k := up.lb; k <= want; k++ {
+			check(up, k)
+		}
+		for k := nvals; k >= max(want-1, 0); k-- {
+			check(down, k)
+		}
+	}
+}
+
+// TestBrokenBoundIsCaught lifts the packing bound by one value, a bound
+// that claims more than is proven, and checks that the comparison with the
+// brute force over value sets then fails on some board: the tests above
+// can catch a wrong bound.
+func TestBrokenBoundIsCaught(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 5))
+	for range 200 {
+		nets, nvals := randomDeep(rng)
+		nets = prune(nets)
+		want := fewestBySubsets(nets, nvals)
+		s := newSelector(context.Background(), nets, nvals)
+		s.lift = 1
+		if found, _ := s.exists(want, DefaultMaxNodes); !found {
+			return // caught: a set of the fewest values was missed
+		}
+	}
+	t.Fatal("a packing bound lifted by one never missed a set: the comparisons could not catch a wrong bound")
+}
+
+// TestChooseExpiredContext runs the selection with a context whose time
+// has run out: every stage stops at once, so the greedy choice is kept;
+// it is proven only when it meets the trivial bound, and the bound stated
+// is never above the minimum (brute force over value sets) nor the count
+// below it.
+func TestChooseExpiredContext(t *testing.T) {
+	ctx, cancel := context.WithTimeout(context.Background(), -time.Second)
+	defer cancel()
+	rng := rand.New(rand.NewPCG(14, 6))
+	stopped := 0
+	for c := range 300 {
+		nets, nvals := randomDeep(rng)
+		nets = prune(nets)
+		want := fewestBySubsets(nets, nvals)
+		sel := choose(ctx, nets, nvals, DefaultMaxNodes)
+		if sel.proven && sel.obj.distinct != want {
+			t.Fatalf("case %d: proven with %d values, brute force %d", c, sel.obj.distinct, want)
+		}
+		if sel.tiesProven || !sel.out || sel.bound > want || sel.obj.distinct < want {
+			t.Fatalf("case %d: ties proven %v, out %v, bound %d, count %d; minimum %d", c, sel.tiesProven, sel.out, sel.bound, sel.obj.distinct, want)
+		}
+		if !sel.proven {
+			stopped++
+		}
+	}
+	if stopped == 0 {
+		t.Fatal("the greedy choice met the trivial bound on every board: the stop was never tested")
+	}
+}
+
+// TestResultStatus maps the board's proof and stop reason to the statuses
+// every search uses (constraints/README.md, Statuses).
+func TestResultStatus(t *testing.T) {
+	tests := []struct {
+		res  Result
+		want synth.Status
+	}{
+		{Result{Proven: true}, synth.Proven},
+		{Result{Proven: true, Stop: StopTime}, synth.Proven}, // only the tie-break was cut short
+		{Result{Stop: StopTime}, synth.TimeLimit},
+		{Result{Stop: StopInterrupted}, synth.Interrupted},
+		{Result{Stop: StopNodes}, synth.Heuristic},
+		{Result{}, synth.Heuristic}, // finished, but a network's list was cut
+	}
+	for _, tc := range tests {
+		t.Run(tc.want.String(), func(t *testing.T) {
+			if got := tc.res.Status(); got != tc.want {
+				t.Errorf("%+v: %v, want %v", tc.res, got, tc.want)
+			}
+		})
+	}
+}
+
+// TestSolveTimeLimitWhileListing: a time limit that ends before the first
+// network is listed leaves nothing to choose from: ErrTimeLimit, not an
+// interruption and not a selection.
+func TestSolveTimeLimitWhileListing(t *testing.T) {
+	b := smallBoards(t)["three dividers"]
+	res, err := Solve(context.Background(), b, &Settings{TimeLimit: time.Nanosecond})
+	if !errors.Is(err, ErrTimeLimit) || errors.Is(err, ErrInterrupted) || res != nil {
+		t.Fatalf("result %v, error %v; want ErrTimeLimit", res, err)
+	}
+}
+
+// needBySubsets is the fewest values, outside the set given, that serve
+// the networks listed, by brute force over value sets (-1 when none do).
+func needBySubsets(nets [][]item, nvals int, given []bool, which []int) int {
+	best := -1
+	for mask := 0; mask < 1<<nvals; mask++ {
+		n := bits.OnesCount(uint(mask))
+		if best >= 0 && n >= best {
+			continue
+		}
+		all := true
+		for _, r := range which {
+			ok := false
+			for _, it := range nets[r] {
+				inside := true
+				for _, v := range it.vals {
+					inside = inside && (given[v] || mask&(1<<v) != 0)
+				}
+				ok = ok || inside
+			}
+			all = all && ok
+		}
+		if all {
+			best = n
+		}
+	}
+	return best
+}
+
+// TestGroupBoundHolds checks groupBound against brute force: on random
+// boards of two groups with a random set already chosen, each group's
+// waiting networks are given their true need (brute force over value
+// sets) as the remembered fact, the strongest there can be; the bound must
+// still be no more than the true need of all waiting networks together.
+func TestGroupBoundHolds(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 8))
+	tight := 0
+	for c := 0; c < 400; {
+		nets, nvals := randomDeep(rng)
+		nets = prune(nets)
+		s := newSelector(context.Background(), nets, nvals)
+		if len(s.groups) < 2 {
+			continue
+		}
+		c++
+		s.k = nvals
+		for range rng.IntN(3) {
+			if v := int32(rng.IntN(nvals)); !s.in[v] {
+				s.in[v] = true
+				s.used = append(s.used, v)
+			}
+		}
+		nd, ok := s.narrow(s.all, 0, s.k-len(s.used))
+		if !ok || len(nd.needs) < 2 {
+			continue
+		}
+		var waiting []int
+		for _, n := range nd.needs {
+			waiting = append(waiting, n.r)
+		}
+		for g := range s.groups {
+			var part []need
+			var which []int
+			for _, n := range nd.needs {
+				if s.group[n.r] == g {
+					part, which = append(part, n), append(which, n.r)
+				}
+			}
+			if len(part) > 0 {
+				s.needs[s.subproblem(part)] = needBySubsets(nets, nvals, s.in, which)
+			}
+		}
+		want := needBySubsets(nets, nvals, s.in, waiting)
+		got := s.groupBound(nd)
+		if got > want {
+			t.Fatalf("case %d %v, set %v: group bound %d, the waiting networks need %d (brute force)", c, nets, s.used, got, want)
+		}
+		if got == want && got > s.packing(nd) {
+			tight++
+		}
+	}
+	if tight == 0 {
+		t.Fatal("the group bound never beat the packing bound: the test did not exercise it")
 	}
 }

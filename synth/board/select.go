@@ -2,9 +2,9 @@ package board
 
 import (
 	"context"
+	"encoding/binary"
 	"slices"
 	"sort"
-	"unsafe"
 
 	"github.com/ohmfit/ohmfit/constraints"
 )
@@ -116,16 +116,139 @@ type selector struct {
 	used   []int32 // the current set, in the order added
 	k      int     // most values allowed
 	enum   bool    // enumerate every set of k values (tie keys) rather than stop at the first
-	memo   map[string]struct{}
 	nodes  int64
 	budget int64
 	out    bool // the budget ran out (or the context ended)
 
+	// needs remembers, per subproblem, a proven lower bound on the new
+	// values it needs. A subproblem is the networks not yet served and
+	// the values of the set that some design of theirs uses: the other
+	// values of the set can never serve them, so the answer depends on
+	// nothing else. A search below it that finishes with s values to
+	// spare and no set proves it needs s+1. The facts hold for every k,
+	// so they are kept from one stage to the next; they make a board of
+	// groups that share few values cost about the sum of the groups, not
+	// their product.
+	needs map[string]int
+	// seen remembers the sets whose subtree the enumeration walked.
+	seen map[string]struct{}
+	// users[v] is the networks with a design that uses value v, as a
+	// bitset over the networks.
+	users [][]uint64
+	// all lists every item of every network; lb is the trivial lower
+	// bound, the most values any network's smallest design needs.
+	all [][]int
+	lb  int
+	// group[r] is network r's group, groups the networks of each: networks
+	// whose values mostly overlap are one group (groupBound).
+	group       []int
+	groups      [][]int
+	free        []bool // scratch for groupBound
+	partScratch []need
+	// lift is added to the lower bounds: always zero, except in the test
+	// that checks that a bound claiming too much is caught.
+	lift int
+
 	best    objective
 	bestSet []int32
-	key     []int32
-	taken   []bool // scratch for the packing bound
-	levels  [][][]int
+	key     []byte
+	taken   []bool      // scratch for the packing bound
+	levels  [][][]int   // per depth, per network: the items that still fit
+	store   [][][]int   // per depth, per network: the storage of the lists it owns
+	rels    [][]float64 // per depth, per network: its least relative error
+	served  [][]bool    // per depth, per network: a design of it is inside the set
+	unmet   []uint64    // scratch: the networks not yet served, as a bitset
+	stamp   []int32     // scratch: value id -> the last network that listed it, plus one
+	spread  []int32     // scratch: value id -> how many waiting networks could use it
+}
+
+func newSelector(ctx context.Context, nets [][]item, nvals int) *selector {
+	words := (len(nets) + 63) / 64
+	s := &selector{ctx: ctx, nets: nets, nvals: nvals, in: make([]bool, nvals), taken: make([]bool, nvals),
+		needs: map[string]int{}, stamp: make([]int32, nvals), spread: make([]int32, nvals), users: make([][]uint64, nvals), unmet: make([]uint64, words)}
+	for v := range s.users {
+		s.users[v] = make([]uint64, words)
+	}
+	for r, its := range nets {
+		for _, it := range its {
+			for _, v := range it.vals {
+				s.users[v][r/64] |= 1 << (r % 64)
+			}
+		}
+	}
+	s.group, s.groups = groupNetworks(nets, nvals)
+	s.free = make([]bool, nvals)
+	s.all = make([][]int, len(nets))
+	for r, its := range nets {
+		s.all[r] = make([]int, len(its))
+		m := -1
+		for i := range its {
+			s.all[r][i] = i
+			if m < 0 || len(its[i].vals) < m {
+				m = len(its[i].vals)
+			}
+		}
+		s.lb = max(s.lb, m)
+	}
+	return s
+}
+
+// groupNetworks joins networks whose sets of values overlap by at least
+// half of the smaller: the same series over the same range is one group,
+// E96 beside E24 is two. The groups only steer groupBound; any grouping
+// gives a valid bound.
+func groupNetworks(nets [][]item, nvals int) ([]int, [][]int) {
+	uses := make([][]bool, len(nets))
+	size := make([]int, len(nets))
+	for r, its := range nets {
+		uses[r] = make([]bool, nvals)
+		for _, it := range its {
+			for _, v := range it.vals {
+				if !uses[r][v] {
+					uses[r][v] = true
+					size[r]++
+				}
+			}
+		}
+	}
+	root := make([]int, len(nets))
+	for r := range root {
+		root[r] = r
+	}
+	var find func(int) int
+	find = func(r int) int {
+		if root[r] != r {
+			root[r] = find(root[r])
+		}
+		return root[r]
+	}
+	for a := range nets {
+		for b := a + 1; b < len(nets); b++ {
+			common := 0
+			for v := range nvals {
+				if uses[a][v] && uses[b][v] {
+					common++
+				}
+			}
+			if 2*common >= min(size[a], size[b]) {
+				root[find(a)] = find(b)
+			}
+		}
+	}
+	group := make([]int, len(nets))
+	ids := map[int]int{}
+	var groups [][]int
+	for r := range nets {
+		g, ok := ids[find(r)]
+		if !ok {
+			g = len(groups)
+			ids[find(r)] = g
+			groups = append(groups, nil)
+		}
+		group[r] = g
+		groups[g] = append(groups[g], r)
+	}
+	return group, groups
 }
 
 // fitNew returns how many of item it's values are not in the set.
@@ -139,6 +262,21 @@ func (s *selector) fitNew(it *item) int {
 	return n
 }
 
+// need is a network not yet served, with the fewest new values any of
+// its fitting designs adds.
+type need struct{ r, min int }
+
+// node is what one node of the search knows: each network's designs that
+// still fit, the networks not yet served, the one with the fewest fitting
+// designs to branch on (-1 when every network is served) and the largest
+// of the networks' least relative errors.
+type node struct {
+	fit    [][]int
+	needs  []need
+	branch int
+	relLB  float64
+}
+
 // run searches below the current set. fit[r] lists network r's items that
 // still fit (whose new values are within the slack). It returns true when
 // a set was found and the search is not enumerating.
@@ -148,61 +286,12 @@ func (s *selector) run(fit [][]int, depth int) bool {
 		s.out = true
 		return false
 	}
-	s.key = append(s.key[:0], s.used...)
-	slices.Sort(s.key)
-	// The set's key: its ids' bytes, copied (s.key is reused below).
-	key := string(unsafe.Slice((*byte)(unsafe.Pointer(unsafe.SliceData(s.key))), 4*len(s.key)))
-	if _, seen := s.memo[key]; seen {
-		return false
-	}
-	remember := func() {
-		if len(s.memo) < maxMemo {
-			s.memo[key] = struct{}{}
-		}
-	}
 	slack := s.k - len(s.used)
-	for len(s.levels) <= depth+1 {
-		s.levels = append(s.levels, make([][]int, len(s.nets)))
-	}
-	next := s.levels[depth+1]
-	branch, fewest := -1, 0
-	relLB := 0.0
-	type need struct{ r, min int }
-	var needs []need
-	for r, its := range s.nets {
-		list := next[r][:0]
-		minNew, minRel := slack+1, 0.0
-		for _, i := range fit[r] {
-			n := s.fitNew(&its[i])
-			if n > slack {
-				continue
-			}
-			list = append(list, i)
-			if n < minNew {
-				minNew = n
-			}
-			if len(list) == 1 || its[i].rel < minRel {
-				minRel = its[i].rel
-			}
-		}
-		next[r] = list
-		if len(list) == 0 {
-			remember()
-			return false
-		}
-		relLB = max(relLB, minRel)
-		if minNew > 0 {
-			needs = append(needs, need{r, minNew})
-			if branch < 0 || len(list) < fewest {
-				branch, fewest = r, len(list)
-			}
-		}
-	}
-	if s.enum && s.bestSet != nil && relLB > s.best.rel && !constraints.Same(relLB, s.best.rel) {
-		remember()
+	nd, ok := s.narrow(fit, depth, slack)
+	if !ok {
 		return false
 	}
-	if branch < 0 {
+	if nd.branch < 0 {
 		// Every network has a design inside the set.
 		if !s.enum {
 			s.bestSet = append([]int32(nil), s.used...)
@@ -211,62 +300,293 @@ func (s *selector) run(fit [][]int, depth int) bool {
 		if o := s.evaluate(s.used); s.bestSet == nil || o.better(s.best) {
 			s.best, s.bestSet = o, append([]int32(nil), s.used...)
 		}
-		remember()
 		return false
 	}
-	// Packing bound: networks whose possible new values are pairwise
-	// disjoint each need their own; their least needs add up.
-	if len(needs) > 1 {
-		sort.Slice(needs, func(a, b int) bool { return needs[a].min > needs[b].min })
-		clear(s.taken)
-		sum := 0
-		for _, nd := range needs {
-			disjoint := true
-			for _, i := range next[nd.r] {
-				for _, v := range s.nets[nd.r][i].vals {
-					if !s.in[v] && s.taken[v] {
-						disjoint = false
-					}
-				}
-			}
-			if !disjoint {
+	key := s.subproblem(nd.needs)
+	if s.needs[key] > slack {
+		return false
+	}
+	// proved records that the subproblem needs more than the slack.
+	proved := func() bool {
+		if !s.enum && len(s.needs) < maxMemo {
+			s.needs[key] = slack + 1
+		}
+		return false
+	}
+	if s.enum {
+		if s.bestSet != nil && nd.relLB > s.best.rel && !constraints.Same(nd.relLB, s.best.rel) {
+			return false
+		}
+		set := s.setKey()
+		if _, seen := s.seen[set]; seen {
+			return false
+		}
+		if len(s.seen) < maxMemo {
+			s.seen[set] = struct{}{}
+		}
+	}
+	if max(s.packing(nd), s.groupBound(nd))+s.lift > slack {
+		return proved()
+	}
+	if found := s.branchOn(nd, depth); found || s.out {
+		return found
+	}
+	return proved()
+}
+
+// narrow lists each network's items that fit at this node and picks the
+// network to branch on. It reports false when some network has none left
+// (the subproblem needs more than the slack).
+func (s *selector) narrow(fit [][]int, depth, slack int) (node, bool) {
+	for len(s.levels) <= depth+1 {
+		s.levels = append(s.levels, make([][]int, len(s.nets)))
+		s.store = append(s.store, make([][]int, len(s.nets)))
+		s.rels = append(s.rels, make([]float64, len(s.nets)))
+		s.served = append(s.served, make([]bool, len(s.nets)))
+	}
+	nd := node{fit: s.levels[depth+1], branch: -1}
+	rels, served := s.rels[depth+1], s.served[depth+1]
+	fewest := 0
+	for r, its := range s.nets {
+		if depth > 0 && s.served[depth][r] {
+			// Served above stays served (the set only grows): its list
+			// is not needed again, and its least relative error above is
+			// still a lower bound.
+			nd.fit[r], rels[r], served[r] = fit[r], s.rels[depth][r], true
+			nd.relLB = max(nd.relLB, rels[r])
+			continue
+		}
+		list := s.store[depth+1][r][:0]
+		minNew, minRel := slack+1, 0.0
+		for _, i := range fit[r] {
+			n := s.fitNew(&its[i])
+			if n > slack {
 				continue
 			}
-			for _, i := range next[nd.r] {
-				for _, v := range s.nets[nd.r][i].vals {
-					if !s.in[v] {
-						s.taken[v] = true
-					}
-				}
+			list = append(list, i)
+			minNew = min(minNew, n)
+			if len(list) == 1 || its[i].rel < minRel {
+				minRel = its[i].rel
 			}
-			if sum += nd.min; sum > slack {
-				remember()
-				return false
+		}
+		nd.fit[r], s.store[depth+1][r] = list, list
+		if len(list) == 0 {
+			return nd, false
+		}
+		nd.relLB = max(nd.relLB, minRel)
+		rels[r], served[r] = minRel, minNew == 0
+		if minNew > 0 {
+			nd.needs = append(nd.needs, need{r, minNew})
+			if nd.branch < 0 || len(list) < fewest {
+				nd.branch, fewest = r, len(list)
 			}
 		}
 	}
-	// Branch on the network with the fewest fitting designs. Of designs
-	// whose new values contain another's, only the smaller is tried: any
-	// complete set reached through the larger contains one reachable
-	// through the smaller.
+	return nd, true
+}
+
+// subproblem returns the key of the networks in needs with the values of
+// the set that some design of theirs uses.
+func (s *selector) subproblem(needs []need) string {
+	clear(s.unmet)
+	for _, n := range needs {
+		s.unmet[n.r/64] |= 1 << (n.r % 64)
+	}
+	k := s.key[:0]
+	for _, w := range s.unmet {
+		k = binary.LittleEndian.AppendUint64(k, w)
+	}
+	vals := make([]int32, 0, len(s.used))
+	for _, v := range s.used {
+		for i, w := range s.users[v] {
+			if w&s.unmet[i] != 0 {
+				vals = append(vals, v)
+				break
+			}
+		}
+	}
+	slices.Sort(vals)
+	for _, v := range vals {
+		k = binary.LittleEndian.AppendUint32(k, uint32(v))
+	}
+	s.key = k
+	return string(k)
+}
+
+// setKey returns the key of the current set.
+func (s *selector) setKey() string {
+	vals := slices.Clone(s.used)
+	slices.Sort(vals)
+	k := s.key[:0]
+	for _, v := range vals {
+		k = binary.LittleEndian.AppendUint32(k, uint32(v))
+	}
+	s.key = k
+	return string(k)
+}
+
+// packing is a lower bound on the new values still needed: networks whose
+// possible new values are pairwise disjoint each need their own, so their
+// least needs add up (the largest needs are taken first).
+func (s *selector) packing(nd node) int {
+	if len(nd.needs) == 1 {
+		return nd.needs[0].min
+	}
+	return s.pack(slices.Clone(nd.needs), nd.fit, nil)
+}
+
+// pack adds up the least needs of networks whose possible new values,
+// leaving out those marked free, are pairwise disjoint (the largest needs
+// first). It sorts needs.
+func (s *selector) pack(needs []need, fit [][]int, free []bool) int {
+	sort.Slice(needs, func(a, b int) bool { return needs[a].min > needs[b].min })
+	counted := func(v int32) bool { return !s.in[v] && (free == nil || !free[v]) }
+	clear(s.taken)
+	sum := 0
+	for _, n := range needs {
+		disjoint := true
+		for _, i := range fit[n.r] {
+			for _, v := range s.nets[n.r][i].vals {
+				if counted(v) && s.taken[v] {
+					disjoint = false
+				}
+			}
+		}
+		if !disjoint {
+			continue
+		}
+		for _, i := range fit[n.r] {
+			for _, v := range s.nets[n.r][i].vals {
+				if counted(v) {
+					s.taken[v] = true
+				}
+			}
+		}
+		sum += n.min
+	}
+	return sum
+}
+
+// groupBound is a second lower bound on the new values still needed, for
+// boards whose networks fall into groups that share few values (E96
+// dividers beside E24 ladders, say). Of the groups, take the one whose
+// waiting networks have the largest need f proven for them alone (a
+// remembered fact). Every set that serves the node gives them f new values
+// among their own candidates C. The other waiting networks are then served
+// by values outside C as well, and those of them whose candidates outside
+// C are disjoint need their own: f plus their least needs outside C.
+func (s *selector) groupBound(nd node) int {
+	if len(s.groups) < 2 || len(nd.needs) < 2 {
+		return 0
+	}
+	bestG, f := -1, 0
+	for g := range s.groups {
+		part := s.partScratch[:0]
+		for _, n := range nd.needs {
+			if s.group[n.r] == g {
+				part = append(part, n)
+			}
+		}
+		s.partScratch = part
+		if len(part) == 0 || len(part) == len(nd.needs) {
+			continue // the node's own subproblem, already looked up
+		}
+		if v := s.needs[s.subproblem(part)]; v > f {
+			bestG, f = g, v
+		}
+	}
+	if bestG < 0 {
+		return 0
+	}
+	clear(s.free)
+	for _, n := range nd.needs {
+		if s.group[n.r] != bestG {
+			continue
+		}
+		for _, i := range nd.fit[n.r] {
+			for _, v := range s.nets[n.r][i].vals {
+				s.free[v] = !s.in[v]
+			}
+		}
+	}
+	var rest []need
+	for _, n := range nd.needs {
+		if s.group[n.r] == bestG {
+			continue
+		}
+		least := -1
+		for _, i := range nd.fit[n.r] {
+			c := 0
+			for _, v := range s.nets[n.r][i].vals {
+				if !s.in[v] && !s.free[v] {
+					c++
+				}
+			}
+			if least < 0 || c < least {
+				least = c
+			}
+		}
+		if least > 0 {
+			rest = append(rest, need{n.r, least})
+		}
+	}
+	return f + s.pack(rest, nd.fit, s.free)
+}
+
+// branchOn tries the designs of the network with the fewest, fewest new
+// values first. Of designs whose new values contain another's, only the
+// smaller is tried: any complete set reached through the larger contains
+// one reachable through the smaller.
+func (s *selector) branchOn(nd node, depth int) bool {
+	r := nd.branch
 	var adds [][]int32
-	for _, i := range next[branch] {
+	for _, i := range nd.fit[r] {
 		var add []int32
-		for _, v := range s.nets[branch][i].vals {
+		for _, v := range s.nets[r][i].vals {
 			if !s.in[v] {
 				add = append(add, v)
 			}
 		}
 		adds = append(adds, add)
 	}
-	order := make([]int, len(adds))
-	for i := range order {
-		order[i] = i
+	// Popular values first: those that the most networks still waiting
+	// could use, which is where a set that serves them all is found soonest.
+	clear(s.spread)
+	for _, n := range nd.needs {
+		for _, i := range nd.fit[n.r] {
+			for _, v := range s.nets[n.r][i].vals {
+				if !s.in[v] && s.stamp[v] != int32(n.r+1) {
+					s.stamp[v] = int32(n.r + 1)
+					s.spread[v]++
+				}
+			}
+		}
 	}
-	sort.SliceStable(order, func(a, b int) bool { return len(adds[order[a]]) < len(adds[order[b]]) })
+	clear(s.stamp)
+	pop := make([]int32, len(adds))
+	for j, add := range adds {
+		for _, v := range add {
+			pop[j] += s.spread[v]
+		}
+	}
+	order := make([]int, len(adds))
+	for j := range order {
+		order[j] = j
+	}
+	sort.SliceStable(order, func(a, b int) bool {
+		x, y := order[a], order[b]
+		if len(adds[x]) != len(adds[y]) {
+			return len(adds[x]) < len(adds[y])
+		}
+		return pop[x] > pop[y]
+	})
+	sorted := make([][]int32, len(adds))
+	for j, o := range order {
+		sorted[j] = adds[o]
+	}
+	adds = sorted
 	tried := map[addKey]bool{}
-	for _, o := range order {
-		add := adds[o]
+	for _, add := range adds {
 		if triedSubset(tried, add) {
 			continue
 		}
@@ -275,7 +595,7 @@ func (s *selector) run(fit [][]int, depth int) bool {
 			s.in[v] = true
 		}
 		s.used = append(s.used, add...)
-		found := s.run(next, depth+1)
+		found := s.run(nd.fit, depth+1)
 		s.used = s.used[:len(s.used)-len(add)]
 		for _, v := range add {
 			s.in[v] = false
@@ -284,7 +604,6 @@ func (s *selector) run(fit [][]int, depth int) bool {
 			return found
 		}
 	}
-	remember()
 	return false
 }
 
@@ -494,38 +813,15 @@ func feasible(nets [][]item, nvals int, set []int32) bool {
 // without one proves the best so far minimal. If the budget ends first,
 // the rest of it goes to the lower bound: for k from the trivial bound (the
 // most values any network's smallest design needs) upwards, each finished
-// search without a set proves k values too few. With the minimum proven,
-// every set of that size is enumerated (bounded by the relative error) for
-// the tie keys, with what is left of the budget.
+// search without a set proves k values too few. The subproblems proven
+// along the way serve every later stage. With the minimum proven, every
+// set of that size is enumerated (bounded by the relative error) for the
+// tie keys, with what is left of the budget.
 func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selection {
+	s := newSelector(ctx, nets, nvals)
 	set := greedy(nets, nvals)
 	bestObj, _ := evaluateSet(nets, nvals, set)
-	s := &selector{ctx: ctx, nets: nets, nvals: nvals, in: make([]bool, nvals), taken: make([]bool, nvals)}
-	all := make([][]int, len(nets))
-	lb := 0
-	for r, its := range nets {
-		all[r] = make([]int, len(its))
-		m := -1
-		for i := range its {
-			all[r][i] = i
-			if m < 0 || len(its[i].vals) < m {
-				m = len(its[i].vals)
-			}
-		}
-		lb = max(lb, m)
-	}
-	sel := selection{bound: lb}
-	// search runs one stage: is there a set of at most k values? It
-	// reports whether one was found and whether the stage finished.
-	search := func(k int, until int64) (found, finished bool) {
-		s.k, s.memo, s.bestSet, s.out, s.budget = k, map[string]struct{}{}, nil, false, until
-		found = s.run(all, 0)
-		if s.out {
-			sel.out = true
-			return false, false
-		}
-		return found, true
-	}
+	sel := selection{bound: s.lb}
 	// take makes the set found the best so far: the values its choice
 	// uses (they may be fewer than the set's).
 	take := func() {
@@ -533,49 +829,62 @@ func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selecti
 		set = union(nets, ch)
 		bestObj, _ = evaluateSet(nets, nvals, set)
 	}
-	proven := bestObj.distinct <= lb
-	for !proven && bestObj.distinct > lb {
-		found, finished := search(bestObj.distinct-1, budget/2)
+	proven := bestObj.distinct <= s.lb
+	for !proven {
+		found, finished := s.exists(bestObj.distinct-1, budget/2)
 		if !finished {
 			break
 		}
-		if !found {
-			proven = true
+		if proven = !found; found {
+			take()
+			proven = bestObj.distinct <= s.lb
+		}
+	}
+	for k := sel.bound; !proven && k < bestObj.distinct; k++ {
+		found, finished := s.exists(k, budget)
+		if !finished {
 			break
 		}
-		take()
-	}
-	if proven {
-		sel.bound = bestObj.distinct
-	} else {
-		for k := lb; k < bestObj.distinct; k++ {
-			found, finished := search(k, budget)
-			if !finished {
-				break
-			}
-			if found {
-				take()
-				proven = true
-				break
-			}
-			sel.bound = k + 1
-		}
-		if sel.bound >= bestObj.distinct {
+		if found {
+			take()
 			proven = true
 		}
+		sel.bound = k + 1
+		proven = proven || sel.bound >= bestObj.distinct
 	}
+	sel.out = s.out
 	if proven {
 		sel.bound = bestObj.distinct
-		// Every set of the minimal size, for the tie keys.
-		s.k, s.memo, s.enum, s.out, s.budget = bestObj.distinct, map[string]struct{}{}, true, false, budget
-		s.best, s.bestSet = bestObj, set
-		s.run(all, 0)
-		sel.out = sel.out || s.out
-		set, bestObj = s.bestSet, s.best
-		sel.tiesProven = !s.out
+		set, bestObj, sel.tiesProven = s.ties(bestObj, set, budget)
+		sel.out = sel.out || !sel.tiesProven
 	}
 	sel.proven = proven
 	sel.obj, sel.choice = evaluateSet(nets, nvals, set)
 	sel.nodes = s.nodes
 	return sel
+}
+
+// exists runs one stage: is there a set of at most k values? It reports
+// whether one was found (in s.bestSet) and whether the stage finished
+// within the node budget until (counted over all stages) and the context.
+func (s *selector) exists(k int, until int64) (found, finished bool) {
+	s.k, s.enum, s.bestSet, s.out, s.budget = k, false, nil, false, until
+	if s.out = s.ctx.Err() != nil; s.out {
+		// A stage that starts after the limit stops at once.
+		return false, false
+	}
+	found = s.run(s.all, 0)
+	return found, !s.out
+}
+
+// ties enumerates every set of k values, k the proven minimum, for the
+// best tie keys, starting from the best so far. It reports whether the
+// enumeration finished within the budget.
+func (s *selector) ties(best objective, set []int32, until int64) ([]int32, objective, bool) {
+	s.k, s.seen, s.enum, s.out, s.budget = best.distinct, map[string]struct{}{}, true, false, until
+	s.best, s.bestSet = best, set
+	if s.out = s.ctx.Err() != nil; !s.out {
+		s.run(s.all, 0)
+	}
+	return s.bestSet, s.best, !s.out
 }

@@ -27,8 +27,8 @@ type Settings struct {
 	// Beyond it the best selection found so far is kept, with the proven
 	// lower bound. Zero means DefaultMaxNodes.
 	MaxNodes int64
-	// TimeLimit stops the selection search after this long, as MaxNodes
-	// does. Zero means no limit.
+	// TimeLimit, counted from the start of Solve, stops the selection
+	// search as MaxNodes does. Zero means no limit.
 	TimeLimit time.Duration
 }
 
@@ -157,8 +157,47 @@ var ErrBudget = errors.New("board: a network's space is too large to list every 
 
 // Solve lists every network's designs and chooses one per network with the
 // fewest distinct values. A network that cannot be met gives an
-// *InfeasibleError naming every such network.
+// *InfeasibleError naming every such network. Settings.TimeLimit counts
+// from the start: when it ends during the selection the best selection so
+// far is returned, not proven, with its bound; when it ends while the
+// designs are still being listed there is no selection yet, and the error
+// wraps ErrTimeLimit.
 func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
+	set := withDefaults(s)
+	start := time.Now()
+	tctx := ctx
+	if set.TimeLimit > 0 {
+		var cancel context.CancelFunc
+		tctx, cancel = context.WithTimeout(ctx, set.TimeLimit)
+		defer cancel()
+	}
+	res := &Result{Board: b}
+	var err error
+	if res.Networks, err = listAll(ctx, tctx, b, &set); err != nil {
+		return nil, err
+	}
+	nets, table := selectionItems(res.Networks)
+	nets = prune(nets)
+	for r := range nets {
+		res.Networks[r].Kept = len(nets[r])
+	}
+	sel := choose(tctx, nets, len(table), set.MaxNodes)
+	switch {
+	case !sel.out:
+	case ctx.Err() != nil:
+		res.Stop = StopInterrupted
+	case tctx.Err() != nil:
+		res.Stop = StopTime
+	default:
+		res.Stop = StopNodes
+	}
+	res.record(sel, nets, table)
+	res.Elapsed = time.Since(start)
+	return res, nil
+}
+
+// withDefaults returns the settings with every zero replaced by its default.
+func withDefaults(s *Settings) Settings {
 	var set Settings
 	if s != nil {
 		set = *s
@@ -169,11 +208,20 @@ func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
 	if set.MaxNodes <= 0 {
 		set.MaxNodes = DefaultMaxNodes
 	}
-	start := time.Now()
-	res := &Result{Board: b, Networks: make([]NetworkResult, len(b.Networks))}
+	return set
+}
+
+// listAll lists every network's designs under tctx (the time limit's
+// context, below ctx). Networks that cannot be met are all named in one
+// *InfeasibleError.
+func listAll(ctx, tctx context.Context, b *Board, set *Settings) ([]NetworkResult, error) {
+	out := make([]NetworkResult, len(b.Networks))
 	var unmet []Unmet
 	for i, n := range b.Networks {
-		nr, u, err := enumerate(ctx, n, &set)
+		nr, u, err := enumerate(tctx, n, set)
+		if errors.Is(err, ErrInterrupted) && ctx.Err() == nil {
+			return nil, errorf(ErrTimeLimit, "the time limit ran out while listing the networks' designs (at %s)", n.Name())
+		}
 		if err != nil {
 			return nil, err
 		}
@@ -181,12 +229,17 @@ func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
 			unmet = append(unmet, *u)
 			continue
 		}
-		res.Networks[i] = *nr
+		out[i] = *nr
 	}
 	if unmet != nil {
 		return nil, &InfeasibleError{Networks: unmet}
 	}
-	// The board's value table: every physical value any design uses.
+	return out, nil
+}
+
+// selectionItems gives each network's designs as the selection sees them,
+// over the board's value table: every physical value any design uses.
+func selectionItems(nrs []NetworkResult) ([][]item, []float64) {
 	ids := map[string]int32{}
 	var table []float64
 	id := func(v float64) int32 {
@@ -198,10 +251,10 @@ func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
 		table = append(table, v)
 		return int32(len(table) - 1)
 	}
-	nets := make([][]item, len(res.Networks))
-	for r := range res.Networks {
-		for i := range res.Networks[r].Designs {
-			d := &res.Networks[r].Designs[i]
+	nets := make([][]item, len(nrs))
+	for r := range nrs {
+		for i := range nrs[r].Designs {
+			d := &nrs[r].Designs[i]
 			it := item{rel: d.Rel, pow: d.Score.Power, idx: i}
 			for _, v := range d.PartValues() {
 				it.vals = append(it.vals, id(v))
@@ -211,26 +264,12 @@ func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
 			nets[r] = append(nets[r], it)
 		}
 	}
-	nets = prune(nets)
-	for r := range nets {
-		res.Networks[r].Kept = len(nets[r])
-	}
-	sctx := ctx
-	if set.TimeLimit > 0 {
-		var cancel context.CancelFunc
-		sctx, cancel = context.WithTimeout(ctx, set.TimeLimit)
-		defer cancel()
-	}
-	sel := choose(sctx, nets, len(table), set.MaxNodes)
-	switch {
-	case !sel.out:
-	case ctx.Err() != nil:
-		res.Stop = StopInterrupted
-	case sctx.Err() != nil:
-		res.Stop = StopTime
-	default:
-		res.Stop = StopNodes
-	}
+	return nets, table
+}
+
+// record writes the selection into the result: each network's choice, the
+// values, the proof and the bound, and the count of the networks alone.
+func (res *Result) record(sel selection, nets [][]item, table []float64) {
 	cut := false
 	for r, c := range sel.choice {
 		res.Networks[r].Chosen = nets[r][c].idx
@@ -246,7 +285,7 @@ func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
 	res.TiesProven = sel.tiesProven && !cut
 	if cut {
 		res.Bound = 0
-		for _, n := range b.Networks {
+		for _, n := range res.Board.Networks {
 			if len(n.Problem.Domains) > 0 {
 				res.Bound = 1
 			}
@@ -263,9 +302,28 @@ func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
 		}
 	}
 	res.Alone = len(alone)
-	res.Elapsed = time.Since(start)
-	return res, nil
 }
+
+// Status is the board's status in the words of every search (the glossary
+// of constraints/README.md): proven when no selection with fewer distinct
+// values exists; time-limit or interrupted when the limit or Ctrl-C
+// stopped the selection; heuristic when the node budget ran out or a
+// network's list was cut.
+func (res *Result) Status() synth.Status {
+	switch {
+	case res.Proven:
+		return synth.Proven
+	case res.Stop == StopTime:
+		return synth.TimeLimit
+	case res.Stop == StopInterrupted:
+		return synth.Interrupted
+	}
+	return synth.Heuristic
+}
+
+// ErrTimeLimit is wrapped by the error of a Solve whose time limit ended
+// while it listed a network's designs: there is no selection to show yet.
+var ErrTimeLimit = errors.New("board: the time limit ran out while listing the networks' designs")
 
 // ErrInterrupted is wrapped by the error of a Solve whose context ended
 // while it listed a network's designs: there is no selection to show yet.
