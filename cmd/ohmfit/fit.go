@@ -41,7 +41,7 @@ func bindSearchFlags(cmd *cobra.Command, o *searchOptions) {
 	countVar(f, &o.Top, "top", 10, 1, maxListed, "how many ranked answers to show (`N`, at most 10,000)")
 	f.StringVar(&o.Format, "format", "table", "`FORMAT` of the output: table, json or csv")
 	f.StringVar(&o.Series, "series", "", "use this `SERIES` (E3 … E192) for every position, overriding the template")
-	durationVar(f, &o.TimeLimit, "time-limit", "stop after this long (`DURATION`, e.g. 30s) and show the best found so far, marked not proven")
+	timeLimitVar(f, &o.TimeLimit)
 	countVar(f, &o.Workers, "workers", 0, 0, maxWorkers, "goroutines to search with (`N`; 0: one per core); the answer does not depend on it")
 	f.StringVar(&o.Method, "method", "auto", "`METHOD`: bound (branch and bound over value boxes, proven best), exhaustive (every row, proven best), heuristic (a relaxation, then the standard values around it; not proven), or auto (branch and bound where its bounds apply, else exhaustive when the space allows)")
 	f.BoolVarP(&o.Quiet, "quiet", "q", false, "no progress bar")

@@ -30,11 +30,8 @@ func (r *Result) Check() (*Checked, error) {
 	var lines []variation.BOMLine
 	for _, nr := range r.Networks {
 		n := nr.Network
-		d, err := variation.NewDesign(n.Problem.Spec, nr.Choice().Options, "", constraints.Ambient{})
-		if err != nil {
-			return nil, errorf(err, "%s: %s", n.Name(), constraints.Message(err))
-		}
-		rep, err := variation.Check(d, &variation.Settings{Samples: -1})
+		// The same check and BOM as fit --bom's (variation.AnswerBOM).
+		d, rep, err := variation.CheckAnswer(n.Problem.Spec, nr.Choice().Options, "", constraints.Ambient{}, &variation.Settings{Samples: -1})
 		if err != nil {
 			return nil, errorf(err, "%s: %s", n.Name(), constraints.Message(err))
 		}
