@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -54,12 +55,14 @@ search (up to 2,000 per network, the closest first; a network with more is
 named, and the result is then not proven). The selection is then searched
 exactly: "proven" means no selection with fewer distinct values exists.
 
-"distinct" counts the distinct resistance values of the chosen parts (each
-physical part of a position made of two); the templates' fixed resistors,
-sensors and stand-ins are not counted, and a value ordered at two
-tolerances or packages is one value (and two BOM lines). "alone" counts
-them when every network takes its own best answer within its cap (rank 1 by
-its template's rank keys). The BOM lists every resistor of every network,
+"distinct" counts the distinct resistor values on the board: those of the
+chosen parts (each physical part of a position made of two) and those of
+the templates' fixed resistors, which are on the board whatever is chosen
+(so a design that reuses one adds nothing). Sensors and stand-ins are not
+resistor values and are not counted; a value ordered at two tolerances or
+packages is one value (and two BOM lines). "alone" counts them when every
+network takes its own best answer within its cap (rank 1 by its
+template's rank keys). The BOM lists every resistor of every network,
 the templates' fixed ones too, designators prefixed (U3-R1), one line per
 item to order, with the columns of check --bom.
 
@@ -245,8 +248,12 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 		name = res.Board.Spec.File
 	}
 	fmt.Fprintf(&b, "%s\n", name)
-	fmt.Fprintf(&b, "%d networks; %d distinct values in the chosen parts (alone %d, saving %d); %s\n\n",
-		len(res.Networks), res.Distinct, res.Alone, res.Alone-res.Distinct, boardVerdict(res))
+	fixedNote := ""
+	if len(res.Fixed) > 0 {
+		fixedNote = fmt.Sprintf(", %d of them in fixed parts", len(res.Fixed))
+	}
+	fmt.Fprintf(&b, "%d networks; %d distinct resistor values on the board%s (alone %d, saving %d); %s\n\n",
+		len(res.Networks), res.Distinct, fixedNote, res.Alone, res.Alone-res.Distinct, boardVerdict(res))
 	tb := table{indent: "  ", cols: []column{{gap: 2}, {gap: 3}, {gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {right: true}}}
 	tb.add("network", "template", "choice", "error", "cap", "designs")
 	for i := range res.Networks {
@@ -264,8 +271,11 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 	vals := make([]string, len(res.Values))
 	for i, v := range res.Values {
 		vals[i] = units.Format(v)
+		if slices.Contains(res.Fixed, v) {
+			vals[i] += " (fixed)"
+		}
 	}
-	fmt.Fprintf(&b, "\n  chosen values: %s\n", strings.Join(vals, ", "))
+	fmt.Fprintf(&b, "\n  values: %s\n", strings.Join(vals, ", "))
 	fmt.Fprintf(&b, "  largest error relative to its cap %.0f%%; total power %s\n\n", 100*res.RelMax, units.FormatUnit(res.Power, units.Watt))
 	bt := table{indent: "  ", cols: []column{{gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {gap: 3}, {right: true}}}
 	bt.add("designators", "value", "tolerance", "package", "quantity")
@@ -287,52 +297,32 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 }
 
 // bomNote explains why the BOM has more lines than the board has distinct
-// chosen values, when it does: the templates' fixed resistors, sensors and
-// stand-ins are on it but not counted, and a value ordered at two
-// tolerances or packages is two lines.
+// resistor values, when it does: sensors and stand-ins are on it but are
+// not resistor values, and a value ordered at two tolerances or packages
+// is two lines.
 func bomNote(res *board.Result, chk *board.Checked) string {
 	if len(chk.BOM) == res.Distinct {
 		return ""
 	}
-	chosen := map[string]bool{}
-	for _, nr := range res.Networks {
-		for k, d := range nr.Network.Problem.Domains {
-			name := board.Designator(nr.Network.Spec.Prefix, d.Name)
-			chosen[name], chosen[name+"a"], chosen[name+"b"] = true, nr.Choice().Options[k].Count == 2, nr.Choice().Options[k].Count == 2
-		}
-	}
-	fixed, other, lines := false, false, map[float64]int{}
+	other, lines := false, map[float64]int{}
 	for _, l := range chk.BOM {
-		for _, d := range l.Designators {
-			if chosen[d] {
-				lines[l.Value]++
-				break
-			}
+		if l.Type != variation.TypeResistor {
+			other = true
+			continue
 		}
-		for _, d := range l.Designators {
-			if !chosen[d] {
-				fixed = fixed || l.Type == variation.TypeResistor
-				other = other || l.Type != variation.TypeResistor
-			}
-		}
-	}
-	split := false
-	for _, n := range lines {
-		split = split || n > 1
+		lines[l.Value]++
 	}
 	var why []string
-	switch {
-	case fixed && other:
-		why = append(why, "the templates' fixed resistors, sensors and stand-ins are on it too, not counted")
-	case fixed:
-		why = append(why, "the templates' fixed resistors are on it too, not counted")
-	case other:
+	if other {
 		why = append(why, "the templates' sensors and stand-ins are on it too, not counted")
 	}
-	if split {
-		why = append(why, "a value ordered at two tolerances or packages is one value and two lines")
+	for _, n := range lines {
+		if n > 1 {
+			why = append(why, "a value ordered at two tolerances or packages is one value and two lines")
+			break
+		}
 	}
-	return fmt.Sprintf("%d BOM lines for %d distinct chosen values: %s.", len(chk.BOM), res.Distinct, strings.Join(why, "; "))
+	return fmt.Sprintf("%d BOM lines for %d distinct resistor values: %s.", len(chk.BOM), res.Distinct, strings.Join(why, "; "))
 }
 
 // boardJSON builds the board's JSON document (keys as the contract fixes

@@ -1,6 +1,7 @@
 package board
 
 import (
+	"cmp"
 	"context"
 	"errors"
 	"fmt"
@@ -216,6 +217,13 @@ choose:
 `, vin, vout, vin, vout, stock)
 }
 
+// loadedDividerTemplate is dividerTemplate with a fixed load resistor on
+// its output: a value on the board whatever the divider takes.
+func loadedDividerTemplate(vin, vout float64, load, stock string) string {
+	rl := fmt.Sprintf("  - {name: RL, type: resistor, from: out, to: gnd, value: %s}\ntargets:", load)
+	return strings.Replace(dividerTemplate(vin, vout, stock), "targets:", rl, 1)
+}
+
 // smallBoards are real boards small enough to enumerate every combination
 // of their networks' designs.
 func smallBoards(t *testing.T) map[string]*Board {
@@ -238,7 +246,26 @@ networks:
   - {template: d.yaml, prefix: D, error_max: 10%}
 `, map[string]string{"a.yaml": dividerTemplate(5, 2.5, stockB), "b.yaml": dividerTemplate(24, 3.3, stockB),
 			"c.yaml": dividerTemplate(9, 4, stockA), "d.yaml": dividerTemplate(3.3, 0.8, stockB)}),
+		// Fixed loads whose values are in the stock: a design that reuses
+		// one adds no value to the board.
+		"three loaded dividers": writeBoard(t, `ohmfit: 1
+board: loaded
+networks:
+  - {template: a.yaml, prefix: A, error_max: 10%}
+  - {template: b.yaml, prefix: B, error_max: 10%}
+  - {template: c.yaml, prefix: C, error_max: 12%}
+`, map[string]string{"a.yaml": loadedDividerTemplate(5, 2.5, "10k", stockB), "b.yaml": loadedDividerTemplate(12, 3.3, "2.7k", stockB),
+			"c.yaml": dividerTemplate(3.3, 1.8, stockB)}),
 	}
+}
+
+// formatAll writes values as the tests key them.
+func formatAll(vs []float64) []string {
+	out := make([]string, len(vs))
+	for i, v := range vs {
+		out[i] = strconv.FormatFloat(v, 'g', 9, 64)
+	}
+	return out
 }
 
 // TestSolveMatchesBruteForce solves small real boards and compares with
@@ -263,8 +290,8 @@ func TestSolveMatchesBruteForce(t *testing.T) {
 				combos *= len(nr.Designs)
 				for i, d := range nr.Designs {
 					it := item{rel: d.Rel, pow: d.Score.Power, idx: i}
-					for _, v := range d.PartValues() {
-						k := strconv.FormatFloat(v, 'g', 9, 64)
+					// Every design of the network carries its fixed resistors.
+					for _, k := range append(templateFixed(nr.Network), formatAll(d.PartValues())...) {
 						if _, ok := ids[k]; !ok {
 							ids[k] = int32(len(ids))
 						}
@@ -294,8 +321,8 @@ func TestSolveMatchesBruteForce(t *testing.T) {
 				if c.Score.Error > nr.Network.Cap && !constraints.Same(c.Score.Error, nr.Network.Cap) {
 					t.Errorf("%s: error %g above its cap %g", nr.Network.Name(), c.Score.Error, nr.Network.Cap)
 				}
-				for _, v := range c.PartValues() {
-					used[strconv.FormatFloat(v, 'g', 9, 64)] = true
+				for _, k := range append(templateFixed(nr.Network), formatAll(c.PartValues())...) {
+					used[k] = true
 				}
 			}
 			if got := bruteObjective(nets, chosen); got.distinct != res.Distinct || len(used) != len(res.Values) {
@@ -308,6 +335,26 @@ func TestSolveMatchesBruteForce(t *testing.T) {
 // TestConsolidationSaves runs the built-in controller board: taken alone,
 // its networks' own best answers (rank 1 of each network's search within
 // its cap, looked up again here) need more values than the board's choice.
+// templateFixed lists, from a network's template itself, the values of its
+// fixed resistors: resistor parts with a value, neither a sensor, an ADC's
+// modelled input nor a part the conditions set (a stand-in). They are
+// resistor values on the board whatever the free positions take.
+func templateFixed(n *Network) []string {
+	setByCondition := map[string]bool{}
+	for _, c := range n.Template.Conditions {
+		for _, st := range c.Set {
+			setByCondition[st.Part] = true
+		}
+	}
+	var out []string
+	for _, ps := range n.Template.Parts {
+		if ps.Kind == solver.Resistor && !ps.Free && ps.Sensor == nil && ps.ADC == "" && !setByCondition[ps.Name] {
+			out = append(out, strconv.FormatFloat(ps.Value, 'g', 9, 64))
+		}
+	}
+	return out
+}
+
 func TestConsolidationSaves(t *testing.T) {
 	b, err := Load(ExamplePrefix + "controller")
 	if err != nil {
@@ -332,9 +379,12 @@ func TestConsolidationSaves(t *testing.T) {
 				alone[strconv.FormatFloat(v, 'g', 9, 64)] = true
 			}
 		}
+		for _, v := range templateFixed(n) {
+			alone[v] = true
+		}
 	}
 	if res.Alone != len(alone) {
-		t.Errorf("alone %d, the own answers use %d values", res.Alone, len(alone))
+		t.Errorf("alone %d, the own answers and the fixed resistors use %d values", res.Alone, len(alone))
 	}
 	if !(res.Distinct < res.Alone) || !res.Proven {
 		t.Errorf("distinct %d, alone %d, proven %v: consolidation should save values", res.Distinct, res.Alone, res.Proven)
@@ -436,6 +486,21 @@ func TestBOMTotals(t *testing.T) {
 	for _, v := range all {
 		chosen = append(chosen, strconv.FormatFloat(v, 'g', 9, 64))
 	}
+	// The fixed resistors' values are on the board too, and counted.
+	fixed := 0
+	for _, nr := range res.Networks {
+		f := templateFixed(nr.Network)
+		fixed += len(f)
+		chosen = append(chosen, f...)
+	}
+	if fixed == 0 {
+		t.Fatal("the controller board has no fixed resistor: the count of fixed values goes untested")
+	}
+	slices.SortFunc(chosen, func(a, b string) int {
+		x, _ := strconv.ParseFloat(a, 64)
+		y, _ := strconv.ParseFloat(b, 64)
+		return cmp.Compare(x, y)
+	})
 	chosen = slices.Compact(chosen)
 	for _, v := range res.Values {
 		vals = append(vals, strconv.FormatFloat(v, 'g', 9, 64))

@@ -11,6 +11,7 @@ import (
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/synth"
+	"github.com/ohmfit/ohmfit/synth/variation"
 )
 
 // Settings tune Solve. The zero value (or nil) means the defaults.
@@ -73,6 +74,10 @@ type NetworkResult struct {
 	// among Designs, so the board never needs more values than the
 	// networks alone.
 	Alone synth.Solution
+	// Fixed are the values of the template's fixed resistors, ascending:
+	// on the board whatever is chosen, so they count, and a design that
+	// reuses one adds nothing.
+	Fixed []float64
 }
 
 // Choice returns the chosen design.
@@ -82,12 +87,15 @@ func (n *NetworkResult) Choice() *Design { return &n.Designs[n.Chosen] }
 type Result struct {
 	Board    *Board
 	Networks []NetworkResult
-	// Values are the distinct physical values the chosen designs use,
-	// ascending; Distinct is their number.
+	// Values are the distinct resistor values on the board, ascending:
+	// those the chosen designs use and those of the templates' fixed
+	// resistors (Fixed, ascending); Distinct is their number. Sensors and
+	// stand-ins are not resistor values and are not counted.
 	Values   []float64
+	Fixed    []float64
 	Distinct int
 	// Alone is the number of distinct values when every network takes its
-	// own best answer.
+	// own best answer (fixed resistors counted too).
 	Alone int
 	// Proven is true only when no selection with fewer distinct values
 	// exists: the search finished and no network's list was cut.
@@ -176,12 +184,13 @@ func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
 	if res.Networks, err = listAll(ctx, tctx, b, &set); err != nil {
 		return nil, err
 	}
-	nets, table := selectionItems(res.Networks)
+	nets, table, fixed := selectionItems(res.Networks)
 	nets = prune(nets)
 	for r := range nets {
 		res.Networks[r].Kept = len(nets[r])
 	}
-	sel := choose(tctx, nets, len(table), set.MaxNodes)
+	// The selection counts the values beyond the fixed ones (ids from 0).
+	sel := choose(tctx, nets, len(table)-fixed, set.MaxNodes)
 	switch {
 	case !sel.out:
 	case ctx.Err() != nil:
@@ -191,7 +200,7 @@ func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
 	default:
 		res.Stop = StopNodes
 	}
-	res.record(sel, nets, table)
+	res.record(sel, nets, table, fixed)
 	res.Elapsed = time.Since(start)
 	return res, nil
 }
@@ -238,10 +247,12 @@ func listAll(ctx, tctx context.Context, b *Board, set *Settings) ([]NetworkResul
 }
 
 // selectionItems gives each network's designs as the selection sees them,
-// over the board's value table: every physical value any design uses.
-func selectionItems(nrs []NetworkResult) ([][]item, []float64) {
+// over the board's value table: every physical value any design uses. The
+// fixed resistors' values are on the board anyway, so they are left out
+// of every design's set (a design that reuses one adds nothing); they
+// take the first ids of the table, and fixed says how many.
+func selectionItems(nrs []NetworkResult) (nets [][]item, table []float64, fixed int) {
 	ids := map[string]int32{}
-	var table []float64
 	id := func(v float64) int32 {
 		k := valueKey(v)
 		if i, ok := ids[k]; ok {
@@ -251,49 +262,64 @@ func selectionItems(nrs []NetworkResult) ([][]item, []float64) {
 		table = append(table, v)
 		return int32(len(table) - 1)
 	}
-	nets := make([][]item, len(nrs))
+	for r := range nrs {
+		for _, v := range nrs[r].Fixed {
+			id(v)
+		}
+	}
+	fixed = len(table)
+	nets = make([][]item, len(nrs))
 	for r := range nrs {
 		for i := range nrs[r].Designs {
 			d := &nrs[r].Designs[i]
 			it := item{rel: d.Rel, pow: d.Score.Power, idx: i}
 			for _, v := range d.PartValues() {
-				it.vals = append(it.vals, id(v))
+				if k := id(v); int(k) >= fixed {
+					it.vals = append(it.vals, k-int32(fixed))
+				}
 			}
 			slices.Sort(it.vals)
 			it.vals = slices.Compact(it.vals)
 			nets[r] = append(nets[r], it)
 		}
 	}
-	return nets, table
+	return nets, table, fixed
 }
 
 // record writes the selection into the result: each network's choice, the
 // values, the proof and the bound, and the count of the networks alone.
-func (res *Result) record(sel selection, nets [][]item, table []float64) {
+func (res *Result) record(sel selection, nets [][]item, table []float64, fixed int) {
 	cut := false
 	for r, c := range sel.choice {
 		res.Networks[r].Chosen = nets[r][c].idx
 		cut = cut || res.Networks[r].Cut
 	}
+	res.Fixed = slices.Sorted(slices.Values(table[:fixed]))
+	res.Values = append(res.Values, table[:fixed]...)
 	for _, v := range union(nets, sel.choice) {
-		res.Values = append(res.Values, table[v])
+		res.Values = append(res.Values, table[fixed+int(v)])
 	}
 	slices.Sort(res.Values)
 	res.Distinct = len(res.Values)
 	res.Proven = sel.proven && !cut
-	res.Bound = sel.bound
+	res.Bound = fixed + sel.bound
 	res.TiesProven = sel.tiesProven && !cut
 	if cut {
-		res.Bound = 0
+		// Without the full lists only this holds: the fixed values, and one
+		// more where a free position exists and none is fixed.
+		res.Bound = fixed
 		for _, n := range res.Board.Networks {
 			if len(n.Problem.Domains) > 0 {
-				res.Bound = 1
+				res.Bound = max(res.Bound, 1)
 			}
 		}
 	}
 	res.RelMax, res.Power = sel.obj.rel, sel.obj.pow
 	res.Nodes = sel.nodes
 	alone := map[string]bool{}
+	for _, v := range res.Fixed {
+		alone[valueKey(v)] = true
+	}
 	for _, nr := range res.Networks {
 		for _, o := range nr.Alone.Options {
 			for _, v := range o.PartValues() {
@@ -403,6 +429,13 @@ func enumerate(ctx context.Context, n *Network, set *Settings) (*NetworkResult, 
 		return nil, nil, err
 	}
 	nr := &NetworkResult{Network: n, Alone: own.Solutions[0]}
+	// The fixed resistors, by the BOM's rule of what is a resistor to
+	// order; any design shows them (here the network's own best).
+	d, err := variation.NewDesign(n.Problem.Spec, nr.Alone.Options, "", constraints.Ambient{})
+	if err != nil {
+		return nil, nil, errorf(err, "%s: %s", n.Name(), constraints.Message(err))
+	}
+	nr.Fixed = d.FixedResistorValues()
 	sols := res.Solutions
 	if len(sols) > set.MaxDesigns {
 		sols, nr.Cut = sols[:set.MaxDesigns], true

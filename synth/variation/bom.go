@@ -94,7 +94,8 @@ func BOM(d *Design, rep *Report) []BOMLine {
 	}
 	var lines []BOMLine
 	for _, v := range d.Parts {
-		if v.Kind != solver.Resistor || v.Extra() {
+		typ := d.bomType(v)
+		if typ == "" {
 			continue
 		}
 		l := BOMLine{Designators: []string{v.Name}, TolFrom: v.TolFrom}
@@ -102,7 +103,7 @@ func BOM(d *Design, rep *Report) []BOMLine {
 		if !v.Relative {
 			l.Tolerance = v.Tol / v.Nominal
 		}
-		if v.Sensor != "" {
+		if typ != TypeResistor && typ != TypeStandIn {
 			ps := d.Problem.Template.Parts[v.Part]
 			l.Type, l.Package = v.Sensor, v.Package
 			l.Value, l.Model = sensorSpec(ps)
@@ -116,7 +117,8 @@ func BOM(d *Design, rep *Report) []BOMLine {
 			lines = append(lines, l)
 			continue
 		}
-		if lo, hi, set := conditionRange(d.Problem.Template, v.Name); set {
+		if typ == TypeStandIn {
+			lo, hi, _ := conditionRange(d.Problem.Template, v.Name)
 			l.Type, l.Tolerance, l.TolFrom = TypeStandIn, math.NaN(), ""
 			l.Model = fmt.Sprintf("set by the conditions (%s to %s): a part that varies, modelled as a resistor; order the real part",
 				units.FormatUnit(lo, units.Ohm), units.FormatUnit(hi, units.Ohm))
@@ -132,6 +134,38 @@ func BOM(d *Design, rep *Report) []BOMLine {
 		lines = append(lines, l)
 	}
 	return MergeBOM(lines)
+}
+
+// bomType is the one rule for what a part is on the bill of materials:
+// TypeResistor, a sensor's type (TypeNTC, TypeRTD), TypeStandIn for a
+// resistor the conditions set (a part that varies), or "" for what is not
+// ordered (sources, op-amps, an ADC's modelled input).
+func (d *Design) bomType(v Varied) string {
+	switch {
+	case v.Kind != solver.Resistor || v.Extra():
+		return ""
+	case v.Sensor != "":
+		return v.Sensor
+	}
+	if _, _, set := conditionRange(d.Problem.Template, v.Name); set {
+		return TypeStandIn
+	}
+	return TypeResistor
+}
+
+// FixedResistorValues returns the values of the template's fixed
+// resistors (the parts the BOM lists as TypeResistor that are not free
+// positions), ascending, once each: they are on the bill of materials
+// whatever the free positions take.
+func (d *Design) FixedResistorValues() []float64 {
+	var out []float64
+	for _, v := range d.Parts {
+		if d.bomType(v) == TypeResistor && !d.Problem.Template.Parts[v.Part].Free {
+			out = append(out, v.Nominal)
+		}
+	}
+	slices.Sort(out)
+	return slices.Compact(out)
 }
 
 // conditionRange returns the smallest and largest value the template's
