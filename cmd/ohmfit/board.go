@@ -76,8 +76,8 @@ Exit status: 0 chosen; 1 a network has no design within its cap (the
 message names it and the error it can reach); 2 bad usage or bad input.
 
 JSON output (--format json):
-  {"board": "...", "status": "proven", "proven": true, "distinct": 7,
-   "alone": 11, "bound": 7,
+  {"board": "...", "status": "proven", "proven": true, "ties_proven": true,
+   "distinct": 7, "alone": 11, "bound": 7, "values": [...], "fixed": [47000],
    "networks": [{"template": "rail-3v3.yaml", "prefix": "U3",
      "values": {"R1": 30100, "R2": 9530}, "error": 0.0012, ...}],
    "bom": [{"value": 30100, "designators": ["U3-R1"], "quantity": 1, ...}]}`,
@@ -348,8 +348,13 @@ func boardJSON(res *board.Result, chk *board.Checked) object {
 		bom[i] = object{{"value", l.Value}, {"designators", l.Designators}, {"quantity", l.Quantity()},
 			{"type", l.Type}, {"tolerance", l.Tolerance}, {"package", l.Package}}
 	}
+	fixed := res.Fixed
+	if fixed == nil {
+		fixed = []float64{} // [] rather than null: no fixed resistor
+	}
 	return object{{"board", res.Board.Spec.Name}, {"status", res.Status().String()}, {"proven", res.Proven},
-		{"distinct", res.Distinct}, {"alone", res.Alone}, {"bound", res.Bound}, {"values", res.Values}, {"networks", nets}, {"bom", bom}}
+		{"ties_proven", res.TiesProven}, {"distinct", res.Distinct}, {"alone", res.Alone}, {"bound", res.Bound},
+		{"values", res.Values}, {"fixed", fixed}, {"networks", nets}, {"bom", bom}}
 }
 
 // writeBoardCSV writes one row per chosen position of every network.
