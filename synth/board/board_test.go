@@ -796,3 +796,52 @@ func TestGroupBoundHolds(t *testing.T) {
 		t.Fatal("the group bound never beat the packing bound: the test did not exercise it")
 	}
 }
+
+// TestLastTwoMatchesSubsets checks the exact decision of nodes with one or
+// two values to spare (lastTwo) against the brute force over value sets:
+// on random boards with a random set already chosen, it must find new
+// values exactly when the waiting networks need no more than the spare
+// ones, and the values it returns, added to the set, must serve every
+// network.
+func TestLastTwoMatchesSubsets(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 9))
+	decided := [3]int{}
+	for c := 0; c < 3000; c++ {
+		nets, nvals := randomDeep(rng)
+		nets = prune(nets)
+		s := newSelector(context.Background(), nets, nvals)
+		for range rng.IntN(5) {
+			if v := int32(rng.IntN(nvals)); !s.in[v] {
+				s.in[v] = true
+				s.used = append(s.used, v)
+			}
+		}
+		slack := 1 + rng.IntN(2)
+		s.k = len(s.used) + slack
+		nd, ok := s.narrow(s.all, 0, slack)
+		if !ok || nd.branch < 0 {
+			continue
+		}
+		var waiting []int
+		for _, n := range nd.needs {
+			waiting = append(waiting, n.r)
+		}
+		want := needBySubsets(nets, nvals, s.in, waiting)
+		add, found := s.lastTwo(nd, slack)
+		if found != (want >= 0 && want <= slack) {
+			t.Fatalf("case %d %v, set %v, spare %d: found %v (%v); the waiting networks need %d (brute force)", c, nets, s.used, slack, found, add, want)
+		}
+		if found {
+			set := append(slices.Clone(s.used), add...)
+			if len(add) > slack || !feasible(nets, nvals, set) {
+				t.Fatalf("case %d %v, set %v, spare %d: the values %v do not serve every network", c, nets, s.used, slack, add)
+			}
+			decided[slack]++
+		} else {
+			decided[0]++
+		}
+	}
+	if decided[0] == 0 || decided[1] == 0 || decided[2] == 0 {
+		t.Fatalf("decided %v (none, one, two values): the test did not exercise every case", decided)
+	}
+}

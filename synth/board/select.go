@@ -2,6 +2,7 @@ package board
 
 import (
 	"context"
+	"slices"
 	"sort"
 
 	"github.com/ohmfit/ohmfit/constraints"
@@ -150,14 +151,17 @@ type selector struct {
 	best    objective
 	bestSet []int32
 	key     []byte
-	taken   []bool      // scratch for the packing bound
-	levels  [][][]int   // per depth, per network: the items that still fit
-	store   [][][]int   // per depth, per network: the storage of the lists it owns
-	rels    [][]float64 // per depth, per network: its least relative error
-	served  [][]bool    // per depth, per network: a design of it is inside the set
-	unmet   []uint64    // scratch: the networks not yet served, as a bitset
-	stamp   []int32     // scratch: value id -> the last network that listed it, plus one
-	spread  []int32     // scratch: value id -> how many waiting networks could use it
+	taken   []bool       // scratch for the packing bound
+	levels  [][][]int    // per depth, per network: the items that still fit
+	store   [][][]int    // per depth, per network: the storage of the lists it owns
+	rels    [][]float64  // per depth, per network: its least relative error
+	served  [][]bool     // per depth, per network: a design of it is inside the set
+	unmet   []uint64     // scratch: the networks not yet served, as a bitset
+	stamp   []int32      // scratch: value id -> the last network that listed it, plus one
+	spread  []int32      // scratch: value id -> how many waiting networks could use it
+	cand    []int32      // scratch for complete
+	order   []need       // scratch for complete: the waiting networks, the last to rule out first
+	pairs   [][][2]int32 // scratch for lastTwo: per network, what its fitting designs add
 }
 
 func newSelector(ctx context.Context, nets [][]item, nvals int) *selector {
@@ -268,10 +272,138 @@ func (s *selector) run(fit [][]int, depth int) bool {
 	if max(s.packing(nd), s.groupBound(nd))+s.lift > slack {
 		return proved()
 	}
+	if slack <= 2 && !s.enum {
+		// Few values left: decide the node at once rather than branch.
+		if add, ok := s.lastTwo(nd, slack); ok {
+			s.bestSet = append(append([]int32(nil), s.used...), add...)
+			return true
+		}
+		return proved()
+	}
 	if found := s.branchOn(nd, depth); found || s.out {
 		return found
 	}
 	return proved()
+}
+
+// lastTwo decides a node with one or two values to spare exactly, and
+// returns the new values of a set that serves every network. Each waiting
+// network's fitting designs add one or two values. With one to spare, the
+// value must be one that a fitting design of every waiting network adds
+// alone. With two, the set must contain what some fitting design of the
+// branch network adds: two values are the whole set; one leaves one more,
+// found as with one to spare.
+func (s *selector) lastTwo(nd node, slack int) ([]int32, bool) {
+	// Each waiting network's adds, as pairs (-1 for a second value not needed).
+	if len(s.pairs) < len(s.nets) {
+		s.pairs = make([][][2]int32, len(s.nets))
+	}
+	for _, n := range nd.needs {
+		list := s.pairs[n.r][:0]
+		for _, i := range nd.fit[n.r] {
+			p := [2]int32{-1, -1}
+			j := 0
+			for _, v := range s.nets[n.r][i].vals {
+				if !s.in[v] {
+					p[j] = v
+					j++
+				}
+			}
+			list = append(list, p)
+		}
+		s.pairs[n.r] = list
+	}
+	s.order = append(s.order[:0], nd.needs...)
+	if slack == 1 {
+		v, ok := s.complete(nd, -1)
+		return []int32{v}, ok
+	}
+	for _, p := range s.pairs[nd.branch] {
+		if p[1] >= 0 {
+			if v, ok := s.complete(nd, p[0], p[1]); ok && v < 0 {
+				return p[:], true
+			}
+			continue
+		}
+		if v, ok := s.complete(nd, p[0]); ok {
+			if v < 0 {
+				return p[:1], true
+			}
+			return []int32{p[0], v}, true
+		}
+	}
+	return nil, false
+}
+
+// complete reports whether, with the values given added to the set, at
+// most one value more serves every waiting network (lastTwo's lists of
+// adds), and returns it (-1 when none is needed). A network is served when
+// one of its adds is inside the values given; else a value completes it
+// when it is all that one of its adds has beyond them.
+func (s *selector) complete(nd node, given ...int32) (int32, bool) {
+	has := func(v int32) bool { return slices.Contains(given, v) }
+	cand := s.cand[:0]
+	first := true
+	mark := int32(0)
+	for j, n := range s.order {
+		served := false
+		for _, p := range s.pairs[n.r] {
+			if has(p[0]) && (p[1] < 0 || has(p[1])) {
+				served = true
+				break
+			}
+		}
+		if served {
+			continue
+		}
+		// The values that complete this network, marked; the candidates
+		// keep only those.
+		mark++
+		for _, p := range s.pairs[n.r] {
+			switch {
+			case p[1] < 0:
+				s.stamp[p[0]] = mark
+			case has(p[0]):
+				s.stamp[p[1]] = mark
+			case has(p[1]):
+				s.stamp[p[0]] = mark
+			}
+		}
+		if first {
+			for _, p := range s.pairs[n.r] {
+				for _, v := range p {
+					if v >= 0 && s.stamp[v] == mark {
+						s.stamp[v] = -mark // listed once
+						cand = append(cand, v)
+					}
+				}
+			}
+			first = false
+		} else {
+			kept := cand[:0]
+			for _, v := range cand {
+				if s.stamp[v] == mark {
+					kept = append(kept, v)
+				}
+			}
+			cand = kept
+		}
+		if len(cand) == 0 {
+			// This network ruled the values out: ask it first next time.
+			copy(s.order[1:j+1], s.order[:j])
+			s.order[0] = n
+			break
+		}
+	}
+	s.cand = cand
+	clear(s.stamp)
+	if first {
+		return -1, true
+	}
+	if len(cand) == 0 {
+		return 0, false
+	}
+	return cand[0], true
 }
 
 // narrow lists each network's items that fit at this node and picks the
