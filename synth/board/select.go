@@ -144,6 +144,17 @@ type selector struct {
 	groups      [][]int
 	free        []bool // scratch for groupBound
 	partScratch []need
+	// The profile bound (selectprofile.go): shared marks the values that
+	// designs of two groups or more use, owner the group of every other
+	// value; profile[g][t] is a lower bound on the other values group g
+	// needs when it uses at most t shared values.
+	shared  []bool
+	owner   []int
+	profile [][]int
+	cnt     []int // scratch for profileBound
+	// kS, when not negative, is the most shared values a set may have (a
+	// profile's search); -1 means no such limit.
+	kS int
 	// lift is added to the lower bounds: always zero, except in the test
 	// that checks that a bound claiming too much is caught.
 	lift int
@@ -179,6 +190,7 @@ func newSelector(ctx context.Context, nets [][]item, nvals int) *selector {
 		}
 	}
 	s.group, s.groups = groupNetworks(nets, nvals)
+	s.kS = -1
 	s.free = make([]bool, nvals)
 	s.all = make([][]int, len(nets))
 	for r, its := range nets {
@@ -247,6 +259,10 @@ func (s *selector) run(fit [][]int, depth int) bool {
 		return false
 	}
 	key := s.subproblem(nd.needs)
+	if s.kS >= 0 {
+		// The fact holds for this many shared values to spare.
+		key += string(rune(s.sharedSlack()))
+	}
 	if s.needs[key] > slack {
 		return false
 	}
@@ -269,10 +285,13 @@ func (s *selector) run(fit [][]int, depth int) bool {
 			s.seen[set] = struct{}{}
 		}
 	}
+	if s.profile != nil && s.profileBound()+s.lift > s.k {
+		return proved()
+	}
 	if max(s.packing(nd), s.groupBound(nd))+s.lift > slack {
 		return proved()
 	}
-	if slack <= 2 && !s.enum {
+	if slack <= 2 && !s.enum && s.kS < 0 {
 		// Few values left: decide the node at once rather than branch.
 		if add, ok := s.lastTwo(nd, slack); ok {
 			s.bestSet = append(append([]int32(nil), s.used...), add...)
@@ -419,6 +438,7 @@ func (s *selector) narrow(fit [][]int, depth, slack int) (node, bool) {
 	nd := node{fit: s.levels[depth+1], branch: -1}
 	rels, served := s.rels[depth+1], s.served[depth+1]
 	fewest := 0
+	slackS := s.sharedSlack()
 	for r, its := range s.nets {
 		if depth > 0 && s.served[depth][r] {
 			// Served above stays served (the set only grows): its list
@@ -432,7 +452,7 @@ func (s *selector) narrow(fit [][]int, depth, slack int) (node, bool) {
 		minNew, minRel := slack+1, 0.0
 		for _, i := range fit[r] {
 			n := s.fitNew(&its[i])
-			if n > slack {
+			if n > slack || (slackS >= 0 && !s.fitsShared(&its[i], n, slack, slackS)) {
 				continue
 			}
 			list = append(list, i)
@@ -597,8 +617,25 @@ func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selecti
 		bestObj, _ = evaluateSet(nets, nvals, set)
 	}
 	proven := bestObj.distinct <= s.lb
+	if !proven {
+		// Boards of groups that share values: each group's profile, a
+		// sixth of the budget each at most, raises the lower bound.
+		s.profiles(bestObj.distinct-1, budget/6, budget)
+		if s.profile != nil {
+			s.k = bestObj.distinct - 1
+			s.lb = max(s.lb, min(s.profileBound(), bestObj.distinct))
+			sel.bound = s.lb
+			proven = bestObj.distinct <= s.lb
+		}
+	}
 	for !proven {
-		found, finished := s.exists(bestObj.distinct-1, budget/2)
+		// Half the budget looks for smaller sets; all of it when this
+		// stage is also the first the lower bound needs.
+		until := budget / 2
+		if bestObj.distinct-1 <= s.lb {
+			until = budget
+		}
+		found, finished := s.exists(bestObj.distinct-1, until)
 		if !finished {
 			break
 		}
