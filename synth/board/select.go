@@ -51,7 +51,8 @@ type selection struct {
 	// better on the tie keys.
 	tiesProven bool
 	nodes      int64
-	out        bool // a stage stopped at the budget or the context
+	proofNodes int64 // the nodes up to the proof or the end of the search for it
+	out        bool  // a stage stopped at the budget or the context
 }
 
 // prune drops, within each network, every item whose value set contains
@@ -656,7 +657,7 @@ func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selecti
 		sel.bound = k + 1
 		proven = proven || sel.bound >= bestObj.distinct
 	}
-	sel.out = s.out
+	sel.out, sel.proofNodes = s.out, s.nodes
 	if proven {
 		sel.bound = bestObj.distinct
 		set, bestObj, sel.tiesProven = s.ties(bestObj, set, budget)
