@@ -620,8 +620,9 @@ func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selecti
 	proven := bestObj.distinct <= s.lb
 	if !proven {
 		// Boards of groups that share values: each group's profile, a
-		// sixth of the budget each at most, raises the lower bound.
-		s.profiles(bestObj.distinct-1, budget/6, budget)
+		// sixth of the budget each and a third in all at most, raises
+		// the lower bound.
+		s.profiles(bestObj.distinct-1, budget/6, s.nodes+budget/3)
 		if s.profile != nil {
 			s.k = bestObj.distinct - 1
 			s.lb = max(s.lb, min(s.profileBound(), bestObj.distinct))
