@@ -153,6 +153,7 @@ type selector struct {
 	owner   []int
 	profile [][]int
 	cnt     []int // scratch for profileBound
+	more    []int // scratch for profileBound
 	// kS, when not negative, is the most shared values a set may have (a
 	// profile's search); -1 means no such limit.
 	kS int
@@ -286,7 +287,7 @@ func (s *selector) run(fit [][]int, depth int) bool {
 			s.seen[set] = struct{}{}
 		}
 	}
-	if s.profile != nil && s.profileBound()+s.lift > s.k {
+	if s.profile != nil && s.profileBound(s.profileNode(nd, slack))+s.lift > s.k {
 		return proved()
 	}
 	if max(s.packing(nd), s.groupBound(nd))+s.lift > slack {
@@ -625,7 +626,7 @@ func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selecti
 		s.profiles(bestObj.distinct-1, budget/6, s.nodes+budget/3)
 		if s.profile != nil {
 			s.k = bestObj.distinct - 1
-			s.lb = max(s.lb, min(s.profileBound(), bestObj.distinct))
+			s.lb = max(s.lb, min(s.profileBound(node{}), bestObj.distinct))
 			sel.bound = s.lb
 			proven = bestObj.distinct <= s.lb
 		}

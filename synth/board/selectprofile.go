@@ -14,7 +14,9 @@ import "slices"
 //	|X| >= min over t of  t + sum over g of p_g(t),
 //
 // and below a set U already chosen, with u_S shared values and u_g of
-// group g's, min over t >= u_S of t + sum over g of max(u_g, p_g(t)).
+// group g's, min over t >= u_S of t + sum over g of max(u_g + m_g, p_g(t)),
+// where m_g is the packing of group g's waiting networks over the own
+// values they still lack (shared ones left out): X has those as well.
 
 // sharedSlack returns how many more shared values a profile's search may
 // take, or -1 outside one.
@@ -45,12 +47,44 @@ func (s *selector) fitsShared(it *item, n, slack, slackS int) bool {
 }
 
 // profileBound is the profile bound on the size of any set that contains
-// the current one and serves every network.
-func (s *selector) profileBound() int {
+// the current one and serves every network, with the own values nd's
+// waiting networks still lack (none for an empty node).
+func (s *selector) profileBound(nd node) int {
 	if len(s.cnt) < len(s.profile) {
 		s.cnt = make([]int, len(s.profile))
+		s.more = make([]int, len(s.profile))
 	}
 	clear(s.cnt)
+	// more[g]: the own values group g's waiting networks still add at
+	// least, over and above the set (a packing over own values).
+	for g := range s.profile {
+		part := s.partScratch[:0]
+		for _, n := range nd.needs {
+			if s.group[n.r] != g {
+				continue
+			}
+			least := -1
+			for _, i := range nd.fit[n.r] {
+				c := 0
+				for _, v := range s.nets[n.r][i].vals {
+					if !s.in[v] && !s.shared[v] {
+						c++
+					}
+				}
+				if least < 0 || c < least {
+					least = c
+				}
+			}
+			if least > 0 {
+				part = append(part, need{n.r, least})
+			}
+		}
+		s.partScratch = part
+		s.more[g] = 0
+		if len(part) > 0 {
+			s.more[g] = s.pack(part, nd.fit, s.shared)
+		}
+	}
 	us, idle := 0, 0 // shared values in the set; values no design uses
 	for _, v := range s.used {
 		switch {
@@ -66,7 +100,7 @@ func (s *selector) profileBound() int {
 	for t := us; t <= s.k; t++ {
 		sum := t + idle
 		for g, p := range s.profile {
-			sum += max(s.cnt[g], profileAt(p, t))
+			sum += max(s.cnt[g]+s.more[g], profileAt(p, t))
 		}
 		if best < 0 || sum < best {
 			best = sum
@@ -187,4 +221,14 @@ func (s *selector) profiles(kmax int, allowance, until int64) {
 		profile[g] = p
 	}
 	s.profile = profile
+}
+
+// profileNode is the node profileBound is given: the node itself where
+// counting its networks' own values pays (three values or more to spare,
+// outside the enumeration of ties), else none (the set alone).
+func (s *selector) profileNode(nd node, slack int) node {
+	if slack < 3 || s.enum {
+		return node{}
+	}
+	return nd
 }
