@@ -596,12 +596,15 @@ func triedSubset(tried map[addKey]bool, add []int32) bool {
 const maxMemo = 1 << 20
 
 // choose solves the selection over pruned item lists. The greedy set gives
-// a first upper bound. Then, with half the node budget, a search over value
-// sets looks for a set of one value fewer than the best so far, again and
-// again (a set that exists is usually found fast): a search that finishes
-// without one proves the best so far minimal. If the budget ends first,
-// the rest of it goes to the lower bound: for k from the trivial bound (the
-// most values any network's smallest design needs) upwards, each finished
+// a first upper bound. On a board of groups that share values, the groups'
+// profiles come next (at most a third of the budget) and raise the trivial
+// bound (the most values any network's smallest design needs). Then, with
+// half the node budget, a search over value sets looks for a set of one
+// value fewer than the best so far, again and again (a set that exists is
+// usually found fast): a search that finishes without one proves the best
+// so far minimal. When that stage is also the first the lower bound needs,
+// it may take the whole budget. If the budget ends first, the rest of it
+// goes to the lower bound: for k from that bound upwards, each finished
 // search without a set proves k values too few. The subproblems proven
 // along the way serve every later stage. With the minimum proven, every
 // set of that size is enumerated (bounded by the relative error) for the
