@@ -106,6 +106,8 @@ func BenchmarkBoard(b *testing.B) {
 		}
 		b.ReportMetric(float64(sel.obj.distinct), "distinct")
 		b.ReportMetric(float64(sel.nodes), "nodes")
+		b.ReportMetric(float64(sel.proofNodes), "proof-nodes")
+		b.ReportMetric(map[bool]float64{true: 1}[sel.proven], "proven")
 	})
 	b.Run("select/greedy", func(b *testing.B) {
 		var set []int32
@@ -147,4 +149,29 @@ func items(res *Result) ([][]item, int) {
 		}
 	}
 	return nets, len(ids)
+}
+
+// BenchmarkBoardTwentyCLI runs the selection on the CLI's board of twenty
+// networks (cmd/ohmfit/testdata/board/twenty: ten E96 dividers, ten E24
+// ladders, sharing 10k, 11k, 13k, 15k, 20k and 75k and their decades), the
+// one the profile bound is for. Run:
+// go test ./synth/board -run '^$' -bench TwentyCLI -benchtime 1x
+func BenchmarkBoardTwentyCLI(b *testing.B) {
+	bd, err := Load(filepath.Join("..", "..", "cmd", "ohmfit", "testdata", "board", "twenty", "board.yaml"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	res, err := Solve(context.Background(), bd, &Settings{Workers: 1, MaxNodes: 1})
+	if err != nil {
+		b.Fatal(err)
+	}
+	nets, nvals := items(res)
+	var sel selection
+	for b.Loop() {
+		sel = choose(context.Background(), prune(nets), nvals, DefaultMaxNodes)
+	}
+	b.ReportMetric(float64(sel.obj.distinct), "distinct")
+	b.ReportMetric(float64(sel.bound), "bound")
+	b.ReportMetric(map[bool]float64{true: 1}[sel.proven], "proven")
+	b.ReportMetric(float64(sel.proofNodes), "proof-nodes")
 }

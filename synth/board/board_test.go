@@ -596,8 +596,9 @@ func TestChooseDeepBoards(t *testing.T) {
 
 // TestStagesMatchSubsets runs the search's stages one by one on random
 // boards, k rising from the trivial bound and, on a second selector,
-// falling from every value: each stage must find a set exactly when the
-// brute force over value sets says one of k values exists. The subproblems
+// falling from every value, and rising on a third with the profile bound
+// (profiles): each stage must find a set exactly when the brute force over
+// value sets says one of k values exists. The subproblems
 // the stages prove are kept from one stage to the next, so a fact recorded
 // under the wrong key shows here as a set missed.
 func TestStagesMatchSubsets(t *testing.T) {
@@ -611,6 +612,9 @@ func TestStagesMatchSubsets(t *testing.T) {
 		nets = prune(nets)
 		want := fewestBySubsets(nets, nvals)
 		up, down := newSelector(context.Background(), nets, nvals), newSelector(context.Background(), nets, nvals)
+		// A third with the profile bound (boards of two groups).
+		prof := newSelector(context.Background(), nets, nvals)
+		prof.profiles(nvals, DefaultMaxNodes, DefaultMaxNodes)
 		check := func(s *selector, k int) {
 			found, finished := s.exists(k, DefaultMaxNodes)
 			if !finished || found != (k >= want) {
@@ -622,6 +626,7 @@ func TestStagesMatchSubsets(t *testing.T) {
 		}
 		for k := up.lb; k <= want; k++ {
 			check(up, k)
+			check(prof, k)
 		}
 		for k := nvals; k >= max(want-1, 0); k-- {
 			check(down, k)
@@ -794,5 +799,187 @@ func TestGroupBoundHolds(t *testing.T) {
 	}
 	if tight == 0 {
 		t.Fatal("the group bound never beat the packing bound: the test did not exercise it")
+	}
+}
+
+// TestLastTwoMatchesSubsets checks the exact decision of nodes with one or
+// two values to spare (lastTwo) against the brute force over value sets:
+// on random boards with a random set already chosen, it must find new
+// values exactly when the waiting networks need no more than the spare
+// ones, and the values it returns, added to the set, must serve every
+// network.
+func TestLastTwoMatchesSubsets(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 9))
+	decided := [3]int{}
+	for c := 0; c < 3000; c++ {
+		nets, nvals := randomDeep(rng)
+		nets = prune(nets)
+		s := newSelector(context.Background(), nets, nvals)
+		for range rng.IntN(5) {
+			if v := int32(rng.IntN(nvals)); !s.in[v] {
+				s.in[v] = true
+				s.used = append(s.used, v)
+			}
+		}
+		slack := 1 + rng.IntN(2)
+		s.k = len(s.used) + slack
+		nd, ok := s.narrow(s.all, 0, slack)
+		if !ok || nd.branch < 0 {
+			continue
+		}
+		var waiting []int
+		for _, n := range nd.needs {
+			waiting = append(waiting, n.r)
+		}
+		want := needBySubsets(nets, nvals, s.in, waiting)
+		add, found := s.lastTwo(nd, slack)
+		if found != (want >= 0 && want <= slack) {
+			t.Fatalf("case %d %v, set %v, spare %d: found %v (%v); the waiting networks need %d (brute force)", c, nets, s.used, slack, found, add, want)
+		}
+		if found {
+			set := append(slices.Clone(s.used), add...)
+			if len(add) > slack || !feasible(nets, nvals, set) {
+				t.Fatalf("case %d %v, set %v, spare %d: the values %v do not serve every network", c, nets, s.used, slack, add)
+			}
+			decided[slack]++
+		} else {
+			decided[0]++
+		}
+	}
+	if decided[0] == 0 || decided[1] == 0 || decided[2] == 0 {
+		t.Fatalf("decided %v (none, one, two values): the test did not exercise every case", decided)
+	}
+}
+
+// profileBySubsets is a group's profile entry by brute force over value
+// sets: the fewest values not marked shared of any set with at most t
+// shared values that serves the networks listed (-1 when none does).
+func profileBySubsets(nets [][]item, nvals int, shared []bool, which []int, t int) int {
+	sharedMask := 0
+	for v, sh := range shared {
+		if sh {
+			sharedMask |= 1 << v
+		}
+	}
+	best := -1
+	for mask := 0; mask < 1<<nvals; mask++ {
+		if bits.OnesCount(uint(mask&sharedMask)) > t {
+			continue
+		}
+		own := bits.OnesCount(uint(mask &^ sharedMask))
+		if best >= 0 && own >= best {
+			continue
+		}
+		all := true
+		for _, r := range which {
+			ok := false
+			for _, it := range nets[r] {
+				inside := true
+				for _, v := range it.vals {
+					inside = inside && mask&(1<<v) != 0
+				}
+				ok = ok || inside
+			}
+			all = all && ok
+		}
+		if all {
+			best = own
+		}
+	}
+	return best
+}
+
+// TestProfilesMatchSubsets checks every group's profile (profiles) against
+// the brute force over value sets on random boards of two groups that
+// share a few values (randomDeep): with a budget large enough, each entry
+// is the fewest own values for that many shared ones; with a small one, or
+// computed only up to fewer shared values, each entry is still no more
+// than that (a lower bound).
+func TestProfilesMatchSubsets(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 10))
+	exact, cut := 0, 0
+	for c := 0; c < 300; {
+		nets, nvals := randomDeep(rng)
+		nets = prune(nets)
+		s := newSelector(context.Background(), nets, nvals)
+		allowance, kmax := int64(DefaultMaxNodes), nvals
+		if c%2 == 1 {
+			allowance, kmax = int64(1+rng.IntN(20)), rng.IntN(nvals)
+		}
+		s.profiles(kmax, allowance, DefaultMaxNodes)
+		if s.profile == nil {
+			continue
+		}
+		c++
+		for g, rs := range s.groups {
+			p := s.profile[g]
+			for tt := range nvals + 1 {
+				want := profileBySubsets(nets, nvals, s.shared, rs, tt)
+				if want < 0 {
+					// None serves the group: any bound holds, and the
+					// search stops past the most values it asks about.
+					want = nvals + 1
+				}
+				got := profileAt(p, tt)
+				if got > want || (allowance == DefaultMaxNodes && got != want) {
+					t.Fatalf("case %d %v, shared %v: group %v, %d shared values: profile %d (%v), brute force %d",
+						c, nets, s.shared, rs, tt, got, p, want)
+				}
+				if got == want {
+					exact++
+				} else {
+					cut++
+				}
+			}
+		}
+	}
+	if cut == 0 || exact == 0 {
+		t.Fatalf("entries exact %d, below the brute force %d: the small budget was not exercised", exact, cut)
+	}
+}
+
+// TestProfileBoundHolds checks the profile bound against the brute force:
+// on random boards of two groups with a random set already chosen, the
+// bound must be no more than the size of the smallest set that contains
+// the one chosen and serves every network, and it must sometimes exceed
+// the packing bound (the test exercises it).
+func TestProfileBoundHolds(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 11))
+	tight := 0
+	for c := 0; c < 400; {
+		nets, nvals := randomDeep(rng)
+		nets = prune(nets)
+		s := newSelector(context.Background(), nets, nvals)
+		s.profiles(nvals, DefaultMaxNodes, DefaultMaxNodes)
+		if s.profile == nil {
+			continue
+		}
+		c++
+		s.k = nvals
+		for range rng.IntN(4) {
+			if v := int32(rng.IntN(nvals)); !s.in[v] {
+				s.in[v] = true
+				s.used = append(s.used, v)
+			}
+		}
+		all := make([]int, len(nets))
+		for r := range all {
+			all[r] = r
+		}
+		nd, ok := s.narrow(s.all, 0, s.k-len(s.used))
+		if !ok {
+			continue
+		}
+		want := len(s.used) + needBySubsets(nets, nvals, s.in, all)
+		got := s.profileBound(nd)
+		if got > want {
+			t.Fatalf("case %d %v, set %v, profiles %v: bound %d, the smallest set has %d (brute force)", c, nets, s.used, s.profile, got, want)
+		}
+		if got == want && got > len(s.used)+s.packing(nd) {
+			tight++
+		}
+	}
+	if tight == 0 {
+		t.Fatal("the profile bound never beat the packing bound: the test did not exercise it")
 	}
 }

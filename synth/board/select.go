@@ -2,6 +2,7 @@ package board
 
 import (
 	"context"
+	"slices"
 	"sort"
 
 	"github.com/ohmfit/ohmfit/constraints"
@@ -50,7 +51,8 @@ type selection struct {
 	// better on the tie keys.
 	tiesProven bool
 	nodes      int64
-	out        bool // a stage stopped at the budget or the context
+	proofNodes int64 // the nodes up to the proof or the end of the search for it
+	out        bool  // a stage stopped at the budget or the context
 }
 
 // prune drops, within each network, every item whose value set contains
@@ -143,6 +145,18 @@ type selector struct {
 	groups      [][]int
 	free        []bool // scratch for groupBound
 	partScratch []need
+	// The profile bound (selectprofile.go): shared marks the values that
+	// designs of two groups or more use, owner the group of every other
+	// value; profile[g][t] is a lower bound on the other values group g
+	// needs when it uses at most t shared values.
+	shared  []bool
+	owner   []int
+	profile [][]int
+	cnt     []int // scratch for profileBound
+	more    []int // scratch for profileBound
+	// kS, when not negative, is the most shared values a set may have (a
+	// profile's search); -1 means no such limit.
+	kS int
 	// lift is added to the lower bounds: always zero, except in the test
 	// that checks that a bound claiming too much is caught.
 	lift int
@@ -150,14 +164,17 @@ type selector struct {
 	best    objective
 	bestSet []int32
 	key     []byte
-	taken   []bool      // scratch for the packing bound
-	levels  [][][]int   // per depth, per network: the items that still fit
-	store   [][][]int   // per depth, per network: the storage of the lists it owns
-	rels    [][]float64 // per depth, per network: its least relative error
-	served  [][]bool    // per depth, per network: a design of it is inside the set
-	unmet   []uint64    // scratch: the networks not yet served, as a bitset
-	stamp   []int32     // scratch: value id -> the last network that listed it, plus one
-	spread  []int32     // scratch: value id -> how many waiting networks could use it
+	taken   []bool       // scratch for the packing bound
+	levels  [][][]int    // per depth, per network: the items that still fit
+	store   [][][]int    // per depth, per network: the storage of the lists it owns
+	rels    [][]float64  // per depth, per network: its least relative error
+	served  [][]bool     // per depth, per network: a design of it is inside the set
+	unmet   []uint64     // scratch: the networks not yet served, as a bitset
+	stamp   []int32      // scratch: value id -> the last network that listed it, plus one
+	spread  []int32      // scratch: value id -> how many waiting networks could use it
+	cand    []int32      // scratch for complete
+	order   []need       // scratch for complete: the waiting networks, the last to rule out first
+	pairs   [][][2]int32 // scratch for lastTwo: per network, what its fitting designs add
 }
 
 func newSelector(ctx context.Context, nets [][]item, nvals int) *selector {
@@ -175,6 +192,7 @@ func newSelector(ctx context.Context, nets [][]item, nvals int) *selector {
 		}
 	}
 	s.group, s.groups = groupNetworks(nets, nvals)
+	s.kS = -1
 	s.free = make([]bool, nvals)
 	s.all = make([][]int, len(nets))
 	for r, its := range nets {
@@ -243,6 +261,10 @@ func (s *selector) run(fit [][]int, depth int) bool {
 		return false
 	}
 	key := s.subproblem(nd.needs)
+	if s.kS >= 0 {
+		// The fact holds for this many shared values to spare.
+		key += string(rune(s.sharedSlack()))
+	}
 	if s.needs[key] > slack {
 		return false
 	}
@@ -265,13 +287,144 @@ func (s *selector) run(fit [][]int, depth int) bool {
 			s.seen[set] = struct{}{}
 		}
 	}
+	if s.profile != nil && s.profileBound(s.profileNode(nd, slack))+s.lift > s.k {
+		return proved()
+	}
 	if max(s.packing(nd), s.groupBound(nd))+s.lift > slack {
+		return proved()
+	}
+	if slack <= 2 && !s.enum && s.kS < 0 {
+		// Few values left: decide the node at once rather than branch.
+		if add, ok := s.lastTwo(nd, slack); ok {
+			s.bestSet = append(append([]int32(nil), s.used...), add...)
+			return true
+		}
 		return proved()
 	}
 	if found := s.branchOn(nd, depth); found || s.out {
 		return found
 	}
 	return proved()
+}
+
+// lastTwo decides a node with one or two values to spare exactly, and
+// returns the new values of a set that serves every network. Each waiting
+// network's fitting designs add one or two values. With one to spare, the
+// value must be one that a fitting design of every waiting network adds
+// alone. With two, the set must contain what some fitting design of the
+// branch network adds: two values are the whole set; one leaves one more,
+// found as with one to spare.
+func (s *selector) lastTwo(nd node, slack int) ([]int32, bool) {
+	// Each waiting network's adds, as pairs (-1 for a second value not needed).
+	if len(s.pairs) < len(s.nets) {
+		s.pairs = make([][][2]int32, len(s.nets))
+	}
+	for _, n := range nd.needs {
+		list := s.pairs[n.r][:0]
+		for _, i := range nd.fit[n.r] {
+			p := [2]int32{-1, -1}
+			j := 0
+			for _, v := range s.nets[n.r][i].vals {
+				if !s.in[v] {
+					p[j] = v
+					j++
+				}
+			}
+			list = append(list, p)
+		}
+		s.pairs[n.r] = list
+	}
+	s.order = append(s.order[:0], nd.needs...)
+	if slack == 1 {
+		v, ok := s.complete(nd, -1)
+		return []int32{v}, ok
+	}
+	for _, p := range s.pairs[nd.branch] {
+		if p[1] >= 0 {
+			if v, ok := s.complete(nd, p[0], p[1]); ok && v < 0 {
+				return p[:], true
+			}
+			continue
+		}
+		if v, ok := s.complete(nd, p[0]); ok {
+			if v < 0 {
+				return p[:1], true
+			}
+			return []int32{p[0], v}, true
+		}
+	}
+	return nil, false
+}
+
+// complete reports whether, with the values given added to the set, at
+// most one value more serves every waiting network (lastTwo's lists of
+// adds), and returns it (-1 when none is needed). A network is served when
+// one of its adds is inside the values given; else a value completes it
+// when it is all that one of its adds has beyond them.
+func (s *selector) complete(nd node, given ...int32) (int32, bool) {
+	has := func(v int32) bool { return slices.Contains(given, v) }
+	cand := s.cand[:0]
+	first := true
+	mark := int32(0)
+	for j, n := range s.order {
+		served := false
+		for _, p := range s.pairs[n.r] {
+			if has(p[0]) && (p[1] < 0 || has(p[1])) {
+				served = true
+				break
+			}
+		}
+		if served {
+			continue
+		}
+		// The values that complete this network, marked; the candidates
+		// keep only those.
+		mark++
+		for _, p := range s.pairs[n.r] {
+			switch {
+			case p[1] < 0:
+				s.stamp[p[0]] = mark
+			case has(p[0]):
+				s.stamp[p[1]] = mark
+			case has(p[1]):
+				s.stamp[p[0]] = mark
+			}
+		}
+		if first {
+			for _, p := range s.pairs[n.r] {
+				for _, v := range p {
+					if v >= 0 && s.stamp[v] == mark {
+						s.stamp[v] = -mark // listed once
+						cand = append(cand, v)
+					}
+				}
+			}
+			first = false
+		} else {
+			kept := cand[:0]
+			for _, v := range cand {
+				if s.stamp[v] == mark {
+					kept = append(kept, v)
+				}
+			}
+			cand = kept
+		}
+		if len(cand) == 0 {
+			// This network ruled the values out: ask it first next time.
+			copy(s.order[1:j+1], s.order[:j])
+			s.order[0] = n
+			break
+		}
+	}
+	s.cand = cand
+	clear(s.stamp)
+	if first {
+		return -1, true
+	}
+	if len(cand) == 0 {
+		return 0, false
+	}
+	return cand[0], true
 }
 
 // narrow lists each network's items that fit at this node and picks the
@@ -287,6 +440,7 @@ func (s *selector) narrow(fit [][]int, depth, slack int) (node, bool) {
 	nd := node{fit: s.levels[depth+1], branch: -1}
 	rels, served := s.rels[depth+1], s.served[depth+1]
 	fewest := 0
+	slackS := s.sharedSlack()
 	for r, its := range s.nets {
 		if depth > 0 && s.served[depth][r] {
 			// Served above stays served (the set only grows): its list
@@ -300,7 +454,7 @@ func (s *selector) narrow(fit [][]int, depth, slack int) (node, bool) {
 		minNew, minRel := slack+1, 0.0
 		for _, i := range fit[r] {
 			n := s.fitNew(&its[i])
-			if n > slack {
+			if n > slack || (slackS >= 0 && !s.fitsShared(&its[i], n, slack, slackS)) {
 				continue
 			}
 			list = append(list, i)
@@ -442,12 +596,15 @@ func triedSubset(tried map[addKey]bool, add []int32) bool {
 const maxMemo = 1 << 20
 
 // choose solves the selection over pruned item lists. The greedy set gives
-// a first upper bound. Then, with half the node budget, a search over value
-// sets looks for a set of one value fewer than the best so far, again and
-// again (a set that exists is usually found fast): a search that finishes
-// without one proves the best so far minimal. If the budget ends first,
-// the rest of it goes to the lower bound: for k from the trivial bound (the
-// most values any network's smallest design needs) upwards, each finished
+// a first upper bound. On a board of groups that share values, the groups'
+// profiles come next (at most a third of the budget) and raise the trivial
+// bound (the most values any network's smallest design needs). Then, with
+// half the node budget, a search over value sets looks for a set of one
+// value fewer than the best so far, again and again (a set that exists is
+// usually found fast): a search that finishes without one proves the best
+// so far minimal. When that stage is also the first the lower bound needs,
+// it may take the whole budget. If the budget ends first, the rest of it
+// goes to the lower bound: for k from that bound upwards, each finished
 // search without a set proves k values too few. The subproblems proven
 // along the way serve every later stage. With the minimum proven, every
 // set of that size is enumerated (bounded by the relative error) for the
@@ -465,8 +622,26 @@ func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selecti
 		bestObj, _ = evaluateSet(nets, nvals, set)
 	}
 	proven := bestObj.distinct <= s.lb
+	if !proven {
+		// Boards of groups that share values: each group's profile, a
+		// sixth of the budget each and a third in all at most, raises
+		// the lower bound.
+		s.profiles(bestObj.distinct-1, budget/6, s.nodes+budget/3)
+		if s.profile != nil {
+			s.k = bestObj.distinct - 1
+			s.lb = max(s.lb, min(s.profileBound(node{}), bestObj.distinct))
+			sel.bound = s.lb
+			proven = bestObj.distinct <= s.lb
+		}
+	}
 	for !proven {
-		found, finished := s.exists(bestObj.distinct-1, budget/2)
+		// Half the budget looks for smaller sets; all of it when this
+		// stage is also the first the lower bound needs.
+		until := budget / 2
+		if bestObj.distinct-1 <= s.lb {
+			until = budget
+		}
+		found, finished := s.exists(bestObj.distinct-1, until)
 		if !finished {
 			break
 		}
@@ -487,7 +662,7 @@ func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selecti
 		sel.bound = k + 1
 		proven = proven || sel.bound >= bestObj.distinct
 	}
-	sel.out = s.out
+	sel.out, sel.proofNodes = s.out, s.nodes
 	if proven {
 		sel.bound = bestObj.distinct
 		set, bestObj, sel.tiesProven = s.ties(bestObj, set, budget)

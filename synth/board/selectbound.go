@@ -160,7 +160,7 @@ func (s *selector) pack(needs []need, fit [][]int, free []bool) int {
 // by values outside C as well, and those of them whose candidates outside
 // C are disjoint need their own: f plus their least needs outside C.
 func (s *selector) groupBound(nd node) int {
-	if len(s.groups) < 2 || len(nd.needs) < 2 {
+	if len(s.groups) < 2 || len(nd.needs) < 2 || s.kS >= 0 {
 		return 0
 	}
 	bestG, f := -1, 0
