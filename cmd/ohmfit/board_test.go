@@ -94,7 +94,13 @@ func TestBoardInterrupt(t *testing.T) {
 		t.Fatalf("stack trace: %s", errOut.String())
 	}
 	if err == nil {
-		if !strings.Contains(out.String(), "not proven (interrupted)") || !strings.Contains(errOut.String(), "interrupted") {
+		// Stopped in the selection: before the count is proven the table
+		// says "not proven (interrupted)"; after (a fast machine reaches the
+		// tie-break within the sleep), the note says the tie-break is not.
+		counted := strings.Contains(out.String(), "not proven (interrupted)")
+		tieBreak := strings.Contains(out.String(), "proven: no selection uses fewer values") &&
+			strings.Contains(errOut.String(), "interrupted in the tie-break")
+		if !(counted || tieBreak) || !strings.Contains(errOut.String(), "interrupted") {
 			t.Errorf("exit 0 without saying it was interrupted:\n%s\n%s", out.String(), errOut.String())
 		}
 		return
