@@ -178,6 +178,7 @@ func (w *bbWorker) takeCorners(b *box) bool {
 	if !w.gather(recs, sgns, n) {
 		return false
 	}
+	w.pairErr = w.pairBound(recs, n)
 	b.dim = w.influence(recs, n)
 	return true
 }

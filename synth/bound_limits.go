@@ -1,9 +1,12 @@
 package synth
 
 import (
+	"cmp"
 	"math"
+	"slices"
 
 	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/solver"
 )
 
 // bound scores the box's corners and derives its bounds. worst is the bar's
@@ -30,6 +33,7 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 			b.infeasible, b.viol = true, constraints.Violation{Kind: constraints.SupplyPowerLimit, Target: -1, Condition: c}
 		}
 	}
+	b.err = math.Max(b.err, w.pairErr)
 }
 
 // partsBound returns the fewest parts a candidate of the box can have: one
@@ -205,4 +209,198 @@ func (w *bbWorker) enclose(ti, c int) (float64, float64, bool) {
 		return lo * k, hi * k, true
 	}
 	return 0, 0, false
+}
+
+// goalPair is a joint bound on two goals a and b, Voltage or Code targets
+// (slots target×nc + condition, goals ga and gb, error scales sa and sb:
+// |goal|, or 1 for a goal of 0). Any combination α·qa + β·qb is linear in
+// the MNA solution, and when both goals are read in one condition, or in
+// two whose matrices are the same (they differ only in source values), it
+// is a linear function of the solution of one matrix (superposition): a
+// ratio of multi-affine polynomials over the MNA determinant, so monotone
+// in each value where the determinant keeps its sign, and its range over a
+// box is spanned by the corners. Every direction's projection of the box's
+// image in the (qa, qb) plane then lies within that of the corners' images,
+// so the image lies in their convex hull. A candidate's error is at least
+// max(|qa − ga|/sa, |qb − gb|/sb), so the least such distance from the hull
+// to (ga, gb) is a lower bound on the error of every candidate of the box.
+// Two goals that each leave a surface of near answers in the box rarely
+// meet on the same part of it; this rules out boxes that cross both
+// surfaces apart.
+type goalPair struct {
+	ka, kb int
+	ga, gb float64
+	sa, sb float64
+}
+
+// goalPairs returns the joint bounds of the problem's goals: every two
+// Voltage or Code goals in one condition, or in two conditions with the
+// same matrix.
+func goalPairs(p *Problem, edges []solver.Edge) []goalPair {
+	nc := len(p.Spec.Conditions)
+	type slot struct {
+		k, c  int
+		g, sc float64
+	}
+	var slots []slot
+	for ti, tg := range p.Spec.Template.Targets {
+		kind := p.Spec.Probes[ti].Kind
+		if !tg.HasEquals || p.Spec.Derived[ti] != nil || (kind != constraints.Voltage && kind != constraints.Code) {
+			continue
+		}
+		for c := 0; c < nc; c++ {
+			if !p.Spec.Applies[ti][c] || !p.Spec.Visible(c) {
+				continue
+			}
+			sc := 1.0
+			if tg.Equals != 0 {
+				sc = math.Abs(tg.Equals)
+			}
+			slots = append(slots, slot{ti*nc + c, c, tg.Equals, sc})
+		}
+	}
+	var out []goalPair
+	for i, a := range slots {
+		for _, b := range slots[i+1:] {
+			if sameMatrix(p, edges, a.c, b.c) {
+				out = append(out, goalPair{ka: a.k, kb: b.k, ga: a.g, gb: b.g, sa: a.sc, sb: b.sc})
+			}
+		}
+	}
+	return out
+}
+
+// sameMatrix reports whether conditions a and b stamp the same MNA matrix:
+// every part that is not a source has the same value in both.
+func sameMatrix(p *Problem, edges []solver.Edge, a, b int) bool {
+	if a == b {
+		return true
+	}
+	va, vb := p.Spec.Conditions[a].Values, p.Spec.Conditions[b].Values
+	for i, e := range edges {
+		if e.Kind == solver.VoltageSource || e.Kind == solver.CurrentSource {
+			continue
+		}
+		if va[i] != vb[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// pairBound returns the joint bounds' lower bound on the goal error of
+// every candidate of a box from its n corner records (see goalPair), 0
+// when a pair's conditions have a pole in the box or a value is not
+// finite. The records' rounding (boundSlack) is taken off.
+func (w *bbWorker) pairBound(recs []float64, n int) float64 {
+	l, t := &w.lay, 0.0
+	for _, gp := range w.pairs {
+		ca, cb := gp.ka%w.nc, gp.kb%w.nc
+		if w.det[ca] == 2 || w.det[ca] == 0 || w.det[cb] == 2 || w.det[cb] == 0 {
+			continue
+		}
+		pts, mag, ok := w.pts[:0], 0.0, true
+		for mask := 0; mask < n; mask++ {
+			qa, qb := recs[mask*l.n+l.oq+gp.ka], recs[mask*l.n+l.oq+gp.kb]
+			x, y := (qa-gp.ga)/gp.sa, (qb-gp.gb)/gp.sb
+			if math.IsNaN(x) || math.IsInf(x, 0) || math.IsNaN(y) || math.IsInf(y, 0) {
+				ok = false
+				break
+			}
+			mag = math.Max(mag, math.Abs(qa)/gp.sa+math.Abs(qb)/gp.sb)
+			pts = append(pts, point2{x, y})
+		}
+		w.pts = pts
+		if !ok {
+			continue
+		}
+		w.hull = convexHull(pts, w.hull[:0])
+		t = math.Max(t, hullDistance(w.hull)-boundSlack*mag)
+	}
+	return t
+}
+
+// point2 is a point of the plane.
+type point2 struct{ x, y float64 }
+
+func cross(o, a, b point2) float64 { return (a.x-o.x)*(b.y-o.y) - (a.y-o.y)*(b.x-o.x) }
+
+// convexHull returns the convex hull of pts (which it sorts) in
+// counter-clockwise order, without repeating the first point (Andrew's
+// monotone chain), appended to out.
+func convexHull(pts []point2, out []point2) []point2 {
+	slices.SortFunc(pts, func(a, b point2) int {
+		if c := cmp.Compare(a.x, b.x); c != 0 {
+			return c
+		}
+		return cmp.Compare(a.y, b.y)
+	})
+	if len(pts) < 3 {
+		return append(out, pts...)
+	}
+	for _, p := range pts { // lower hull
+		for len(out) >= 2 && cross(out[len(out)-2], out[len(out)-1], p) <= 0 {
+			out = out[:len(out)-1]
+		}
+		out = append(out, p)
+	}
+	low := len(out) + 1
+	for i := len(pts) - 2; i >= 0; i-- { // upper hull
+		p := pts[i]
+		for len(out) >= low && cross(out[len(out)-2], out[len(out)-1], p) <= 0 {
+			out = out[:len(out)-1]
+		}
+		out = append(out, p)
+	}
+	return out[:len(out)-1]
+}
+
+// hullDistance returns the least max(|x|, |y|) over the convex polygon h
+// (counter-clockwise, as convexHull gives it): 0 when it holds the origin.
+func hullDistance(h []point2) float64 {
+	var o point2
+	if len(h) >= 3 {
+		inside := true
+		for i := range h {
+			if cross(h[i], h[(i+1)%len(h)], o) < 0 {
+				inside = false
+				break
+			}
+		}
+		if inside {
+			return 0
+		}
+	}
+	best := math.Inf(1)
+	for i := range h {
+		best = math.Min(best, segmentDistance(h[i], h[(i+1)%len(h)]))
+	}
+	return best
+}
+
+// segmentDistance returns the least max(|x|, |y|) on the segment from a to
+// b. Along it both are linear in u ∈ [0, 1], so the least of their larger
+// absolute value is at an end, where one is 0, or where |x| = |y|.
+func segmentDistance(a, b point2) float64 {
+	dx, dy := b.x-a.x, b.y-a.y
+	at := func(u float64) float64 {
+		if !(u >= 0 && u <= 1) {
+			return math.Inf(1)
+		}
+		return math.Max(math.Abs(a.x+u*dx), math.Abs(a.y+u*dy))
+	}
+	d := math.Min(at(0), at(1))
+	if dx != 0 {
+		d = math.Min(d, at(-a.x/dx))
+	}
+	if dy != 0 {
+		d = math.Min(d, at(-a.y/dy))
+	}
+	if dx != dy {
+		d = math.Min(d, at((a.y-a.x)/(dx-dy))) // x = y
+	}
+	if dx != -dy {
+		d = math.Min(d, at(-(a.x+a.y)/(dx+dy))) // x = −y
+	}
+	return d
 }

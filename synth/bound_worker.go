@@ -48,6 +48,9 @@ type bbWorker struct {
 	corner     []int32
 	gslot      []int     // goal slots (target×nc + condition) the split choice reads
 	gscale     []float64 // per goal slot: 1/|goal|
+	pairs      []goalPair
+	pairErr    float64  // the joint bound of the box just scored (pairBound)
+	pts, hull  []point2 // pairBound's scratch
 
 	// Corner records (bound_corners.go).
 	lay         recordLayout
@@ -125,6 +128,7 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 			}
 		}
 	}
+	w.pairs = goalPairs(p, w.edges)
 	w.pool = map[int][]records{}
 	w.lay = newRecordLayout(len(p.Spec.Probes), len(w.pparts), len(w.srcs), len(w.res), len(w.amps), nc)
 	w.rvlo, w.rvhi = make([]float64, len(w.res)*nc), make([]float64, len(w.res)*nc)
