@@ -265,8 +265,22 @@ func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 	}
 	lo, hi := int(b.lo[sh.j]), int(b.hi[sh.j])
 	ref := (lo + hi + 1) / 2
+	// The rows come in lines along the fastest outer position that varies
+	// in the box: each line's first row is solved, the others updated
+	// from it (searchLine).
+	line := -1
+	for _, i := range sh.outer {
+		if b.lo[i] < b.hi[i] {
+			line = i
+		}
+	}
+	first := true
 	for {
-		rw.searchRange(lo, hi, ref)
+		if line < 0 {
+			rw.searchRange(lo, hi, ref)
+		} else {
+			rw.searchLine(lo, hi, ref, line, first)
+		}
 		rw.stats.Rows++
 		k := len(sh.outer) - 1
 		for ; k >= 0; k-- {
@@ -280,6 +294,8 @@ func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 		if k < 0 {
 			break
 		}
+		first = sh.outer[k] != line // a carry past the line's position starts a new line
 	}
+	rw.line = -1
 	rw.bar = nil
 }
