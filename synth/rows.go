@@ -283,10 +283,23 @@ func (w *rowWorker) runRows(start, end int64) {
 		w.cur[w.outer[k]] = int32(r % n)
 		r /= n
 	}
+	// The rows come in lines along the last outer position (searchLine),
+	// each begun afresh at the start of a chunk: which rows are updated
+	// does not depend on the number of workers.
+	line := -1
+	if len(w.outer) > 0 {
+		line = w.outer[len(w.outer)-1]
+	}
+	first := true
 	for row := start; row < end; row++ {
-		w.searchRow()
+		if line < 0 {
+			w.searchRow()
+		} else {
+			w.searchLine(0, len(w.opts)-1, len(w.opts)/2, line, first)
+		}
 		w.stats.Rows++
 		// Advance the odometer.
+		first = false
 		for k := len(w.outer) - 1; k >= 0; k-- {
 			i := w.outer[k]
 			w.cur[i]++
@@ -294,8 +307,10 @@ func (w *rowWorker) runRows(start, end int64) {
 				break
 			}
 			w.cur[i] = 0
+			first = true // a carry past the line's position starts a new line
 		}
 	}
+	w.line = -1
 }
 
 // searchRow scores the options of the row position for the current outer values.
