@@ -315,7 +315,7 @@ func (w *bbWorker) pairBound(recs []float64, n int) float64 {
 			continue
 		}
 		w.hull = convexHull(pts, w.hull[:0])
-		t = math.Max(t, hullDistance(w.hull)-boundSlack*mag)
+		t = math.Max(t, separation(w.hull, w.pts)-boundSlack*mag)
 	}
 	return t
 }
@@ -355,52 +355,38 @@ func convexHull(pts []point2, out []point2) []point2 {
 	return out[:len(out)-1]
 }
 
-// hullDistance returns the least max(|x|, |y|) over the convex polygon h
-// (counter-clockwise, as convexHull gives it): 0 when it holds the origin.
-func hullDistance(h []point2) float64 {
-	var o point2
-	if len(h) >= 3 {
-		inside := true
-		for i := range h {
-			if cross(h[i], h[(i+1)%len(h)], o) < 0 {
-				inside = false
-				break
-			}
+// separation returns a lower bound on max(|x|, |y|) over the convex hull of
+// pts, h being that hull (as convexHull gives it): the largest, over the
+// axes and the normals of h's edges (both ways), of a direction d's least
+// d·p over pts divided by |d.x| + |d.y|. Every such figure is a lower bound
+// on its own, since d·p ≤ (|d.x| + |d.y|)·max(|p.x|, |p.y|), whatever h
+// is; h only supplies the directions, and by the separating axis theorem
+// one of them (an edge normal of h or of the square max(|x|, |y|) ≤ t)
+// gives the exact distance. So a hull that rounding leaves slightly off
+// (near-duplicate corners) can only weaken the bound, not break it. 0 when
+// the hull holds the origin.
+func separation(h, pts []point2) float64 {
+	best := 0.0
+	try := func(dx, dy float64) {
+		n := math.Abs(dx) + math.Abs(dy)
+		if !(n > 0) {
+			return
 		}
-		if inside {
-			return 0
+		m := math.Inf(1)
+		for _, p := range pts {
+			m = math.Min(m, dx*p.x+dy*p.y)
 		}
+		best = math.Max(best, m/n)
 	}
-	best := math.Inf(1)
+	try(1, 0)
+	try(-1, 0)
+	try(0, 1)
+	try(0, -1)
 	for i := range h {
-		best = math.Min(best, segmentDistance(h[i], h[(i+1)%len(h)]))
+		a, b := h[i], h[(i+1)%len(h)]
+		dx, dy := b.x-a.x, b.y-a.y
+		try(-dy, dx)
+		try(dy, -dx)
 	}
 	return best
-}
-
-// segmentDistance returns the least max(|x|, |y|) on the segment from a to
-// b. Along it both are linear in u ∈ [0, 1], so the least of their larger
-// absolute value is at an end, where one is 0, or where |x| = |y|.
-func segmentDistance(a, b point2) float64 {
-	dx, dy := b.x-a.x, b.y-a.y
-	at := func(u float64) float64 {
-		if !(u >= 0 && u <= 1) {
-			return math.Inf(1)
-		}
-		return math.Max(math.Abs(a.x+u*dx), math.Abs(a.y+u*dy))
-	}
-	d := math.Min(at(0), at(1))
-	if dx != 0 {
-		d = math.Min(d, at(-a.x/dx))
-	}
-	if dy != 0 {
-		d = math.Min(d, at(-a.y/dy))
-	}
-	if dx != dy {
-		d = math.Min(d, at((a.y-a.x)/(dx-dy))) // x = y
-	}
-	if dx != -dy {
-		d = math.Min(d, at(-(a.x+a.y)/(dx+dy))) // x = −y
-	}
-	return d
 }
