@@ -1,7 +1,6 @@
 package synth
 
 import (
-	"cmp"
 	"math"
 	"slices"
 
@@ -315,7 +314,7 @@ func (w *bbWorker) pairBound(recs []float64, n int) float64 {
 			continue
 		}
 		w.hull = convexHull(pts, w.hull[:0])
-		t = math.Max(t, separation(w.hull, w.pts)-boundSlack*mag)
+		t = math.Max(t, separation(w.hull)-boundSlack*mag)
 	}
 	return t
 }
@@ -329,11 +328,14 @@ func cross(o, a, b point2) float64 { return (a.x-o.x)*(b.y-o.y) - (a.y-o.y)*(b.x
 // counter-clockwise order, without repeating the first point (Andrew's
 // monotone chain), appended to out.
 func convexHull(pts []point2, out []point2) []point2 {
-	slices.SortFunc(pts, func(a, b point2) int {
-		if c := cmp.Compare(a.x, b.x); c != 0 {
-			return c
+	slices.SortFunc(pts, func(a, b point2) int { // finite points
+		switch {
+		case a.x < b.x || (a.x == b.x && a.y < b.y):
+			return -1
+		case a.x == b.x && a.y == b.y:
+			return 0
 		}
-		return cmp.Compare(a.y, b.y)
+		return 1
 	})
 	if len(pts) < 3 {
 		return append(out, pts...)
@@ -355,17 +357,19 @@ func convexHull(pts []point2, out []point2) []point2 {
 	return out[:len(out)-1]
 }
 
-// separation returns a lower bound on max(|x|, |y|) over the convex hull of
-// pts, h being that hull (as convexHull gives it): the largest, over the
-// axes and the normals of h's edges (both ways), of a direction d's least
-// d·p over pts divided by |d.x| + |d.y|. Every such figure is a lower bound
-// on its own, since d·p ≤ (|d.x| + |d.y|)·max(|p.x|, |p.y|), whatever h
-// is; h only supplies the directions, and by the separating axis theorem
-// one of them (an edge normal of h or of the square max(|x|, |y|) ≤ t)
-// gives the exact distance. So a hull that rounding leaves slightly off
-// (near-duplicate corners) can only weaken the bound, not break it. 0 when
-// the hull holds the origin.
-func separation(h, pts []point2) float64 {
+// separation returns a lower bound on max(|x|, |y|) over the convex hull
+// h of a point set (as convexHull gives it): the largest, over the axes and
+// the normals of h's edges (both ways), of a direction d's least d·p over
+// h's vertices divided by |d.x| + |d.y|. Every such figure is a lower bound
+// on its own, since d·p ≤ (|d.x| + |d.y|)·max(|p.x|, |p.y|); the least d·p
+// over the set is at a vertex of its hull, and a point the hull left out by
+// rounding lies within rounding of an edge (the caller takes boundSlack
+// off). By the separating axis theorem one of the directions (an edge
+// normal of h or of the square max(|x|, |y|) ≤ t) gives the exact
+// distance, so no inside test is needed: with near-duplicate corners the
+// tiny edges rounding leaves point anywhere, and one such test once said
+// outside for a hull that held the origin. 0 when the hull holds it.
+func separation(h []point2) float64 {
 	best := 0.0
 	try := func(dx, dy float64) {
 		n := math.Abs(dx) + math.Abs(dy)
@@ -373,10 +377,14 @@ func separation(h, pts []point2) float64 {
 			return
 		}
 		m := math.Inf(1)
-		for _, p := range pts {
-			m = math.Min(m, dx*p.x+dy*p.y)
+		for _, p := range h {
+			if v := dx*p.x + dy*p.y; v < m {
+				m = v
+			}
 		}
-		best = math.Max(best, m/n)
+		if m/n > best {
+			best = m / n
+		}
 	}
 	try(1, 0)
 	try(-1, 0)

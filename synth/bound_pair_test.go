@@ -183,12 +183,12 @@ func TestSeparation(t *testing.T) {
 			}
 		}
 		if len(pts) == 1 && !around {
-			if got, want := separation(convexHull(append([]point2(nil), pts...), nil), pts), dist(pts[0]); got != want {
+			if got, want := separation(convexHull(append([]point2(nil), pts...), nil)), dist(pts[0]); got != want {
 				t.Fatalf("one point %v: separation %g, want %g", pts[0], got, want)
 			}
 		}
 		h := convexHull(append([]point2(nil), pts...), nil)
-		got := separation(h, pts)
+		got := separation(h)
 		if around && got > 1e-12 {
 			t.Fatalf("trial %d: separation %g for a hull that holds the origin (%d points)", trial, got, len(pts))
 		}
