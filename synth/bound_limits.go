@@ -17,7 +17,13 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 	b.bounded, b.infeasible, b.err, b.power, b.dim = false, false, 0, 0, -1
 	b.size = b.sizeOf()
 	b.parts = w.partsBound(b)
-	if !w.takeCorners(b) {
+	// Once the joint bound passes the bar's error the box is ruled out
+	// whatever the rest of it says, when error ranks first.
+	stop := math.Inf(1)
+	if worst != nil && len(w.sh.keys) > 0 && w.sh.keys[0] == constraints.ByError && w.sh.front == 0 {
+		stop = widen(worst.Error)
+	}
+	if !w.takeCorners(b, stop) {
 		return // a corner that cannot be solved: no bound, split
 	}
 	b.bounded = true
@@ -290,8 +296,10 @@ func sameMatrix(p *Problem, edges []solver.Edge, a, b int) bool {
 // pairBound returns the joint bounds' lower bound on the goal error of
 // every candidate of a box from its n corner records (see goalPair), 0
 // when a pair's conditions have a pole in the box or a value is not
-// finite. The records' rounding (boundSlack) is taken off.
-func (w *bbWorker) pairBound(recs []float64, n int) float64 {
+// finite. The records' rounding (boundSlack) is taken off. It stops once
+// the bound is above stop: the box is then ruled out on error whatever the
+// other pairs say.
+func (w *bbWorker) pairBound(recs []float64, n int, stop float64) float64 {
 	l, t := &w.lay, 0.0
 	for _, gp := range w.pairs {
 		ca, cb := gp.ka%w.nc, gp.kb%w.nc
@@ -315,6 +323,9 @@ func (w *bbWorker) pairBound(recs []float64, n int) float64 {
 		}
 		w.hull = convexHull(pts, w.hull[:0])
 		t = math.Max(t, separation(w.hull)-boundSlack*mag)
+		if t > stop {
+			break
+		}
 	}
 	return t
 }
