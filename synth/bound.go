@@ -52,7 +52,7 @@ import (
 type BranchBound struct {
 	// LeafRows is the largest number of rows (combinations of every
 	// position but the row position) of a box that the rows method
-	// finishes. Zero means 64 (measured best on the four- and
+	// finishes. Zero means 128 (measured best on the four- and
 	// five-position cases; see DEVELOPERS.md).
 	LeafRows int
 }
@@ -189,11 +189,10 @@ func (m BranchBound) run(ctx context.Context, p *Problem, set *Settings, st *run
 	}
 	leaf := m.LeafRows
 	if leaf <= 0 {
-		// Larger leaves are faster on three positions (a single goal
-		// leaves a surface of near answers that every row crosses), but
-		// a long row's update formula rounds enough to hide exact ties
-		// from the tie tolerance; see DEVELOPERS.md.
-		leaf = 64
+		// Since a leaf's rows are updated along lines (searchLine),
+		// 128 to 256 rows beat 64 on every scale case but ladder4-e96;
+		// see DEVELOPERS.md.
+		leaf = 128
 	}
 	sh := newBBShared(p, set, st, float64(leaf))
 	if set.Progress != nil {

@@ -152,8 +152,8 @@ func (w *bbWorker) afterCond(ci int) {
 // takeCorners gives the box the records of every corner, from its parent
 // (the box it was just split from) where they share a face, else from new
 // solves, and gathers them into the worker's ranges. It reports false when
-// a corner's solve failed.
-func (w *bbWorker) takeCorners(b *box) bool {
+// a corner's solve failed. stop is passed on to pairBound.
+func (w *bbWorker) takeCorners(b *box, stop float64) bool {
 	par := b.parent
 	b.parent = nil
 	w.vary = varying(b, w.vary)
@@ -178,6 +178,7 @@ func (w *bbWorker) takeCorners(b *box) bool {
 	if !w.gather(recs, sgns, n) {
 		return false
 	}
+	w.pairErr = w.pairBound(recs, n, stop)
 	b.dim = w.influence(recs, n)
 	return true
 }

@@ -2,8 +2,10 @@ package synth
 
 import (
 	"math"
+	"slices"
 
 	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/solver"
 )
 
 // bound scores the box's corners and derives its bounds. worst is the bar's
@@ -15,7 +17,13 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 	b.bounded, b.infeasible, b.err, b.power, b.dim = false, false, 0, 0, -1
 	b.size = b.sizeOf()
 	b.parts = w.partsBound(b)
-	if !w.takeCorners(b) {
+	// Once the joint bound passes the bar's error the box is ruled out
+	// whatever the rest of it says, when error ranks first.
+	stop := math.Inf(1)
+	if worst != nil && len(w.sh.keys) > 0 && w.sh.keys[0] == constraints.ByError && w.sh.front == 0 {
+		stop = widen(worst.Error)
+	}
+	if !w.takeCorners(b, stop) {
 		return // a corner that cannot be solved: no bound, split
 	}
 	b.bounded = true
@@ -30,6 +38,7 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 			b.infeasible, b.viol = true, constraints.Violation{Kind: constraints.SupplyPowerLimit, Target: -1, Condition: c}
 		}
 	}
+	b.err = math.Max(b.err, w.pairErr)
 }
 
 // partsBound returns the fewest parts a candidate of the box can have: one
@@ -205,4 +214,198 @@ func (w *bbWorker) enclose(ti, c int) (float64, float64, bool) {
 		return lo * k, hi * k, true
 	}
 	return 0, 0, false
+}
+
+// goalPair is a joint bound on two goals a and b, Voltage or Code targets
+// (slots target×nc + condition, goals ga and gb, error scales sa and sb:
+// |goal|, or 1 for a goal of 0). Any combination α·qa + β·qb is linear in
+// the MNA solution, and when both goals are read in one condition, or in
+// two whose matrices are the same (they differ only in source values), it
+// is a linear function of the solution of one matrix (superposition): a
+// ratio of multi-affine polynomials over the MNA determinant, so monotone
+// in each value where the determinant keeps its sign, and its range over a
+// box is spanned by the corners. Every direction's projection of the box's
+// image in the (qa, qb) plane then lies within that of the corners' images,
+// so the image lies in their convex hull. A candidate's error is at least
+// max(|qa − ga|/sa, |qb − gb|/sb), so the least such distance from the hull
+// to (ga, gb) is a lower bound on the error of every candidate of the box.
+// Two goals that each leave a surface of near answers in the box rarely
+// meet on the same part of it; this rules out boxes that cross both
+// surfaces apart.
+type goalPair struct {
+	ka, kb int
+	ga, gb float64
+	sa, sb float64
+}
+
+// goalPairs returns the joint bounds of the problem's goals: every two
+// Voltage or Code goals in one condition, or in two conditions with the
+// same matrix.
+func goalPairs(p *Problem, edges []solver.Edge) []goalPair {
+	nc := len(p.Spec.Conditions)
+	type slot struct {
+		k, c  int
+		g, sc float64
+	}
+	var slots []slot
+	for ti, tg := range p.Spec.Template.Targets {
+		kind := p.Spec.Probes[ti].Kind
+		if !tg.HasEquals || p.Spec.Derived[ti] != nil || (kind != constraints.Voltage && kind != constraints.Code) {
+			continue
+		}
+		for c := 0; c < nc; c++ {
+			if !p.Spec.Applies[ti][c] || !p.Spec.Visible(c) {
+				continue
+			}
+			sc := 1.0
+			if tg.Equals != 0 {
+				sc = math.Abs(tg.Equals)
+			}
+			slots = append(slots, slot{ti*nc + c, c, tg.Equals, sc})
+		}
+	}
+	var out []goalPair
+	for i, a := range slots {
+		for _, b := range slots[i+1:] {
+			if sameMatrix(p, edges, a.c, b.c) {
+				out = append(out, goalPair{ka: a.k, kb: b.k, ga: a.g, gb: b.g, sa: a.sc, sb: b.sc})
+			}
+		}
+	}
+	return out
+}
+
+// sameMatrix reports whether conditions a and b stamp the same MNA matrix:
+// every part that is not a source has the same value in both.
+func sameMatrix(p *Problem, edges []solver.Edge, a, b int) bool {
+	if a == b {
+		return true
+	}
+	va, vb := p.Spec.Conditions[a].Values, p.Spec.Conditions[b].Values
+	for i, e := range edges {
+		if e.Kind == solver.VoltageSource || e.Kind == solver.CurrentSource {
+			continue
+		}
+		if va[i] != vb[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// pairBound returns the joint bounds' lower bound on the goal error of
+// every candidate of a box from its n corner records (see goalPair), 0
+// when a pair's conditions have a pole in the box or a value is not
+// finite. The records' rounding (boundSlack) is taken off. It stops once
+// the bound is above stop: the box is then ruled out on error whatever the
+// other pairs say.
+func (w *bbWorker) pairBound(recs []float64, n int, stop float64) float64 {
+	l, t := &w.lay, 0.0
+	for _, gp := range w.pairs {
+		ca, cb := gp.ka%w.nc, gp.kb%w.nc
+		if w.det[ca] == 2 || w.det[ca] == 0 || w.det[cb] == 2 || w.det[cb] == 0 {
+			continue
+		}
+		pts, mag, ok := w.pts[:0], 0.0, true
+		for mask := 0; mask < n; mask++ {
+			qa, qb := recs[mask*l.n+l.oq+gp.ka], recs[mask*l.n+l.oq+gp.kb]
+			x, y := (qa-gp.ga)/gp.sa, (qb-gp.gb)/gp.sb
+			if math.IsNaN(x) || math.IsInf(x, 0) || math.IsNaN(y) || math.IsInf(y, 0) {
+				ok = false
+				break
+			}
+			mag = math.Max(mag, math.Abs(qa)/gp.sa+math.Abs(qb)/gp.sb)
+			pts = append(pts, point2{x, y})
+		}
+		w.pts = pts
+		if !ok {
+			continue
+		}
+		w.hull = convexHull(pts, w.hull[:0])
+		t = math.Max(t, separation(w.hull)-boundSlack*mag)
+		if t > stop {
+			break
+		}
+	}
+	return t
+}
+
+// point2 is a point of the plane.
+type point2 struct{ x, y float64 }
+
+func cross(o, a, b point2) float64 { return (a.x-o.x)*(b.y-o.y) - (a.y-o.y)*(b.x-o.x) }
+
+// convexHull returns the convex hull of pts (which it sorts) in
+// counter-clockwise order, without repeating the first point (Andrew's
+// monotone chain), appended to out.
+func convexHull(pts []point2, out []point2) []point2 {
+	slices.SortFunc(pts, func(a, b point2) int { // finite points
+		switch {
+		case a.x < b.x || (a.x == b.x && a.y < b.y):
+			return -1
+		case a.x == b.x && a.y == b.y:
+			return 0
+		}
+		return 1
+	})
+	if len(pts) < 3 {
+		return append(out, pts...)
+	}
+	for _, p := range pts { // lower hull
+		for len(out) >= 2 && cross(out[len(out)-2], out[len(out)-1], p) <= 0 {
+			out = out[:len(out)-1]
+		}
+		out = append(out, p)
+	}
+	low := len(out) + 1
+	for i := len(pts) - 2; i >= 0; i-- { // upper hull
+		p := pts[i]
+		for len(out) >= low && cross(out[len(out)-2], out[len(out)-1], p) <= 0 {
+			out = out[:len(out)-1]
+		}
+		out = append(out, p)
+	}
+	return out[:len(out)-1]
+}
+
+// separation returns a lower bound on max(|x|, |y|) over the convex hull
+// h of a point set (as convexHull gives it): the largest, over the axes and
+// the normals of h's edges (both ways), of a direction d's least d·p over
+// h's vertices divided by |d.x| + |d.y|. Every such figure is a lower bound
+// on its own, since d·p ≤ (|d.x| + |d.y|)·max(|p.x|, |p.y|); the least d·p
+// over the set is at a vertex of its hull, and a point the hull left out by
+// rounding lies within rounding of an edge (the caller takes boundSlack
+// off). By the separating axis theorem one of the directions (an edge
+// normal of h or of the square max(|x|, |y|) ≤ t) gives the exact
+// distance, so no inside test is needed: with near-duplicate corners the
+// tiny edges rounding leaves point anywhere, and one such test once said
+// outside for a hull that held the origin. 0 when the hull holds it.
+func separation(h []point2) float64 {
+	best := 0.0
+	try := func(dx, dy float64) {
+		n := math.Abs(dx) + math.Abs(dy)
+		if !(n > 0) {
+			return
+		}
+		m := math.Inf(1)
+		for _, p := range h {
+			if v := dx*p.x + dy*p.y; v < m {
+				m = v
+			}
+		}
+		if m/n > best {
+			best = m / n
+		}
+	}
+	try(1, 0)
+	try(-1, 0)
+	try(0, 1)
+	try(0, -1)
+	for i := range h {
+		a, b := h[i], h[(i+1)%len(h)]
+		dx, dy := b.x-a.x, b.y-a.y
+		try(-dy, dx)
+		try(dy, -dx)
+	}
+	return best
 }

@@ -48,6 +48,9 @@ type bbWorker struct {
 	corner     []int32
 	gslot      []int     // goal slots (target×nc + condition) the split choice reads
 	gscale     []float64 // per goal slot: 1/|goal|
+	pairs      []goalPair
+	pairErr    float64  // the joint bound of the box just scored (pairBound)
+	pts, hull  []point2 // pairBound's scratch
 
 	// Corner records (bound_corners.go).
 	lay         recordLayout
@@ -125,6 +128,7 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 			}
 		}
 	}
+	w.pairs = goalPairs(p, w.edges)
 	w.pool = map[int][]records{}
 	w.lay = newRecordLayout(len(p.Spec.Probes), len(w.pparts), len(w.srcs), len(w.res), len(w.amps), nc)
 	w.rvlo, w.rvhi = make([]float64, len(w.res)*nc), make([]float64, len(w.res)*nc)
@@ -261,8 +265,22 @@ func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 	}
 	lo, hi := int(b.lo[sh.j]), int(b.hi[sh.j])
 	ref := (lo + hi + 1) / 2
+	// The rows come in lines along the fastest outer position that varies
+	// in the box: each line's first row is solved, the others updated
+	// from it (searchLine).
+	line := -1
+	for _, i := range sh.outer {
+		if b.lo[i] < b.hi[i] {
+			line = i
+		}
+	}
+	first := true
 	for {
-		rw.searchRange(lo, hi, ref)
+		if line < 0 {
+			rw.searchRange(lo, hi, ref)
+		} else {
+			rw.searchLine(lo, hi, ref, line, first)
+		}
 		rw.stats.Rows++
 		k := len(sh.outer) - 1
 		for ; k >= 0; k-- {
@@ -276,6 +294,8 @@ func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 		if k < 0 {
 			break
 		}
+		first = sh.outer[k] != line // a carry past the line's position starts a new line
 	}
+	rw.line = -1
 	rw.bar = nil
 }

@@ -159,6 +159,10 @@ type rowCond struct {
 	p0, p1, p2 float64
 	// per target: for a resistance target, R0 and the numerator of its update
 	r0, rc []float64
+	// a line's first row (rowWorker.searchLine): its solution and port
+	// response, the line position's port response and conductance
+	xb, wb, wk []float64
+	gk         float64
 }
 
 // rowWorker searches rows on one goroutine with its own solver and top list.
@@ -195,6 +199,13 @@ type rowWorker struct {
 	points  *constraints.Points // node voltages the sweep-wide targets read
 	derived []int               // targets that are sweep-wide
 
+	// line is the outer position of the line whose first row cond holds
+	// (searchLine), -1 for none; kPart, ka and kb are its part and nodes.
+	// lineable: no target needs a solve per row beyond the port response
+	// (a resistance target does).
+	line, kPart, ka, kb int
+	lineable            bool
+
 	// bar, when not nil, is a candidate known to rank among the best the
 	// search keeps (BranchBound's shared list): options that cannot beat it
 	// need not be scored.
@@ -218,6 +229,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		port: make([]float64, n+1),
 		keys: p.Spec.Template.Rank, lim: p.Spec.Template.Limits.SupplyPowerMax,
 		ranges: make([][2]int, 0, 2),
+		line:   -1, lineable: true,
 	}
 	parts := net.Parts()
 	w.edges = make([]solver.Edge, len(parts))
@@ -238,6 +250,11 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		w.frontCap = set.FrontErrorCap
 		w.front = &frontList{r: r}
 	}
+	for _, pr := range p.Spec.Probes {
+		if pr.Kind == constraints.Resistance {
+			w.lineable = false
+		}
+	}
 	w.points = p.Spec.NewPoints()
 	for ti, dp := range p.Spec.Derived {
 		if dp != nil {
@@ -250,6 +267,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		rc.hidden = !p.Spec.Visible(c)
 		rc.x0 = make([]float64, n+1)
 		rc.w = make([]float64, n+1)
+		rc.xb, rc.wb, rc.wk = make([]float64, n+1), make([]float64, n+1), make([]float64, n+1)
 		rc.r0 = make([]float64, len(p.Spec.Probes))
 		rc.rc = make([]float64, len(p.Spec.Probes))
 	}
@@ -265,10 +283,23 @@ func (w *rowWorker) runRows(start, end int64) {
 		w.cur[w.outer[k]] = int32(r % n)
 		r /= n
 	}
+	// The rows come in lines along the last outer position (searchLine),
+	// each begun afresh at the start of a chunk: which rows are updated
+	// does not depend on the number of workers.
+	line := -1
+	if len(w.outer) > 0 {
+		line = w.outer[len(w.outer)-1]
+	}
+	first := true
 	for row := start; row < end; row++ {
-		w.searchRow()
+		if line < 0 {
+			w.searchRow()
+		} else {
+			w.searchLine(0, len(w.opts)-1, len(w.opts)/2, line, first)
+		}
 		w.stats.Rows++
 		// Advance the odometer.
+		first = false
 		for k := len(w.outer) - 1; k >= 0; k-- {
 			i := w.outer[k]
 			w.cur[i]++
@@ -276,8 +307,10 @@ func (w *rowWorker) runRows(start, end int64) {
 				break
 			}
 			w.cur[i] = 0
+			first = true // a carry past the line's position starts a new line
 		}
 	}
+	w.line = -1
 }
 
 // searchRow scores the options of the row position for the current outer values.
@@ -288,10 +321,76 @@ func (w *rowWorker) searchRow() {
 // searchRange scores options lo..hi of the row position for the current
 // outer values, with option ref as the reference of the update formula.
 func (w *rowWorker) searchRange(lo, hi, ref int) {
+	w.line = -1
 	if !w.prepare(w.opts[ref].Value) {
 		w.slowRow(lo, hi)
 		return
 	}
+	w.scanRange(lo, hi)
+}
+
+// searchLine is searchRange for the rows of a line: rows that differ from
+// the line's first only in the value of outer position k. The first row
+// (first) is solved as searchRange does, with k's port response besides;
+// each later one is updated from it by the Sherman–Morrison formula for
+// k's conductance (the bilinear theorem again, now across rows) instead of
+// a new solve. A row whose update would divide by a small 1 + ΔG·z (where
+// rounding grows) is solved afresh and starts a new line.
+func (w *rowWorker) searchLine(lo, hi, ref, k int, first bool) {
+	if first || w.line != k || !w.updateLine() {
+		w.line = -1
+		if w.lineable {
+			w.line, w.kPart = k, w.p.Domains[k].Part
+			e := w.edges[w.kPart]
+			w.ka, w.kb = e.From, e.To
+		}
+		if !w.prepare(w.opts[ref].Value) {
+			w.line = -1
+			w.slowRow(lo, hi)
+			return
+		}
+	}
+	w.scanRange(lo, hi)
+}
+
+// lineMinDen is the least 1 + ΔG·z (the ratio of the new row's MNA
+// determinant to the line's first) that updateLine takes: below it the
+// update's rounding grows as its inverse, and the row is solved afresh.
+const lineMinDen = 0.125
+
+// updateLine sets the row up from the line's first (see searchLine) for
+// the current value of the line's position: x = xb − wk·sk and
+// w = wb − wk·t, with sk = ΔG·(xb(a) − xb(b))/d, t = ΔG·(wb(a) − wb(b))/d and
+// d = 1 + ΔG·(wk(a) − wk(b)), a and b the position's nodes. It reports
+// false when d is below lineMinDen in a condition.
+func (w *rowWorker) updateLine() bool {
+	v := w.p.Domains[w.line].Options[w.cur[w.line]].Value
+	ka, kb := w.ka, w.kb
+	for c := range w.cond {
+		rc := &w.cond[c]
+		dg := 1/v - rc.gk
+		d := 1 + dg*(rc.wk[ka]-rc.wk[kb])
+		if !(d >= lineMinDen) {
+			return false
+		}
+		sk := dg * (rc.xb[ka] - rc.xb[kb]) / d
+		t := dg * (rc.wb[ka] - rc.wb[kb]) / d
+		x, wr, xb, wb, wk := rc.x0, rc.w, rc.xb, rc.wb, rc.wk[:len(rc.x0)]
+		for i := range wk {
+			x[i] = xb[i] - wk[i]*sk
+			wr[i] = wb[i] - wk[i]*t
+		}
+		rc.vals[w.kPart] = v
+		rc.z = rc.w[w.ja] - rc.w[w.jb]
+		rc.v0 = rc.x0[w.ja] - rc.x0[w.jb]
+		w.powerCoefficients(rc)
+	}
+	return true
+}
+
+// scanRange scores options lo..hi of the row prepared by prepare (or
+// updateLine): the pole check, narrow's cut, and every option left.
+func (w *rowWorker) scanRange(lo, hi int) {
 	// A pole of the update formula inside the row breaks monotonicity.
 	for c := range w.cond {
 		rc := &w.cond[c]
@@ -339,6 +438,18 @@ func (w *rowWorker) prepare(rRef float64) bool {
 			return false
 		}
 		rc.w[0] = 0
+		if w.line >= 0 {
+			// The first row of a line: k's port response and the
+			// line's base solution, which updateLine starts from.
+			w.stats.Solves++
+			if err := s.PortResponse(w.ka, w.kb, rc.wk[1:]); err != nil {
+				return false
+			}
+			rc.wk[0] = 0
+			copy(rc.xb, rc.x0)
+			copy(rc.wb, rc.w)
+			rc.gk = 1 / rc.vals[w.kPart]
+		}
 		rc.g0 = 1 / rRef
 		rc.z = rc.w[w.ja] - rc.w[w.jb]
 		rc.v0 = rc.x0[w.ja] - rc.x0[w.jb]

@@ -1,0 +1,146 @@
+package synth
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"github.com/ohmfit/ohmfit/constraints"
+)
+
+// A row updated from its line's first (rowWorker.updateLine, the
+// Sherman–Morrison formula for one resistor's conductance, i.e. the
+// bilinear theorem) equals the row solved afresh: solution, port response,
+// the update formula's z and V0, the power coefficients and the part
+// values, within the update's rounding allowance (rescoreSlack), on
+// networks with one and with two conditions, an op-amp, and a current
+// target.
+func TestLineUpdateMatchesSolve(t *testing.T) {
+	for _, tc := range []struct{ name, yaml string }{
+		{"taps", `ohmfit: 1
+name: taps
+parts:
+  - {name: V1, type: voltage-source, plus: in, minus: gnd, volts: 12}
+  - {name: R1, type: resistor, from: in, to: a}
+  - {name: R2, type: resistor, from: a, to: gnd}
+  - {name: R3, type: resistor, from: a, to: b}
+  - {name: R4, type: resistor, from: b, to: gnd}
+  - {name: L, type: resistor, from: b, to: gnd, value: 47k}
+targets:
+  - {voltage: a, equals: 5}
+  - {current: R3, equals: 50u}
+choose: {series: E24, min: 100, max: 1M}
+`},
+		{"difference stage, two conditions", `ohmfit: 1
+name: diff
+parts:
+  - {name: VA, type: voltage-source, plus: a, minus: gnd, volts: 2.0}
+  - {name: VB, type: voltage-source, plus: b, minus: gnd, volts: 2.1}
+  - {name: VOFF, type: voltage-source, plus: off, minus: gnd, volts: 1.25}
+  - {name: R1, type: resistor, from: a, to: m}
+  - {name: R2, type: resistor, from: m, to: o}
+  - {name: R3, type: resistor, from: b, to: p}
+  - {name: R4, type: resistor, from: p, to: off}
+  - {name: RL, type: resistor, from: o, to: gnd, value: 10k}
+  - {name: U1, type: opamp, plus: p, minus: m, out: o}
+conditions:
+  - {name: low, set: {VB: 2.02}}
+  - {name: high, set: {VB: 2.2}}
+targets:
+  - {voltage: o, equals: 1.4, when: [low]}
+  - {voltage: o, equals: 2.9, when: [high]}
+choose: {series: E24, min: 1k, max: 1M}
+`},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			tp, err := constraints.Parse("line.yaml", []byte(tc.yaml))
+			if err != nil {
+				t.Fatal(err)
+			}
+			cp, err := constraints.Compile(tp)
+			if err != nil {
+				t.Fatal(err)
+			}
+			p, err := NewProblem(cp, "")
+			if err != nil {
+				t.Fatal(err)
+			}
+			set := &Settings{Top: 1}
+			st := newRunState(p, set)
+			sh := newBBShared(p, set, st, 1)
+			w := newRowWorker(p, st.r, set, sh.j, sh.outer)
+			n := len(w.cond[0].x0)
+			type row struct {
+				x, wr             [][]float64
+				z, v0, p0, p1, p2 []float64
+				vals              [][]float64
+			}
+			snap := func() row {
+				var r row
+				for c := range w.cond {
+					rc := &w.cond[c]
+					r.x = append(r.x, append([]float64(nil), rc.x0...))
+					r.wr = append(r.wr, append([]float64(nil), rc.w...))
+					r.vals = append(r.vals, append([]float64(nil), rc.vals...))
+					r.z, r.v0 = append(r.z, rc.z), append(r.v0, rc.v0)
+					r.p0, r.p1, r.p2 = append(r.p0, rc.p0), append(r.p1, rc.p1), append(r.p2, rc.p2)
+				}
+				return r
+			}
+			near := func(what string, got, want float64) {
+				t.Helper()
+				if math.Abs(got-want) > rescoreSlack*math.Max(1e-3, math.Abs(want)) {
+					t.Fatalf("%s: updated %.17g, solved %.17g", what, got, want)
+				}
+			}
+			rng := rand.New(rand.NewPCG(7, uint64(len(tc.yaml))))
+			updated := 0
+			for range 200 {
+				for _, i := range sh.outer {
+					w.cur[i] = rng.Int32N(int32(len(p.Domains[i].Options)))
+				}
+				k := sh.outer[rng.IntN(len(sh.outer))]
+				ref := rng.IntN(len(w.opts))
+				w.line, w.kPart = k, p.Domains[k].Part
+				e := w.edges[w.kPart]
+				w.ka, w.kb = e.From, e.To
+				if !w.prepare(w.opts[ref].Value) {
+					continue
+				}
+				w.cur[k] = rng.Int32N(int32(len(p.Domains[k].Options)))
+				if !w.updateLine() {
+					continue
+				}
+				updated++
+				got := snap()
+				w.line = -1
+				if !w.prepare(w.opts[ref].Value) {
+					t.Fatal("a fresh solve failed where the update did not")
+				}
+				want := snap()
+				for c := range w.cond {
+					for i := 0; i < n; i++ {
+						near("solution", got.x[c][i], want.x[c][i])
+						near("port response", got.wr[c][i], want.wr[c][i])
+					}
+					for i := range got.vals[c] {
+						if got.vals[c][i] != want.vals[c][i] {
+							t.Fatalf("part %d's value %g, want %g", i, got.vals[c][i], want.vals[c][i])
+						}
+					}
+					near("z", got.z[c], want.z[c])
+					near("V0", got.v0[c], want.v0[c])
+					scale := math.Abs(want.p0[c]) + math.Abs(want.p1[c]) + math.Abs(want.p2[c])
+					for _, q := range [][2]float64{{got.p0[c], want.p0[c]}, {got.p1[c], want.p1[c]}, {got.p2[c], want.p2[c]}} {
+						if math.Abs(q[0]-q[1]) > rescoreSlack*scale {
+							t.Fatalf("power coefficient: updated %.17g, solved %.17g", q[0], q[1])
+						}
+					}
+				}
+			}
+			if updated < 100 {
+				t.Fatalf("only %d of 200 rows updated: the check proves little", updated)
+			}
+		})
+	}
+}
