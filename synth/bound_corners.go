@@ -100,13 +100,33 @@ func (w *bbWorker) solveCorner(corner []int32, rec []float64, sg []int8) {
 	}
 	rec[l.opow] = w.sc.Power
 	if w.sc.Feasible {
-		copy(w.cand.Opt, corner)
-		w.cand.Error, w.cand.Power, w.cand.Parts = w.sc.Error, w.sc.Power, 0
-		for i, d := range p.Domains {
-			w.cand.Parts += d.Options[corner[i]].Count
-		}
-		w.inc.offerUnique(&w.cand)
+		w.offerCorner(corner)
 	}
+}
+
+// offerCorner offers a feasible corner, just scored into w.sc by plain
+// solves, to the worker's corner list. One that could enter is scored
+// again by refined solves first (rowWorker.fine), so that the bar, like the
+// answers, holds the figures the results show: plain figures of exact ties
+// differ by rounding beyond the contract's tie, and a bar made of them
+// could rule out a box that holds a tie it should keep.
+func (w *bbWorker) offerCorner(corner []int32) {
+	p := w.p
+	copy(w.cand.Opt, corner)
+	w.cand.Parts = 0
+	for i, d := range p.Domains {
+		w.cand.Parts += d.Options[corner[i]].Count
+	}
+	w.cand.Error, w.cand.Power = max(0, w.sc.Error-rescoreSlack), w.sc.Power*(1-rescoreSlack)
+	if w.inc.full() && !w.inc.r.less(&w.cand, w.inc.worst()) {
+		return
+	}
+	w.solves += int64(w.nc)
+	if err := p.Spec.Evaluate(w.rw.fine, w.free, w.sc); err != nil || !w.sc.Feasible {
+		return
+	}
+	w.cand.Error, w.cand.Power = w.sc.Error, w.sc.Power
+	w.inc.offerUnique(&w.cand)
 }
 
 // afterCond records, for the corner being scored, what its solution in
