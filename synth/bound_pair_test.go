@@ -5,8 +5,6 @@ import (
 	"math/rand/v2"
 	"os"
 	"testing"
-
-	"github.com/ohmfit/ohmfit/constraints"
 )
 
 // The joint bound of two goals (goalPair, pairBound) is a lower bound on
@@ -75,18 +73,7 @@ choose: {series: E12, min: 100, max: 100k}
 `, 1}, // V(a) and V(b) in light only
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			tp, err := constraints.Parse("pair.yaml", []byte(tc.yaml))
-			if err != nil {
-				t.Fatal(err)
-			}
-			cp, err := constraints.Compile(tp)
-			if err != nil {
-				t.Fatal(err)
-			}
-			p, err := NewProblem(cp, "")
-			if err != nil {
-				t.Fatal(err)
-			}
+			p := parsedProblem(t, "pair.yaml", []byte(tc.yaml))
 			set := &Settings{Top: 1}
 			st := newRunState(p, set)
 			w := newBBWorker(newBBShared(p, set, st, 1), set, st)
@@ -220,18 +207,7 @@ func TestPairBoundLadderBox(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	tp, err := constraints.Parse("ladder6-e96.yaml", text)
-	if err != nil {
-		t.Fatal(err)
-	}
-	cp, err := constraints.Compile(tp)
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := NewProblem(cp, "")
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := parsedProblem(t, "ladder6-e96.yaml", text)
 	index := func(i int, v float64) int32 {
 		for k, o := range p.Domains[i].Options {
 			if math.Abs(o.Value-v) <= 1e-9*v {

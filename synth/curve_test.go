@@ -4,8 +4,6 @@ import (
 	"context"
 	"math"
 	"testing"
-
-	"github.com/ohmfit/ohmfit/constraints"
 )
 
 // curveDivider is an NTC divider with extra parts and its targets.
@@ -41,18 +39,7 @@ func TestCurveClosedForm(t *testing.T) {
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			src := curveDivider(tc.parts, tc.target)
-			tpl, err := constraints.Parse("curve.yaml", []byte(src))
-			if err != nil {
-				t.Fatal(err)
-			}
-			cp, err := constraints.Compile(tpl)
-			if err != nil {
-				t.Fatal(err)
-			}
-			p, err := NewProblem(cp, "")
-			if err != nil {
-				t.Fatal(err)
-			}
+			p := parsedProblem(t, "curve.yaml", []byte(src))
 			res, err := Search(context.Background(), p, &Settings{Top: 1, Workers: 1}, Rows{})
 			if err != nil || len(res.Solutions) == 0 {
 				t.Fatalf("search: %v, %d answers", err, len(res.Solutions))

@@ -4,8 +4,6 @@ import (
 	"math"
 	"math/rand/v2"
 	"testing"
-
-	"github.com/ohmfit/ohmfit/constraints"
 )
 
 // A row updated from its line's first (rowWorker.updateLine, the
@@ -53,18 +51,7 @@ choose: {series: E24, min: 1k, max: 1M}
 `},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			tp, err := constraints.Parse("line.yaml", []byte(tc.yaml))
-			if err != nil {
-				t.Fatal(err)
-			}
-			cp, err := constraints.Compile(tp)
-			if err != nil {
-				t.Fatal(err)
-			}
-			p, err := NewProblem(cp, "")
-			if err != nil {
-				t.Fatal(err)
-			}
+			p := parsedProblem(t, "line.yaml", []byte(tc.yaml))
 			set := &Settings{Top: 1}
 			st := newRunState(p, set)
 			sh := newBBShared(p, set, st, 1)
