@@ -83,13 +83,7 @@ func TestBoardInterrupt(t *testing.T) {
 	}
 	done := make(chan error, 1)
 	go func() { done <- cmd.Wait() }()
-	var err error
-	select {
-	case err = <-done:
-	case <-time.After(60 * time.Second):
-		cmd.Process.Kill()
-		t.Fatal("the command did not stop after an interrupt")
-	}
+	err := stoppedAfterInterrupt(t, cmd, done)
 	if strings.Contains(errOut.String(), "goroutine") {
 		t.Fatalf("stack trace: %s", errOut.String())
 	}

@@ -178,13 +178,7 @@ func TestInterruptEveryCommand(t *testing.T) {
 			if err := cmd.Process.Signal(syscall.SIGINT); err != nil {
 				t.Fatal(err)
 			}
-			var err error
-			select {
-			case err = <-done:
-			case <-time.After(60 * time.Second):
-				cmd.Process.Kill()
-				t.Fatal("the command did not stop after an interrupt")
-			}
+			err := stoppedAfterInterrupt(t, cmd, done)
 			if strings.Contains(errOut.String(), "goroutine") {
 				t.Errorf("stack trace: %s", errOut.String())
 			}
@@ -249,5 +243,20 @@ func TestStdinTemplate(t *testing.T) {
 				t.Errorf("from stdin:\n%s\nfrom the file:\n%s", out.String(), fromFile)
 			}
 		})
+	}
+}
+
+// stoppedAfterInterrupt waits for an interrupted command to end (done
+// carries its Wait), failing the test and killing it when it runs on for a
+// minute, and returns how it ended.
+func stoppedAfterInterrupt(t *testing.T, cmd *exec.Cmd, done <-chan error) error {
+	t.Helper()
+	select {
+	case err := <-done:
+		return err
+	case <-time.After(60 * time.Second):
+		cmd.Process.Kill()
+		t.Fatal("the command did not stop after an interrupt")
+		return nil
 	}
 }
