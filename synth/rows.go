@@ -283,12 +283,15 @@ func (w *rowWorker) runRows(start, end int64) {
 		w.cur[w.outer[k]] = int32(r % n)
 		r /= n
 	}
-	// The rows come in lines along the last outer position (searchLine),
-	// each begun afresh at the start of a chunk: which rows are updated
-	// does not depend on the number of workers.
+	// The rows come in lines along the last outer position with more than
+	// one option (searchLine; the ones after it never change), each begun
+	// afresh at the start of a chunk: which rows are updated does not
+	// depend on the number of workers.
 	line := -1
-	if len(w.outer) > 0 {
-		line = w.outer[len(w.outer)-1]
+	for k := len(w.outer) - 1; k >= 0 && line < 0; k-- {
+		if len(w.p.Domains[w.outer[k]].Options) > 1 {
+			line = w.outer[k]
+		}
 	}
 	first := true
 	for row := start; row < end; row++ {
@@ -307,7 +310,9 @@ func (w *rowWorker) runRows(start, end int64) {
 				break
 			}
 			w.cur[i] = 0
-			first = true // a carry past the line's position starts a new line
+			if i == line {
+				first = true // a carry past the line's position starts a new line
+			}
 		}
 	}
 	w.line = -1
