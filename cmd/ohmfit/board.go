@@ -158,7 +158,7 @@ func solveBoard(o *boardOptions, outs *outputs, b *board.Board) error {
 	}
 	for _, nr := range res.Networks {
 		if nr.Cut {
-			warnf(o.ErrOut, "%s has more than %d designs within its cap; the %d closest were kept, so the board's minimum is not proven",
+			warnf(o.ErrOut, "%s has more than %d designs within its cap; the %d closest were kept, and its own best answer, so the board's minimum is not proven",
 				nr.Network.Name(), board.DefaultMaxDesigns, board.DefaultMaxDesigns)
 		}
 	}

@@ -102,7 +102,7 @@ func BenchmarkBoard(b *testing.B) {
 	b.Run("select/exact", func(b *testing.B) {
 		var sel selection
 		for b.Loop() {
-			sel = choose(context.Background(), prune(nets), nvals, DefaultMaxNodes)
+			sel = choose(context.Background(), prune(nets), nvals, DefaultMaxNodes, nil)
 		}
 		b.ReportMetric(float64(sel.obj.distinct), "distinct")
 		b.ReportMetric(float64(sel.nodes), "nodes")
@@ -119,7 +119,7 @@ func BenchmarkBoard(b *testing.B) {
 	few := nets[:3]
 	b.Run("select3/exact", func(b *testing.B) {
 		for b.Loop() {
-			choose(context.Background(), prune(few), nvals, DefaultMaxNodes)
+			choose(context.Background(), prune(few), nvals, DefaultMaxNodes, nil)
 		}
 	})
 	b.Run("select3/enumeration", func(b *testing.B) {
@@ -168,7 +168,7 @@ func BenchmarkBoardTwentyCLI(b *testing.B) {
 	nets, nvals := items(res)
 	var sel selection
 	for b.Loop() {
-		sel = choose(context.Background(), prune(nets), nvals, DefaultMaxNodes)
+		sel = choose(context.Background(), prune(nets), nvals, DefaultMaxNodes, nil)
 	}
 	b.ReportMetric(float64(sel.obj.distinct), "distinct")
 	b.ReportMetric(float64(sel.bound), "bound")

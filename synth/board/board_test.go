@@ -95,7 +95,7 @@ func TestChooseMatchesBruteForce(t *testing.T) {
 	for k := range n {
 		nets, nvals := randomNets(rng)
 		want := bruteBest(nets)
-		sel := choose(context.Background(), prune(nets), nvals, DefaultMaxNodes)
+		sel := choose(context.Background(), prune(nets), nvals, DefaultMaxNodes, nil)
 		pr := prune(nets)
 		got := bruteObjective(pr, sel.choice)
 		if got.distinct != want.distinct || !constraints.Same(got.rel, want.rel) || !constraints.Same(got.pow, want.pow) {
@@ -110,6 +110,27 @@ func TestChooseMatchesBruteForce(t *testing.T) {
 	}
 }
 
+// TestChooseNeverWorseThanKnown stops the search after one node with a
+// known selection (one design per network, its values): what it shows never
+// needs more values than that selection, so the board's "saving" against
+// the networks alone is never negative, whatever stops the search.
+func TestChooseNeverWorseThanKnown(t *testing.T) {
+	rng := rand.New(rand.NewPCG(31, 5))
+	for k := range 5000 {
+		nets, nvals := randomNets(rng)
+		var known []int32
+		for r := range nets {
+			known = append(known, nets[r][rng.IntN(len(nets[r]))].vals...)
+		}
+		slices.Sort(known)
+		known = slices.Compact(known)
+		sel := choose(context.Background(), prune(nets), nvals, 1, known)
+		if sel.obj.distinct > len(known) {
+			t.Fatalf("case %d %v: %d values shown, the known selection %v needs %d", k, nets, sel.obj.distinct, known, len(known))
+		}
+	}
+}
+
 // TestChooseCut stops the exact search after one node: the result is then
 // marked not proven, its bound is at most the true minimum (enumeration)
 // and its count at least that. When the greedy choice already meets the
@@ -120,7 +141,7 @@ func TestChooseCut(t *testing.T) {
 	for k := range 2000 {
 		nets, nvals := randomNets(rng)
 		want := bruteBest(nets)
-		sel := choose(context.Background(), prune(nets), nvals, 1)
+		sel := choose(context.Background(), prune(nets), nvals, 1, nil)
 		switch {
 		case sel.proven && sel.obj.distinct != want.distinct:
 			t.Fatalf("case %d: proven with %d values, enumeration finds %d", k, sel.obj.distinct, want.distinct)
@@ -172,7 +193,7 @@ func TestChooseTies(t *testing.T) {
 			if b := bruteBest(tc.nets); b != tc.want {
 				t.Fatalf("enumeration %+v, test expects %+v", b, tc.want)
 			}
-			sel := choose(context.Background(), prune(tc.nets), 4, DefaultMaxNodes)
+			sel := choose(context.Background(), prune(tc.nets), 4, DefaultMaxNodes, nil)
 			if sel.obj != tc.want {
 				t.Errorf("chosen %+v, want %+v", sel.obj, tc.want)
 			}
@@ -584,7 +605,7 @@ func TestChooseDeepBoards(t *testing.T) {
 	for k := range n {
 		nets, nvals := randomDeep(rng)
 		want := fewestBySubsets(nets, nvals)
-		sel := choose(context.Background(), prune(nets), nvals, DefaultMaxNodes)
+		sel := choose(context.Background(), prune(nets), nvals, DefaultMaxNodes, nil)
 		if got := bruteObjective(prune(nets), sel.choice).distinct; got != want || sel.obj.distinct != want {
 			t.Fatalf("case %d %v: chosen %d (says %d), brute force over value sets %d", k, nets, got, sel.obj.distinct, want)
 		}
@@ -667,7 +688,7 @@ func TestChooseExpiredContext(t *testing.T) {
 		nets, nvals := randomDeep(rng)
 		nets = prune(nets)
 		want := fewestBySubsets(nets, nvals)
-		sel := choose(ctx, nets, nvals, DefaultMaxNodes)
+		sel := choose(ctx, nets, nvals, DefaultMaxNodes, nil)
 		if sel.proven && sel.obj.distinct != want {
 			t.Fatalf("case %d: proven with %d values, brute force %d", c, sel.obj.distinct, want)
 		}

@@ -595,8 +595,9 @@ func triedSubset(tried map[addKey]bool, add []int32) bool {
 // maxMemo bounds the remembered sets (about 100 MB at most).
 const maxMemo = 1 << 20
 
-// choose solves the selection over pruned item lists. The greedy set gives
-// a first upper bound. On a board of groups that share values, the groups'
+// choose solves the selection over pruned item lists. The greedy set, or
+// the known set when it is better (nil for none: any value set every
+// network can be served from), gives a first upper bound. On a board of groups that share values, the groups'
 // profiles come next (at most a third of the budget) and raise the trivial
 // bound (the most values any network's smallest design needs). Then, with
 // half the node budget, a search over value sets looks for a set of one
@@ -609,10 +610,20 @@ const maxMemo = 1 << 20
 // along the way serve every later stage. With the minimum proven, every
 // set of that size is enumerated (bounded by the relative error) for the
 // tie keys, with what is left of the budget.
-func choose(ctx context.Context, nets [][]item, nvals int, budget int64) selection {
+func choose(ctx context.Context, nets [][]item, nvals int, budget int64, known []int32) selection {
 	s := newSelector(ctx, nets, nvals)
 	set := greedy(nets, nvals)
 	bestObj, _ := evaluateSet(nets, nvals, set)
+	// A known selection (the networks' own answers) starts the search when
+	// it beats the greedy one, so that a search the budget stops never
+	// shows more values than the networks need alone.
+	if known != nil && feasible(nets, nvals, known) {
+		_, ch := evaluateSet(nets, nvals, known)
+		used := union(nets, ch) // only the values its choice uses
+		if o, _ := evaluateSet(nets, nvals, used); o.better(bestObj) {
+			set, bestObj = used, o
+		}
+	}
 	sel := selection{bound: s.lb}
 	// take makes the set found the best so far: the values its choice
 	// uses (they may be fewer than the set's).

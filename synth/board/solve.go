@@ -60,7 +60,8 @@ func (d *Design) PartValues() []float64 {
 type NetworkResult struct {
 	Network *Network
 	// Designs lists every design within the cap that meets the hard limits,
-	// by error, then power (the first MaxDesigns when Cut).
+	// by error, then power (when Cut, the first MaxDesigns, and the
+	// network's own best answer after them when it is not among them).
 	Designs []Design
 	Cut     bool
 	// Kept is how many designs the selection considered after dropping
@@ -184,13 +185,13 @@ func Solve(ctx context.Context, b *Board, s *Settings) (*Result, error) {
 	if res.Networks, err = listAll(ctx, tctx, b, &set); err != nil {
 		return nil, err
 	}
-	nets, table, fixed := selectionItems(res.Networks)
+	nets, table, fixed, alone := selectionItems(res.Networks)
 	nets = prune(nets)
 	for r := range nets {
 		res.Networks[r].Kept = len(nets[r])
 	}
 	// The selection counts the values beyond the fixed ones (ids from 0).
-	sel := choose(tctx, nets, len(table)-fixed, set.MaxNodes)
+	sel := choose(tctx, nets, len(table)-fixed, set.MaxNodes, alone)
 	switch {
 	case !sel.out:
 	case ctx.Err() != nil:
@@ -250,15 +251,17 @@ func listAll(ctx, tctx context.Context, b *Board, set *Settings) ([]NetworkResul
 // over the board's value table: every physical value any design uses. The
 // fixed resistors' values are on the board anyway, so they are left out
 // of every design's set (a design that reuses one adds nothing); they
-// take the first ids of the table, and fixed says how many.
-func selectionItems(nrs []NetworkResult) (nets [][]item, table []float64, fixed int) {
-	ids := map[string]int32{}
+// take the first ids of the table, and fixed says how many. alone is the
+// value set of the networks' own answers, in the same ids: a selection
+// that always exists.
+func selectionItems(nrs []NetworkResult) (nets [][]item, table []float64, fixed int, alone []int32) {
+	index := map[string]int32{}
 	id := func(v float64) int32 {
 		k := valueKey(v)
-		if i, ok := ids[k]; ok {
+		if i, ok := index[k]; ok {
 			return i
 		}
-		ids[k] = int32(len(table))
+		index[k] = int32(len(table))
 		table = append(table, v)
 		return int32(len(table) - 1)
 	}
@@ -268,22 +271,30 @@ func selectionItems(nrs []NetworkResult) (nets [][]item, table []float64, fixed 
 		}
 	}
 	fixed = len(table)
+	// selIDs gives the selection's ids of values, sorted, once each: the
+	// fixed ones left out.
+	selIDs := func(vs []float64) []int32 {
+		var out []int32
+		for _, v := range vs {
+			if k := id(v); int(k) >= fixed {
+				out = append(out, k-int32(fixed))
+			}
+		}
+		slices.Sort(out)
+		return slices.Compact(out)
+	}
 	nets = make([][]item, len(nrs))
 	for r := range nrs {
 		for i := range nrs[r].Designs {
 			d := &nrs[r].Designs[i]
-			it := item{rel: d.Rel, pow: d.Score.Power, idx: i}
-			for _, v := range d.PartValues() {
-				if k := id(v); int(k) >= fixed {
-					it.vals = append(it.vals, k-int32(fixed))
-				}
-			}
-			slices.Sort(it.vals)
-			it.vals = slices.Compact(it.vals)
-			nets[r] = append(nets[r], it)
+			nets[r] = append(nets[r], item{vals: selIDs(d.PartValues()), rel: d.Rel, pow: d.Score.Power, idx: i})
+		}
+		for _, o := range nrs[r].Alone.Options {
+			alone = append(alone, selIDs(o.PartValues())...)
 		}
 	}
-	return nets, table, fixed
+	slices.Sort(alone)
+	return nets, table, fixed, slices.Compact(alone)
 }
 
 // record writes the selection into the result: each network's choice, the
