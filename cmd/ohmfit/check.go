@@ -279,6 +279,9 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 	if err != nil {
 		return nil, templateError(t, err)
 	}
+	if err := nothingSeen(res, 0); err != nil {
+		return nil, err
+	}
 	if len(res.Solutions) < o.Rank {
 		if len(res.Solutions) == 0 {
 			return nil, &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res, reach))}

@@ -216,16 +216,8 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 		}
 		return err
 	}
-	if len(res.Solutions) == 0 && res.Stats.Evaluated == 0 {
-		// Nothing was looked at: "no candidate meets the hard limits" would
-		// be a claim about candidates never seen.
-		switch res.Status {
-		case synth.TimeLimit:
-			return badInputf("the time limit of %v ran out before any candidate was evaluated, so there is nothing to show; "+
-				"allow more time (--time-limit 10s, say) or leave the limit out", o.TimeLimit)
-		case synth.Interrupted:
-			return badInputf("interrupted before any candidate was evaluated, so there is nothing to show")
-		}
+	if err := nothingSeen(res, o.TimeLimit); err != nil {
+		return err
 	}
 	switch res.Status {
 	case synth.Interrupted:
@@ -417,4 +409,21 @@ func parseErrorCap(s string) (float64, error) {
 		return 0, badInputf("--tradeoffs %s would mean %s; write %s%% for a percentage, or a fraction up to 1", s, units.FormatUnit(q.Value, units.Percent), s)
 	}
 	return q.Value, nil
+}
+
+// nothingSeen refuses a search that was stopped before it evaluated any
+// candidate: "no candidate meets the hard limits" would then be a claim
+// about candidates never seen. It returns nil for any other result.
+func nothingSeen(res *synth.Result, limit time.Duration) error {
+	if len(res.Solutions) > 0 || res.Stats.Evaluated > 0 {
+		return nil
+	}
+	switch res.Status {
+	case synth.TimeLimit:
+		return badInputf("the time limit of %v ran out before any candidate was evaluated, so there is nothing to show; "+
+			"allow more time (--time-limit 10s, say) or leave the limit out", limit)
+	case synth.Interrupted:
+		return badInputf("interrupted before any candidate was evaluated, so there is nothing to show")
+	}
+	return nil
 }

@@ -16,6 +16,7 @@ import (
 	"time"
 
 	"github.com/ohmfit/ohmfit/constraints"
+	"github.com/ohmfit/ohmfit/synth"
 )
 
 // TestMain lets the test binary act as the ohmfit command when asked, so a
@@ -258,5 +259,30 @@ func stoppedAfterInterrupt(t *testing.T, cmd *exec.Cmd, done <-chan error) error
 		cmd.Process.Kill()
 		t.Fatal("the command did not stop after an interrupt")
 		return nil
+	}
+}
+
+// TestNothingSeen: a search stopped before it evaluated any candidate is
+// refused (exit 2) rather than reported as "no candidate meets the hard
+// limits", in fit and in check's search alike; any other result passes.
+func TestNothingSeen(t *testing.T) {
+	cases := []struct {
+		name string
+		res  synth.Result
+		want bool
+	}{
+		{"interrupted at once", synth.Result{Status: synth.Interrupted}, true},
+		{"time limit at once", synth.Result{Status: synth.TimeLimit}, true},
+		{"interrupted after some", synth.Result{Status: synth.Interrupted, Stats: synth.Stats{Evaluated: 1}}, false},
+		{"proven, none feasible", synth.Result{Status: synth.NoFeasible}, false},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			err := nothingSeen(&c.res, time.Second)
+			var ee *exitError
+			if got := errors.As(err, &ee) && ee.code == ExitBadInput; got != c.want {
+				t.Errorf("nothingSeen: %v, want a refusal %v", err, c.want)
+			}
+		})
 	}
 }
