@@ -59,8 +59,9 @@ exactly: "proven" means no selection with fewer distinct values exists.
 chosen parts (each physical part of a position made of two) and those of
 the templates' fixed resistors, which are on the board whatever is chosen
 (so a design that reuses one adds nothing). Sensors and stand-ins are not
-resistor values and are not counted; a value ordered at two tolerances or
-packages is one value (and two BOM lines). "alone" counts them when every
+resistor values and are not counted; a value ordered as two different
+items (another tolerance, series, TCR, package or rating) is one value (and
+two BOM lines). "alone" counts them when every
 network takes its own best answer within its cap (rank 1 by its
 template's rank keys). The BOM lists every resistor of every network,
 the templates' fixed ones too, designators prefixed (U3-R1), one line per
@@ -298,19 +299,19 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 
 // bomNote explains why the BOM has more lines than the board has distinct
 // resistor values, when it does: sensors and stand-ins are on it but are
-// not resistor values, and a value ordered at two tolerances or packages
-// is two lines.
+// not resistor values, and a value ordered as two different items
+// (tolerance, series, TCR, package, rating) is two lines.
 func bomNote(res *board.Result, chk *board.Checked) string {
 	if len(chk.BOM) == res.Distinct {
 		return ""
 	}
-	other, lines := false, map[float64]int{}
+	other, lines := false, map[string]int{}
 	for _, l := range chk.BOM {
 		if l.Type != variation.TypeResistor {
 			other = true
 			continue
 		}
-		lines[l.Value]++
+		lines[board.ValueKey(l.Value)]++
 	}
 	var why []string
 	if other {
@@ -318,9 +319,12 @@ func bomNote(res *board.Result, chk *board.Checked) string {
 	}
 	for _, n := range lines {
 		if n > 1 {
-			why = append(why, "a value ordered at two tolerances or packages is one value and two lines")
+			why = append(why, "a value ordered as two different items (tolerance, series, TCR, package or rating) is one value and two lines")
 			break
 		}
+	}
+	if len(why) == 0 {
+		return ""
 	}
 	return fmt.Sprintf("%d BOM lines for %d distinct resistor values: %s.", len(chk.BOM), res.Distinct, strings.Join(why, "; "))
 }

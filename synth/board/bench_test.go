@@ -137,7 +137,7 @@ func items(res *Result) ([][]item, int) {
 		for i, d := range nr.Designs {
 			it := item{rel: d.Rel, pow: d.Score.Power, idx: i}
 			for _, v := range d.PartValues() {
-				k := valueKey(v)
+				k := ValueKey(v)
 				if _, ok := ids[k]; !ok {
 					ids[k] = int32(len(ids))
 				}

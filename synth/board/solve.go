@@ -257,7 +257,7 @@ func listAll(ctx, tctx context.Context, b *Board, set *Settings) ([]NetworkResul
 func selectionItems(nrs []NetworkResult) (nets [][]item, table []float64, fixed int, alone []int32) {
 	index := map[string]int32{}
 	id := func(v float64) int32 {
-		k := valueKey(v)
+		k := ValueKey(v)
 		if i, ok := index[k]; ok {
 			return i
 		}
@@ -329,12 +329,12 @@ func (res *Result) record(sel selection, nets [][]item, table []float64, fixed i
 	res.Nodes = sel.nodes
 	alone := map[string]bool{}
 	for _, v := range res.Fixed {
-		alone[valueKey(v)] = true
+		alone[ValueKey(v)] = true
 	}
 	for _, nr := range res.Networks {
 		for _, o := range nr.Alone.Options {
 			for _, v := range o.PartValues() {
-				alone[valueKey(v)] = true
+				alone[ValueKey(v)] = true
 			}
 		}
 	}
@@ -384,9 +384,10 @@ func sameDesign(a, b synth.Solution) bool {
 	})
 }
 
-// valueKey identifies a physical value: nine significant digits, so that
-// the same standard value reached by two series' tables is one value.
-func valueKey(v float64) string { return strconv.FormatFloat(v, 'g', 9, 64) }
+// ValueKey identifies a physical value, as the board counts values: nine
+// significant digits, so that the same standard value reached by two
+// series' tables is one value.
+func ValueKey(v float64) string { return strconv.FormatFloat(v, 'g', 9, 64) }
 
 // errorFirst returns p ranked by error, then power, then parts, whatever
 // its template says: the board lists designs by error, so that a cut list

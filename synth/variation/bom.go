@@ -194,7 +194,7 @@ func conditionRange(t *constraints.Template, name string) (lo, hi float64, set b
 func MergeBOM(lines []BOMLine) []BOMLine {
 	var out []BOMLine
 	for _, l := range lines {
-		i := slices.IndexFunc(out, func(o BOMLine) bool { return o.BOMItem == l.BOMItem })
+		i := slices.IndexFunc(out, func(o BOMLine) bool { return o.BOMItem.same(l.BOMItem) })
 		if i < 0 {
 			l.Designators = slices.Clone(l.Designators)
 			out = append(out, l)
@@ -209,6 +209,16 @@ func MergeBOM(lines []BOMLine) []BOMLine {
 		}
 	}
 	return out
+}
+
+// same reports whether two items are one thing to order. A stand-in's
+// unknown tolerance (NaN) matches another's: == alone would never merge
+// two stand-ins of one value.
+func (a BOMItem) same(b BOMItem) bool {
+	if math.IsNaN(a.Tolerance) && math.IsNaN(b.Tolerance) {
+		a.Tolerance, b.Tolerance = 0, 0
+	}
+	return a == b
 }
 
 // SensorKind names a sensor type for people: "NTC thermistor" or "RTD".

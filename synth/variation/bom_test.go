@@ -113,6 +113,13 @@ func TestMergeBOM(t *testing.T) {
 	if len(in[0].Designators) != 1 || in[0].TolFrom != "part" {
 		t.Errorf("input changed: %+v", in[0])
 	}
+	// Two stand-ins of one value in two networks are one item to order,
+	// although their tolerance is unknown (NaN, never == itself).
+	stand := BOMItem{Type: TypeStandIn, Value: 8.2e3, Tolerance: math.NaN(), Model: "set by the conditions"}
+	two := MergeBOM([]BOMLine{{BOMItem: stand, Designators: []string{"U1-RS"}}, {BOMItem: stand, Designators: []string{"U2-RS"}}})
+	if len(two) != 1 || two[0].Quantity() != 2 {
+		t.Errorf("two stand-ins of one value: %+v", two)
+	}
 }
 
 // A fixed resistor whose value the conditions set stands in for a part that
