@@ -20,15 +20,9 @@ func RankMerged(keys []constraints.RankKey, sols []ScoreKey, top int) (order []i
 	if len(order) > top {
 		order = order[:top]
 	}
-	pareto = make([]bool, len(order))
-	for i, a := range order {
-		pareto[i] = true
-		for j, b := range order {
-			if i != j && DominatesScore(sols[b], sols[a]) {
-				pareto[i] = false
-				break
-			}
-		}
+	shown := make([]ScoreKey, len(order))
+	for i, k := range order {
+		shown[i] = sols[k]
 	}
-	return order, pareto
+	return order, paretoMarks(shown)
 }

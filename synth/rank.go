@@ -214,7 +214,7 @@ func compareKeys(keys []constraints.RankKey, ae, ap float64, an int, be, bp floa
 }
 
 // ScoreKey is what ranks a finished answer: its error, power, part count and
-// effective values in part order. MergeShards-style callers that hold only
+// effective values in part order. RankMerged-style callers that hold only
 // answers (not their option indices) rank with it.
 type ScoreKey struct {
 	Error, Power float64
@@ -246,4 +246,21 @@ func DominatesScore(a, b ScoreKey) bool {
 		return false
 	}
 	return lt(a.Error, b.Error) || lt(a.Power, b.Power) || a.Parts < b.Parts
+}
+
+// paretoMarks says, for each answer of a list, whether no other answer of
+// the list dominates it (DominatesScore): the Pareto marks of a search's
+// list and of merged shards alike.
+func paretoMarks(keys []ScoreKey) []bool {
+	marks := make([]bool, len(keys))
+	for i := range keys {
+		marks[i] = true
+		for j := range keys {
+			if i != j && DominatesScore(keys[j], keys[i]) {
+				marks[i] = false
+				break
+			}
+		}
+	}
+	return marks
 }

@@ -103,7 +103,7 @@ type Settings struct {
 	// Shard and Shards, when Shards > 1, search only the Shard-th (1-based)
 	// of Shards disjoint parts of the space, the same parts for the same
 	// problem on any machine; the shards' results together give the result
-	// of the whole search (see MergeShards). Methods that cannot split the
+	// of the whole search (see RankMerged). Methods that cannot split the
 	// space refuse it.
 	Shard, Shards int
 	// ErrorMax, when positive, is a hard limit on the goal error (a
@@ -458,17 +458,12 @@ func (st *runState) finish(p *Problem, res *Result) error {
 	if len(res.Solutions) > st.want {
 		res.Solutions = res.Solutions[:st.want]
 	}
-	for i := range res.Solutions {
-		res.Solutions[i].Rank = i + 1
-		res.Solutions[i].Pareto = true
-		a := &res.Solutions[i]
-		for j := range res.Solutions {
-			b := &res.Solutions[j]
-			if i != j && dominates(b, a) {
-				a.Pareto = false
-				break
-			}
-		}
+	keys := make([]ScoreKey, len(res.Solutions))
+	for i, s := range res.Solutions {
+		keys[i] = ScoreKey{Error: s.Score.Error, Power: s.Score.Power, Parts: s.Parts}
+	}
+	for i, pareto := range paretoMarks(keys) {
+		res.Solutions[i].Rank, res.Solutions[i].Pareto = i+1, pareto
 	}
 	if st.front != nil {
 		front := st.rescore(p, s, st.front.items)
@@ -527,13 +522,6 @@ func (st *runState) rescore(p *Problem, s *solver.Solver, cands []*candidate) []
 		}
 	}
 	return out
-}
-
-// dominates reports whether a is at least as good as b in error, power and
-// part count, and better in at least one.
-func dominates(a, b *Solution) bool {
-	return DominatesScore(ScoreKey{Error: a.Score.Error, Power: a.Score.Power, Parts: a.Parts},
-		ScoreKey{Error: b.Score.Error, Power: b.Score.Power, Parts: b.Parts})
 }
 
 // withinCap reports whether goal error e meets the cap (0: no cap), within
