@@ -111,10 +111,10 @@ func (b *box) clone() *box {
 	return &c
 }
 
-// boxHeap orders open boxes by their bounds on the rank keys in rank
-// order (error, power and part count, as the ranking takes them), then
-// deepest first (a dive to a leaf finds answers early), then creation
-// order. Breaking equal error bounds by the power bound matters where many
+// boxHeap orders open boxes by their power bound when power ranks first,
+// else by their error bound (also when part count ranks first), then by
+// their bounds on the rank keys in rank order, then deepest first (a dive
+// to a leaf finds answers early), then creation order. Breaking equal error bounds by the power bound matters where many
 // boxes can only tie on error (exact ties ranked by power): the lowest
 // power ones are finished first and set the bar the others are ruled out
 // by. (Measured on diff4-e96: a fifteenth of the solves of a dive by depth.
@@ -350,9 +350,9 @@ func (sh *bbShared) splitDim(b *box) int {
 // split halves a box by index: on the position its corners chose
 // (influence), else on the widest.
 func (sh *bbShared) split(b *box) (*box, *box) {
-	d := sh.splitDim(b)
-	if b.dim >= 0 && b.lo[b.dim] < b.hi[b.dim] {
-		d = b.dim
+	d := b.dim
+	if d < 0 || b.lo[d] >= b.hi[d] {
+		d = sh.splitDim(b) // the widest, only when the corners chose none
 	}
 	mid := (b.lo[d] + b.hi[d]) / 2
 	a, c := b.clone(), b.clone()
