@@ -114,10 +114,10 @@ func (b *box) clone() *box {
 // boxHeap orders open boxes by their power bound when power ranks first,
 // else by their error bound (also when part count ranks first), then by
 // their bounds on the rank keys in rank order, then deepest first (a dive
-// to a leaf finds answers early), then creation order. Breaking equal error bounds by the power bound matters where many
-// boxes can only tie on error (exact ties ranked by power): the lowest
-// power ones are finished first and set the bar the others are ruled out
-// by. (Measured on diff4-e96: a fifteenth of the solves of a dive by depth.
+// to a leaf finds answers early), then creation order. Breaking equal
+// error bounds by the power bound matters where many boxes can only tie on
+// error (exact ties ranked by power): the lowest power ones are finished
+// first and set the bar the others are ruled out by. (Measured on diff4-e96: a fifteenth of the solves of a dive by depth.
 // Before the split choice of bbWorker.influence, depth was the faster.)
 type boxHeap struct {
 	items []*box
