@@ -113,11 +113,8 @@ func (w *bbWorker) solveCorner(corner []int32, rec []float64, sg []int8) {
 func (w *bbWorker) offerCorner(corner []int32) {
 	p := w.p
 	copy(w.cand.Opt, corner)
-	w.cand.Parts = 0
-	for i, d := range p.Domains {
-		w.cand.Parts += d.Options[corner[i]].Count
-	}
-	w.cand.Error, w.cand.Power = max(0, w.sc.Error-rescoreSlack), w.sc.Power*(1-rescoreSlack)
+	w.cand.Parts = partCount(p.Domains, corner)
+	w.cand.atLeast(w.sc.Error, w.sc.Power)
 	if w.inc.full() && !w.inc.r.less(&w.cand, w.inc.worst()) {
 		return
 	}

@@ -648,34 +648,29 @@ func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
 	}
 	copy(w.cand.Opt, w.cur)
 	w.cand.Opt[w.j] = int32(i)
-	parts := 0
+	w.cand.Parts = partCount(w.p.Domains, w.cand.Opt)
+	w.cand.atLeast(errMax, powMax)
+	top := !w.top.full() || w.top.r.less(&w.cand, w.top.worst())
+	front := w.front != nil && errMax <= w.frontCap+rescoreSlack && w.front.mayTake(&w.cand)
+	if !top && !front {
+		return
+	}
 	for k, d := range w.p.Domains {
-		parts += d.Options[w.cand.Opt[k]].Count
+		w.free[k] = d.Options[w.cand.Opt[k]].Value
 	}
-	{
-		w.cand.Error, w.cand.Power, w.cand.Parts = max(0, errMax-rescoreSlack), powMax*(1-rescoreSlack), parts
-		top := !w.top.full() || w.top.r.less(&w.cand, w.top.worst())
-		front := w.front != nil && errMax <= w.frontCap+rescoreSlack && w.front.mayTake(&w.cand)
-		if !top && !front {
-			return
-		}
-		for k, d := range w.p.Domains {
-			w.free[k] = d.Options[w.cand.Opt[k]].Value
-		}
-		w.stats.Solves += int64(w.nc)
-		if err := w.p.Spec.Evaluate(w.fine, w.free, w.sc); err != nil {
-			return
-		}
-		if !w.sc.Feasible {
-			w.viol.add(w.sc.Violated, 1)
-			return
-		}
-		errMax, powMax = w.sc.Error, w.sc.Power
-		if !withinCap(errMax, w.errCap) {
-			return
-		}
+	w.stats.Solves += int64(w.nc)
+	if err := w.p.Spec.Evaluate(w.fine, w.free, w.sc); err != nil {
+		return
 	}
-	w.cand.Error, w.cand.Power, w.cand.Parts = errMax, powMax, parts
+	if !w.sc.Feasible {
+		w.viol.add(w.sc.Violated, 1)
+		return
+	}
+	errMax, powMax = w.sc.Error, w.sc.Power
+	if !withinCap(errMax, w.errCap) {
+		return
+	}
+	w.cand.Error, w.cand.Power = errMax, powMax
 	w.top.offer(&w.cand)
 	if w.front != nil && (errMax <= w.frontCap || constraints.Same(errMax, w.frontCap)) {
 		w.front.offer(&w.cand)
@@ -972,4 +967,21 @@ func refinedSolver(net *solver.Network) *solver.Solver {
 	s := net.NewSolver()
 	s.SetRefinement(true)
 	return s
+}
+
+// partCount is the number of physical parts of the candidate with options
+// opt.
+func partCount(ds []Domain, opt []int32) int {
+	n := 0
+	for k, d := range ds {
+		n += d.Options[opt[k]].Count
+	}
+	return n
+}
+
+// atLeast sets c's figures to the least that refined solves can give for
+// figures e and p from plain solves or the update formula (rescoreSlack):
+// the figures to ask whether c could enter a list before scoring it again.
+func (c *candidate) atLeast(e, p float64) {
+	c.Error, c.Power = max(0, e-rescoreSlack), p*(1-rescoreSlack)
 }
