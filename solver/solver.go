@@ -138,7 +138,7 @@ func (s *Solver) SetRefinement(on bool) {
 		s.orig = make([]float64, s.n*s.n)
 		s.origRHS = make([]float64, s.n)
 		s.resid = make([]float64, s.n+1)
-		s.lo = make([]float64, s.n*s.n+1) // the scratch slot too, as in a
+		s.lo = make([]float64, s.n*s.n+1) // with the scratch slot, as s.a has
 	}
 }
 
@@ -199,9 +199,8 @@ func (s *Solver) stampExact() {
 	a, lo := s.a, s.lo
 	clear(lo)
 	add := func(k int32, g, glo float64) {
-		sum := a[k] + g
-		z := sum - a[k]
-		lo[k] += (a[k] - (sum - z)) + (g - z) + glo
+		sum, e := twoSum(a[k], g)
+		lo[k] += e + glo
 		a[k] = sum
 	}
 	for _, r := range s.net.resStamps {
@@ -438,11 +437,18 @@ func residual(b float64, a, x []float64) float64 {
 	for j, aij := range a {
 		p := aij * x[j]
 		pe := math.FMA(aij, x[j], -p) // aij·x[j] = p + pe exactly
-		t := sum - p
-		z := t - sum
-		e := (sum - (t - z)) + (-p - z) // sum - p = t + e exactly
+		t, e := twoSum(sum, -p)
 		sum = t
 		comp += e - pe
 	}
 	return sum + comp
+}
+
+// twoSum returns a + b rounded and its rounding error: a + b = s + e
+// exactly (the TwoSum transformation; Knuth, The Art of Computer
+// Programming vol. 2, 4.2.2; from memory).
+func twoSum(a, b float64) (s, e float64) {
+	s = a + b
+	z := s - a
+	return s, (a - (s - z)) + (b - z)
 }
