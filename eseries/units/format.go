@@ -30,19 +30,7 @@ func FormatSig(v float64, sig int) string {
 // "20 µA", "100 Ω". Micro is "µ" (U+00B5 MICRO SIGN), which Parse accepts.
 // Percent is written as a percentage of the fraction v without a space
 // ("0.5%" for 0.005), as tolerances are usually written; NoUnit gives Format(v).
-func FormatUnit(v float64, u Unit) string {
-	switch u {
-	case NoUnit:
-		return Format(v)
-	case Percent:
-		return strconv.FormatFloat(v*100, 'g', 4, 64) + "%"
-	}
-	mant, prefix := engParts(v, 4)
-	if prefix == "u" {
-		prefix = "\u00b5"
-	}
-	return mant + " " + prefix + u.String()
-}
+func FormatUnit(v float64, u Unit) string { return formatUnit(v, u, 4) }
 
 // FormatUnitSig is FormatUnit with sig significant digits: "595.99 mV"
 // at five rather than "596 mV". Infinities are "∞" and "-∞" (an open bound
@@ -54,6 +42,12 @@ func FormatUnitSig(v float64, u Unit, sig int) string {
 	case math.IsInf(v, -1):
 		return "-∞"
 	}
+	return formatUnit(v, u, sig)
+}
+
+// formatUnit is FormatUnit with sig significant digits, infinities
+// written as FormatSig writes them.
+func formatUnit(v float64, u Unit, sig int) string {
 	switch u {
 	case NoUnit:
 		return FormatSig(v, sig)
