@@ -230,7 +230,7 @@ func solutionTable(b *strings.Builder, p *synth.Problem, sols []synth.Solution, 
 			if math.Abs(v) < constraints.TieAbsolute {
 				v = 0 // rounding residue of an exact hit, e.g. a balanced bridge
 			}
-			row = append(row, quantityText(v, p.Spec.Template.Targets[g.target].Kind))
+			row = append(row, p.Spec.Template.Targets[g.target].Kind.Format(v))
 		}
 		tb.add(row...)
 	}
@@ -410,13 +410,6 @@ func csvNumber(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 func csvName(label string) string {
 	return strings.ReplaceAll(strings.ReplaceAll(label, " @", "@"), " ", "_")
 }
-
-// quantityText writes a target's value with its unit (constraints'
-// TargetKind.Format, the one rule for every command).
-func quantityText(v float64, k constraints.TargetKind) string { return k.Format(v) }
-
-// preciseSig is FormatUnit with sig significant digits.
-func preciseSig(v float64, u units.Unit, sig int) string { return units.FormatUnitSig(v, u, sig) }
 
 // capitalise upper-cases the first letter of a heading word.
 func capitalise(s string) string {

@@ -51,7 +51,7 @@ func engLabel(v float64, u units.Unit, sig int) string {
 	if sig <= 4 {
 		return units.FormatUnit(v, u)
 	}
-	return preciseSig(v, u, sig)
+	return units.FormatUnitSig(v, u, sig)
 }
 
 // percentTicks labels an axis of fractions as percentages.
