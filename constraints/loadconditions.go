@@ -64,19 +64,17 @@ func (d *decoder) rank(n *yaml.Node) {
 	var keys []RankKey
 	for i, it := range n.Content {
 		path := fmt.Sprintf("rank[%d]", i)
-		k := -1
-		if it.Kind == yaml.ScalarNode {
-			k = slices.Index(rankNames, it.Value)
-		}
+		k, ok := ParseRankKey(it.Value)
+		ok = ok && it.Kind == yaml.ScalarNode
 		switch {
-		case k < 0 && it.Kind == yaml.ScalarNode && suggest(it.Value, rankNames) != "":
+		case !ok && it.Kind == yaml.ScalarNode && suggest(it.Value, rankNames) != "":
 			d.errorf(it, path, "rank: unknown key %s%s", describe(it), suggest(it.Value, rankNames))
-		case k < 0:
+		case !ok:
 			d.errorf(it, path, "rank: expected one of %s, got %s", strings.Join(rankNames, ", "), describe(it))
-		case slices.Contains(keys, RankKey(k)):
+		case slices.Contains(keys, k):
 			d.errorf(it, path, "rank: %s appears twice", units.Quote(it.Value))
 		default:
-			keys = append(keys, RankKey(k))
+			keys = append(keys, k)
 		}
 	}
 	// Keys left out still break ties, in the default order.

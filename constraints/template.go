@@ -3,6 +3,7 @@ package constraints
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -236,6 +237,13 @@ func (k RankKey) String() string {
 		return rankNames[k]
 	}
 	return "RankKey(" + strconv.Itoa(int(k)) + ")"
+}
+
+// ParseRankKey reads a rank key as String spells it (and as templates and
+// the JSON "rank" list write it); false for any other text.
+func ParseRankKey(s string) (RankKey, bool) {
+	k := slices.Index(rankNames, s)
+	return RankKey(k), k >= 0
 }
 
 // Spellings, indexed by the constants they name.

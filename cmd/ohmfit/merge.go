@@ -169,20 +169,15 @@ func readShards(files []string) ([]*shardDoc, error) {
 	return docs, nil
 }
 
-// shardRankKeys reads a shard's "rank" keys, spelt as RankKey.String
-// spells them.
+// shardRankKeys reads a shard's "rank" keys (constraints.ParseRankKey).
 func shardRankKeys(d *shardDoc) ([]constraints.RankKey, error) {
 	var keys []constraints.RankKey
 	for _, r := range d.Rank {
-		found := false
-		for _, k := range []constraints.RankKey{constraints.ByError, constraints.ByPower, constraints.ByParts} {
-			if k.String() == r {
-				keys, found = append(keys, k), true
-			}
-		}
-		if !found {
+		k, ok := constraints.ParseRankKey(r)
+		if !ok {
 			return nil, badInputf("%s: unknown rank key %q", d.file, r)
 		}
+		keys = append(keys, k)
 	}
 	return keys, nil
 }
