@@ -165,14 +165,17 @@ func (h *boxHeap) Pop() any {
 
 // bbShared is what the workers of one branch-and-bound run share.
 type bbShared struct {
-	p      *Problem
-	r      *ranker
-	keys   []constraints.RankKey
-	j      int   // row position
-	outer  []int // the other positions
-	leaf   float64
-	front  float64   // Settings.FrontErrorCap
-	single [][]int32 // per position: prefix counts of single-part options
+	p     *Problem
+	r     *ranker
+	keys  []constraints.RankKey
+	j     int   // row position
+	outer []int // the other positions
+	leaf  float64
+	front float64 // Settings.FrontErrorCap
+	// errorFirst: error ranks first and no front is kept, so a box whose
+	// error bound passes the bar's is ruled out whatever else it holds.
+	errorFirst bool
+	single     [][]int32 // per position: prefix counts of single-part options
 
 	mu      sync.Mutex
 	cond    *sync.Cond
@@ -251,6 +254,7 @@ func newBBShared(p *Problem, set *Settings, st *runState, leaf float64) *bbShare
 	}
 	sh := &bbShared{p: p, r: st.r, keys: p.Spec.Template.Rank, j: j, outer: outer,
 		leaf: leaf, front: set.FrontErrorCap}
+	sh.errorFirst = len(sh.keys) > 0 && sh.keys[0] == constraints.ByError && sh.front == 0
 	sh.cond = sync.NewCond(&sh.mu)
 	sh.open.keys = sh.keys
 	sh.bar = newTopList(st.r, set.Top+topMargin, len(p.Domains))

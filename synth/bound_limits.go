@@ -20,7 +20,7 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 	// Once the joint bound passes the bar's error the box is ruled out
 	// whatever the rest of it says, when error ranks first.
 	stop := math.Inf(1)
-	if worst != nil && len(w.sh.keys) > 0 && w.sh.keys[0] == constraints.ByError && w.sh.front == 0 {
+	if worst != nil && w.sh.errorFirst {
 		stop = widen(worst.Error)
 	}
 	if !w.takeCorners(b, stop) {
@@ -140,7 +140,6 @@ func (w *bbWorker) powerBound(b *box, c int, worst *candidate) float64 {
 func (w *bbWorker) voltBand(k, c int, lo, hi float64, worst *candidate) (float64, float64) {
 	p := w.p
 	e := w.edges[w.res[k]]
-	errFirst := len(w.sh.keys) > 0 && w.sh.keys[0] == constraints.ByError && w.sh.front == 0
 	for ti, pr := range p.Spec.Probes {
 		if pr.Kind != constraints.Voltage || !p.Spec.Applies[ti][c] {
 			continue
@@ -156,7 +155,7 @@ func (w *bbWorker) voltBand(k, c int, lo, hi float64, worst *candidate) (float64
 		}
 		tg := &p.Spec.Template.Targets[ti]
 		blo, bhi := tg.Band()
-		if tg.HasEquals && errFirst && worst != nil {
+		if tg.HasEquals && w.sh.errorFirst && worst != nil {
 			t := widen(worst.Error)
 			d := t
 			if tg.Equals != 0 {
