@@ -177,9 +177,12 @@ func (w *bbWorker) takeCorners(b *box, stop float64) bool {
 	n := 1 << len(w.vary)
 	keep := len(w.vary) <= maxKeptDims
 	l := &w.lay
-	recs, sgns := w.scratch(n)
+	var recs []float64
+	var sgns []int8
 	if keep {
-		recs, sgns = w.newRecords(n)
+		recs, sgns = w.newRecords(n) // kept with the box, for its halves
+	} else {
+		recs, sgns = w.scratch(n)
 	}
 	if par != nil && par.recs != nil {
 		w.inherit(b, par, recs, sgns)
