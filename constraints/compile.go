@@ -98,12 +98,8 @@ func (p *Problem) addTarget(tg Target) error {
 	if tg.Kind == SelfHeating {
 		pr.Scale = 1 / t.Parts[pr.Part].Dissipation
 	}
-	if tg.Kind == Code {
-		for _, a := range t.ADCs {
-			if a.Name == tg.ADC {
-				pr.Scale = 1 / a.Step()
-			}
-		}
+	if a, ok := t.ADC(tg.ADC); ok && tg.Kind == Code {
+		pr.Scale = 1 / a.Step()
 	}
 	p.Probes = append(p.Probes, pr)
 	app := make([]bool, len(p.Conditions))

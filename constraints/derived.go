@@ -86,12 +86,8 @@ func (p *Problem) derivedFor(tg Target, node int) (*DerivedProbe, error) {
 			d.Conds = append(d.Conds, ci)
 			d.Temps = append(d.Temps, tg.At+dt)
 		}
-		if tg.Kind == Resolution {
-			for _, a := range t.ADCs {
-				if a.Name == tg.ADC {
-					d.Step = a.Step()
-				}
-			}
+		if a, ok := t.ADC(tg.ADC); ok && tg.Kind == Resolution {
+			d.Step = a.Step()
 		}
 	}
 	return d, nil

@@ -575,12 +575,8 @@ func (d *decoder) checkSensors() {
 	}
 	for i := range t.Targets {
 		tg := &t.Targets[i]
-		if tg.Kind == Code || tg.Kind == Resolution {
-			for _, a := range t.ADCs {
-				if a.Name == tg.ADC {
-					tg.Nodes = []string{a.Node}
-				}
-			}
+		if a, ok := t.ADC(tg.ADC); ok && (tg.Kind == Code || tg.Kind == Resolution) {
+			tg.Nodes = []string{a.Node}
 		}
 		if tg.Kind == Linearity {
 			n := 0

@@ -101,6 +101,16 @@ func (t *Template) Part(name string) (int, bool) {
 	return -1, false
 }
 
+// ADC returns the ADC input of that name.
+func (t *Template) ADC(name string) (ADC, bool) {
+	for _, a := range t.ADCs {
+		if a.Name == name {
+			return a, true
+		}
+	}
+	return ADC{}, false
+}
+
 // Valued reports whether every part has a value, so the template describes
 // one network that can be analysed as it stands.
 func (t *Template) Valued() bool {

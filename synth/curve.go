@@ -104,10 +104,8 @@ func curveNode(t *constraints.Template) (node string, scale float64, ok bool) {
 		}
 		switch tg.Kind {
 		case constraints.Code:
-			for _, a := range t.ADCs {
-				if a.Name == tg.ADC {
-					return a.Node, 1 / a.Step(), true
-				}
+			if a, ok := t.ADC(tg.ADC); ok {
+				return a.Node, 1 / a.Step(), true
 			}
 		case constraints.Voltage, constraints.Linearity, constraints.Sensitivity:
 			return tg.Nodes[0], 1, true
