@@ -187,7 +187,7 @@ func plotHistograms(w io.Writer, path string, t *constraints.Template, rep *vari
 		perTarget[g.Target] = append(perTarget[g.Target], g)
 	}
 	spread := map[int]bool{}
-	for gi, g := range rep.Goals {
+	for _, g := range rep.Goals {
 		if gs := perTarget[g.Target]; len(gs) > maxHistConditions {
 			if !spread[g.Target] {
 				spread[g.Target] = true
@@ -201,7 +201,6 @@ func plotHistograms(w io.Writer, path string, t *constraints.Template, rep *vari
 			}
 			continue
 		}
-		g := rep.Goals[gi]
 		var vals plotter.Values
 		for _, v := range g.Samples {
 			if !math.IsNaN(v) {
@@ -233,13 +232,9 @@ func plotHistograms(w io.Writer, path string, t *constraints.Template, rep *vari
 			if math.IsInf(x, 0) {
 				continue
 			}
-			ln, err := plotter.NewLine(plotter.XYs{{X: x, Y: 0}, {X: x, Y: top * 1.05}})
-			if err != nil {
+			if err := addLimitLine(pl, plotter.XYs{{X: x, Y: 0}, {X: x, Y: top * 1.05}}); err != nil {
 				return err
 			}
-			ln.LineStyle.Color = color.RGBA{R: 200, G: 30, B: 30, A: 255}
-			ln.LineStyle.Width = vg.Points(1.5)
-			pl.Add(ln)
 		}
 		plots = append(plots, pl)
 	}
@@ -355,17 +350,26 @@ func spreadPlot(t *constraints.Template, gs []variation.Goal) (*plot.Plot, error
 		if math.IsInf(y, 0) {
 			continue
 		}
-		ln, err := plotter.NewLine(plotter.XYs{{X: x0, Y: y}, {X: x1, Y: y}})
-		if err != nil {
+		if err := addLimitLine(pl, plotter.XYs{{X: x0, Y: y}, {X: x1, Y: y}}); err != nil {
 			return nil, err
 		}
-		ln.LineStyle.Color = color.RGBA{R: 200, G: 30, B: 30, A: 255}
-		ln.LineStyle.Width = vg.Points(1.5)
-		pl.Add(ln)
 	}
 	pl.Legend.Top = true
 	legendRoom(pl, panelWidth, panelHeight)
 	return pl, nil
+}
+
+// addLimitLine draws a target's limit through pts, in the one style every
+// panel gives its limits.
+func addLimitLine(pl *plot.Plot, pts plotter.XYs) error {
+	ln, err := plotter.NewLine(pts)
+	if err != nil {
+		return err
+	}
+	ln.LineStyle.Color = color.RGBA{R: 200, G: 30, B: 30, A: 255}
+	ln.LineStyle.Width = vg.Points(1.5)
+	pl.Add(ln)
+	return nil
 }
 
 // savePlots draws the plots one above the other and writes SVG or PNG,
