@@ -229,7 +229,7 @@ func checkDesign(o *checkOptions, outs *outputs, t *constraints.Template, st *va
 		return templateError(t, err)
 	}
 	if o.Format == "json" {
-		err = writeJSON(o.Out, checkJSON(t, d, rep))
+		err = writeJSON(o.Out, checkJSON(member{"name", t.Name}, t, d, rep))
 	} else {
 		err = writeCheckTable(o.Out, t, d, rep)
 	}

@@ -276,8 +276,9 @@ func finite(v float64) any {
 }
 
 // checkJSON builds the check document: the contract's keys and the rest of
-// what the table shows.
-func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Report) object {
+// what the table shows, led by lead (check: the template's name; fit --check:
+// the answer's rank).
+func checkJSON(lead member, t *constraints.Template, d *variation.Design, rep *variation.Report) object {
 	parts, sources := partsJSON(t, d, rep)
 	var amb any
 	if a := rep.Ambient; a.Set {
@@ -293,7 +294,7 @@ func checkJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 			{"reading_error", finite(h.ReadingError)}, {"steps", h.Steps}, {"converged", h.Converged}})
 	}
 	doc := object{
-		{"name", t.Name},
+		lead,
 		{"worst_case", object{{"method", rep.Method}, {"corners", rep.Corners}}},
 		{"monte_carlo", mc},
 		{"ambient", amb},

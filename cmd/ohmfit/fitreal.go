@@ -98,8 +98,7 @@ func (r *fitReal) render(o *searchOptions, p *synth.Problem, res *synth.Result, 
 		}
 		reports = reps
 		for i, rep := range reps {
-			c := checkJSON(t, designs[i], rep)
-			checks = append(checks, append(object{{"rank", sols[i].Rank}}, c[1:]...))
+			checks = append(checks, checkJSON(member{"rank", sols[i].Rank}, t, designs[i], rep))
 		}
 	}
 	if err := writeFitReal(o, p, &shown, robust, checks, reports); err != nil {
