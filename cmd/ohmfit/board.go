@@ -352,13 +352,9 @@ func boardJSON(res *board.Result, chk *board.Checked) object {
 		bom[i] = object{{"value", l.Value}, {"designators", l.Designators}, {"quantity", l.Quantity()},
 			{"type", l.Type}, {"tolerance", l.Tolerance}, {"package", l.Package}}
 	}
-	fixed := res.Fixed
-	if fixed == nil {
-		fixed = []float64{} // [] rather than null: no fixed resistor
-	}
 	return object{{"board", res.Board.Spec.Name}, {"status", res.Status().String()}, {"proven", res.Proven},
 		{"ties_proven", res.TiesProven}, {"distinct", res.Distinct}, {"alone", res.Alone}, {"bound", res.Bound},
-		{"values", res.Values}, {"fixed", fixed}, {"networks", nets}, {"bom", bom}}
+		{"values", res.Values}, {"fixed", nonNil(res.Fixed)}, {"networks", nets}, {"bom", bom}}
 }
 
 // writeBoardCSV writes one row per chosen position of every network.

@@ -302,9 +302,9 @@ func checkJSON(lead member, t *constraints.Template, d *variation.Design, rep *v
 		{"parts", parts},
 		{"sources", sources},
 		{"span_volts", rep.MaxVolts}, // the largest voltage between two nodes
-		{"warnings", nonNilStrings(rep.Warnings)},
-		{"cautions", nonNilStrings(rep.Cautions)},
-		{"failures", nonNilStrings(rep.Failures)},
+		{"warnings", nonNil(rep.Warnings)},
+		{"cautions", nonNil(rep.Cautions)},
+		{"failures", nonNil(rep.Failures)},
 	}
 	if len(heating) > 0 {
 		// Only for a design whose sensors have a dissipation constant,
@@ -385,13 +385,6 @@ func partsJSON(t *constraints.Template, d *variation.Design, rep *variation.Repo
 			member{"verdict", r.Verdict}))
 	}
 	return parts, sources
-}
-
-func nonNilStrings(s []string) []string {
-	if s == nil {
-		return []string{}
-	}
-	return s
 }
 
 // hasTemperatures reports whether any condition carries a temperature.

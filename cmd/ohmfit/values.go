@@ -222,9 +222,9 @@ func percent(f float64) string {
 }
 
 // nonNil turns a nil slice into an empty one so that JSON shows [] not null.
-func nonNil(v []float64) []float64 {
+func nonNil[T any](v []T) []T {
 	if v == nil {
-		return []float64{}
+		return []T{}
 	}
 	return v
 }
