@@ -48,22 +48,24 @@ func LoadReader(name string, r io.Reader) (*Template, error) {
 	if rerr != nil {
 		return nil, rerr
 	}
-	d := &decoder{file: name, dir: "."}
-	t := d.parse(data)
-	if len(d.errs) > 0 {
-		return nil, d.first()
-	}
-	return t, nil
+	return parseIn(name, ".", data)
 }
 
 // Parse parses template text. file is used in messages and, through its
 // directory, to resolve stock files ("" means the current directory). The
 // error, if any, is an *Error for the first problem in file order.
 func Parse(file string, data []byte) (*Template, error) {
-	d := &decoder{file: file, dir: filepath.Dir(file)}
+	dir := filepath.Dir(file)
 	if file == "" {
-		d.dir = "."
+		dir = "."
 	}
+	return parseIn(file, dir, data)
+}
+
+// parseIn parses template text named file, with stock files resolved
+// against dir, and returns the first problem in file order.
+func parseIn(file, dir string, data []byte) (*Template, error) {
+	d := &decoder{file: file, dir: dir}
 	t := d.parse(data)
 	if len(d.errs) > 0 {
 		return nil, d.first()
