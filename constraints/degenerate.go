@@ -147,14 +147,11 @@ func (p *Problem) constantGoals(seen [][]float64) error {
 	if goals == 0 || !constant {
 		return nil
 	}
-	what := fmt.Sprintf("goal %s", first.Label())
+	msg := fmt.Sprintf("goal %s does not depend on the values ohmfit chooses, so every candidate scores the same; put a free resistor where it moves the goal, or give the goal to a node the free resistors set", first.Label())
 	if goals > 1 {
-		what = fmt.Sprintf("none of the %d goals (the first is %s)", goals, first.Label())
-		return &Error{File: t.File, Line: first.Pos.Line, Col: first.Pos.Col,
-			Err: ErrDegenerate, Msg: fmt.Sprintf("%s depends on the values ohmfit chooses, so every candidate scores the same; put a free resistor where it moves a goal, or give the goals to the nodes the free resistors set", what)}
+		msg = fmt.Sprintf("none of the %d goals (the first is %s) depends on the values ohmfit chooses, so every candidate scores the same; put a free resistor where it moves a goal, or give the goals to the nodes the free resistors set", goals, first.Label())
 	}
-	return &Error{File: t.File, Line: first.Pos.Line, Col: first.Pos.Col,
-		Err: ErrDegenerate, Msg: fmt.Sprintf("%s does not depend on the values ohmfit chooses, so every candidate scores the same; put a free resistor where it moves the goal, or give the goal to a node the free resistors set", what)}
+	return &Error{File: t.File, Line: first.Pos.Line, Col: first.Pos.Col, Err: ErrDegenerate, Msg: msg}
 }
 
 // unexcited refuses a network whose every source is zero in every
