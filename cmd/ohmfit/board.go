@@ -253,8 +253,9 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 	if len(res.Fixed) > 0 {
 		fixedNote = fmt.Sprintf(", %d of them in fixed parts", len(res.Fixed))
 	}
-	fmt.Fprintf(&b, "%d networks; %d distinct resistor values on the board%s (alone %d, saving %d); %s\n\n",
-		len(res.Networks), res.Distinct, fixedNote, res.Alone, res.Alone-res.Distinct, boardVerdict(res))
+	fmt.Fprintf(&b, "%s; %s on the board%s (alone %d, saving %d); %s\n\n",
+		counted(len(res.Networks), "network", "networks"), counted(res.Distinct, "distinct resistor value", "distinct resistor values"),
+		fixedNote, res.Alone, res.Alone-res.Distinct, boardVerdict(res))
 	tb := table{indent: "  ", cols: []column{{gap: 2}, {gap: 3}, {gap: 3}, {right: true, gap: 3}, {right: true, gap: 3}, {right: true}}}
 	tb.add("network", "template", "choice", "error", "cap", "designs")
 	for i := range res.Networks {
@@ -295,6 +296,14 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 	}
 	_, err := io.WriteString(w, b.String())
 	return err
+}
+
+// counted writes n with its noun, singular for one: "1 network".
+func counted(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return strconv.Itoa(n) + " " + many
 }
 
 // bomNote explains why the BOM has more lines than the board has distinct
