@@ -181,6 +181,15 @@ func (p *Problem) Evaluate(s *solver.Solver, free []float64, sc *Score) error {
 // bounding a box of values reads the determinant's sign and the sources'
 // powers there).
 func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, after func(ci int)) error {
+	return p.EvaluateBy(s, free, sc, nil, after)
+}
+
+// EvaluateBy is EvaluateWith with each condition's solve done by solve(ci),
+// when not nil, in place of s.Solve, once the condition's values are set in
+// s: for a caller that can give the solution a cheaper way (a search bounding
+// a box of values updates a corner from two others it solved,
+// solver.Solver.SolveBetween). The scoring is the same.
+func (p *Problem) EvaluateBy(s *solver.Solver, free []float64, sc *Score, solve func(ci int) error, after func(ci int)) error {
 	nc := len(p.Conditions)
 	sc.Feasible, sc.Error, sc.Power = true, 0, 0
 	sc.Violated = Violation{Target: -1, Condition: -1}
@@ -191,7 +200,13 @@ func (p *Problem) EvaluateWith(s *solver.Solver, free []float64, sc *Score, afte
 		for k, i := range p.Free {
 			s.SetValue(i, free[k])
 		}
-		if err := s.Solve(); err != nil {
+		var err error
+		if solve != nil {
+			err = solve(ci)
+		} else {
+			err = s.Solve()
+		}
+		if err != nil {
 			sc.Feasible = false
 			return err
 		}

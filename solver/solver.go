@@ -21,6 +21,9 @@ type Solver struct {
 	piv  []int
 	dinv []float64 // 1 / U[k][k]
 	ok   bool      // a and piv hold valid factors
+	// lineSign is the determinant's sign after a SolveBetween, which
+	// leaves no factors to read it from; 0 otherwise.
+	lineSign int8
 
 	// Iterative refinement (SetRefinement): the stamped matrix and
 	// right-hand side before factoring, and a residual buffer.
@@ -66,6 +69,7 @@ func (s *Solver) Network() *Network { return s.net }
 func (s *Solver) SetValue(part int, v float64) {
 	s.vals[part] = v
 	s.ok = false
+	s.lineSign = 0
 }
 
 // Value returns the current value of a part.
@@ -105,6 +109,7 @@ func checkValue(name string, k Kind, v float64) error {
 // (max|A| is read off the diagonal, which bounds the rest when resistances
 // are positive). It does not estimate the condition number; Analyze does.
 func (s *Solver) Solve() error {
+	s.lineSign = 0
 	s.stamp()
 	if s.refine {
 		copy(s.orig, s.a[:s.n*s.n])

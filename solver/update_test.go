@@ -1,7 +1,9 @@
 package solver
 
 import (
+	"errors"
 	"math"
+	"math/rand/v2"
 	"testing"
 )
 
@@ -81,5 +83,117 @@ func TestPortResponseShermanMorrison(t *testing.T) {
 	dst := make([]float64, n)
 	if a := testing.AllocsPerRun(100, func() { _ = s.PortResponse(1, 0, dst) }); a != 0 {
 		t.Errorf("PortResponse allocates %v times", a)
+	}
+}
+
+// SolveBetween, checked two ways. A divider against its closed form,
+// V·R2/(R1+R2) (the voltage-divider law), with R1 between two solved values;
+// and random networks with op-amps against a fresh Solve at the new value
+// (the bilinear theorem: the solution is on the line through the two).
+func TestSolveBetween(t *testing.T) {
+	div := mustSolver(t, Circuit{Parts: []Part{
+		vsrc("V1", "in", "gnd", 3.3),
+		res("R1", "in", "out", 1e3),
+		res("R2", "out", "gnd", 2.2e3),
+	}})
+	net := div.Network()
+	r1, _ := net.PartIndex("R1")
+	out, _ := net.NodeIndex("out")
+	a := Endpoint{X: append([]float64(nil), div.X()...), R: 1e3, Sign: div.DetSign()}
+	div.SetValue(r1, 47e3)
+	if err := div.Solve(); err != nil {
+		t.Fatal(err)
+	}
+	b := Endpoint{X: append([]float64(nil), div.X()...), R: 47e3, Sign: div.DetSign()}
+	for _, r := range []float64{1e3, 1.5e3, 4.7e3, 22e3, 47e3} {
+		div.SetValue(r1, r)
+		if err := div.SolveBetween(r1, a, b); err != nil {
+			t.Fatalf("R1 = %g: %v", r, err)
+		}
+		want := 3.3 * 2.2e3 / (r + 2.2e3) // divider law
+		if got := div.Voltage(out); !near(got, want, 1e-14*want) {
+			t.Errorf("R1 = %g: V(out) %.17g, divider law %.17g", r, got, want)
+		}
+		if div.DetSign() != a.Sign {
+			t.Errorf("R1 = %g: DetSign %d, want %d", r, div.DetSign(), a.Sign)
+		}
+		if _, err := div.Resistance(out, 0); !errors.Is(err, ErrNotSolved) {
+			t.Errorf("Resistance after SolveBetween: %v, want ErrNotSolved", err)
+		}
+	}
+	for _, r := range []float64{990, 48e3} {
+		div.SetValue(r1, r)
+		if err := div.SolveBetween(r1, a, b); !errors.Is(err, ErrOffLine) {
+			t.Errorf("R1 = %g outside [1k, 47k]: %v, want ErrOffLine", r, err)
+		}
+	}
+
+	rng := rand.New(rand.NewPCG(7, 8))
+	checked := 0
+	for trial := range 200 {
+		c := randomNetwork(rng, 2+rng.IntN(8), trial%2 == 1)
+		s := mustSolver(t, c)
+		net := s.Network()
+		var rs []int
+		for i, p := range net.Parts() {
+			if p.Kind == Resistor {
+				rs = append(rs, i)
+			}
+		}
+		part := rs[rng.IntN(len(rs))]
+		ra := s.Value(part)
+		rb := ra * math.Pow(10, 2*rng.Float64()-1)
+		a := Endpoint{X: append([]float64(nil), s.X()...), R: ra, Sign: s.DetSign()}
+		s.SetValue(part, rb)
+		if err := s.Solve(); err != nil {
+			continue // a value that makes the network singular
+		}
+		b := Endpoint{X: append([]float64(nil), s.X()...), R: rb, Sign: s.DetSign()}
+		r := ra + rng.Float64()*(rb-ra)
+		s.SetValue(part, r)
+		err := s.SolveBetween(part, a, b)
+		fresh := net.NewSolver()
+		for i := range net.Parts() {
+			fresh.SetValue(i, s.Value(i))
+		}
+		if ferr := fresh.Solve(); ferr != nil {
+			continue
+		}
+		if err != nil {
+			// Only where the determinant changes sign between the two
+			// (the update then has a pole), or where the part carries
+			// no current but rounding.
+			e := net.Edges()[0]
+			for _, ed := range net.Edges() {
+				if ed.Part == part {
+					e = ed
+				}
+			}
+			tiny := 1e-12 * (maxAbs(a.X) + maxAbs(b.X))
+			idle := math.Abs(volt(a.X, e.From, e.To)) <= tiny || math.Abs(volt(b.X, e.From, e.To)) <= tiny
+			if !errors.Is(err, ErrOffLine) || (a.Sign == b.Sign && !idle) {
+				t.Errorf("trial %d: %v with signs %d, %d", trial, err, a.Sign, b.Sign)
+			}
+			continue
+		}
+		checked++
+		if s.DetSign() != fresh.DetSign() {
+			t.Errorf("trial %d: DetSign %d, fresh solve %d", trial, s.DetSign(), fresh.DetSign())
+		}
+		want := fresh.X()
+		scale := maxAbs(want) + maxAbs(a.X) + maxAbs(b.X)
+		for i, v := range s.X() {
+			if math.Abs(v-want[i]) > 1e-9*scale {
+				t.Errorf("trial %d: unknown %d: %.17g, fresh solve %.17g", trial, i, v, want[i])
+			}
+		}
+		for _, p := range rs {
+			if math.Abs(s.Amps(p)-fresh.Amps(p)) > 1e-9*scale/s.Value(p)+1e-300 {
+				t.Errorf("trial %d: current of part %d: %g, fresh solve %g", trial, p, s.Amps(p), fresh.Amps(p))
+			}
+		}
+	}
+	if checked < 150 {
+		t.Errorf("only %d of 200 random networks were checked", checked)
 	}
 }

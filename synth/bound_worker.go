@@ -20,6 +20,11 @@ type bbWorker struct {
 	inc   *topList   // corners scored since the last sync
 	cand  candidate
 	after func(int)
+	along func(int) error // solveAlong, made once
+	// lineOK: corners may be updated along lines (updateCorner); not
+	// where a target reads a resistance, which needs factors.
+	lineOK bool
+	ln     lineEnds
 
 	corners, solves int64 // corner candidates scored and their solves
 	synced          [2]int64
@@ -73,6 +78,13 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 		nc:   nc, corner: make([]int32, len(p.Domains)),
 	}
 	w.after = w.afterCond
+	w.along = w.solveAlong
+	w.lineOK = true
+	for _, pr := range p.Spec.Probes {
+		if pr.Kind == constraints.Resistance {
+			w.lineOK = false
+		}
+	}
 	parts := p.Spec.Network.Parts()
 	w.edges = make([]solver.Edge, len(parts))
 	for _, e := range p.Spec.Network.Edges() {
@@ -130,7 +142,7 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 	}
 	w.pairs = goalPairs(p, w.edges)
 	w.pool = map[int][]records{}
-	w.lay = newRecordLayout(len(p.Spec.Probes), len(w.pparts), len(w.srcs), len(w.res), len(w.amps), nc)
+	w.lay = newRecordLayout(len(p.Spec.Probes), len(w.pparts), len(w.srcs), len(w.res), len(w.amps), p.Spec.Network.Unknowns(), nc)
 	w.rvlo, w.rvhi = make([]float64, len(w.res)*nc), make([]float64, len(w.res)*nc)
 	w.det = make([]int8, nc)
 	w.den = make([]int8, len(p.Spec.Probes)*nc)
