@@ -219,6 +219,11 @@ func (w *bbWorker) afterCond(ci int) {
 	copy(rec[l.ox+ci*l.nx:l.ox+(ci+1)*l.nx], s.X())
 	w.rsg[ci] = int8(s.DetSign())
 	if !w.p.Spec.Visible(ci) {
+		// No bound reads a helper condition's parts; zeros keep a
+		// reused record's old figures out of gather's finiteness check.
+		for off := l.ov; off < l.opow; off += nc {
+			rec[off+ci] = 0
+		}
 		return
 	}
 	for _, ti := range w.ratios {
@@ -255,8 +260,8 @@ func (w *bbWorker) afterCond(ci int) {
 // takeCorners gives the box the records of every corner, from its parent
 // (the box it was just split from) where they share a face, else from new
 // solves, and gathers them into the worker's ranges. It reports false when
-// a corner's solve failed. stop is passed on to pairBound.
-func (w *bbWorker) takeCorners(b *box, stop float64) bool {
+// a corner's solve failed. The records stay in boxRecs for pairBound.
+func (w *bbWorker) takeCorners(b *box) bool {
 	par := b.parent
 	b.parent = nil
 	w.vary = varying(b, w.vary)
@@ -281,10 +286,10 @@ func (w *bbWorker) takeCorners(b *box, stop float64) bool {
 	if keep {
 		b.recs, b.sgns = recs, sgns
 	}
+	w.boxRecs, w.boxN = recs, n
 	if !w.gather(recs, sgns, n) {
 		return false
 	}
-	w.pairErr = w.pairBound(recs, n, stop)
 	b.dim = w.influence(recs, n)
 	return true
 }
@@ -360,28 +365,48 @@ func (w *bbWorker) inherit(b, par *box, recs []float64, sgns []int8) {
 }
 
 // gather takes n corner records into the worker's ranges (qlo/qhi, det,
-// …), as the bounds read them; false when a corner's solve failed.
+// …), as the bounds read them; false when a corner's solve failed or a
+// quantity other than a target's is not finite (no bound then: the box is
+// split). A target's value that is not finite marks it unbounded (qnan).
 func (w *bbWorker) gather(recs []float64, sgns []int8, n int) bool {
 	p, nc, l := w.p, w.nc, &w.lay
 	clear(w.det)
 	clear(w.den)
 	clear(w.qnan)
+	nq := len(p.Spec.Probes) * nc
+	lo, hi := w.glo, w.ghi
 	for mask := 0; mask < n; mask++ {
-		rec, sg := recs[mask*l.n:(mask+1)*l.n], sgns[mask*l.ns:(mask+1)*l.ns]
+		rec, sg := recs[mask*l.n:mask*l.n+l.opow], sgns[mask*l.ns:(mask+1)*l.ns]
 		if sg[l.sfail] != 0 {
 			return false
 		}
-		first := mask == 0
-		for k := range len(p.Spec.Probes) * nc {
-			if !p.Spec.Applies[k/nc][k%nc] {
-				continue
-			}
-			v := rec[l.oq+k]
-			if math.IsNaN(v) || math.IsInf(v, 0) {
+		// v − v is 0 for a finite v, NaN for NaN and ±Inf.
+		for k, v := range rec[:nq] {
+			if v-v != 0 {
 				w.qnan[k] = true
-				continue
 			}
-			widenRange(w.qlo, w.qhi, k, v, first)
+		}
+		bad := 0.0
+		for _, v := range rec[nq:] {
+			bad += v - v
+		}
+		if bad != 0 {
+			return false
+		}
+		if mask == 0 {
+			copy(lo, rec)
+			copy(hi, rec)
+		} else {
+			// Plain comparisons: a NaN never widens a range (and marks
+			// its target unbounded above).
+			for k, v := range rec {
+				if v < lo[k] {
+					lo[k] = v
+				}
+				if v > hi[k] {
+					hi[k] = v
+				}
+			}
 		}
 		for c := 0; c < nc; c++ {
 			if !p.Spec.Visible(c) {
@@ -396,20 +421,6 @@ func (w *bbWorker) gather(recs []float64, sgns []int8, n int) bool {
 						w.den[k] = mergeSign(w.den[k], int(s))
 					}
 				}
-			}
-			for k := range w.pparts {
-				widenRange(w.vlo, w.vhi, k*nc+c, rec[l.ov+k*nc+c], first)
-				widenRange(w.ilo, w.ihi, k*nc+c, rec[l.oi+k*nc+c], first)
-			}
-			for k := range w.srcs {
-				widenRange(w.wlo, w.whi, k*nc+c, rec[l.ow+k*nc+c], first)
-			}
-			for k := range w.res {
-				widenRange(w.rvlo, w.rvhi, k*nc+c, rec[l.orv+k*nc+c], first)
-			}
-			for k := range w.amps {
-				widenRange(w.ovlo, w.ovhi, k*nc+c, rec[l.oov+k*nc+c], first)
-				widenRange(w.oilo, w.oihi, k*nc+c, rec[l.ooi+k*nc+c], first)
 			}
 		}
 	}
@@ -426,15 +437,6 @@ func mergeSign(seen int8, sg int) int8 {
 		return 2
 	}
 	return seen
-}
-
-func widenRange(lo, hi []float64, k int, v float64, first bool) {
-	if first {
-		lo[k], hi[k] = v, v
-		return
-	}
-	lo[k] = math.Min(lo[k], v)
-	hi[k] = math.Max(hi[k], v)
 }
 
 // padded returns [lo, hi] widened by the rounding allowance.

@@ -23,7 +23,7 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 	if worst != nil && w.sh.errorFirst {
 		stop = widen(worst.Error)
 	}
-	if !w.takeCorners(b, stop) {
+	if !w.takeCorners(b) {
 		return // a corner that cannot be solved: no bound, split
 	}
 	b.bounded = true
@@ -38,7 +38,9 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 			b.infeasible, b.viol = true, constraints.Violation{Kind: constraints.SupplyPowerLimit, Target: -1, Condition: c}
 		}
 	}
-	b.err = math.Max(b.err, w.pairErr)
+	if !b.infeasible && !(b.err > stop) {
+		b.err = w.pairBound(w.boxRecs, w.boxN, b.err, stop)
+	}
 }
 
 // partsBound returns the fewest parts a candidate of the box can have: one
@@ -292,20 +294,22 @@ func sameMatrix(p *Problem, edges []solver.Edge, a, b int) bool {
 	return true
 }
 
-// pairBound returns the joint bounds' lower bound on the goal error of
-// every candidate of a box from its n corner records (see goalPair), 0
-// when a pair's conditions have a pole in the box or a value is not
-// finite. The records' rounding (boundSlack) is taken off. It stops once
-// the bound is above stop: the box is then ruled out on error whatever the
-// other pairs say.
-func (w *bbWorker) pairBound(recs []float64, n int, stop float64) float64 {
-	l, t := &w.lay, 0.0
+// pairBound returns the greater of from and the joint bounds' lower bound
+// on the goal error of every candidate of a box from its n corner records
+// (see goalPair); a pair adds nothing when its conditions have a pole in
+// the box or a value is not finite. The records' rounding (boundSlack) is
+// taken off. It stops once the bound is above stop: the box is then ruled
+// out on error whatever the other pairs say. A pair is skipped, without its
+// hull, when a corner lies within the bound so far of both goals: the hull
+// holds that corner, so its distance cannot be greater.
+func (w *bbWorker) pairBound(recs []float64, n int, from, stop float64) float64 {
+	l, t := &w.lay, from
 	for _, gp := range w.pairs {
 		ca, cb := gp.ka%w.nc, gp.kb%w.nc
 		if w.det[ca] == 2 || w.det[ca] == 0 || w.det[cb] == 2 || w.det[cb] == 0 {
 			continue
 		}
-		pts, mag, ok := w.pts[:0], 0.0, true
+		pts, mag, near, ok := w.pts[:0], 0.0, math.Inf(1), true
 		for mask := 0; mask < n; mask++ {
 			qa, qb := recs[mask*l.n+l.oq+gp.ka], recs[mask*l.n+l.oq+gp.kb]
 			x, y := (qa-gp.ga)/gp.sa, (qb-gp.gb)/gp.sb
@@ -314,10 +318,11 @@ func (w *bbWorker) pairBound(recs []float64, n int, stop float64) float64 {
 				break
 			}
 			mag = math.Max(mag, math.Abs(qa)/gp.sa+math.Abs(qb)/gp.sb)
+			near = math.Min(near, math.Max(math.Abs(x), math.Abs(y)))
 			pts = append(pts, point2{x, y})
 		}
 		w.pts = pts
-		if !ok {
+		if !ok || near <= t {
 			continue
 		}
 		w.hull = convexHull(pts, w.hull[:0])
@@ -329,6 +334,33 @@ func (w *bbWorker) pairBound(recs []float64, n int, stop float64) float64 {
 	return t
 }
 
+// sortPoints sorts finite points by x, then y: by insertion for a box's
+// few corners (32 for five varying positions), which beats a general sort
+// there, else by slices.SortFunc.
+func sortPoints(pts []point2) {
+	before := func(a, b point2) bool { return a.x < b.x || (a.x == b.x && a.y < b.y) }
+	if len(pts) > 64 {
+		slices.SortFunc(pts, func(a, b point2) int {
+			switch {
+			case before(a, b):
+				return -1
+			case before(b, a):
+				return 1
+			}
+			return 0
+		})
+		return
+	}
+	for i := 1; i < len(pts); i++ {
+		p := pts[i]
+		j := i
+		for ; j > 0 && before(p, pts[j-1]); j-- {
+			pts[j] = pts[j-1]
+		}
+		pts[j] = p
+	}
+}
+
 // point2 is a point of the plane.
 type point2 struct{ x, y float64 }
 
@@ -338,15 +370,7 @@ func cross(o, a, b point2) float64 { return (a.x-o.x)*(b.y-o.y) - (a.y-o.y)*(b.x
 // counter-clockwise order, without repeating the first point (Andrew's
 // monotone chain), appended to out.
 func convexHull(pts []point2, out []point2) []point2 {
-	slices.SortFunc(pts, func(a, b point2) int { // finite points
-		switch {
-		case a.x < b.x || (a.x == b.x && a.y < b.y):
-			return -1
-		case a.x == b.x && a.y == b.y:
-			return 0
-		}
-		return 1
-	})
+	sortPoints(pts)
 	if len(pts) < 3 {
 		return append(out, pts...)
 	}

@@ -39,7 +39,9 @@ type bbWorker struct {
 	res    []int // resistors
 	pos    []int // per part: its position (index into Domains), or -1
 
-	// Corner ranges per condition (index ×nc + condition).
+	// Corner ranges per condition (index ×nc + condition): views of
+	// glo and ghi, which follow a record's layout.
+	glo, ghi   []float64
 	det        []int8 // determinant sign seen: 0 none, ±1, 2 both
 	den        []int8 // per ratio target: sign of V(b), as det
 	qlo, qhi   []float64
@@ -54,7 +56,8 @@ type bbWorker struct {
 	gslot      []int     // goal slots (target×nc + condition) the split choice reads
 	gscale     []float64 // per goal slot: 1/|goal|
 	pairs      []goalPair
-	pairErr    float64  // the joint bound of the box just scored (pairBound)
+	boxRecs    []float64 // the records of the box just scored, boxN of them
+	boxN       int
 	pts, hull  []point2 // pairBound's scratch
 
 	// Corner records (bound_corners.go).
@@ -143,15 +146,23 @@ func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
 	w.pairs = goalPairs(p, w.edges)
 	w.pool = map[int][]records{}
 	w.lay = newRecordLayout(len(p.Spec.Probes), len(w.pparts), len(w.srcs), len(w.res), len(w.amps), p.Spec.Network.Unknowns(), nc)
-	w.rvlo, w.rvhi = make([]float64, len(w.res)*nc), make([]float64, len(w.res)*nc)
 	w.det = make([]int8, nc)
 	w.den = make([]int8, len(p.Spec.Probes)*nc)
-	w.qlo, w.qhi = make([]float64, len(p.Spec.Probes)*nc), make([]float64, len(p.Spec.Probes)*nc)
 	w.qnan = make([]bool, len(p.Spec.Probes)*nc)
-	np, ns, no := len(w.pparts)*nc, len(w.srcs)*nc, len(w.amps)*nc
-	w.vlo, w.vhi, w.ilo, w.ihi = make([]float64, np), make([]float64, np), make([]float64, np), make([]float64, np)
-	w.wlo, w.whi = make([]float64, ns), make([]float64, ns)
-	w.ovlo, w.ovhi, w.oilo, w.oihi = make([]float64, no), make([]float64, no), make([]float64, no), make([]float64, no)
+	// The ranges are views of one pair of arrays laid out as a record's
+	// quantities, so that gather widens them in one pass.
+	l := &w.lay
+	w.glo, w.ghi = make([]float64, l.opow), make([]float64, l.opow)
+	view := func(off, items int) ([]float64, []float64) {
+		return w.glo[off : off+items*nc], w.ghi[off : off+items*nc]
+	}
+	w.qlo, w.qhi = view(l.oq, len(p.Spec.Probes))
+	w.vlo, w.vhi = view(l.ov, len(w.pparts))
+	w.ilo, w.ihi = view(l.oi, len(w.pparts))
+	w.wlo, w.whi = view(l.ow, len(w.srcs))
+	w.rvlo, w.rvhi = view(l.orv, len(w.res))
+	w.ovlo, w.ovhi = view(l.oov, len(w.amps))
+	w.oilo, w.oihi = view(l.ooi, len(w.amps))
 	return w
 }
 

@@ -933,6 +933,18 @@ func (w *rowWorker) bisect(lo, hi int, a, b float64, rc *rowCond, ti int) (int, 
 		return 1, 0
 	}
 	inc := flo < fhi
+	// The ends settle most rows: all of the range outside [a, b], or all
+	// of it inside.
+	least, most := flo, fhi
+	if !inc {
+		least, most = fhi, flo
+	}
+	if !ge(most) || !le(least) {
+		return 1, 0
+	}
+	if ge(least) && le(most) {
+		return lo, hi
+	}
 	// first returns the first index in [l, h] where the test holds (it is
 	// false then true along the range), or h+1.
 	first := func(l, h int, below bool) int {

@@ -251,3 +251,15 @@ func BenchmarkScale(b *testing.B) {
 		})
 	}
 }
+
+func BenchmarkTmpLeaf(b *testing.B) {
+	for _, c := range scaleCases {
+		if c.file == "ladder6-e96" {
+			continue
+		}
+		p := scaleProblem(b, c, "")
+		for _, leaf := range []int{32, 64, 128, 256} {
+			b.Run(c.file+"/"+string(rune('0'+leaf/32)), func(b *testing.B) { benchMethod(b, p, 1, synth.BranchBound{LeafRows: leaf}) })
+		}
+	}
+}
