@@ -4,6 +4,7 @@ import (
 	"container/heap"
 	"context"
 	"math"
+	"slices"
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/solver"
@@ -26,6 +27,7 @@ type bbWorker struct {
 	lineOK bool
 	ln     lineEnds
 
+	order           []int // searchLeaf's odometer order
 	corners, solves int64 // corner candidates scored and their solves
 	synced          [2]int64
 
@@ -288,15 +290,22 @@ func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 	}
 	lo, hi := int(b.lo[sh.j]), int(b.hi[sh.j])
 	ref := (lo + hi + 1) / 2
-	// The rows come in lines along the fastest outer position that varies
-	// in the box: each line's first row is solved, the others updated
-	// from it (searchLine).
-	line := -1
+	// The rows come in lines along the outer position with the most
+	// values in the box, taken fastest: each line's first row is solved,
+	// the others updated from it (searchLine), so long lines mean few
+	// solves.
+	line, width := -1, int32(0)
 	for _, i := range sh.outer {
-		if b.lo[i] < b.hi[i] {
-			line = i
+		if d := b.hi[i] - b.lo[i]; d > width {
+			line, width = i, d
 		}
 	}
+	order := append(w.order[:0], sh.outer...)
+	if line >= 0 {
+		k := slices.Index(order, line)
+		order = append(append(order[:k], order[k+1:]...), line)
+	}
+	w.order = order
 	first := true
 	for {
 		if line < 0 {
@@ -305,9 +314,9 @@ func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 			rw.searchLine(lo, hi, ref, line, first)
 		}
 		rw.stats.Rows++
-		k := len(sh.outer) - 1
+		k := len(order) - 1
 		for ; k >= 0; k-- {
-			i := sh.outer[k]
+			i := order[k]
 			rw.cur[i]++
 			if rw.cur[i] <= b.hi[i] {
 				break
@@ -317,7 +326,7 @@ func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 		if k < 0 {
 			break
 		}
-		first = sh.outer[k] != line // a carry past the line's position starts a new line
+		first = order[k] != line // a carry past the line's position starts a new line
 	}
 	rw.line = -1
 	rw.bar = nil
