@@ -63,3 +63,44 @@ func ExampleSolver() {
 	// R1 = 22100: V(fb) = 1.0280 V, R(fb) = 6884.7 ohm
 	// R1 = 31600: V(fb) = 0.7933 V, R(fb) = 7596.2 ohm
 }
+
+// A sensor bias divider solved at both ends of its top resistor's range,
+// then at values between them without a new factorisation: the solution
+// moves along a line as one conductance changes (the bilinear theorem), so
+// two solutions give all the others. The divider law, 5·10k/(R1 + 10k),
+// gives the same figures.
+func ExampleSolver_SolveBetween() {
+	net, err := solver.Compile(solver.Circuit{Parts: []solver.Part{
+		{Name: "V1", Kind: solver.VoltageSource, From: "in", To: "gnd", Value: 5},
+		{Name: "R1", Kind: solver.Resistor, From: "in", To: "bias", Value: 2.2e3},
+		{Name: "R2", Kind: solver.Resistor, From: "bias", To: "gnd", Value: 10e3},
+	}})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	r1, _ := net.PartIndex("R1")
+	bias, _ := net.NodeIndex("bias")
+	s := net.NewSolver()
+	ends := make([]solver.Endpoint, 2)
+	for k, r := range []float64{2.2e3, 47e3} {
+		s.SetValue(r1, r)
+		if err := s.Solve(); err != nil {
+			fmt.Println(err)
+			return
+		}
+		ends[k] = solver.Endpoint{X: append([]float64(nil), s.X()...), R: r, Sign: s.DetSign()}
+	}
+	for _, r := range []float64{4.7e3, 10e3, 22e3} {
+		s.SetValue(r1, r)
+		if err := s.SolveBetween(r1, ends[0], ends[1]); err != nil {
+			fmt.Println(err)
+			return
+		}
+		fmt.Printf("R1 %5.0f Ω: bias %.4f V, divider law %.4f V\n", r, s.Voltage(bias), 5*10e3/(r+10e3))
+	}
+	// Output:
+	// R1  4700 Ω: bias 3.4014 V, divider law 3.4014 V
+	// R1 10000 Ω: bias 2.5000 V, divider law 2.5000 V
+	// R1 22000 Ω: bias 1.5625 V, divider law 1.5625 V
+}

@@ -48,7 +48,11 @@ import (
 // error bound first; a box with few
 // enough rows is finished by the rows method, so every candidate that is
 // not ruled out is scored exactly once. The corners themselves are scored
-// with full solves and tighten the bar early.
+// as candidates and tighten the bar early. A box's corners come from its
+// parent's where the two share them; a corner on the new face a split
+// makes lies on a line between two of the parent's corners that differ in
+// the split position alone, and is given by an update along that line
+// (solver.Solver.SolveBetween, the bilinear theorem) instead of a solve.
 type BranchBound struct {
 	// LeafRows is the largest number of rows (combinations of every
 	// position but the row position) of a box that the rows method
