@@ -705,6 +705,21 @@ func (w *rowWorker) slowRow(lo, hi int) {
 // unable to: each test is a binary search on a quantity that is monotone
 // along the row.
 func (w *rowWorker) narrow(lo, hi int) [][2]int {
+	worst := w.threshold()
+	primary := constraints.ByError
+	if len(w.keys) > 0 {
+		primary = w.keys[0]
+	}
+	goalsCut := primary == constraints.ByError && worst != nil && w.frontCap == 0
+	if goalsCut {
+		// Most rows a search visits miss the bar on a goal: cut by the
+		// goals first, and take the hard limits only in what is left.
+		// (The limits' counts, for the message when nothing is feasible,
+		// are kept while no answer is known, when there is no bar.)
+		if lo, hi = w.goalRange(lo, hi, widen(worst.Error)+rescoreSlack); lo > hi {
+			return nil
+		}
+	}
 	lo, hi = w.hardLimits(lo, hi)
 	if lo > hi {
 		return nil
@@ -716,13 +731,11 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 		}
 	}
 	full := append(w.ranges[:0], [2]int{lo, hi})
-	worst := w.threshold()
-	primary := constraints.ByError
-	if len(w.keys) > 0 {
-		primary = w.keys[0]
-	}
 	switch primary {
 	case constraints.ByError:
+		if goalsCut {
+			return full // cut by the goals above, with this same threshold
+		}
 		// The update formula's rounding (rescoreSlack) is allowed for, so
 		// that an exact tie of the threshold is scored, not cut.
 		t := math.Inf(1)
