@@ -16,7 +16,8 @@ var MethodNames = []string{"auto", "bound", "exhaustive", "heuristic"}
 // otherwise. A search split into shards (s.Shards > 1) must cover its part,
 // so auto never picks the heuristic for one. Choose may raise s.MaxRows for
 // a method that must cover the space. note, when not empty, is a sentence
-// telling the user that auto fell back to the heuristic and why.
+// for the user: that auto fell back to the heuristic and why, or that the
+// branch and bound asked for cannot bound a goal.
 //
 // Every command that searches calls Choose, so the rule lives here only.
 func Choose(name string, p *Problem, s *Settings) (m Method, note string, err error) {
@@ -24,6 +25,11 @@ func Choose(name string, p *Problem, s *Settings) (m Method, note string, err er
 	case "heuristic":
 		return Relax{}, "", nil
 	case "bound":
+		if !(BranchBound{}).Applies(p) {
+			return BranchBound{}, "a sweep-wide goal (linearity, sensitivity or resolution) has no box bound: " +
+				"branch and bound rules out boxes and rows by the other goals, the hard limits and the other rank keys only, " +
+				"so it scores more candidates; the search still covers the whole space", nil
+		}
 		return BranchBound{}, "", nil
 	case "exhaustive":
 		s.MaxRows = math.Inf(1)

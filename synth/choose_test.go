@@ -51,6 +51,20 @@ func TestChoose(t *testing.T) {
 			}
 		})
 	}
+	// Branch and bound asked for where a goal has no box bound still
+	// covers the space, and says what it cannot use.
+	for _, c := range []struct {
+		p    *synth.Problem
+		note bool
+	}{{sweepGoal, true}, {sweep, false}, {ladder, false}} {
+		m, note, err := synth.Choose("bound", c.p, &synth.Settings{})
+		if err != nil || reflect.TypeOf(m) != reflect.TypeOf(synth.BranchBound{}) {
+			t.Fatalf("bound: %T, %v", m, err)
+		}
+		if (note != "") != c.note || (c.note && !strings.Contains(note, "no box bound")) {
+			t.Errorf("bound on a sweep-wide goal %v: note %q", c.note, note)
+		}
+	}
 	if _, _, err := synth.Choose("fast", small, &synth.Settings{}); err == nil {
 		t.Error("an unknown method name was accepted")
 	}
