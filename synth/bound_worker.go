@@ -4,7 +4,6 @@ import (
 	"container/heap"
 	"context"
 	"math"
-	"slices"
 
 	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/solver"
@@ -291,27 +290,38 @@ func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 	lo, hi := int(b.lo[sh.j]), int(b.hi[sh.j])
 	ref := (lo + hi + 1) / 2
 	// The rows come in lines along the outer position with the most
-	// values in the box, taken fastest: each line's first row is solved,
-	// the others updated from it (searchLine), so long lines mean few
-	// solves.
-	line, width := -1, int32(0)
+	// values in the box, taken fastest, and the lines in planes along
+	// the one with the next most: each plane's first row is solved, each
+	// line's first updated from it and the line's other rows from that
+	// (searchLine), so a solve serves a whole plane.
+	line, plane := -1, -1
 	for _, i := range sh.outer {
-		if d := b.hi[i] - b.lo[i]; d > width {
-			line, width = i, d
+		switch d := b.hi[i] - b.lo[i]; {
+		case d == 0:
+		case line < 0 || d > b.hi[line]-b.lo[line]:
+			line, plane = i, line
+		case plane < 0 || d > b.hi[plane]-b.lo[plane]:
+			plane = i
 		}
 	}
-	order := append(w.order[:0], sh.outer...)
-	if line >= 0 {
-		k := slices.Index(order, line)
-		order = append(append(order[:k], order[k+1:]...), line)
+	order := w.order[:0]
+	for _, i := range sh.outer {
+		if i != line && i != plane {
+			order = append(order, i)
+		}
+	}
+	for _, i := range []int{plane, line} {
+		if i >= 0 {
+			order = append(order, i)
+		}
 	}
 	w.order = order
-	first := true
+	how := freshRow
 	for {
 		if line < 0 {
 			rw.searchRange(lo, hi, ref)
 		} else {
-			rw.searchLine(lo, hi, ref, line, first)
+			rw.searchLine(lo, hi, ref, line, plane, how)
 		}
 		rw.stats.Rows++
 		k := len(order) - 1
@@ -326,8 +336,15 @@ func (w *bbWorker) searchLeaf(b *box, worst *candidate) {
 		if k < 0 {
 			break
 		}
-		first = order[k] != line // a carry past the line's position starts a new line
+		switch order[k] {
+		case line:
+			how = alongLine
+		case plane:
+			how = nextLine
+		default:
+			how = freshRow // a carry past the plane's position starts a new plane
+		}
 	}
-	rw.line = -1
+	rw.line, rw.plane = -1, -1
 	rw.bar = nil
 }

@@ -163,6 +163,11 @@ type rowCond struct {
 	// response, the line position's port response and conductance
 	xb, wb, wk []float64
 	gk         float64
+	// a plane's first row (rowWorker.nextLine): its solution and the
+	// row, line and plane positions' port responses, and the plane
+	// position's conductance
+	xp, wp, wkp, wm []float64
+	gm              float64
 }
 
 // rowWorker searches rows on one goroutine with its own solver and top list.
@@ -205,6 +210,10 @@ type rowWorker struct {
 	// (a resistance target does).
 	line, kPart, ka, kb int
 	lineable            bool
+	// plane is the outer position whose every value, with the line's
+	// first value, begins a line that is updated from the plane's first
+	// (nextLine), -1 for none; mPart, ma and mb are its part and nodes.
+	plane, mPart, ma, mb int
 
 	// bar, when not nil, is a candidate known to rank among the best the
 	// search keeps (BranchBound's shared list): options that cannot beat it
@@ -229,7 +238,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		port: make([]float64, n+1),
 		keys: p.Spec.Template.Rank, lim: p.Spec.Template.Limits.SupplyPowerMax,
 		ranges: make([][2]int, 0, 2),
-		line:   -1, lineable: true,
+		line:   -1, lineable: true, plane: -1,
 	}
 	parts := net.Parts()
 	w.edges = make([]solver.Edge, len(parts))
@@ -268,6 +277,7 @@ func newRowWorker(p *Problem, r *ranker, set *Settings, j int, outer []int) *row
 		rc.x0 = make([]float64, n+1)
 		rc.w = make([]float64, n+1)
 		rc.xb, rc.wb, rc.wk = make([]float64, n+1), make([]float64, n+1), make([]float64, n+1)
+		rc.xp, rc.wp, rc.wkp, rc.wm = make([]float64, n+1), make([]float64, n+1), make([]float64, n+1), make([]float64, n+1)
 		rc.r0 = make([]float64, len(p.Spec.Probes))
 		rc.rc = make([]float64, len(p.Spec.Probes))
 	}
@@ -298,7 +308,11 @@ func (w *rowWorker) runRows(start, end int64) {
 		if line < 0 {
 			w.searchRow()
 		} else {
-			w.searchLine(0, len(w.opts)-1, len(w.opts)/2, line, first)
+			how := alongLine
+			if first {
+				how = freshRow
+			}
+			w.searchLine(0, len(w.opts)-1, len(w.opts)/2, line, -1, how)
 		}
 		w.stats.Rows++
 		// Advance the odometer.
@@ -315,7 +329,7 @@ func (w *rowWorker) runRows(start, end int64) {
 			}
 		}
 	}
-	w.line = -1
+	w.line, w.plane = -1, -1
 }
 
 // searchRow scores the options of the row position for the current outer values.
@@ -326,7 +340,7 @@ func (w *rowWorker) searchRow() {
 // searchRange scores options lo..hi of the row position for the current
 // outer values, with option ref as the reference of the update formula.
 func (w *rowWorker) searchRange(lo, hi, ref int) {
-	w.line = -1
+	w.line, w.plane = -1, -1
 	if !w.prepare(w.opts[ref].Value) {
 		w.slowRow(lo, hi)
 		return
@@ -334,28 +348,93 @@ func (w *rowWorker) searchRange(lo, hi, ref int) {
 	w.scanRange(lo, hi)
 }
 
+// lineStart says how a row searchLine is given follows the one before it.
+type lineStart uint8
+
+const (
+	alongLine lineStart = iota // only the line position moved: the line's next row
+	nextLine                   // the plane position moved and the line's went back to its first value
+	freshRow                   // anything else: the row is solved
+)
+
 // searchLine is searchRange for the rows of a line: rows that differ from
 // the line's first only in the value of outer position k. The first row
-// (first) is solved as searchRange does, with k's port response besides;
-// each later one is updated from it by the Sherman–Morrison formula for
-// k's conductance (the bilinear theorem again, now across rows) instead of
-// a new solve. A row whose update would divide by a small 1 + ΔG·z (where
-// rounding grows) is solved afresh and starts a new line.
-func (w *rowWorker) searchLine(lo, hi, ref, k int, first bool) {
-	if first || w.line != k || !w.updateLine() {
-		w.line = -1
+// (how is freshRow) is solved as searchRange does, with k's port response
+// besides; each later one (alongLine) is updated from it by the
+// Sherman–Morrison formula for k's conductance (the bilinear theorem
+// again, now across rows) instead of a new solve. With a plane position m
+// (-1 for none), a line that begins where only m moved since the plane's
+// first row (nextLine) has its first row updated from that one the same
+// way, for m's conductance (nextLineFromPlane). A row whose update would
+// divide by a small 1 + ΔG·z (where rounding grows) is solved afresh and
+// starts a new line, and a new plane.
+func (w *rowWorker) searchLine(lo, hi, ref, k, m int, how lineStart) {
+	ok := false
+	switch {
+	case how == alongLine && w.line == k:
+		ok = w.updateLine()
+	case how == nextLine && w.line == k && w.plane == m && m >= 0:
+		ok = w.nextLineFromPlane()
+	}
+	if !ok {
+		w.line, w.plane = -1, -1
 		if w.lineable {
 			w.line, w.kPart = k, w.p.Domains[k].Part
 			e := w.edges[w.kPart]
 			w.ka, w.kb = e.From, e.To
+			// Only a line's first row can be a plane's first: a line
+			// solved afresh part way along is not one.
+			if m >= 0 && how != alongLine {
+				w.plane, w.mPart = m, w.p.Domains[m].Part
+				e := w.edges[w.mPart]
+				w.ma, w.mb = e.From, e.To
+			}
 		}
 		if !w.prepare(w.opts[ref].Value) {
-			w.line = -1
+			w.line, w.plane = -1, -1
 			w.slowRow(lo, hi)
 			return
 		}
 	}
 	w.scanRange(lo, hi)
+}
+
+// nextLineFromPlane sets up the first row of a new line from the plane's
+// first row (see searchLine) for the current value of the plane position:
+// the solution and the row and line positions' port responses, each
+// v = vp − wm·ΔG·(vp(a) − vp(b))/d with d = 1 + ΔG·(wm(a) − wm(b)), a and
+// b the plane position's nodes (Sherman–Morrison for its conductance). It
+// reports false when d is below lineMinDen in a condition.
+func (w *rowWorker) nextLineFromPlane() bool {
+	v := w.p.Domains[w.plane].Options[w.cur[w.plane]].Value
+	kv := w.p.Domains[w.line].Options[w.cur[w.line]].Value
+	ma, mb := w.ma, w.mb
+	for c := range w.cond {
+		rc := &w.cond[c]
+		dg := 1/v - rc.gm
+		d := 1 + dg*(rc.wm[ma]-rc.wm[mb])
+		if !(d >= lineMinDen) {
+			return false
+		}
+		sx := dg * (rc.xp[ma] - rc.xp[mb]) / d
+		sw := dg * (rc.wp[ma] - rc.wp[mb]) / d
+		sk := dg * (rc.wkp[ma] - rc.wkp[mb]) / d
+		xp, wp, wkp, wm := rc.xp, rc.wp, rc.wkp, rc.wm[:len(rc.xp)]
+		xb, wb, wk := rc.xb, rc.wb, rc.wk
+		for i := range wm {
+			xb[i] = xp[i] - wm[i]*sx
+			wb[i] = wp[i] - wm[i]*sw
+			wk[i] = wkp[i] - wm[i]*sk
+		}
+		copy(rc.x0, xb)
+		copy(rc.w, wb)
+		rc.vals[w.mPart] = v
+		rc.vals[w.kPart] = kv // the line position is back at the plane's first value
+		rc.z = rc.w[w.ja] - rc.w[w.jb]
+		rc.v0 = rc.x0[w.ja] - rc.x0[w.jb]
+		w.powerCoefficients(rc)
+	}
+	return true
 }
 
 // lineMinDen is the least 1 + ΔG·z (the ratio of the new row's MNA
@@ -454,6 +533,19 @@ func (w *rowWorker) prepare(rRef float64) bool {
 			copy(rc.xb, rc.x0)
 			copy(rc.wb, rc.w)
 			rc.gk = 1 / rc.vals[w.kPart]
+			if w.plane >= 0 {
+				// The first row of a plane: m's port response and the
+				// plane's base, which nextLineFromPlane starts from.
+				w.stats.Solves++
+				if err := s.PortResponse(w.ma, w.mb, rc.wm[1:]); err != nil {
+					return false
+				}
+				rc.wm[0] = 0
+				copy(rc.xp, rc.x0)
+				copy(rc.wp, rc.w)
+				copy(rc.wkp, rc.wk)
+				rc.gm = 1 / rc.vals[w.mPart]
+			}
 		}
 		rc.g0 = 1 / rRef
 		rc.z = rc.w[w.ja] - rc.w[w.jb]

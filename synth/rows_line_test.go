@@ -8,7 +8,9 @@ import (
 
 // A row updated from its line's first (rowWorker.updateLine, the
 // Sherman–Morrison formula for one resistor's conductance, i.e. the
-// bilinear theorem) equals the row solved afresh: solution, port response,
+// bilinear theorem), itself sometimes updated from its plane's first
+// (nextLineFromPlane, the same formula for another resistor), equals the
+// row solved afresh: solution, port response,
 // the update formula's z and V0, the power coefficients and the part
 // values, within the update's rounding allowance (rescoreSlack), on
 // networks with one and with two conditions, an op-amp, and a current
@@ -81,26 +83,45 @@ choose: {series: E24, min: 1k, max: 1M}
 				}
 			}
 			rng := rand.New(rand.NewPCG(7, uint64(len(tc.yaml))))
-			updated := 0
+			updated, planes := 0, 0
 			for range 200 {
 				for _, i := range sh.outer {
 					w.cur[i] = rng.Int32N(int32(len(p.Domains[i].Options)))
 				}
-				k := sh.outer[rng.IntN(len(sh.outer))]
+				perm := rng.Perm(len(sh.outer))
+				k, m := sh.outer[perm[0]], sh.outer[perm[1]]
 				ref := rng.IntN(len(w.opts))
 				w.line, w.kPart = k, p.Domains[k].Part
 				e := w.edges[w.kPart]
 				w.ka, w.kb = e.From, e.To
+				// Half the rows begin a new line of a plane along m
+				// (nextLineFromPlane) before moving along the line.
+				viaPlane := rng.IntN(2) == 0
+				w.plane = -1
+				if viaPlane {
+					w.plane, w.mPart = m, p.Domains[m].Part
+					e := w.edges[w.mPart]
+					w.ma, w.mb = e.From, e.To
+				}
 				if !w.prepare(w.opts[ref].Value) {
 					continue
 				}
-				w.cur[k] = rng.Int32N(int32(len(p.Domains[k].Options)))
-				if !w.updateLine() {
-					continue
+				if viaPlane {
+					w.cur[m] = rng.Int32N(int32(len(p.Domains[m].Options)))
+					if !w.nextLineFromPlane() {
+						continue
+					}
+					planes++
+				}
+				if rng.IntN(4) > 0 {
+					w.cur[k] = rng.Int32N(int32(len(p.Domains[k].Options)))
+					if !w.updateLine() {
+						continue
+					}
 				}
 				updated++
 				got := snap()
-				w.line = -1
+				w.line, w.plane = -1, -1
 				if !w.prepare(w.opts[ref].Value) {
 					t.Fatal("a fresh solve failed where the update did not")
 				}
@@ -125,8 +146,8 @@ choose: {series: E24, min: 1k, max: 1M}
 					}
 				}
 			}
-			if updated < 100 {
-				t.Fatalf("only %d of 200 rows updated: the check proves little", updated)
+			if updated < 100 || planes < 50 {
+				t.Fatalf("only %d of 200 rows updated, %d from a plane's first: the check proves little", updated, planes)
 			}
 		})
 	}
