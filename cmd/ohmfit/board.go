@@ -229,7 +229,7 @@ func boardVerdict(res *board.Result) string {
 			break
 		}
 	}
-	return fmt.Sprintf("not proven (%s): at least %d values are needed", why, res.Bound)
+	return fmt.Sprintf("not proven (%s): at least %s needed", why, counted(res.Bound, "value is", "values are"))
 }
 
 // choiceText shows a network's chosen design: "R1 78.7k, R2 15k".
@@ -251,7 +251,7 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 	fmt.Fprintf(&b, "%s\n", name)
 	fixedNote := ""
 	if len(res.Fixed) > 0 {
-		fixedNote = fmt.Sprintf(", %d of them in fixed parts", len(res.Fixed))
+		fixedNote = ", " + counted(len(res.Fixed), "of them in a fixed part", "of them in fixed parts")
 	}
 	fmt.Fprintf(&b, "%s; %s on the board%s (alone %d, saving %d); %s\n\n",
 		counted(len(res.Networks), "network", "networks"), counted(res.Distinct, "distinct resistor value", "distinct resistor values"),
@@ -298,12 +298,10 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 	return err
 }
 
-// counted writes n with its noun, singular for one: "1 network".
+// counted writes n with its noun, singular for one (variation.Plural
+// chooses): "1 network", "2 networks".
 func counted(n int, one, many string) string {
-	if n == 1 {
-		return "1 " + one
-	}
-	return strconv.Itoa(n) + " " + many
+	return strconv.Itoa(n) + " " + variation.Plural(n, one, many)
 }
 
 // bomNote explains why the BOM has more lines than the board has distinct
@@ -335,7 +333,8 @@ func bomNote(res *board.Result, chk *board.Checked) string {
 	if len(why) == 0 {
 		return ""
 	}
-	return fmt.Sprintf("%d BOM lines for %d distinct resistor values: %s.", len(chk.BOM), res.Distinct, strings.Join(why, "; "))
+	return fmt.Sprintf("%s for %s: %s.", counted(len(chk.BOM), "BOM line", "BOM lines"),
+		counted(res.Distinct, "distinct resistor value", "distinct resistor values"), strings.Join(why, "; "))
 }
 
 // boardJSON builds the board's JSON document (keys as the contract fixes
