@@ -171,6 +171,7 @@ func TestGolden(t *testing.T) {
 		{"board-controller-json", []string{"board", "example:controller", "--format", "json"}, ExitOK},
 		{"board-two-csv", []string{"board", "testdata/board/two.yaml", "--format", "csv"}, ExitOK},
 		{"board-two", []string{"board", "testdata/board/two.yaml"}, ExitOK},
+		{"board-two-fixed", []string{"board", "testdata/board/two-fixed.yaml"}, ExitOK},
 		{"board-unmet", []string{"board", "testdata/board/unmet.yaml"}, ExitNoSolution},
 		{"board-err-missing-template", []string{"board", "testdata/board/missing-template.yaml"}, ExitBadInput},
 		{"board-err-bad-template", []string{"board", "testdata/board/bad-template.yaml"}, ExitBadInput},
