@@ -79,9 +79,18 @@ message names it and the error it can reach); 2 bad usage or bad input.
 JSON output (--format json):
   {"board": "...", "status": "proven", "proven": true, "ties_proven": true,
    "distinct": 7, "alone": 11, "bound": 7, "values": [...], "fixed": [47000],
+   "selection_nodes": 6309, "elapsed": 0.085,
    "networks": [{"template": "rail-3v3.yaml", "prefix": "U3",
-     "values": {"R1": 30100, "R2": 9530}, "error": 0.0012, ...}],
-   "bom": [{"value": 30100, "designators": ["U3-R1"], "quantity": 1, ...}]}`,
+     "values": {"R1": 30100, "R2": 9530}, "error": 0.0012,
+     "designs": 148, "kept": 148, ...}],
+   "bom": [{"value": 30100, "designators": ["U3-R1"], "quantity": 1, ...}]}
+
+A network's "kept" is how many of its designs the selection weighed: each
+other one is beaten by a design of the same network whose values are
+among its own and that is no worse on error and power. "selection_nodes"
+counts the nodes the exact selection search visited; "elapsed" is the
+seconds the search took (listing the designs, then the selection), which
+vary from run to run.`,
 		Example: `  # the built-in motor-controller board
   ohmfit board example:controller
 
@@ -229,7 +238,7 @@ func boardVerdict(res *board.Result) string {
 			break
 		}
 	}
-	return fmt.Sprintf("not proven (%s): at least %d values are needed", why, res.Bound)
+	return fmt.Sprintf("not proven (%s): at least %s needed", why, counted(res.Bound, "value is", "values are"))
 }
 
 // choiceText shows a network's chosen design: "R1 78.7k, R2 15k".
@@ -251,7 +260,7 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 	fmt.Fprintf(&b, "%s\n", name)
 	fixedNote := ""
 	if len(res.Fixed) > 0 {
-		fixedNote = fmt.Sprintf(", %d of them in fixed parts", len(res.Fixed))
+		fixedNote = ", " + counted(len(res.Fixed), "of them in a fixed part", "of them in fixed parts")
 	}
 	fmt.Fprintf(&b, "%s; %s on the board%s (alone %d, saving %d); %s\n\n",
 		counted(len(res.Networks), "network", "networks"), counted(res.Distinct, "distinct resistor value", "distinct resistor values"),
@@ -298,12 +307,10 @@ func writeBoardTable(w io.Writer, res *board.Result, chk *board.Checked) error {
 	return err
 }
 
-// counted writes n with its noun, singular for one: "1 network".
+// counted writes n with its noun, singular for one (variation.Plural
+// chooses): "1 network", "2 networks".
 func counted(n int, one, many string) string {
-	if n == 1 {
-		return "1 " + one
-	}
-	return strconv.Itoa(n) + " " + many
+	return strconv.Itoa(n) + " " + variation.Plural(n, one, many)
 }
 
 // bomNote explains why the BOM has more lines than the board has distinct
@@ -335,7 +342,8 @@ func bomNote(res *board.Result, chk *board.Checked) string {
 	if len(why) == 0 {
 		return ""
 	}
-	return fmt.Sprintf("%d BOM lines for %d distinct resistor values: %s.", len(chk.BOM), res.Distinct, strings.Join(why, "; "))
+	return fmt.Sprintf("%s for %s: %s.", counted(len(chk.BOM), "BOM line", "BOM lines"),
+		counted(res.Distinct, "distinct resistor value", "distinct resistor values"), strings.Join(why, "; "))
 }
 
 // boardJSON builds the board's JSON document (keys as the contract fixes
@@ -354,7 +362,7 @@ func boardJSON(res *board.Result, chk *board.Checked) object {
 		}
 		nets[i] = object{{"template", n.Spec.Template}, {"prefix", n.Spec.Prefix}, {"values", values},
 			{"parts", parts}, {"combine", combine}, {"error", c.Score.Error}, {"error_max", n.Cap},
-			{"power", c.Score.Power}, {"designs", len(nr.Designs)}, {"cut", nr.Cut}}
+			{"power", c.Score.Power}, {"designs", len(nr.Designs)}, {"kept", nr.Kept}, {"cut", nr.Cut}}
 	}
 	bom := make([]object, len(chk.BOM))
 	for i, l := range chk.BOM {
@@ -363,7 +371,8 @@ func boardJSON(res *board.Result, chk *board.Checked) object {
 	}
 	return object{{"board", res.Board.Spec.Name}, {"status", res.Status().String()}, {"proven", res.Proven},
 		{"ties_proven", res.TiesProven}, {"distinct", res.Distinct}, {"alone", res.Alone}, {"bound", res.Bound},
-		{"values", res.Values}, {"fixed", nonNil(res.Fixed)}, {"networks", nets}, {"bom", bom}}
+		{"values", res.Values}, {"fixed", nonNil(res.Fixed)}, {"selection_nodes", res.Nodes}, {"elapsed", res.Elapsed.Seconds()},
+		{"networks", nets}, {"bom", bom}}
 }
 
 // writeBoardCSV writes one row per chosen position of every network.

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"encoding/csv"
 	"encoding/json"
 	"io"
@@ -14,6 +15,8 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"github.com/ohmfit/ohmfit/synth/board"
 )
 
 // TestBoardBOMFile writes a board's --bom and reads it back: the check
@@ -160,5 +163,55 @@ func TestTimeLimitWording(t *testing.T) {
 	}
 	if usages[0] != usages[1] || usages[1] != timeLimitUsage {
 		t.Errorf("fit: %q\nboard: %q", usages[0], usages[1])
+	}
+}
+
+// TestBoardJSONSearchFigures: the board JSON carries the selection
+// search's figures, each as the library computed it: a network's "kept"
+// (designs left after dominated ones are dropped; at least 1, at most
+// "designs"), the board's "selection_nodes" (the selection search is one
+// goroutine and deterministic, so a second solve gives the same count) and
+// "elapsed" in seconds (positive, and no more than the wall time of the
+// whole run around it).
+func TestBoardJSONSearchFigures(t *testing.T) {
+	const file = "testdata/board/two.yaml"
+	start := time.Now()
+	stdout, stderr, code := runCLI(t, "board", file, "--format", "json")
+	wall := time.Since(start)
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var doc struct {
+		SelectionNodes *int64   `json:"selection_nodes"`
+		Elapsed        *float64 `json:"elapsed"`
+		Networks       []struct {
+			Designs int
+			Kept    *int
+		}
+	}
+	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
+		t.Fatal(err)
+	}
+	b, err := board.Load(file)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := board.Solve(context.Background(), b, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if doc.SelectionNodes == nil || *doc.SelectionNodes != res.Nodes {
+		t.Errorf("selection_nodes %v, want %d", doc.SelectionNodes, res.Nodes)
+	}
+	if doc.Elapsed == nil || !(*doc.Elapsed > 0) || *doc.Elapsed > wall.Seconds() {
+		t.Errorf("elapsed %v s, want above 0 and at most the run's %v", doc.Elapsed, wall)
+	}
+	if len(doc.Networks) != len(res.Networks) {
+		t.Fatalf("%d networks, want %d", len(doc.Networks), len(res.Networks))
+	}
+	for i, n := range doc.Networks {
+		if n.Kept == nil || *n.Kept != res.Networks[i].Kept || *n.Kept < 1 || *n.Kept > n.Designs {
+			t.Errorf("network %d: kept %v of %d designs, want %d", i, n.Kept, n.Designs, res.Networks[i].Kept)
+		}
 	}
 }

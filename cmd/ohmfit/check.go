@@ -2,7 +2,6 @@ package main
 
 import (
 	"errors"
-	"fmt"
 	"io"
 	"strings"
 
@@ -248,11 +247,8 @@ func checkDesign(o *checkOptions, outs *outputs, t *constraints.Template, st *va
 	}
 	if n := len(rep.Failures); n > 0 {
 		msg := rep.Failures[0]
-		switch {
-		case n == 2:
-			msg += " (and 1 more hard limit broken; see the report)"
-		case n > 2:
-			msg += fmt.Sprintf(" (and %d more hard limits broken; see the report)", n-1)
+		if n > 1 {
+			msg += " (and " + counted(n-1, "more hard limit", "more hard limits") + " broken; see the report)"
 		}
 		return &exitError{code: ExitNoSolution, err: errors.New(msg)}
 	}
@@ -286,7 +282,7 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 		if len(res.Solutions) == 0 {
 			return nil, &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res, reach))}
 		}
-		return nil, badInputf("--rank %d: the fit has only %d answers", o.Rank, len(res.Solutions))
+		return nil, badInputf("--rank %d: the fit has only %s", o.Rank, counted(len(res.Solutions), "answer", "answers"))
 	}
 	sol := res.Solutions[o.Rank-1]
 	var desc []string

@@ -45,13 +45,10 @@ func ppm(tcr float64) string {
 // worstCaseText says which worst-case method ran.
 func worstCaseText(rep *variation.Report, nc int) string {
 	if rep.Method == variation.MethodCorners {
-		conds := "1 condition"
-		if nc != 1 {
-			conds = fmt.Sprintf("%d conditions", nc)
-		}
-		return fmt.Sprintf("every tolerance corner solved (%d per condition, %s)", rep.Corners, conds)
+		return fmt.Sprintf("every tolerance corner solved (%d per condition, %s)", rep.Corners, counted(nc, "condition", "conditions"))
 	}
-	return fmt.Sprintf("linearised: %d corners picked from the sensitivities, each solved exactly (too many varying parts to try all)", rep.Corners)
+	return fmt.Sprintf("linearised: %s picked from the sensitivities, each solved exactly (too many varying parts to try all)",
+		counted(rep.Corners, "corner", "corners"))
 }
 
 // writeCheckTable renders a check report for people.
@@ -62,7 +59,8 @@ func writeCheckTable(w io.Writer, t *constraints.Template, d *variation.Design, 
 	}
 	fmt.Fprintf(&b, "worst case: %s\n", worstCaseText(rep, len(d.Problem.Conditions)))
 	if rep.Samples > 0 {
-		fmt.Fprintf(&b, "Monte Carlo: %s samples, %s, seed %d; %s meet every limit\n", count(float64(rep.Samples)), rep.Distribution, rep.Seed, yieldText(rep.Yield))
+		fmt.Fprintf(&b, "Monte Carlo: %s %s, %s, seed %d; %s meet every limit\n", count(float64(rep.Samples)), variation.Plural(rep.Samples, "sample", "samples"),
+			rep.Distribution, rep.Seed, yieldText(rep.Yield))
 	}
 	if a := rep.Ambient; a.Set {
 		fmt.Fprintf(&b, "ambient: %g … %g °C (TCR referred to %g °C)\n", a.Min, a.Max, constraints.ReferenceCelsius)

@@ -48,9 +48,14 @@ func golden(t *testing.T, name, got string) {
 // run to run.
 var timing = regexp.MustCompile(`, in [0-9.]+(ns|µs|ms|s|m[0-9.]+s|h[0-9.m]+s);`)
 
+// elapsedJSON matches board's JSON "elapsed" (seconds), which varies too.
+var elapsedJSON = regexp.MustCompile(`"elapsed": [0-9.e+-]+`)
+
 // normaliseTiming blanks the search time so that golden files compare the
 // rest of the output exactly.
-func normaliseTiming(s string) string { return timing.ReplaceAllString(s, ", in TIME;") }
+func normaliseTiming(s string) string {
+	return elapsedJSON.ReplaceAllString(timing.ReplaceAllString(s, ", in TIME;"), `"elapsed": TIME`)
+}
 
 // TestGolden runs each command line and compares its exit code, stdout and
 // stderr, written into one file per case, with the golden copy.
@@ -155,6 +160,8 @@ func TestGolden(t *testing.T) {
 		{"check-err-ambient", []string{"check", "testdata/check-divider.yaml", "--ambient", "70..0"}, ExitBadInput},
 		{"check-err-package", []string{"check", "testdata/check-divider.yaml", "--max-package", "0604"}, ExitBadInput},
 		{"check-err-bom", []string{"check", "testdata/check-divider.yaml", "--bom", "parts.txt"}, ExitBadInput},
+		{"check-one-sample", []string{"check", "example:divider", "--samples", "1", "--seed", "1"}, ExitNoSolution},
+		{"check-err-rank", []string{"check", "testdata/one-design.yaml", "--rank", "2"}, ExitBadInput},
 		{"check-err-overwrite", []string{"check", "testdata/check-stock.yaml", "--samples", "0", "--bom", "testdata/check-stock.csv"}, ExitBadInput},
 		{"fit-robust", []string{"fit", "example:feedback", "--robust", "--top", "5", "--workers", "1"}, ExitOK},
 		{"fit-check", []string{"fit", "example:divider", "--check", "--top", "3", "--workers", "1"}, ExitOK},
@@ -164,6 +171,7 @@ func TestGolden(t *testing.T) {
 		{"board-controller-json", []string{"board", "example:controller", "--format", "json"}, ExitOK},
 		{"board-two-csv", []string{"board", "testdata/board/two.yaml", "--format", "csv"}, ExitOK},
 		{"board-two", []string{"board", "testdata/board/two.yaml"}, ExitOK},
+		{"board-two-fixed", []string{"board", "testdata/board/two-fixed.yaml"}, ExitOK},
 		{"board-unmet", []string{"board", "testdata/board/unmet.yaml"}, ExitNoSolution},
 		{"board-err-missing-template", []string{"board", "testdata/board/missing-template.yaml"}, ExitBadInput},
 		{"board-err-bad-template", []string{"board", "testdata/board/bad-template.yaml"}, ExitBadInput},

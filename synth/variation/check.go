@@ -233,7 +233,7 @@ func (d *Design) warn(r *Report, st *Settings) {
 		}
 	}
 	if r.Samples > 0 && r.Yield < 1 {
-		r.Warnings = append(r.Warnings, fmt.Sprintf("Monte Carlo: %.2f%% of %d samples meet every limit in every condition", 100*r.Yield, r.Samples))
+		r.Warnings = append(r.Warnings, fmt.Sprintf("Monte Carlo: %.2f%% of %d %s every limit in every condition", 100*r.Yield, r.Samples, Plural(r.Samples, "sample meets", "samples meet")))
 	}
 	for _, rg := range r.Ratings {
 		switch rg.Verdict {

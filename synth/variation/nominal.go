@@ -156,17 +156,24 @@ func (d *Design) gatherPoints(s *solver.Solver, ci int, solved bool, points *con
 // derivedAt computes sweep-wide target ti with the parts at deviation dev,
 // solving each condition it reads.
 func (d *Design) derivedAt(s *solver.Solver, ti int, dev []float64) (float64, error) {
-	p := d.Problem
-	dp := p.Derived[ti]
-	points := p.NewPoints()
-	for _, ci := range dp.Conds {
-		d.setValues(s, ci, dev)
-		if err := s.Solve(); err != nil {
-			return math.NaN(), errorf(ErrUnsolvable, "the network cannot be solved in condition %q: %v", p.Conditions[ci].Name, err)
+	points := d.Problem.NewPoints()
+	for _, ci := range d.Problem.Derived[ti].Conds {
+		if err := d.pointsAt(s, ci, dev, points); err != nil {
+			return math.NaN(), err
 		}
-		d.gatherPoints(s, ci, true, points)
 	}
 	return points.Derived(ti), nil
+}
+
+// pointsAt solves condition ci with the parts at deviation dev and gathers
+// into points what the sweep-wide targets read in it.
+func (d *Design) pointsAt(s *solver.Solver, ci int, dev []float64, points *constraints.Points) error {
+	d.setValues(s, ci, dev)
+	if err := s.Solve(); err != nil {
+		return errorf(ErrUnsolvable, "the network cannot be solved in condition %q: %v", d.Problem.Conditions[ci].Name, err)
+	}
+	d.gatherPoints(s, ci, true, points)
+	return nil
 }
 
 // derivedSensitivities differentiates a sweep-wide target numerically: a

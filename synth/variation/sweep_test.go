@@ -195,6 +195,48 @@ func resolvedTarget(t *testing.T, tpl *constraints.Template, ti int) float64 {
 	return sc.Value(ti, 0)
 }
 
+// rtdPairDesign is an RTD divider with all three sweep-wide kinds, TCR
+// following the sweep's temperatures; its free Rtop takes 3.3k + 470 in
+// series (rtdPairAnswer).
+const rtdPairDesign = `ohmfit: 1
+parts:
+  - {name: Vref, type: voltage-source, plus: ref, minus: gnd, volts: 2.5, tolerance: 0.5%}
+  - {name: Rtop, type: resistor, from: ref, to: s}
+  - {name: PT1, type: rtd, from: s, to: gnd, r0: 1k, tolerance: 0.1%}
+  - {name: Rsh, type: resistor, from: s, to: gnd, value: 22k, tolerance: 1%, tcr: 50ppm}
+  - {name: A, type: adc, in: s, ref: 2.5, bits: 12}
+sweep: {temperature: {from: -40, to: 120, step: 20}}
+targets:
+  - {linearity: s, max: 10}
+  - {sensitivity: s, at: 100, min: 1m}
+  - {resolution: A, at: 0, max: 1}
+choose: {series: E24, min: 100, max: 100k, combine: any}
+`
+
+var rtdPairAnswer = []synth.Option{{Value: 3.3e3 + 470, Parts: [2]float64{3.3e3, 470}, Count: 2, Combine: constraints.Series}}
+
+// ntcAmbientDesign is an NTC with a parallel top resistor and all three
+// sweep-wide kinds, under an ambient range (which governs the TCR drift
+// instead of the sweep); its free Rtop takes 68k ∥ 33k (ntcAmbientAnswer).
+const ntcAmbientDesign = `ohmfit: 1
+parts:
+  - {name: Vcc, type: voltage-source, plus: vcc, minus: gnd, volts: 3.3}
+  - {name: Rtop, type: resistor, from: vcc, to: s}
+  - {name: RT1, type: ntc, from: s, to: gnd, r25: 47k, beta: 4050}
+  - {name: Rs, type: resistor, from: s, to: m, value: 1k}
+  - {name: Rb, type: resistor, from: m, to: gnd, value: 100k, tolerance: 0.1%}
+  - {name: A, type: adc, in: m, ref: 3.3, bits: 10}
+sweep: {temperature: [0, 15, 30, 45, 60, 75]}
+ambient: {min: 0, max: 70}
+targets:
+  - {linearity: s, max: 20}
+  - {sensitivity: m, at: 30, min: 1m}
+  - {resolution: A, at: 60, max: 2}
+choose: {series: E24, min: 1k, max: 1M, combine: any}
+`
+
+var ntcAmbientAnswer = []synth.Option{{Value: 68e3 * 33e3 / 101e3, Parts: [2]float64{68e3, 33e3}, Count: 2, Combine: constraints.Parallel}}
+
 // TestSweepSensitivityByResolve checks the sensitivities of every
 // sweep-wide kind (linearity, sensitivity, resolution) to every part
 // against central finite differences of complete re-solves: the template is
@@ -217,36 +259,8 @@ func TestSweepSensitivityByResolve(t *testing.T) {
 		// The built-in example at fit's answer, with TCR following each
 		// condition's temperature.
 		{"battery-sense", string(battery), []synth.Option{single(10e3), single(1e6)}},
-		{"rtd-pair", `ohmfit: 1
-parts:
-  - {name: Vref, type: voltage-source, plus: ref, minus: gnd, volts: 2.5, tolerance: 0.5%}
-  - {name: Rtop, type: resistor, from: ref, to: s}
-  - {name: PT1, type: rtd, from: s, to: gnd, r0: 1k, tolerance: 0.1%}
-  - {name: Rsh, type: resistor, from: s, to: gnd, value: 22k, tolerance: 1%, tcr: 50ppm}
-  - {name: A, type: adc, in: s, ref: 2.5, bits: 12}
-sweep: {temperature: {from: -40, to: 120, step: 20}}
-targets:
-  - {linearity: s, max: 10}
-  - {sensitivity: s, at: 100, min: 1m}
-  - {resolution: A, at: 0, max: 1}
-choose: {series: E24, min: 100, max: 100k, combine: any}
-`, []synth.Option{{Value: 3.3e3 + 470, Parts: [2]float64{3.3e3, 470}, Count: 2, Combine: constraints.Series}}},
-		{"ntc-parallel-ambient", `ohmfit: 1
-parts:
-  - {name: Vcc, type: voltage-source, plus: vcc, minus: gnd, volts: 3.3}
-  - {name: Rtop, type: resistor, from: vcc, to: s}
-  - {name: RT1, type: ntc, from: s, to: gnd, r25: 47k, beta: 4050}
-  - {name: Rs, type: resistor, from: s, to: m, value: 1k}
-  - {name: Rb, type: resistor, from: m, to: gnd, value: 100k, tolerance: 0.1%}
-  - {name: A, type: adc, in: m, ref: 3.3, bits: 10}
-sweep: {temperature: [0, 15, 30, 45, 60, 75]}
-ambient: {min: 0, max: 70}
-targets:
-  - {linearity: s, max: 20}
-  - {sensitivity: m, at: 30, min: 1m}
-  - {resolution: A, at: 60, max: 2}
-choose: {series: E24, min: 1k, max: 1M, combine: any}
-`, []synth.Option{{Value: 68e3 * 33e3 / 101e3, Parts: [2]float64{68e3, 33e3}, Count: 2, Combine: constraints.Parallel}}},
+		{"rtd-pair", rtdPairDesign, rtdPairAnswer},
+		{"ntc-parallel-ambient", ntcAmbientDesign, ntcAmbientAnswer},
 	}
 	const h = 1e-5
 	for _, c := range cases {

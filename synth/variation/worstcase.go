@@ -2,6 +2,7 @@ package variation
 
 import (
 	"math"
+	"slices"
 
 	"github.com/ohmfit/ohmfit/solver"
 )
@@ -43,6 +44,7 @@ type worstRun struct {
 	dev     []float64 // the corner's deviation per varied part
 	byCond  [][]int   // the goals of each condition, by index in r.Goals
 	sweep   []int     // the goals of sweep-wide targets
+	solves  int       // networks solved by visit and the sweep-wide pass
 }
 
 func (d *Design) newWorstRun(s *solver.Solver, r *Report, rt *ratingTracker) *worstRun {
@@ -70,6 +72,7 @@ func (w *worstRun) observeNominal() {
 // visit solves condition ci at the corner w.dev and widens the goals given.
 func (w *worstRun) visit(ci int, goals []int) {
 	w.d.setValues(w.s, ci, w.dev)
+	w.solves++
 	if w.s.Solve() != nil {
 		return
 	}
@@ -80,8 +83,7 @@ func (w *worstRun) visit(ci int, goals []int) {
 		if err != nil || math.IsNaN(x) {
 			continue
 		}
-		g.WorstMin = math.Min(g.WorstMin, x)
-		g.WorstMax = math.Max(g.WorstMax, x)
+		widen(g, x)
 	}
 }
 
@@ -89,9 +91,14 @@ func (w *worstRun) visit(ci int, goals []int) {
 func (w *worstRun) visitSweep(gi int) {
 	g := &w.r.Goals[gi]
 	if x, err := w.d.derivedAt(w.s, g.Target, w.dev); err == nil && !math.IsNaN(x) {
-		g.WorstMin = math.Min(g.WorstMin, x)
-		g.WorstMax = math.Max(g.WorstMax, x)
+		widen(g, x)
 	}
+}
+
+// widen stretches goal g's worst-case range to take in x.
+func widen(g *Goal, x float64) {
+	g.WorstMin = math.Min(g.WorstMin, x)
+	g.WorstMax = math.Max(g.WorstMax, x)
 }
 
 // everyCorner solves every corner of the varying parts in every condition.
@@ -105,32 +112,80 @@ func (w *worstRun) everyCorner(st *Settings) {
 			w.visit(ci, w.byCond[ci])
 		}
 	}
-	// A part is the same part at every temperature: each corner holds
-	// across all the conditions a sweep-wide target reads. When the
-	// conditions carry temperatures, a part's TCR sign is a corner of
-	// its own (high when hot is low when cold), so each part has four:
-	// tolerance ± times TCR ±.
-	for _, gi := range w.sweep {
-		tcrBits := 0
-		if d.conditionTemperatures() && 2*len(varying) <= st.MaxCornerParts {
-			tcrBits = len(varying)
-			d.tcrDraw = make([]float64, len(d.Parts))
-		}
-		for mask := 0; mask < r.Corners<<tcrBits; mask++ {
-			d.corner(mask&(r.Corners-1), varying, w.dev)
-			for b, j := range varying {
-				if tcrBits == 0 {
-					break
-				}
-				d.tcrDraw[j] = -d.Parts[j].TCR
-				if mask&(1<<(len(varying)+b)) != 0 {
-					d.tcrDraw[j] = d.Parts[j].TCR
-				}
-			}
-			w.visitSweep(gi)
-		}
-		d.tcrDraw = nil
+	if len(w.sweep) == 0 {
+		return
 	}
+	// A part is the same part at every temperature: each corner holds
+	// across all the conditions a sweep-wide target reads. Each corner is
+	// solved once in every condition any sweep-wide goal reads, and every
+	// such goal is read from those solutions.
+	tcrBits := w.sweepTCRBits(st)
+	conds := w.sweepConditions()
+	points := d.Problem.NewPoints()
+	failed := make([]bool, len(d.Problem.Conditions))
+	for mask := range w.sweepCorners(tcrBits) {
+		w.sweepCorner(mask, tcrBits)
+		for _, ci := range conds {
+			w.solves++
+			failed[ci] = d.pointsAt(w.s, ci, w.dev, points) != nil
+		}
+		for _, gi := range w.sweep {
+			g := &r.Goals[gi]
+			if slices.ContainsFunc(d.Problem.Derived[g.Target].Conds, func(ci int) bool { return failed[ci] }) {
+				continue // derivedAt gives no value when a condition it reads fails
+			}
+			if x := points.Derived(g.Target); !math.IsNaN(x) {
+				widen(g, x)
+			}
+		}
+	}
+	d.tcrDraw = nil
+}
+
+// sweepTCRBits is how many bits of a sweep-wide corner's number pick TCR
+// signs: when the conditions carry temperatures, a part's TCR sign is a
+// corner of its own (high when hot is low when cold), so each part has
+// four: tolerance ± times TCR ±. It is 0 (the TCR follows the tolerance's
+// sign) without temperatures, or when four per part would exceed
+// st.MaxCornerParts doublings.
+func (w *worstRun) sweepTCRBits(st *Settings) int {
+	if w.d.conditionTemperatures() && 2*len(w.varying) <= st.MaxCornerParts {
+		return len(w.varying)
+	}
+	return 0
+}
+
+// sweepCorners is the number of sweep-wide corners with tcrBits TCR bits.
+func (w *worstRun) sweepCorners(tcrBits int) int { return w.r.Corners << tcrBits }
+
+// sweepCorner sets w.dev (and, with TCR bits, d.tcrDraw) to sweep-wide
+// corner mask: its low bits are the tolerance corner, the bits above them
+// each varying part's TCR sign (set: +TCR).
+func (w *worstRun) sweepCorner(mask, tcrBits int) {
+	d := w.d
+	d.corner(mask&(w.r.Corners-1), w.varying, w.dev)
+	if tcrBits == 0 {
+		return
+	}
+	if d.tcrDraw == nil {
+		d.tcrDraw = make([]float64, len(d.Parts))
+	}
+	for b, j := range w.varying {
+		d.tcrDraw[j] = -d.Parts[j].TCR
+		if mask&(1<<(len(w.varying)+b)) != 0 {
+			d.tcrDraw[j] = d.Parts[j].TCR
+		}
+	}
+}
+
+// sweepConditions lists, ascending, every condition a sweep-wide goal reads.
+func (w *worstRun) sweepConditions() []int {
+	var conds []int
+	for _, gi := range w.sweep {
+		conds = append(conds, w.d.Problem.Derived[w.r.Goals[gi].Target].Conds...)
+	}
+	slices.Sort(conds)
+	return slices.Compact(conds)
 }
 
 // linearised solves, for each goal, the two corners its sensitivities
