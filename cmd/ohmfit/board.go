@@ -79,7 +79,7 @@ message names it and the error it can reach); 2 bad usage or bad input.
 JSON output (--format json):
   {"board": "...", "status": "proven", "proven": true, "ties_proven": true,
    "distinct": 7, "alone": 11, "bound": 7, "values": [...], "fixed": [47000],
-   "selection_nodes": 6309, "elapsed": 0.085,
+   "selection_nodes": 6309,
    "networks": [{"template": "rail-3v3.yaml", "prefix": "U3",
      "values": {"R1": 30100, "R2": 9530}, "error": 0.0012,
      "designs": 148, "kept": 148, ...}],
@@ -88,9 +88,8 @@ JSON output (--format json):
 A network's "kept" is how many of its designs the selection weighed: each
 other one is beaten by a design of the same network whose values are
 among its own and that is no worse on error and power. "selection_nodes"
-counts the nodes the exact selection search visited; "elapsed" is the
-seconds the search took (listing the designs, then the selection), which
-vary from run to run.`,
+counts the nodes the exact selection search visited. Like fit's, the
+document holds no timings, so the same board gives the same document.`,
 		Example: `  # the built-in motor-controller board
   ohmfit board example:controller
 
@@ -371,7 +370,7 @@ func boardJSON(res *board.Result, chk *board.Checked) object {
 	}
 	return object{{"board", res.Board.Spec.Name}, {"status", res.Status().String()}, {"proven", res.Proven},
 		{"ties_proven", res.TiesProven}, {"distinct", res.Distinct}, {"alone", res.Alone}, {"bound", res.Bound},
-		{"values", res.Values}, {"fixed", nonNil(res.Fixed)}, {"selection_nodes", res.Nodes}, {"elapsed", res.Elapsed.Seconds()},
+		{"values", res.Values}, {"fixed", nonNil(res.Fixed)}, {"selection_nodes", res.Nodes},
 		{"networks", nets}, {"bom", bom}}
 }
 

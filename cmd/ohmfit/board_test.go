@@ -170,20 +170,17 @@ func TestTimeLimitWording(t *testing.T) {
 // search's figures, each as the library computed it: a network's "kept"
 // (designs left after dominated ones are dropped; at least 1, at most
 // "designs"), the board's "selection_nodes" (the selection search is one
-// goroutine and deterministic, so a second solve gives the same count) and
-// "elapsed" in seconds (positive, and no more than the wall time of the
-// whole run around it).
+// goroutine and deterministic, so a second solve gives the same count),
+// and no timing (the document repeats from run to run, as fit's does).
 func TestBoardJSONSearchFigures(t *testing.T) {
 	const file = "testdata/board/two.yaml"
-	start := time.Now()
 	stdout, stderr, code := runCLI(t, "board", file, "--format", "json")
-	wall := time.Since(start)
 	if code != ExitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
 	var doc struct {
 		SelectionNodes *int64   `json:"selection_nodes"`
-		Elapsed        *float64 `json:"elapsed"`
+		Elapsed        *float64 `json:"elapsed"` // must be absent
 		Networks       []struct {
 			Designs int
 			Kept    *int
@@ -203,8 +200,8 @@ func TestBoardJSONSearchFigures(t *testing.T) {
 	if doc.SelectionNodes == nil || *doc.SelectionNodes != res.Nodes {
 		t.Errorf("selection_nodes %v, want %d", doc.SelectionNodes, res.Nodes)
 	}
-	if doc.Elapsed == nil || !(*doc.Elapsed > 0) || *doc.Elapsed > wall.Seconds() {
-		t.Errorf("elapsed %v s, want above 0 and at most the run's %v", doc.Elapsed, wall)
+	if doc.Elapsed != nil {
+		t.Errorf("elapsed %v s in the JSON: a timing makes two runs' documents differ", *doc.Elapsed)
 	}
 	if len(doc.Networks) != len(res.Networks) {
 		t.Fatalf("%d networks, want %d", len(doc.Networks), len(res.Networks))
