@@ -86,6 +86,11 @@ func (BranchBound) Applies(p *Problem) bool {
 	return true
 }
 
+// dimFromRecords marks a box whose split position is chosen from its kept
+// corner records when it is split (bbWorker.splitBox): most boxes are ruled
+// out or finished as leaves and never need one.
+const dimFromRecords = -2
+
 // box is an index range of each position's options, with its bounds.
 type box struct {
 	lo, hi []int32
@@ -99,7 +104,7 @@ type box struct {
 	infeasible bool    // no candidate can meet the hard limits
 	// viol is the limit that showed it.
 	viol constraints.Violation
-	dim  int // the position to split on, chosen from the corners; -1: by width
+	dim  int // the position to split on, chosen from the corners; -1: by width; dimFromRecords: not chosen yet
 
 	recs     []float64 // its corners' records (bound_corners.go), or nil
 	sgns     []int8

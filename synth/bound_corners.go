@@ -290,7 +290,11 @@ func (w *bbWorker) takeCorners(b *box) bool {
 	if !w.gather(recs, sgns, n) {
 		return false
 	}
-	b.dim = w.influence(recs, n)
+	if keep {
+		b.dim = dimFromRecords
+	} else {
+		b.dim = w.influence(recs, n)
+	}
 	return true
 }
 

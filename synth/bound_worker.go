@@ -212,7 +212,7 @@ func (w *bbWorker) loop(ctx context.Context, set *Settings) {
 			w.sync()
 			w.progress(set, b)
 		default:
-			a, c := sh.split(b)
+			a, c := w.splitBox(b)
 			w.bound(a, worst)
 			w.bound(c, worst)
 			w.release(b) // both halves have theirs
@@ -240,6 +240,16 @@ func (w *bbWorker) loop(ctx context.Context, set *Settings) {
 		sh.mu.Unlock()
 		sh.cond.Broadcast()
 	}
+}
+
+// splitBox halves a box (bbShared.split), first choosing its split
+// position from its kept corner records where bounding left that for now.
+func (w *bbWorker) splitBox(b *box) (*box, *box) {
+	if b.dim == dimFromRecords {
+		w.vary = varying(b, w.vary)
+		b.dim = w.influence(b.recs, len(b.sgns)/w.lay.ns)
+	}
+	return w.sh.split(b)
 }
 
 // progress counts a finished box's candidates as done.
