@@ -202,7 +202,9 @@ func (w *bbWorker) offerCorner(corner []int32) {
 		return
 	}
 	w.solves += int64(w.nc)
-	if err := p.Spec.Evaluate(w.rw.fine, w.free, w.sc); err != nil || !w.sc.Feasible {
+	// An error cap is a hard limit: a corner over it is no answer, and
+	// in the bar it would rule out boxes holding answers.
+	if err := p.Spec.Evaluate(w.rw.fine, w.free, w.sc); err != nil || !w.sc.Feasible || !withinCap(w.sc.Error, w.rw.errCap) {
 		return
 	}
 	w.cand.Error, w.cand.Power = w.sc.Error, w.sc.Power

@@ -27,8 +27,8 @@ func Choose(name string, p *Problem, s *Settings) (m Method, note string, err er
 	case "bound":
 		if !(BranchBound{}).Applies(p) {
 			return BranchBound{}, "a sweep-wide goal (linearity, sensitivity or resolution) has no box bound: " +
-				"branch and bound rules out boxes and rows by the other goals, the hard limits and the other rank keys only, " +
-				"so it scores more candidates; the search still covers the whole space", nil
+				"branch and bound rules out boxes and rows only by what it can bound (the other goals, the hard limits " +
+				"on single conditions, power), so it scores more candidates; nothing is ruled out without proof", nil
 		}
 		return BranchBound{}, "", nil
 	case "exhaustive":

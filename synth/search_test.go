@@ -482,3 +482,41 @@ func TestErrorMaxMatchesBruteForce(t *testing.T) {
 		}
 	}
 }
+
+// An error cap is a hard limit for branch and bound too: a box's corners
+// over the cap must not enter the bar a box is ruled out by. On a
+// two-goal divider ranked by power first (where the low-power corners are
+// far from the goals), branch and bound lists what the rows method lists.
+func TestErrorMaxBranchBoundMatchesRows(t *testing.T) {
+	const text = `ohmfit: 1
+name: two taps ranked by power
+parts:
+  - {name: V1, type: voltage-source, plus: in, minus: gnd, volts: 5}
+  - {name: R1, type: resistor, from: in, to: a}
+  - {name: R2, type: resistor, from: a, to: b}
+  - {name: R3, type: resistor, from: b, to: gnd}
+targets:
+  - {voltage: a, equals: 2.2}
+  - {voltage: b, equals: 1.1}
+rank: [power, error]
+choose: {series: E24, min: 1k, max: 100k}
+`
+	p := problemFromYAML(t, text, "")
+	for _, cap := range []float64{0.01, 0.002} {
+		t.Run(fmt.Sprint(cap), func(t *testing.T) {
+			var lists [2]string
+			for i, m := range []synth.Method{synth.Rows{}, synth.BranchBound{}} {
+				res, err := synth.Search(context.Background(), p, &synth.Settings{Top: 5, Workers: 1, ErrorMax: cap}, m)
+				if err != nil {
+					t.Fatal(err)
+				}
+				for _, s := range res.Solutions {
+					lists[i] += fmt.Sprint(s.Values())
+				}
+			}
+			if lists[0] == "" || lists[0] != lists[1] {
+				t.Errorf("within %g: rows %s, branch and bound %s", cap, lists[0], lists[1])
+			}
+		})
+	}
+}

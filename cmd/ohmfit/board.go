@@ -312,6 +312,12 @@ func counted(n int, one, many string) string {
 	return strconv.Itoa(n) + " " + variation.Plural(n, one, many)
 }
 
+// rankBeyond is the one message for a --rank past the fit's answers
+// (check --rank, fit --bom/--plot --rank).
+func rankBeyond(rank, answers int) error {
+	return badInputf("--rank %d: the fit has only %s", rank, counted(answers, "answer", "answers"))
+}
+
 // bomNote explains why the BOM has more lines than the board has distinct
 // resistor values, when it does: sensors and stand-ins are on it but are
 // not resistor values, and a value ordered as two different items

@@ -282,7 +282,7 @@ func fitForCheck(o *checkOptions, cp *constraints.Problem) ([]synth.Option, erro
 		if len(res.Solutions) == 0 {
 			return nil, &exitError{code: ExitNoSolution, err: errors.New(noSolutionMessage(p, res, reach))}
 		}
-		return nil, badInputf("--rank %d: the fit has only %s", o.Rank, counted(len(res.Solutions), "answer", "answers"))
+		return nil, rankBeyond(o.Rank, len(res.Solutions))
 	}
 	sol := res.Solutions[o.Rank-1]
 	var desc []string

@@ -158,7 +158,7 @@ func writeFitReal(o *searchOptions, p *synth.Problem, shown *synth.Result, robus
 func (r *fitReal) writeFiles(o *searchOptions, p *synth.Problem, all, front []synth.Solution) error {
 	if r.BOM != "" || r.Plot != "" {
 		if r.BOMRank > len(all) {
-			return badInputf("--rank %d: the fit has only %d answers", r.BOMRank, len(all))
+			return rankBeyond(r.BOMRank, len(all))
 		}
 	}
 	if r.BOM != "" {
@@ -210,9 +210,9 @@ func writeRealTables(w io.Writer, p *synth.Problem, sols []synth.Solution, robus
 			for _, rg := range rep.Ratings {
 				pk = append(pk, rg.Part+" "+rg.Package)
 			}
-			notes := fmt.Sprintf("%d warnings", len(rep.Warnings))
+			notes := counted(len(rep.Warnings), "warning", "warnings")
 			if len(rep.Cautions) > 0 {
-				notes += fmt.Sprintf(", %d cautions", len(rep.Cautions))
+				notes += ", " + counted(len(rep.Cautions), "caution", "cautions")
 			}
 			tb.add(strconv.Itoa(sols[i].Rank), errorText(rep.WorstErrorDesign), lim, yieldText(rep.Yield), strings.Join(pk, ", "), notes)
 		}

@@ -159,6 +159,7 @@ func TestGolden(t *testing.T) {
 		{"check-err-bom", []string{"check", "testdata/check-divider.yaml", "--bom", "parts.txt"}, ExitBadInput},
 		{"check-one-sample", []string{"check", "example:divider", "--samples", "1", "--seed", "1"}, ExitNoSolution},
 		{"check-err-rank", []string{"check", "testdata/one-design.yaml", "--rank", "2"}, ExitBadInput},
+		{"fit-err-bom-rank", []string{"fit", "testdata/one-design.yaml", "--bom", "never-written.csv", "--rank", "2"}, ExitBadInput},
 		{"check-err-overwrite", []string{"check", "testdata/check-stock.yaml", "--samples", "0", "--bom", "testdata/check-stock.csv"}, ExitBadInput},
 		{"fit-robust", []string{"fit", "example:feedback", "--robust", "--top", "5", "--workers", "1"}, ExitOK},
 		{"fit-check", []string{"fit", "example:divider", "--check", "--top", "3", "--workers", "1"}, ExitOK},

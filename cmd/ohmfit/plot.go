@@ -124,7 +124,7 @@ func paretoPlot(p *synth.Problem, sols []synth.Solution, chosen int) (*plot.Plot
 		sc.GlyphStyle.Radius = vg.Points(3)
 		sc.GlyphStyle.Color = color.RGBA{R: 40, G: 90, B: 160, A: 255}
 		pl.Add(sc)
-		pl.Legend.Add(fmt.Sprintf("%d parts", n), sc)
+		pl.Legend.Add(counted(n, "part", "parts"), sc)
 	}
 	// The error-power staircase: by rising power, each point with a lower
 	// error than every point of lower or equal power.
@@ -213,7 +213,7 @@ func plotHistograms(w io.Writer, path string, t *constraints.Template, rep *vari
 		tg := t.Targets[g.Target]
 		u := tg.Kind.Unit()
 		pl := plot.New()
-		pl.Title.Text = fmt.Sprintf("%s, %s: %d samples, yield %s", g.Label, g.CondName, len(vals), yieldText(g.MonteCarlo.Yield))
+		pl.Title.Text = fmt.Sprintf("%s, %s: %s, yield %s", g.Label, g.CondName, counted(len(vals), "sample", "samples"), yieldText(g.MonteCarlo.Yield))
 		pl.X.Label.Text = axisLabel(g.Label, tg.Kind)
 		pl.Y.Label.Text = "samples"
 		pl.X.Tick.Marker = engTicks{u}

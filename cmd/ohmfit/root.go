@@ -1,7 +1,6 @@
 package main
 
 import (
-	"fmt"
 	"io"
 	"os"
 	"runtime/debug"
@@ -238,13 +237,10 @@ func argsAtMost(n int, what string) cobra.PositionalArgs {
 
 // countWords writes an argument count for a message.
 func countWords(n int) string {
-	switch n {
-	case 0:
+	if n == 0 {
 		return "none"
-	case 1:
-		return "1 argument"
 	}
-	return fmt.Sprintf("%d arguments", n)
+	return counted(n, "argument", "arguments")
 }
 
 // changed reports whether the user set the named flag.

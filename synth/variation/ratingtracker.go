@@ -30,6 +30,11 @@ func newRatingTracker(d *Design, net *solver.Network) *ratingTracker {
 }
 
 func (rt *ratingTracker) observe(s *solver.Solver, ci int, dev []float64) {
+	if !rt.d.Problem.Visible(ci) {
+		// A derivative's helper condition, not one the user wrote (it
+		// may lie outside the sweep): no rating or watch reads it.
+		return
+	}
 	isNominal := !slices.ContainsFunc(dev, func(v float64) bool { return v != 0 })
 	for j, v := range rt.d.Parts {
 		if v.Kind != solver.Resistor || v.Extra() {
@@ -41,9 +46,6 @@ func (rt *ratingTracker) observe(s *solver.Solver, ci int, dev []float64) {
 		if isNominal {
 			rt.nominal[j] = math.Max(rt.nominal[j], math.Abs(w))
 		}
-	}
-	if !rt.d.Problem.Visible(ci) {
-		return // a derivative's helper condition, not one the user wrote
 	}
 	for k := range rt.nodes {
 		rt.volts1[k] = s.Voltage(k)

@@ -58,10 +58,11 @@ func (d *Design) newWorstRun(s *solver.Solver, r *Report, rt *ratingTracker) *wo
 	return w
 }
 
-// observeNominal shows the rating tracker every condition at nominal values.
+// observeNominal shows the rating tracker every condition at nominal values
+// (the visible ones: the tracker takes no other).
 func (w *worstRun) observeNominal() {
 	zero := make([]float64, len(w.d.Parts))
-	for ci := range w.d.Problem.Conditions {
+	for ci := range w.d.Problem.VisibleConditions() {
 		w.d.setValues(w.s, ci, zero)
 		if w.s.Solve() == nil {
 			w.rt.observe(w.s, ci, zero)
@@ -101,12 +102,14 @@ func widen(g *Goal, x float64) {
 	g.WorstMax = math.Max(g.WorstMax, x)
 }
 
-// everyCorner solves every corner of the varying parts in every condition.
+// everyCorner solves every corner of the varying parts in every visible
+// condition (a derivative's helper conditions have no goals or ratings of
+// their own; the sweep-wide pass below solves them where a goal reads them).
 func (w *worstRun) everyCorner(st *Settings) {
 	d, r, varying := w.d, w.r, w.varying
 	r.Method = MethodCorners
 	r.Corners = 1 << len(varying)
-	for ci := range d.Problem.Conditions {
+	for ci := range d.Problem.VisibleConditions() {
 		for mask := 0; mask < r.Corners; mask++ {
 			d.corner(mask, varying, w.dev)
 			w.visit(ci, w.byCond[ci])
