@@ -18,10 +18,11 @@ var ErrSingular = errors.New("solver: network has no unique DC solution")
 var ErrNotSolved = errors.New("solver: no valid factorisation; call Solve first")
 
 // ErrOffLine is returned by Solver.SolveBetween when it cannot give the
-// solution by its update: the values are not between the two solutions', the
-// part's voltage changes sign between them (a pole of the update), or
-// refinement is on. Solve gives the solution instead.
-var ErrOffLine = errors.New("solver: values are not on the line between the two solutions; call Solve")
+// solution by its update: the value is not between the two solutions', their
+// determinant signs differ (a pole between them), the part's voltage differs
+// in sign at the two ends (rounding of a part that carries almost no
+// current), or refinement is on. Solve gives the solution instead.
+var ErrOffLine = errors.New("solver: no update along the line between the two solutions applies here; call Solve")
 
 // ErrEmpty is returned by Compile for a circuit without parts.
 var ErrEmpty = errors.New("solver: circuit has no parts")

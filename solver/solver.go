@@ -6,8 +6,8 @@ import "math"
 // allocating. It owns its matrices, so use one Solver per goroutine.
 //
 // A Solver starts with the Value fields of the circuit's parts. Results
-// (Voltage, Volts, Amps, Watts, ResistorPower) describe the last successful
-// Solve, with the values it used, even if values have been set since; after
+// (X, Voltage, Volts, Amps, Watts, ResistorPower) describe the last successful
+// Solve or SolveBetween, with the values it used, even if values have been set since; after
 // a failed Solve they are meaningless.
 type Solver struct {
 	net  *Network

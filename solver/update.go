@@ -5,7 +5,7 @@ package solver
 // update): the raw MNA solution and the response to a unit current injected
 // at a port, both from the factors of the last Solve.
 
-// X returns the MNA solution of the last successful Solve, in unknown order
+// X returns the MNA solution of the last successful Solve or SolveBetween, in unknown order
 // (node k's voltage at k-1, then voltage-source currents, then op-amp output
 // currents; see Network). The slice is the solver's own: read it before the
 // next Solve and do not modify it.
@@ -63,7 +63,7 @@ type Endpoint struct {
 // where the determinant keeps its sign, so β lies in [0, 1]). A part with
 // no voltage at either end carries no current and moves nothing: x = xa.
 //
-// It costs one pass over the unknowns. Voltage, Volts, Amps, Watts and
+// It costs one pass over the unknowns. X, Voltage, Volts, Amps, Watts and
 // ResistorPower then describe the new solution as after a Solve;
 // Resistance, PortResponse and the adjoint methods, which need factors,
 // return ErrNotSolved. It returns ErrOffLine, and leaves the last results
@@ -76,6 +76,9 @@ func (s *Solver) SolveBetween(part int, a, b Endpoint) error {
 	net := s.net
 	if net.pKind[part] != Resistor {
 		panic("solver: SolveBetween: part is not a resistor")
+	}
+	if len(a.X) < s.n || len(b.X) < s.n {
+		panic("solver: SolveBetween: a solution is shorter than Unknowns")
 	}
 	xa, xb := a.X[:s.n], b.X[:s.n]
 	r := s.vals[part]

@@ -11,8 +11,8 @@ import (
 // currents and powers that the bounds read, and the signs of the
 // determinant and of the ratio denominators. A box keeps the records of
 // its corners, so that each of its two halves takes half of its own from
-// it (the face on its side of the split) and solves only the new face at
-// the split point.
+// it (the face on its side of the split) and gives the new face at the
+// split point by updates along lines from the parent's (updateCorner).
 
 // rowInfluence discounts the row position's influence in the split choice:
 // a leaf scores that position along each row at the cost of one solve, so
@@ -101,7 +101,8 @@ func (w *bbWorker) solveCorner(corner []int32, rec []float64, sg []int8) {
 // a corner that many updates from a solve is solved afresh. (Measured on
 // synth/testdata/scale: the deepest corners are 19 to 25 updates from a
 // solve, 45 on ladder6-e96, and deviate from full solves by at most about
-// 1e-12 relative, a thousandth of boundSlack; TestCornerUpdatesMatchSolves.)
+// 1e-12 relative in their targets and 1.7e-11 in any quantity the bounds
+// read, a sixtieth of boundSlack; TestCornerUpdatesMatchSolves.)
 const maxLineGen = 64
 
 // updateCorner scores the corner into rec and sg from the records ra and
@@ -123,17 +124,16 @@ func (w *bbWorker) updateCorner(corner []int32, rec []float64, sg []int8, d int,
 	w.scoreCorner(corner, rec, sg, w.along)
 	rec[l.ogen] = gen
 	if testHookUpdated != nil && sg[l.sfail] == 0 {
-		testHookUpdated(w.p, corner, rec[l.oq:l.oq+len(w.p.Spec.Probes)*w.nc], rec[l.opow], int(gen))
+		testHookUpdated(w, corner, rec, sg, int(gen))
 	}
 	return true
 }
 
 // testHookUpdated, when not nil, is called with every corner updateCorner
-// scored: its options, the record's target values (target-major, as
-// Score.Value), its power and its generation; for a test that
-// compares updates with full solves. It may be called from several
-// goroutines.
-var testHookUpdated func(p *Problem, corner []int32, values []float64, power float64, gen int)
+// scored: the worker, the corner's options, its record and signs and its
+// generation; for a test that compares updates with full solves
+// (export_test.go). It may be called from several goroutines.
+var testHookUpdated func(w *bbWorker, corner []int32, rec []float64, sg []int8, gen int)
 
 // lineEnds is what solveAlong reads: the two records a corner is updated
 // between and the varying part's values there.
@@ -162,19 +162,29 @@ func (w *bbWorker) solveAlong(ci int) error {
 // condition solved by solve (nil: a full solve), and offers it to the
 // worker's corner list when it is feasible.
 func (w *bbWorker) scoreCorner(corner []int32, rec []float64, sg []int8, solve func(int) error) {
-	p, l := w.p, &w.lay
-	for i, d := range p.Domains {
-		w.free[i] = d.Options[corner[i]].Value
-	}
 	w.corners++
 	if solve == nil {
 		w.solves += int64(w.nc)
+	}
+	if w.recordCorner(corner, rec, sg, solve) && w.sc.Feasible {
+		w.offerCorner(corner)
+	}
+}
+
+// recordCorner scores the corner into record rec and signs sg with the
+// worker's solver and score (w.free holds its values after), each
+// condition solved by solve (nil: a full solve); false, with the record's
+// failure flag set, when a solve failed.
+func (w *bbWorker) recordCorner(corner []int32, rec []float64, sg []int8, solve func(int) error) bool {
+	p, l := w.p, &w.lay
+	for i, d := range p.Domains {
+		w.free[i] = d.Options[corner[i]].Value
 	}
 	w.rec, w.rsg = rec, sg
 	clear(sg)
 	if err := p.Spec.EvaluateBy(w.s, w.free, w.sc, solve, w.after); err != nil {
 		sg[l.sfail] = 1 // a corner that cannot be solved: no bound, split
-		return
+		return false
 	}
 	for ti := range p.Spec.Probes {
 		for c := 0; c < w.nc; c++ {
@@ -182,9 +192,7 @@ func (w *bbWorker) scoreCorner(corner []int32, rec []float64, sg []int8, solve f
 		}
 	}
 	rec[l.opow] = w.sc.Power
-	if w.sc.Feasible {
-		w.offerCorner(corner)
-	}
+	return true
 }
 
 // offerCorner offers a feasible corner, just scored into w.sc by plain
@@ -337,7 +345,8 @@ func (w *bbWorker) scratch(n int) ([]float64, []int8) {
 
 // inherit fills the records of box b, just split from par on position
 // b.splitPos: the corners on par's face that b keeps come from par's
-// records, those on the new face are solved.
+// records, those on the new face are updated from two of them
+// (updateCorner), or solved where no update applies.
 func (w *bbWorker) inherit(b, par *box, recs []float64, sgns []int8) {
 	l := &w.lay
 	d := b.splitPos

@@ -806,8 +806,10 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 	if goalsCut {
 		// Most rows a search visits miss the bar on a goal: cut by the
 		// goals first, and take the hard limits only in what is left.
-		// (The limits' counts, for the message when nothing is feasible,
-		// are kept while no answer is known, when there is no bar.)
+		// (hardLimits counts what each limit rules out while the worker's
+		// own list is empty, for the message when nothing is feasible;
+		// with a bar here some answer is known, so that message is never
+		// shown and the rows cut first need no count.)
 		if lo, hi = w.goalRange(lo, hi, widen(worst.Error)+rescoreSlack); lo > hi {
 			return nil
 		}

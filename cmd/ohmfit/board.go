@@ -89,7 +89,8 @@ A network's "kept" is how many of its designs the selection weighed: each
 other one is beaten by a design of the same network whose values are
 among its own and that is no worse on error and power. "selection_nodes"
 counts the nodes the exact selection search visited. Like fit's, the
-document holds no timings, so the same board gives the same document.`,
+document holds no timings, so the same board gives the same document
+unless --time-limit stops the selection (where it stops then varies).`,
 		Example: `  # the built-in motor-controller board
   ohmfit board example:controller
 
