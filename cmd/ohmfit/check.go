@@ -28,7 +28,7 @@ type realFlags struct {
 // bindRealFlags adds the analysis flags to a command.
 func bindRealFlags(cmd *cobra.Command, r *realFlags) {
 	f := cmd.Flags()
-	countVar(f, &r.Samples, "samples", variation.DefaultSamples, 0, maxSamples, "Monte Carlo samples (`N`, at most 10,000,000; 0: none)")
+	countVar(f, &r.Samples, "samples", variation.DefaultSamples, 0, maxSamples, "Monte Carlo samples (`N`: 0 for none, or 2 to 10,000,000)")
 	f.Uint64Var(&r.Seed, "seed", 1, "Monte Carlo seed (`N`); the same seed gives the same numbers")
 	f.StringVar(&r.Dist, "dist", "uniform", "how each part spreads within its tolerance (`DISTRIBUTION`): uniform, or normal with tolerance = 3σ")
 	f.StringVar(&r.Ambient, "ambient", "", "ambient range in °C as `MIN..MAX` (e.g. -20..70), spreading each resistor by its TCR; overrides the template's ambient")
@@ -40,6 +40,9 @@ func bindRealFlags(cmd *cobra.Command, r *realFlags) {
 func (r *realFlags) settings(cmd *cobra.Command) (*variation.Settings, constraints.Ambient, error) {
 	st := &variation.Settings{Samples: r.Samples, Seed: r.Seed}
 	var amb constraints.Ambient
+	if r.Samples == 1 {
+		return nil, amb, badInputf("--samples 1: a spread (σ) needs at least 2 samples; 0 turns Monte Carlo off")
+	}
 	if r.Samples == 0 {
 		st.Samples = -1
 	}
@@ -105,7 +108,10 @@ For each target in each condition it shows:
                sensitivities, each solved (linearised worst case). The output
                says which ran.
   Monte Carlo  mean, σ, the 0.135 % and 99.865 % points and the yield
-               against the target's limits, over --samples random builds.
+               against the target's limits, over --samples random builds
+               (at least 2). Below 741 samples no sample lies beyond those
+               points, so the lowest and highest sample are shown instead,
+               under those names (JSON "lowest", "highest").
   sensitivity  (dX/X)/(dx/x) of the target to each part: the relative change
                of the target per relative change of the part's value, at
                nominal values (no tolerance, no drift); for a thermistor or

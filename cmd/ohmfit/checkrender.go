@@ -121,12 +121,31 @@ func sensText(s variation.Sensitivity) string {
 	return strconv.FormatFloat(s.Normalised, 'f', 4, 64)
 }
 
+// tailWords names the Monte Carlo tail columns for a run of n samples:
+// the 0.135 % and 99.865 % points where it estimates them, else its lowest
+// and highest sample (variation.TailsEstimated).
+func tailWords(n int) (string, string) {
+	if variation.TailsEstimated(n) {
+		return "0.135%", "99.865%"
+	}
+	return "lowest", "highest"
+}
+
+// tailKeys is tailWords for JSON.
+func tailKeys(n int) (string, string) {
+	if variation.TailsEstimated(n) {
+		return "p0_135", "p99_865"
+	}
+	return "lowest", "highest"
+}
+
 // writeGoalTable writes one row per target and condition.
 func writeGoalTable(b *strings.Builder, t *constraints.Template, rep *variation.Report) error {
 	tb := table{indent: "  ", cols: []column{{gap: 3}, {gap: 3}}}
 	head := []string{"target", "condition", "nominal", "worst min", "worst max", "limits"}
 	if rep.Samples > 0 {
-		head = append(head, "mean", "σ", "0.135%", "99.865%", "yield")
+		lo, hi := tailWords(rep.Samples)
+		head = append(head, "mean", "σ", lo, hi, "yield")
 	}
 	for range head[2:] {
 		tb.cols = append(tb.cols, column{right: true, gap: 3})
@@ -335,8 +354,9 @@ func goalsJSON(t *constraints.Template, rep *variation.Report) []object {
 		m = append(m, member{"min", finite(lo)}, member{"max", finite(hi)}, member{"pass", g.Pass()})
 		if rep.Samples > 0 {
 			mc := g.MonteCarlo
+			klo, khi := tailKeys(rep.Samples)
 			m = append(m, member{"monte_carlo", object{{"mean", finite(mc.Mean)}, {"sigma", finite(mc.Sigma)},
-				{"p0_135", finite(mc.Low)}, {"p99_865", finite(mc.High)}, {"yield", mc.Yield}, {"failed", mc.Failed}}})
+				{klo, finite(mc.Low)}, {khi, finite(mc.High)}, {"yield", mc.Yield}, {"failed", mc.Failed}}})
 		}
 		m = append(m, member{"sensitivities", sens})
 		goals[i] = m

@@ -157,7 +157,7 @@ func TestGolden(t *testing.T) {
 		{"check-err-ambient", []string{"check", "testdata/check-divider.yaml", "--ambient", "70..0"}, ExitBadInput},
 		{"check-err-package", []string{"check", "testdata/check-divider.yaml", "--max-package", "0604"}, ExitBadInput},
 		{"check-err-bom", []string{"check", "testdata/check-divider.yaml", "--bom", "parts.txt"}, ExitBadInput},
-		{"check-one-sample", []string{"check", "example:divider", "--samples", "1", "--seed", "1"}, ExitNoSolution},
+		{"check-err-one-sample", []string{"check", "example:divider", "--samples", "1", "--seed", "1"}, ExitBadInput},
 		{"check-err-rank", []string{"check", "testdata/one-design.yaml", "--rank", "2"}, ExitBadInput},
 		{"fit-err-bom-rank", []string{"fit", "testdata/one-design.yaml", "--bom", "never-written.csv", "--rank", "2"}, ExitBadInput},
 		{"check-err-overwrite", []string{"check", "testdata/check-stock.yaml", "--samples", "0", "--bom", "testdata/check-stock.csv"}, ExitBadInput},

@@ -191,7 +191,7 @@ func plotHistograms(w io.Writer, path string, t *constraints.Template, rep *vari
 		if gs := perTarget[g.Target]; len(gs) > maxHistConditions {
 			if !spread[g.Target] {
 				spread[g.Target] = true
-				pl, err := spreadPlot(t, gs)
+				pl, err := spreadPlot(t, gs, rep.Samples)
 				if err != nil {
 					return err
 				}
@@ -266,11 +266,12 @@ func legendRoom(pl *plot.Plot, width, height vg.Length) {
 }
 
 // spreadPlot draws one target over many conditions: its nominal value,
-// the Monte Carlo 0.135 %…99.865 % points and the worst-case range per
+// the Monte Carlo 0.135 %…99.865 % points (or, with too few samples, the
+// lowest and highest of the run's samples) and the worst-case range per
 // condition, against the condition's temperature where every one has one
 // (else its place in the list), with the target's limits as horizontal
 // lines. It returns nil when no condition has samples.
-func spreadPlot(t *constraints.Template, gs []variation.Goal) (*plot.Plot, error) {
+func spreadPlot(t *constraints.Template, gs []variation.Goal, samples int) (*plot.Plot, error) {
 	byTemp := true
 	for _, g := range gs {
 		if g.Condition < 0 || g.Condition >= len(t.Conditions) || !t.Conditions[g.Condition].HasTemperature {
@@ -325,6 +326,10 @@ func spreadPlot(t *constraints.Template, gs []variation.Goal) (*plot.Plot, error
 		return nil
 	}
 	blue, grey := color.RGBA{R: 40, G: 90, B: 170, A: 255}, color.RGBA{R: 120, G: 120, B: 120, A: 255}
+	tlo, thi := "0.135 %", "99.865 %"
+	if !variation.TailsEstimated(samples) {
+		tlo, thi = "lowest", "highest" // too few samples to estimate the points (tailWords)
+	}
 	for _, l := range []struct {
 		name   string
 		pts    plotter.XYs
@@ -332,8 +337,8 @@ func spreadPlot(t *constraints.Template, gs []variation.Goal) (*plot.Plot, error
 		dashed bool
 	}{
 		{"nominal", nom, color.RGBA{A: 255}, false},
-		{"Monte Carlo 0.135 %", lo, blue, false},
-		{"Monte Carlo 99.865 %", hi, blue, false},
+		{"Monte Carlo " + tlo, lo, blue, false},
+		{"Monte Carlo " + thi, hi, blue, false},
 		{"worst case", wlo, grey, true},
 		{"", whi, grey, true},
 	} {

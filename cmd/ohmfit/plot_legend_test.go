@@ -47,7 +47,7 @@ func TestSpreadLegendAboveData(t *testing.T) {
 	if len(rep.Goals) <= maxHistConditions {
 		t.Fatalf("%d goals: want a target read in more than %d conditions", len(rep.Goals), maxHistConditions)
 	}
-	pl, err := spreadPlot(tp, rep.Goals)
+	pl, err := spreadPlot(tp, rep.Goals, rep.Samples)
 	if err != nil || pl == nil {
 		t.Fatalf("spreadPlot: %v, %v", pl, err)
 	}

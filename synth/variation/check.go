@@ -65,9 +65,12 @@ const (
 // Stats summarise a Monte Carlo run of one target in one condition.
 type Stats struct {
 	Mean, Sigma float64
-	Low, High   float64 // the 0.135 % and 99.865 % points (±3σ of a normal)
-	Yield       float64 // fraction of samples within the target's band
-	Failed      int     // samples whose network could not be solved
+	// Low and High are the 0.135 % and 99.865 % points (±3σ of a
+	// normal) where the run estimates them (TailsEstimated), else the
+	// lowest and highest sample.
+	Low, High float64
+	Yield     float64 // fraction of samples within the target's band
+	Failed    int     // samples whose network could not be solved
 }
 
 // Sensitivity is one target's sensitivity to one varied part, the

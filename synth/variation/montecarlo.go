@@ -127,8 +127,20 @@ func (mc *sampleRun) sample(k int) bool {
 	return ok
 }
 
+// TailSamples is the fewest samples with which a run estimates the 0.135 %
+// and 99.865 % points: n·0.00135 ≥ 1, so that some sample lies beyond each.
+// With fewer the points would only be the lowest and highest sample under
+// another name, so a run reports those as such.
+const TailSamples = 741
+
+// TailsEstimated reports whether a run of n samples estimates the 0.135 %
+// and 99.865 % points (Stats.Low and High), or gives its lowest and highest
+// sample: the one rule every output's labels follow.
+func TailsEstimated(n int) bool { return n >= TailSamples }
+
 // summarise computes mean, σ (n-1), the 0.135 %/99.865 % points (linear
-// interpolation between order statistics) and the yield.
+// interpolation between order statistics; the lowest and highest sample
+// with fewer than TailSamples) and the yield.
 func summarise(x []float64, meets func(float64) bool) Stats {
 	var st Stats
 	clean := make([]float64, 0, len(x))
@@ -163,7 +175,11 @@ func summarise(x []float64, meets func(float64) bool) Stats {
 		st.Sigma = math.Sqrt(ss / float64(len(clean)-1))
 	}
 	slices.Sort(clean)
-	st.Low, st.High = Quantile(clean, 0.00135), Quantile(clean, 0.99865)
+	if TailsEstimated(len(x)) {
+		st.Low, st.High = Quantile(clean, 0.00135), Quantile(clean, 0.99865)
+	} else {
+		st.Low, st.High = clean[0], clean[len(clean)-1]
+	}
 	return st
 }
 
