@@ -327,17 +327,29 @@ func bomNote(res *board.Result, chk *board.Checked) string {
 	if len(chk.BOM) == res.Distinct {
 		return ""
 	}
-	other, lines := false, map[string]int{}
+	sensors, standIns, lines := 0, 0, map[string]int{}
 	for _, l := range chk.BOM {
+		if l.Type == variation.TypeStandIn {
+			standIns++
+			continue
+		}
 		if l.Type != variation.TypeResistor {
-			other = true
+			sensors++
 			continue
 		}
 		lines[board.ValueKey(l.Value)]++
 	}
 	var why []string
-	if other {
-		why = append(why, "the templates' sensors and stand-ins are on it too, not counted")
+	var others []string
+	if sensors > 0 {
+		others = append(others, variation.Plural(sensors, "sensor", "sensors"))
+	}
+	if standIns > 0 {
+		others = append(others, variation.Plural(standIns, "stand-in", "stand-ins"))
+	}
+	if len(others) > 0 {
+		verb := variation.Plural(sensors+standIns, "is", "are")
+		why = append(why, fmt.Sprintf("the templates' %s %s on it too, not counted", strings.Join(others, " and "), verb))
 	}
 	for _, n := range lines {
 		if n > 1 {
