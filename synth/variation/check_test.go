@@ -11,7 +11,11 @@ import (
 )
 
 // design parses a valued template and prepares it.
-func design(t *testing.T, yaml string) *Design {
+func design(t *testing.T, yaml string) *Design { return designAt(t, yaml, nil) }
+
+// designAt parses a template and prepares it with its free positions at
+// opts (nil for a valued template).
+func designAt(t *testing.T, yaml string, opts []synth.Option) *Design {
 	t.Helper()
 	tpl, err := constraints.Parse("", []byte(yaml))
 	if err != nil {
@@ -21,12 +25,15 @@ func design(t *testing.T, yaml string) *Design {
 	if err != nil {
 		t.Fatal(err)
 	}
-	d, err := NewDesign(cp, nil, "", constraints.Ambient{})
+	d, err := NewDesign(cp, opts, "", constraints.Ambient{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	return d
 }
+
+// single is one part of value v as a position's option.
+func single(v float64) synth.Option { return synth.Option{Value: v, Parts: [2]float64{v}, Count: 1} }
 
 func divider(vin, r1, r2 float64, tolR, tolV string, extra string) string {
 	return fmt.Sprintf(`ohmfit: 1

@@ -250,7 +250,6 @@ func TestSweepSensitivityByResolve(t *testing.T) {
 	if !ok {
 		t.Fatal("no battery-sense example")
 	}
-	single := func(v float64) synth.Option { return synth.Option{Value: v, Parts: [2]float64{v}, Count: 1} }
 	cases := []struct {
 		name string
 		text string
@@ -265,18 +264,8 @@ func TestSweepSensitivityByResolve(t *testing.T) {
 	const h = 1e-5
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			tpl, err := constraints.Parse("", []byte(c.text))
-			if err != nil {
-				t.Fatal(err)
-			}
-			cp, err := constraints.Compile(tpl)
-			if err != nil {
-				t.Fatal(err)
-			}
-			d, err := NewDesign(cp, c.opts, "", constraints.Ambient{})
-			if err != nil {
-				t.Fatal(err)
-			}
+			d := designAt(t, c.text, c.opts)
+			tpl := d.Problem.Template
 			r, err := Check(d, &Settings{Samples: -1})
 			if err != nil {
 				t.Fatal(err)

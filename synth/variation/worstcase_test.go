@@ -4,7 +4,6 @@ import (
 	"math"
 	"testing"
 
-	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/constraints/examples"
 	"github.com/ohmfit/ohmfit/synth"
 )
@@ -22,7 +21,6 @@ func TestSweepCornersSolvedOnce(t *testing.T) {
 	if !ok {
 		t.Fatal("no battery-sense example")
 	}
-	single := func(v float64) synth.Option { return synth.Option{Value: v, Parts: [2]float64{v}, Count: 1} }
 	cases := []struct {
 		name   string
 		text   string
@@ -37,18 +35,8 @@ func TestSweepCornersSolvedOnce(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			tpl, err := constraints.Parse("", []byte(c.text))
-			if err != nil {
-				t.Fatal(err)
-			}
-			cp, err := constraints.Compile(tpl)
-			if err != nil {
-				t.Fatal(err)
-			}
-			d, err := NewDesign(cp, c.opts, "", constraints.Ambient{})
-			if err != nil {
-				t.Fatal(err)
-			}
+			d := designAt(t, c.text, c.opts)
+			cp := d.Problem
 			st := &Settings{MaxCornerParts: DefaultMaxCornerParts}
 			s := cp.Network.NewSolver()
 			s.SetRefinement(true)
