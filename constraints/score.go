@@ -7,18 +7,70 @@ import (
 	"github.com/ohmfit/ohmfit/solver"
 )
 
-// Tie tolerances of the contract: two errors or powers that agree within
-// TieRelative (relative) or TieAbsolute (absolute) are equal, so that an exact
-// hit that comes out as 0 or as 2e-16 ranks the same.
+// Tie tolerances of the contract: two errors that agree within TieRelative
+// (relative) or TieAbsolute (absolute) are equal, so that an exact hit that
+// comes out as 0 or as 2e-16 ranks the same.
 const (
 	TieRelative = 1e-12
 	TieAbsolute = 1e-15
 )
 
-// Same reports whether a and b are equal within the contract's tie tolerances.
-func Same(a, b float64) bool {
+// A Tie is a tie tolerance: two figures that differ by at most Abs, or by at
+// most Rel times the larger magnitude, are equal.
+type Tie struct {
+	Abs, Rel float64
+}
+
+// ErrorTie is the contract's tie of errors (and of values checked against a
+// band or a cap): 1e-12 relative or 1e-15 absolute.
+var ErrorTie = Tie{Abs: TieAbsolute, Rel: TieRelative}
+
+// PowerTie is the tie of powers in watts: 1e-12 relative only. The contract's
+// absolute allowance is for errors, which sit near zero on an exact hit; in
+// watts, 1e-15 absolute would make real differences between microwatt
+// designs (1e-10 relative) tie, and such ties chain, so the list would depend
+// on the order candidates are met. Powers of equal designs agree to rounding,
+// far inside 1e-12 relative.
+var PowerTie = Tie{Rel: TieRelative}
+
+// Same reports whether a and b are equal within t.
+func (t Tie) Same(a, b float64) bool {
 	d := math.Abs(a - b)
-	return d <= TieAbsolute || d <= TieRelative*math.Max(math.Abs(a), math.Abs(b))
+	return d <= t.Abs || d <= t.Rel*math.Max(math.Abs(a), math.Abs(b))
+}
+
+// Below returns how far below w a figure may lie and still tie with it:
+// every v >= w - t.Below(w) is worse than w or ties with it.
+func (t Tie) Below(w float64) float64 {
+	return math.Max(t.Abs, t.Rel*math.Abs(w))
+}
+
+// Less reports whether a is below b beyond the tie tolerance.
+func (t Tie) Less(a, b float64) bool { return a < b && !t.Same(a, b) }
+
+// AtMost reports whether a is at most b or ties with it.
+func (t Tie) AtMost(a, b float64) bool { return a <= b || t.Same(a, b) }
+
+// Same reports whether a and b are equal within the contract's tie
+// tolerances of errors (ErrorTie).
+func Same(a, b float64) bool { return ErrorTie.Same(a, b) }
+
+// SamePower reports whether two powers in watts tie (PowerTie).
+func SamePower(a, b float64) bool { return PowerTie.Same(a, b) }
+
+// OverPowerLimit reports whether power pw breaks supply_power_max lim (0: no
+// limit). The limit is inclusive: a power that ties with it (PowerTie) meets it.
+func OverPowerLimit(pw, lim float64) bool {
+	return lim > 0 && !PowerTie.AtMost(pw, lim)
+}
+
+// TieOf returns the tie tolerance of a rank key's figure: PowerTie for
+// power, ErrorTie for error (part counts are whole numbers and tie exactly).
+func TieOf(k RankKey) Tie {
+	if k == ByPower {
+		return PowerTie
+	}
+	return ErrorTie
 }
 
 // IsGoal reports whether the target contributes an error (it has `equals`).
@@ -217,7 +269,7 @@ func (p *Problem) EvaluateBy(s *solver.Solver, free []float64, sc *Score, solve 
 		if pw > sc.Power {
 			sc.Power = pw
 		}
-		if lim := p.Template.Limits.SupplyPowerMax; lim > 0 && pw > lim && !Same(pw, lim) && sc.Feasible {
+		if OverPowerLimit(pw, p.Template.Limits.SupplyPowerMax) && sc.Feasible {
 			sc.Feasible = false
 			sc.Violated = Violation{Kind: SupplyPowerLimit, Target: -1, Condition: ci}
 		}

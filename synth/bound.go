@@ -410,6 +410,7 @@ func (sh *bbShared) ruledOut(b *box, worst *candidate) bool {
 	}
 	for _, k := range sh.keys {
 		var lb, w float64
+		tie := constraints.TieOf(k)
 		switch k {
 		case constraints.ByError:
 			lb, w = b.err, worst.Error
@@ -427,7 +428,7 @@ func (sh *bbShared) ruledOut(b *box, worst *candidate) bool {
 		if lb > widen(w) {
 			return true
 		}
-		if !(lb >= w-math.Max(constraints.TieAbsolute, constraints.TieRelative*math.Abs(w))) {
+		if !(lb >= w-tie.Below(w)) {
 			return false
 		}
 	}

@@ -34,7 +34,7 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 		w.boundTargets(b, c)
 		pw := w.powerBound(b, c, worst)
 		b.power = math.Max(b.power, pw)
-		if lim := w.p.Spec.Template.Limits.SupplyPowerMax; lim > 0 && pw > lim && !constraints.Same(pw, lim) {
+		if constraints.OverPowerLimit(pw, w.p.Spec.Template.Limits.SupplyPowerMax) {
 			b.infeasible, b.viol = true, constraints.Violation{Kind: constraints.SupplyPowerLimit, Target: -1, Condition: c}
 		}
 	}

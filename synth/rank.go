@@ -149,17 +149,23 @@ type frontList struct {
 
 // dominatesCand reports whether a dominates b.
 func dominatesCand(a, b *candidate) bool {
-	le := func(x, y float64) bool { return x <= y || constraints.Same(x, y) }
-	lt := func(x, y float64) bool { return x < y && !constraints.Same(x, y) }
-	if !le(a.Error, b.Error) || !le(a.Power, b.Power) || a.Parts > b.Parts {
+	return dominates(a.Error, a.Power, a.Parts, b.Error, b.Power, b.Parts)
+}
+
+// dominates reports whether figures (ae, ap, an) are at least as good as
+// (be, bp, bn) in error, power and part count, and better in one, with the
+// tie tolerances of each figure (constraints.TieOf).
+func dominates(ae, ap float64, an int, be, bp float64, bn int) bool {
+	et, pt := constraints.ErrorTie, constraints.PowerTie
+	if !et.AtMost(ae, be) || !pt.AtMost(ap, bp) || an > bn {
 		return false
 	}
-	return lt(a.Error, b.Error) || lt(a.Power, b.Power) || a.Parts < b.Parts
+	return et.Less(ae, be) || pt.Less(ap, bp) || an < bn
 }
 
 // sameObjectives reports whether a and b tie in error, power and part count.
 func sameObjectives(a, b *candidate) bool {
-	return constraints.Same(a.Error, b.Error) && constraints.Same(a.Power, b.Power) && a.Parts == b.Parts
+	return constraints.Same(a.Error, b.Error) && constraints.SamePower(a.Power, b.Power) && a.Parts == b.Parts
 }
 
 // mayTake reports whether offer could keep c: no kept candidate dominates
@@ -201,7 +207,7 @@ func compareKeys(keys []constraints.RankKey, ae, ap float64, an int, be, bp floa
 				return cmp.Compare(ae, be)
 			}
 		case constraints.ByPower:
-			if !constraints.Same(ap, bp) {
+			if !constraints.SamePower(ap, bp) {
 				return cmp.Compare(ap, bp)
 			}
 		case constraints.ByParts:
@@ -240,12 +246,7 @@ func CompareScores(keys []constraints.RankKey, a, b ScoreKey) int {
 // DominatesScore reports whether a is at least as good as b in error, power
 // and part count, and better in at least one (the Pareto mark of a list).
 func DominatesScore(a, b ScoreKey) bool {
-	le := func(x, y float64) bool { return x <= y || constraints.Same(x, y) }
-	lt := func(x, y float64) bool { return x < y && !constraints.Same(x, y) }
-	if !le(a.Error, b.Error) || !le(a.Power, b.Power) || a.Parts > b.Parts {
-		return false
-	}
-	return lt(a.Error, b.Error) || lt(a.Power, b.Power) || a.Parts < b.Parts
+	return dominates(a.Error, a.Power, a.Parts, b.Error, b.Power, b.Parts)
 }
 
 // paretoMarks says, for each answer of a list, whether no other answer of

@@ -673,7 +673,7 @@ func (w *rowWorker) scoreOption(i int) {
 			if pw > powMax {
 				powMax = pw
 			}
-			if w.lim > 0 && pw > w.lim && !constraints.Same(pw, w.lim) {
+			if constraints.OverPowerLimit(pw, w.lim) {
 				w.viol.supply(c, 1)
 				return
 			}

@@ -473,7 +473,7 @@ func (st *runState) finish(p *Problem, res *Result) error {
 			if !constraints.Same(a.Error, b.Error) {
 				return a.Error < b.Error
 			}
-			return a.Power < b.Power && !constraints.Same(a.Power, b.Power)
+			return constraints.PowerTie.Less(a.Power, b.Power)
 		})
 		for i := range front {
 			front[i].Rank = i + 1

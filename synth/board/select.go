@@ -34,7 +34,7 @@ func (a objective) better(b objective) bool {
 	if !constraints.Same(a.rel, b.rel) {
 		return a.rel < b.rel
 	}
-	return a.pow < b.pow && !constraints.Same(a.pow, b.pow)
+	return constraints.PowerTie.Less(a.pow, b.pow)
 }
 
 // selection is the outcome of select.
@@ -74,7 +74,7 @@ func prune(nets [][]item) [][]item {
 			a := its[i]
 			dominated := false
 			for _, b := range kept {
-				if subset(b.vals, a.vals) && le(b.rel, a.rel) && le(b.pow, a.pow) {
+				if subset(b.vals, a.vals) && constraints.ErrorTie.AtMost(b.rel, a.rel) && constraints.PowerTie.AtMost(b.pow, a.pow) {
 					dominated = true
 					break
 				}
@@ -89,8 +89,6 @@ func prune(nets [][]item) [][]item {
 	}
 	return out
 }
-
-func le(x, y float64) bool { return x <= y || constraints.Same(x, y) }
 
 // subset reports whether sorted a is a subset of sorted b.
 func subset(a, b []int32) bool {

@@ -49,10 +49,10 @@ func evaluateSet(nets [][]item, nvals int, set []int32) (objective, []int) {
 	for r, its := range nets {
 		choice[r] = -1
 		for i := range its {
-			if !inside(&its[i]) || !le(its[i].rel, o.rel) {
+			if !inside(&its[i]) || !constraints.ErrorTie.AtMost(its[i].rel, o.rel) {
 				continue
 			}
-			if c := choice[r]; c < 0 || (its[i].pow < its[c].pow && !constraints.Same(its[i].pow, its[c].pow)) {
+			if c := choice[r]; c < 0 || constraints.PowerTie.Less(its[i].pow, its[c].pow) {
 				choice[r] = i
 			}
 		}

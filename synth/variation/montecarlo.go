@@ -99,7 +99,7 @@ func (mc *sampleRun) sample(k int) bool {
 		solved := s.Solve() == nil
 		if solved && p.Visible(ci) {
 			pw := s.ResistorPower() * p.OnFraction
-			if lim := t.Limits.SupplyPowerMax; lim > 0 && pw > lim && !constraints.Same(pw, lim) {
+			if constraints.OverPowerLimit(pw, t.Limits.SupplyPowerMax) {
 				ok = false
 			}
 		}
