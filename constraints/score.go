@@ -45,6 +45,13 @@ func (t Tie) Below(w float64) float64 {
 	return math.Max(t.Abs, t.Rel*math.Abs(w))
 }
 
+// Above returns a threshold just above w that no figure tying with w
+// exceeds: pruning at v > t.Above(w) never drops a tie. (A v above w ties
+// while v-w <= Rel·v, so v <= w/(1-Rel); 2·Rel covers that with room.)
+func (t Tie) Above(w float64) float64 {
+	return w + math.Max(t.Abs, 2*t.Rel*math.Abs(w))
+}
+
 // Less reports whether a is below b beyond the tie tolerance.
 func (t Tie) Less(a, b float64) bool { return a < b && !t.Same(a, b) }
 

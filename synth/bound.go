@@ -402,7 +402,7 @@ func (sh *bbShared) ruledOut(b *box, worst *candidate) bool {
 	if !b.bounded {
 		return false
 	}
-	if sh.front > 0 && !(b.err > widen(sh.front)) {
+	if sh.front > 0 && !(b.err > constraints.ErrorTie.Above(sh.front)) {
 		return false // it may hold a member of the trade-off front
 	}
 	if worst == nil {
@@ -425,7 +425,7 @@ func (sh *bbShared) ruledOut(b *box, worst *candidate) bool {
 			}
 			continue
 		}
-		if lb > widen(w) {
+		if lb > tie.Above(w) {
 			return true
 		}
 		if !(lb >= w-tie.Below(w)) {

@@ -21,7 +21,7 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 	// whatever the rest of it says, when error ranks first.
 	stop := math.Inf(1)
 	if worst != nil && w.sh.errorFirst {
-		stop = widen(worst.Error)
+		stop = constraints.ErrorTie.Above(worst.Error)
 	}
 	if !w.takeCorners(b) {
 		return // a corner that cannot be solved: no bound, split
@@ -158,7 +158,7 @@ func (w *bbWorker) voltBand(k, c int, lo, hi float64, worst *candidate) (float64
 		tg := &p.Spec.Template.Targets[ti]
 		blo, bhi := tg.Band()
 		if tg.HasEquals && w.sh.errorFirst && worst != nil {
-			t := widen(worst.Error)
+			t := constraints.ErrorTie.Above(worst.Error)
 			d := t
 			if tg.Equals != 0 {
 				d *= math.Abs(tg.Equals)

@@ -269,7 +269,7 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 				pw = 0 // helper conditions of a derivative carry no power figure
 			}
 			c.power = math.Max(c.power, pw)
-			if lim := tp.Limits.SupplyPowerMax; lim > 0 && pw > lim && !constraints.Same(pw, lim) {
+			if constraints.OverPowerLimit(pw, tp.Limits.SupplyPowerMax) {
 				feasible = false
 			}
 			for ti, tg := range tp.Targets {
@@ -365,7 +365,7 @@ func bruteForce(t *testing.T, p *synth.Problem) []bruteCand {
 					return x.err < y.err
 				}
 			case constraints.ByPower:
-				if !constraints.Same(x.power, y.power) {
+				if !constraints.SamePower(x.power, y.power) {
 					return x.power < y.power
 				}
 			case constraints.ByParts:
@@ -444,8 +444,8 @@ func close(a, b, rel, abs float64) bool {
 // dominates (no worse in error, power and part count, better in one); of
 // candidates tied in all three, the first in rank order.
 func bruteFront(all []bruteCand, cap float64) []bruteCand {
-	le := func(x, y float64) bool { return x <= y || constraints.Same(x, y) }
-	lt := func(x, y float64) bool { return x < y && !constraints.Same(x, y) }
+	le, lt := constraints.ErrorTie.AtMost, constraints.ErrorTie.Less
+	ple, plt := constraints.PowerTie.AtMost, constraints.PowerTie.Less
 	var in []bruteCand
 	for _, c := range all {
 		if le(c.err, cap) {
@@ -459,9 +459,9 @@ func bruteFront(all []bruteCand, cap float64) []bruteCand {
 			if i == j {
 				continue
 			}
-			noWorse := le(d.err, c.err) && le(d.power, c.power) && d.parts <= c.parts
-			better := lt(d.err, c.err) || lt(d.power, c.power) || d.parts < c.parts
-			tie := constraints.Same(d.err, c.err) && constraints.Same(d.power, c.power) && d.parts == c.parts
+			noWorse := le(d.err, c.err) && ple(d.power, c.power) && d.parts <= c.parts
+			better := lt(d.err, c.err) || plt(d.power, c.power) || d.parts < c.parts
+			tie := constraints.Same(d.err, c.err) && constraints.SamePower(d.power, c.power) && d.parts == c.parts
 			if (noWorse && better) || (tie && j < i) {
 				keep = false
 				break

@@ -810,7 +810,7 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 		// own list is empty, for the message when nothing is feasible;
 		// with a bar here some answer is known, so that message is never
 		// shown and the rows cut first need no count.)
-		if lo, hi = w.goalRange(lo, hi, widen(worst.Error)+rescoreSlack); lo > hi {
+		if lo, hi = w.goalRange(lo, hi, constraints.ErrorTie.Above(worst.Error)+rescoreSlack); lo > hi {
 			return nil
 		}
 	}
@@ -820,7 +820,7 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 	}
 	if w.errCap > 0 {
 		// The error cap is a hard limit: what cannot meet it is never kept.
-		if lo, hi = w.goalRange(lo, hi, widen(w.errCap)+rescoreSlack); lo > hi {
+		if lo, hi = w.goalRange(lo, hi, constraints.ErrorTie.Above(w.errCap)+rescoreSlack); lo > hi {
 			return nil
 		}
 	}
@@ -834,10 +834,10 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 		// that an exact tie of the threshold is scored, not cut.
 		t := math.Inf(1)
 		if worst != nil {
-			t = widen(worst.Error) + rescoreSlack
+			t = constraints.ErrorTie.Above(worst.Error) + rescoreSlack
 		}
 		if w.frontCap > 0 {
-			t = math.Max(t, widen(w.frontCap)+rescoreSlack)
+			t = math.Max(t, constraints.ErrorTie.Above(w.frontCap)+rescoreSlack)
 		}
 		if math.IsInf(t, 1) {
 			return full
@@ -851,7 +851,7 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 		if worst == nil {
 			return full
 		}
-		a, b, ok := w.powerRange(lo, hi, widen(worst.Power)*(1+rescoreSlack))
+		a, b, ok := w.powerRange(lo, hi, constraints.PowerTie.Above(worst.Power)*(1+rescoreSlack))
 		if !ok {
 			return full
 		}
@@ -861,7 +861,7 @@ func (w *rowWorker) narrow(lo, hi int) [][2]int {
 		}
 		if w.frontCap > 0 {
 			// The front also wants low-error options the power bound drops.
-			c, d := w.goalRange(lo, hi, widen(w.frontCap)+rescoreSlack)
+			c, d := w.goalRange(lo, hi, constraints.ErrorTie.Above(w.frontCap)+rescoreSlack)
 			out = unionRange(out, c, d)
 		}
 		return out

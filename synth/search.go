@@ -530,12 +530,6 @@ func withinCap(e, limit float64) bool {
 	return limit <= 0 || e <= limit || constraints.Same(e, limit)
 }
 
-// widen returns a threshold slightly above t, so that pruning never drops a
-// candidate that ties with t under the contract's tolerances.
-func widen(t float64) float64 {
-	return t + math.Max(constraints.TieAbsolute, 2*constraints.TieRelative*math.Abs(t))
-}
-
 // ErrTooManyRows is wrapped by the error of an exhaustive search whose rows
 // exceed Settings.MaxRows.
 var ErrTooManyRows = errors.New("synth: too many rows for an exhaustive search")

@@ -98,7 +98,7 @@ func TestChooseMatchesBruteForce(t *testing.T) {
 		sel := choose(context.Background(), prune(nets), nvals, DefaultMaxNodes, nil)
 		pr := prune(nets)
 		got := bruteObjective(pr, sel.choice)
-		if got.distinct != want.distinct || !constraints.Same(got.rel, want.rel) || !constraints.Same(got.pow, want.pow) {
+		if got.distinct != want.distinct || !constraints.Same(got.rel, want.rel) || !constraints.SamePower(got.pow, want.pow) {
 			t.Fatalf("case %d %v: chosen %+v, enumeration %+v", k, nets, got, want)
 		}
 		if sel.obj != got {
@@ -327,7 +327,7 @@ func TestSolveMatchesBruteForce(t *testing.T) {
 				t.Fatalf("only %d combinations: the board is too small to test anything", combos)
 			}
 			want := bruteBest(nets)
-			if res.Distinct != want.distinct || !constraints.Same(res.RelMax, want.rel) || !constraints.Same(res.Power, want.pow) {
+			if res.Distinct != want.distinct || !constraints.Same(res.RelMax, want.rel) || !constraints.SamePower(res.Power, want.pow) {
 				t.Fatalf("solve: %d values, largest relative error %g, power %g; enumeration of %d combinations: %+v",
 					res.Distinct, res.RelMax, res.Power, combos, want)
 			}
