@@ -270,15 +270,15 @@ func (w *bbWorker) afterCond(ci int) {
 // takeCorners gives the box the records of every corner, from its parent
 // (the box it was just split from) where they share a face, else from new
 // solves, and gathers them into the worker's ranges. It reports false when
-// a corner's solve failed. The records stay in boxRecs for pairBound.
-func (w *bbWorker) takeCorners(b *box) bool {
+// a corner's solve failed. It returns the records, n corners of them, for
+// pairBound; they stay valid until the worker's next box.
+func (w *bbWorker) takeCorners(b *box) (recs []float64, n int, ok bool) {
 	par := b.parent
 	b.parent = nil
 	w.vary = varying(b, w.vary)
-	n := 1 << len(w.vary)
+	n = 1 << len(w.vary)
 	keep := len(w.vary) <= maxKeptDims
 	l := &w.lay
-	var recs []float64
 	var sgns []int8
 	if keep {
 		recs, sgns = w.newRecords(n) // kept with the box, for its halves
@@ -296,16 +296,15 @@ func (w *bbWorker) takeCorners(b *box) bool {
 	if keep {
 		b.recs, b.sgns = recs, sgns
 	}
-	w.boxRecs, w.boxN = recs, n
 	if !w.gather(recs, sgns, n) {
-		return false
+		return nil, 0, false
 	}
 	if keep {
 		b.dim = dimFromRecords
 	} else {
 		b.dim = w.influence(recs, n)
 	}
-	return true
+	return recs, n, true
 }
 
 // newRecords returns record space for n corners a box will keep: from the

@@ -23,7 +23,8 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 	if worst != nil && w.sh.errorFirst {
 		stop = constraints.ErrorTie.Above(worst.Error)
 	}
-	if !w.takeCorners(b) {
+	recs, n, ok := w.takeCorners(b)
+	if !ok {
 		return // a corner that cannot be solved: no bound, split
 	}
 	b.bounded = true
@@ -39,7 +40,7 @@ func (w *bbWorker) bound(b *box, worst *candidate) {
 		}
 	}
 	if !b.infeasible && !(b.err > stop) {
-		b.err = w.pairBound(w.boxRecs, w.boxN, b.err, stop)
+		b.err = w.pairBound(recs, n, b.err, stop)
 	}
 }
 

@@ -95,7 +95,8 @@ choose: {series: E12, min: 100, max: 100k}
 				if !b.bounded {
 					continue
 				}
-				joint := w.pairBound(w.boxRecs, w.boxN, 0, math.Inf(1)) // the joint bound alone
+				recs, n, _ := w.takeCorners(b)                // the corners again: a root box has no parent to inherit from
+				joint := w.pairBound(recs, n, 0, math.Inf(1)) // the joint bound alone
 				if b.err < joint {
 					t.Fatalf("box %v…%v: error bound %g below its joint bound %g", b.lo, b.hi, b.err, joint)
 				}
@@ -238,7 +239,8 @@ func TestPairBoundLadderBox(t *testing.T) {
 	st := newRunState(p, set)
 	w := newBBWorker(newBBShared(p, set, st, 1), set, st)
 	w.bound(b, nil)
-	joint := w.pairBound(w.boxRecs, w.boxN, 0, math.Inf(1))
+	recs, n, _ := w.takeCorners(b)
+	joint := w.pairBound(recs, n, 0, math.Inf(1))
 	if !b.bounded || joint > sc.Error || b.err > sc.Error {
 		t.Fatalf("bounded %v, joint bound %g (box %g) above the error %g of a member", b.bounded, joint, b.err, sc.Error)
 	}

@@ -57,8 +57,6 @@ type bbWorker struct {
 	gslot      []int     // goal slots (target×nc + condition) the split choice reads
 	gscale     []float64 // per goal slot: 1/|goal|
 	pairs      []goalPair
-	boxRecs    []float64 // the records of the box just scored, boxN of them
-	boxN       int
 	pts, hull  []point2 // pairBound's scratch
 
 	// Corner records (bound_corners.go).
