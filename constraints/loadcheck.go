@@ -52,11 +52,7 @@ func (d *decoder) checkNodes() {
 		}
 		d.errorf(at, key, "no part connects to the ground node %q%s", t.Ground, suggest(t.Ground, nodes))
 	}
-	for _, r := range d.nodeRefs {
-		if !slices.Contains(nodes, r.name) {
-			d.errorf(r.n, r.key, "target names node %q, which no part connects%s", r.name, suggest(r.name, nodes))
-		}
-	}
+	d.unknownNames(d.nodeRefs, nodes, "target names node %q, which no part connects%s")
 	for _, r := range d.ratioRefs {
 		if r.name == t.Ground {
 			d.errorf(r.n, r.key, "ratio: %q is the ground node, always at 0 V, so the ratio is undefined; for a node's voltage to ground write {voltage: NODE}", r.name)
@@ -69,20 +65,12 @@ func (d *decoder) checkNodes() {
 // conditions `when` names and the free parts choose overrides.
 func (d *decoder) checkNames(names []string) {
 	t := d.t
-	for _, r := range d.partRefs {
-		if !slices.Contains(names, r.name) {
-			d.errorf(r.n, r.key, "target names part %q, which is not in parts%s", r.name, suggest(r.name, names))
-		}
-	}
+	d.unknownNames(d.partRefs, names, "target names part %q, which is not in parts%s")
 	var conds []string
 	for _, c := range t.Conditions {
 		conds = append(conds, c.Name)
 	}
-	for _, r := range d.condRefs {
-		if !slices.Contains(conds, r.name) {
-			d.errorf(r.n, r.key, "when names condition %q, which is not in conditions%s", r.name, suggest(r.name, conds))
-		}
-	}
+	d.unknownNames(d.condRefs, conds, "when names condition %q, which is not in conditions%s")
 	var free []string
 	for _, p := range t.Parts {
 		if p.Free {
@@ -96,6 +84,16 @@ func (d *decoder) checkNames(names []string) {
 			d.errorf(r.n, r.key, "choose: overrides: no part named %q%s", r.name, suggest(r.name, free))
 		case !t.Parts[i].Free:
 			d.errorf(r.n, r.key, "choose: overrides: part %q is a %s with a value; overrides apply to resistors ohmfit chooses", r.name, t.Parts[i].Kind)
+		}
+	}
+}
+
+// unknownNames reports each ref whose name is not among known, with format
+// taking the name and a suggestion of the nearest known one.
+func (d *decoder) unknownNames(refs []nameRef, known []string, format string) {
+	for _, r := range refs {
+		if !slices.Contains(known, r.name) {
+			d.errorf(r.n, r.key, format, r.name, suggest(r.name, known))
 		}
 	}
 }

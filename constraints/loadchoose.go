@@ -39,7 +39,7 @@ func (d *decoder) choose(n *yaml.Node) {
 	for _, o := range order {
 		path := "choose.overrides." + o.name
 		ctx := fmt.Sprintf("choose: override for %q", o.name)
-		d.overrideRefs = append(d.overrideRefs, partRef{o.name, o.key, path})
+		d.overrideRefs = append(d.overrideRefs, nameRef{o.name, o.key, path})
 		if !d.expectMapping(o.val, path, ctx, "{series: E24, min: 10k}") {
 			continue
 		}

@@ -25,17 +25,9 @@ type entry struct {
 // Cross-references are checked once every section has been read, so their
 // order in the file does not matter.
 type (
-	nodeRef struct {
-		name string
-		n    *yaml.Node
-		key  string
-	}
-	partRef struct {
-		name string
-		n    *yaml.Node
-		key  string
-	}
-	condRef struct {
+	// nameRef is a name one section gives for something another defines
+	// (a node, a part, a condition, an ADC), at the YAML node that says it.
+	nameRef struct {
 		name string
 		n    *yaml.Node
 		key  string
@@ -60,15 +52,15 @@ type decoder struct {
 	groundNode *yaml.Node // the ground value, or nil when defaulted
 	partsNode  *yaml.Node
 
-	nodeRefs     []nodeRef
-	ratioRefs    []nodeRef // the nodes ratio targets divide by
-	partRefs     []partRef
-	condRefs     []condRef
-	overrideRefs []partRef
+	nodeRefs     []nameRef
+	ratioRefs    []nameRef // the nodes ratio targets divide by
+	partRefs     []nameRef
+	condRefs     []nameRef
+	overrideRefs []nameRef
 	setRefs      []setRef
 	curveRefs    []curveRef
-	adcRefs      []partRef
-	heatRefs     []partRef // self_heating targets: the sensor each names
+	adcRefs      []nameRef
+	heatRefs     []nameRef // self_heating targets: the sensor each names
 }
 
 func (d *decoder) errorf(n *yaml.Node, key, format string, args ...any) {

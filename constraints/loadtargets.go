@@ -68,16 +68,16 @@ func (d *decoder) targetSubject(q *entry, path, ctx string, tg *Target) bool {
 	switch tg.Kind {
 	case Current, Power:
 		tg.Part = name
-		d.partRefs = append(d.partRefs, partRef{name, q.val, qpath})
+		d.partRefs = append(d.partRefs, nameRef{name, q.val, qpath})
 	case Code, Resolution:
 		tg.ADC = name
-		d.adcRefs = append(d.adcRefs, partRef{name, q.val, qpath})
+		d.adcRefs = append(d.adcRefs, nameRef{name, q.val, qpath})
 	case SelfHeating:
 		tg.Part = name
-		d.heatRefs = append(d.heatRefs, partRef{name, q.val, qpath})
+		d.heatRefs = append(d.heatRefs, nameRef{name, q.val, qpath})
 	default: // Linearity, Sensitivity
 		tg.Nodes = []string{name}
-		d.nodeRefs = append(d.nodeRefs, nodeRef{name, q.val, qpath})
+		d.nodeRefs = append(d.nodeRefs, nameRef{name, q.val, qpath})
 	}
 	return true
 }
@@ -107,9 +107,9 @@ func (d *decoder) targetNodes(q *entry, qpath, qctx string, tg *Target) bool {
 			return false
 		}
 		tg.Nodes = append(tg.Nodes, name)
-		d.nodeRefs = append(d.nodeRefs, nodeRef{name, it, qpath})
+		d.nodeRefs = append(d.nodeRefs, nameRef{name, it, qpath})
 		if j == 1 && tg.Kind == Ratio {
-			d.ratioRefs = append(d.ratioRefs, nodeRef{name, it, qpath})
+			d.ratioRefs = append(d.ratioRefs, nameRef{name, it, qpath})
 		}
 	}
 	return true
@@ -222,7 +222,7 @@ func (d *decoder) targetWhen(byName map[string]entry, path, ctx string, tg *Targ
 	for _, it := range items {
 		if name, ok := d.name(it, wpath, label(ctx, "when")); ok {
 			tg.When = append(tg.When, name)
-			d.condRefs = append(d.condRefs, condRef{name, it, wpath})
+			d.condRefs = append(d.condRefs, nameRef{name, it, wpath})
 		}
 	}
 }

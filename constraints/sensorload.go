@@ -3,7 +3,6 @@ package constraints
 import (
 	"fmt"
 	"math"
-	"slices"
 	"strconv"
 	"strings"
 
@@ -290,7 +289,7 @@ func (d *decoder) adc(n *yaml.Node, path, ctx string) (ADC, *yaml.Node, bool) {
 	if a.Node, ok = d.name(byName["in"].val, joinKey(path, "in"), label(ctx, "in")); !ok {
 		return a, nil, false
 	}
-	d.nodeRefs = append(d.nodeRefs, nodeRef{a.Node, byName["in"].val, joinKey(path, "in")})
+	d.nodeRefs = append(d.nodeRefs, nameRef{a.Node, byName["in"].val, joinKey(path, "in")})
 	if a.Ref, ok = d.positive(byName["ref"].val, joinKey(path, "ref"), label(ctx, "ref"), units.Volt); !ok {
 		return a, nil, false
 	}
@@ -551,11 +550,7 @@ func (d *decoder) checkSensors() {
 	for _, a := range t.ADCs {
 		adcNames = append(adcNames, a.Name)
 	}
-	for _, r := range d.adcRefs {
-		if !slices.Contains(adcNames, r.name) {
-			d.errorf(r.n, r.key, "target names ADC %q, which is not in parts%s", r.name, suggest(r.name, adcNames))
-		}
-	}
+	d.unknownNames(d.adcRefs, adcNames, "target names ADC %q, which is not in parts%s")
 	for _, r := range d.heatRefs {
 		i, ok := t.Part(r.name)
 		var names []string
