@@ -152,3 +152,79 @@ choose: {series: E24, min: 1k, max: 1M}
 		})
 	}
 }
+
+// The line update's guard (lineMinDen): updateLine refuses a move whose
+// determinant ratio d = 1 + ΔG·z is below 1/8, so the row is solved afresh,
+// and takes every other. d is computed here apart from the update: by the
+// bilinear theorem (rank-one determinant lemma) d = 1 + ΔG·Rp, Rp the
+// driving-point resistance across the moved resistor with it in place and
+// the source zeroed, written in closed form by series and parallel rules for
+// this ladder.
+func TestLineUpdateGuard(t *testing.T) {
+	p := parsedProblem(t, "guard.yaml", []byte(`ohmfit: 1
+name: taps
+parts:
+  - {name: V1, type: voltage-source, plus: in, minus: gnd, volts: 12}
+  - {name: R1, type: resistor, from: in, to: a}
+  - {name: R2, type: resistor, from: a, to: gnd}
+  - {name: R3, type: resistor, from: a, to: b}
+  - {name: R4, type: resistor, from: b, to: gnd}
+  - {name: L, type: resistor, from: b, to: gnd, value: 47k}
+targets:
+  - {voltage: a, equals: 5}
+choose: {series: E12, min: 100, max: 1M}
+`))
+	par := func(rs ...float64) float64 {
+		g := 0.0
+		for _, r := range rs {
+			g += 1 / r
+		}
+		return 1 / g
+	}
+	// Driving-point resistance across each free part, by part index (V1 is 0).
+	rp := func(v []float64) map[int]float64 {
+		r1, r2, r3, r4, l := v[1], v[2], v[3], v[4], v[5]
+		return map[int]float64{
+			1: par(r1, r2, r3+par(r4, l)),
+			2: par(r1, r2, r3+par(r4, l)),
+			3: par(r3, par(r1, r2)+par(r4, l)),
+			4: par(r4, l, r3+par(r1, r2)),
+		}
+	}
+	set := &Settings{Top: 1}
+	st := newRunState(p, set)
+	sh := newBBShared(p, set, st, 1)
+	w := newRowWorker(p, st.r, set, sh.j, sh.outer)
+	rng := rand.New(rand.NewPCG(3, 5))
+	refused, taken := 0, 0
+	for range 400 {
+		for _, i := range sh.outer {
+			w.cur[i] = rng.Int32N(int32(len(p.Domains[i].Options)))
+		}
+		k := sh.outer[rng.IntN(len(sh.outer))]
+		w.line, w.kPart, w.plane = k, p.Domains[k].Part, -1
+		e := w.edges[w.kPart]
+		w.ka, w.kb = e.From, e.To
+		if !w.prepare(w.opts[rng.IntN(len(w.opts))].Value) {
+			t.Fatal("solve failed")
+		}
+		old := append([]float64(nil), w.cond[0].vals...)
+		w.cur[k] = rng.Int32N(int32(len(p.Domains[k].Options)))
+		rNew := p.Domains[k].Options[w.cur[k]].Value
+		d := 1 + (1/rNew-1/old[w.kPart])*rp(old)[w.kPart]
+		if math.Abs(d-lineMinDen) < 1e-6 {
+			continue // too close to the edge to say which side rounding puts it
+		}
+		if got, want := w.updateLine(), d >= lineMinDen; got != want {
+			t.Fatalf("part %d from %g to %g Ω: d = %g, update taken %v, want %v", w.kPart, old[w.kPart], rNew, d, got, want)
+		}
+		if d < lineMinDen {
+			refused++
+		} else {
+			taken++
+		}
+	}
+	if refused < 20 || taken < 20 {
+		t.Fatalf("%d moves refused, %d taken: the check proves little", refused, taken)
+	}
+}
