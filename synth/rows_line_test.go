@@ -6,18 +6,8 @@ import (
 	"testing"
 )
 
-// A row updated from its line's first (rowWorker.updateLine, the
-// Sherman–Morrison formula for one resistor's conductance, i.e. the
-// bilinear theorem), itself sometimes updated from its plane's first
-// (nextLineFromPlane, the same formula for another resistor), equals the
-// row solved afresh: solution, port response,
-// the update formula's z and V0, the power coefficients and the part
-// values, within the update's rounding allowance (rescoreSlack), on
-// networks with one and with two conditions, an op-amp, and a current
-// target.
-func TestLineUpdateMatchesSolve(t *testing.T) {
-	for _, tc := range []struct{ name, yaml string }{
-		{"taps", `ohmfit: 1
+// tapsYAML is a loaded two-tap ladder from one source: four free parts.
+const tapsYAML = `ohmfit: 1
 name: taps
 parts:
   - {name: V1, type: voltage-source, plus: in, minus: gnd, volts: 12}
@@ -30,7 +20,20 @@ targets:
   - {voltage: a, equals: 5}
   - {current: R3, equals: 50u}
 choose: {series: E24, min: 100, max: 1M}
-`},
+`
+
+// A row updated from its line's first (rowWorker.updateLine, the
+// Sherman–Morrison formula for one resistor's conductance, i.e. the
+// bilinear theorem), itself sometimes updated from its plane's first
+// (nextLineFromPlane, the same formula for another resistor), equals the
+// row solved afresh: solution, port response,
+// the update formula's z and V0, the power coefficients and the part
+// values, within the update's rounding allowance (rescoreSlack), on
+// networks with one and with two conditions, an op-amp, and a current
+// target.
+func TestLineUpdateMatchesSolve(t *testing.T) {
+	for _, tc := range []struct{ name, yaml string }{
+		{"taps", tapsYAML},
 		{"difference stage, two conditions", `ohmfit: 1
 name: diff
 parts:
@@ -159,21 +162,9 @@ choose: {series: E24, min: 1k, max: 1M}
 // bilinear theorem (rank-one determinant lemma) d = 1 + ΔG·Rp, Rp the
 // driving-point resistance across the moved resistor with it in place and
 // the source zeroed, written in closed form by series and parallel rules for
-// this ladder.
+// this ladder (tapsYAML).
 func TestLineUpdateGuard(t *testing.T) {
-	p := parsedProblem(t, "guard.yaml", []byte(`ohmfit: 1
-name: taps
-parts:
-  - {name: V1, type: voltage-source, plus: in, minus: gnd, volts: 12}
-  - {name: R1, type: resistor, from: in, to: a}
-  - {name: R2, type: resistor, from: a, to: gnd}
-  - {name: R3, type: resistor, from: a, to: b}
-  - {name: R4, type: resistor, from: b, to: gnd}
-  - {name: L, type: resistor, from: b, to: gnd, value: 47k}
-targets:
-  - {voltage: a, equals: 5}
-choose: {series: E12, min: 100, max: 1M}
-`))
+	p := parsedProblem(t, "guard.yaml", []byte(tapsYAML))
 	par := func(rs ...float64) float64 {
 		g := 0.0
 		for _, r := range rs {
