@@ -208,7 +208,7 @@ func (m BranchBound) run(ctx context.Context, p *Problem, set *Settings, st *run
 	}
 	sh := newBBShared(p, set, st, float64(leaf))
 	if set.Progress != nil {
-		set.Progress.start(int64(p.Space()), "candidates")
+		set.Progress.start(p.Space(), "candidates")
 	}
 	workers := max(1, set.Workers)
 	st.stats.Workers = workers

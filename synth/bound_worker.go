@@ -253,7 +253,7 @@ func (w *bbWorker) splitBox(b *box) (*box, *box) {
 // progress counts a finished box's candidates as done.
 func (w *bbWorker) progress(set *Settings, b *box) {
 	if set.Progress != nil {
-		set.Progress.done.Add(int64(b.sizeOf()))
+		set.Progress.done.Add(b.sizeOf())
 	}
 }
 
@@ -262,7 +262,7 @@ func (w *bbWorker) progress(set *Settings, b *box) {
 // message when nothing is feasible.
 func (w *bbWorker) count(b *box) {
 	if b.infeasible && w.rw.top.worst() == nil {
-		w.rw.viol.add(b.viol, int64(b.sizeOf()))
+		w.rw.viol.add(b.viol, b.sizeOf())
 	}
 }
 

@@ -67,7 +67,7 @@ func (m Relax) run(ctx context.Context, p *Problem, set *Settings, st *runState)
 	}
 	rng := rand.New(rand.NewPCG(1, 2)) // fixed seed: the same input gives the same list
 	if set.Progress != nil {
-		set.Progress.start(int64(m.Starts), "starts")
+		set.Progress.start(float64(m.Starts), "starts")
 	}
 	for start := 0; start < m.Starts; start++ {
 		if ctx.Err() != nil {

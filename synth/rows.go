@@ -51,12 +51,16 @@ func (Rows) run(ctx context.Context, p *Problem, set *Settings, st *runState) er
 			outer = append(outer, i)
 		}
 	}
+	fr := 1.0 // in float64 first: the product may pass int64's range
+	for _, i := range outer {
+		fr *= float64(len(p.Domains[i].Options))
+	}
+	if fr > set.MaxRows || fr > math.MaxInt64/2 {
+		return tooManyRows(p, fr, set.MaxRows)
+	}
 	rows := int64(1)
 	for _, i := range outer {
 		rows *= int64(len(p.Domains[i].Options))
-	}
-	if float64(rows) > set.MaxRows {
-		return tooManyRows(p, float64(rows), set.MaxRows)
 	}
 	// A shard takes its share of the rows, in order.
 	first, last := int64(0), rows
@@ -65,7 +69,7 @@ func (Rows) run(ctx context.Context, p *Problem, set *Settings, st *runState) er
 		first, last = (k-1)*rows/n, k*rows/n
 	}
 	if set.Progress != nil {
-		set.Progress.start(last-first, "rows")
+		set.Progress.start(float64(last-first), "rows")
 	}
 	workers := set.Workers
 	if int64(workers) > (last-first+rowChunk-1)/rowChunk {
@@ -92,7 +96,7 @@ func (Rows) run(ctx context.Context, p *Problem, set *Settings, st *runState) er
 				end := min(start+rowChunk, last)
 				w.runRows(start, end)
 				if set.Progress != nil {
-					set.Progress.done.Add(end - start)
+					set.Progress.done.Add(float64(end - start))
 				}
 			}
 			mu.Lock()
@@ -913,7 +917,7 @@ func (w *rowWorker) hardLimits(lo, hi int) (int, int) {
 			nlo, nhi := w.bisect(lo, hi, math.Inf(-1), w.lim, rc, -1)
 			if nlo > nhi {
 				if counting {
-					w.viol.supply(c, int64(hi-lo+1))
+					w.viol.supply(c, float64(hi-lo+1))
 				}
 				return 1, 0
 			}
@@ -930,7 +934,7 @@ func (w *rowWorker) hardLimits(lo, hi int) (int, int) {
 			nlo, nhi := w.bisect(lo, hi, blo, bhi, rc, ti)
 			if nlo > nhi {
 				if counting {
-					w.viol.target(ti, c, int64(hi-lo+1))
+					w.viol.target(ti, c, float64(hi-lo+1))
 				}
 				return 1, 0
 			}

@@ -118,20 +118,43 @@ type Settings struct {
 // search on one core of a 2020s machine for a small network.
 const DefaultMaxRows = 2e7
 
-// MaxSpace is the largest candidate space any method accepts.
-const MaxSpace = 1e15
+// MaxSpace is the largest candidate space any method accepts: 1e21, past
+// eight positions of E96 over three decades (289^8 = 4.9e19) and short of
+// the spaces no search could cover (five positions of E192 pairs, 1.9e28,
+// are refused). Spaces past 2^53 are counted in float64 (Problem.Space,
+// Progress, the tallies of rejected candidates), to 1e-16 relative; what
+// is printed of them is rounded to three digits.
+const MaxSpace = 1e21
 
 // Progress reports how far a running search is. Its methods are safe to call
 // from any goroutine.
 type Progress struct {
-	done, total atomic.Int64
+	done, total atomicFloat
 	unit        atomic.Pointer[string]
 }
 
 // Counts returns the work done and the work in all, in Unit;
-// done/total is the fraction done.
-func (p *Progress) Counts() (done, total int64) {
+// done/total is the fraction done. Counts of candidates may pass int64's
+// range, so they are float64 (see MaxSpace).
+func (p *Progress) Counts() (done, total float64) {
 	return p.done.Load(), p.total.Load()
+}
+
+// atomicFloat is a float64 that goroutines add to safely.
+type atomicFloat struct{ bits atomic.Uint64 }
+
+func (f *atomicFloat) Load() float64 { return math.Float64frombits(f.bits.Load()) }
+
+func (f *atomicFloat) Store(v float64) { f.bits.Store(math.Float64bits(v)) }
+
+// Add adds d, retrying while another goroutine adds at the same time.
+func (f *atomicFloat) Add(d float64) {
+	for {
+		old := f.bits.Load()
+		if f.bits.CompareAndSwap(old, math.Float64bits(math.Float64frombits(old)+d)) {
+			return
+		}
+	}
 }
 
 // Unit names what Counts counts: "rows" (the exhaustive method),
@@ -145,7 +168,7 @@ func (p *Progress) Unit() string {
 }
 
 // start sets the total and its unit, before any work is counted.
-func (p *Progress) start(total int64, unit string) {
+func (p *Progress) start(total float64, unit string) {
 	p.unit.Store(&unit)
 	p.total.Store(total)
 }
@@ -227,7 +250,7 @@ func (s *Solution) Values() []float64 {
 // which condition, for the message when nothing is feasible.
 type Violation struct {
 	constraints.Violation
-	Count int64 // candidates it rejected there
+	Count float64 // candidates it rejected there (a float64 count, see MaxSpace)
 }
 
 // Result is the outcome of a search.
@@ -397,22 +420,22 @@ func (st *runState) blocking() *Violation { return st.viol.most() }
 // layout stays here.
 type violations struct {
 	nc int
-	n  []int64
+	n  []float64
 }
 
 func newViolations(p *Problem) violations {
 	nc := len(p.Spec.Conditions)
-	return violations{nc: nc, n: make([]int64, (len(p.Spec.Probes)+1)*nc)}
+	return violations{nc: nc, n: make([]float64, (len(p.Spec.Probes)+1)*nc)}
 }
 
 // target counts n candidates that break target ti's limits in condition c.
-func (v violations) target(ti, c int, n int64) { v.n[ti*v.nc+c] += n }
+func (v violations) target(ti, c int, n float64) { v.n[ti*v.nc+c] += n }
 
 // supply counts n candidates that break supply_power_max in condition c.
-func (v violations) supply(c int, n int64) { v.n[len(v.n)-v.nc+c] += n }
+func (v violations) supply(c int, n float64) { v.n[len(v.n)-v.nc+c] += n }
 
 // add counts n candidates that break the limit x names.
-func (v violations) add(x constraints.Violation, n int64) {
+func (v violations) add(x constraints.Violation, n float64) {
 	if x.Kind == constraints.SupplyPowerLimit {
 		v.supply(x.Condition, n)
 		return
