@@ -58,19 +58,24 @@ func TestBeyondInt64Space(t *testing.T) {
 }
 
 // The rows method refuses a space whose rows pass int64, rather than let
-// the row count wrap: nine E96 positions have 289^8 rows.
+// the row count wrap: ten E96 positions of 121 values (1k to 17.8k) have
+// 121^9 = 5.6e18 rows, past int64/2, in a space of 6.7e20 that any
+// method accepts (under MaxSpace).
 func TestRowsRefuseRowsPastInt64(t *testing.T) {
 	var b strings.Builder
-	fmt.Fprintf(&b, "ohmfit: 1\nname: nine-part ladder\nparts:\n  - {name: V1, type: voltage-source, plus: t0, minus: gnd, volts: 5}\n")
-	for i := 1; i <= 9; i++ {
+	fmt.Fprintf(&b, "ohmfit: 1\nname: ten-part ladder\nparts:\n  - {name: V1, type: voltage-source, plus: t0, minus: gnd, volts: 5}\n")
+	for i := 1; i <= 10; i++ {
 		to := fmt.Sprintf("t%d", i)
-		if i == 9 {
+		if i == 10 {
 			to = "gnd"
 		}
 		fmt.Fprintf(&b, "  - {name: R%d, type: resistor, from: t%d, to: %s}\n", i, i-1, to)
 	}
-	fmt.Fprintf(&b, "targets:\n  - {voltage: t4, equals: 2.5}\nchoose: {series: E96, min: 1k, max: 1M}\n")
+	fmt.Fprintf(&b, "targets:\n  - {voltage: t4, equals: 2.5}\nchoose: {series: E96, min: 1k, max: 17.8k}\n")
 	p := problemFromYAML(t, b.String(), "")
+	if want := math.Pow(121, 10); p.Space() != want || p.Space() > synth.MaxSpace {
+		t.Fatalf("space %g, want 121^10 = %g, within MaxSpace", p.Space(), want)
+	}
 	_, err := synth.Search(context.Background(), p, &synth.Settings{Top: 1, MaxRows: 1e30}, synth.Rows{})
 	if !errors.Is(err, synth.ErrTooManyRows) {
 		t.Fatalf("error %v, want ErrTooManyRows", err)
