@@ -3,6 +3,7 @@ module github.com/ohmfit/ohmfit
 go 1.26.0
 
 require (
+	github.com/dustin/go-humanize v1.1.0
 	github.com/spf13/cobra v1.10.2
 	github.com/spf13/pflag v1.0.9
 	golang.org/x/term v0.48.0

@@ -5,6 +5,7 @@ import (
 	"context"
 	"math"
 	"sync"
+	"unsafe"
 
 	"github.com/ohmfit/ohmfit/constraints"
 )
@@ -86,6 +87,11 @@ func (BranchBound) Applies(p *Problem) bool {
 	return true
 }
 
+// testHookStopped, when not nil, is given the candidates in open boxes
+// when a search stops: with the candidates counted done, they must make
+// up the space (export_test.go).
+var testHookStopped func(left float64)
+
 // dimFromRecords marks a box whose split position is chosen from its kept
 // corner records when it is split (bbWorker.splitBox): most boxes are ruled
 // out or finished as leaves and never need one.
@@ -108,8 +114,15 @@ type box struct {
 
 	recs     []float64 // its corners' records (bound_corners.go), or nil
 	sgns     []int8
-	parent   *box // the box it was split from, until it is bounded
-	splitPos int  // the position that split made it on
+	parent   *box  // the box it was split from, until it is bounded
+	splitPos int   // the position that split made it on
+	held     int64 // bytes counted against the open set's budget while in it
+}
+
+// bytes returns the memory a box holds: the struct, its ranges and its
+// kept corner records. It is what Settings.OpenBytes counts.
+func (b *box) bytes() int64 {
+	return int64(unsafe.Sizeof(*b)) + 4*int64(cap(b.lo)+cap(b.hi)) + 8*int64(cap(b.recs)) + int64(cap(b.sgns))
 }
 
 func (b *box) clone() *box {
@@ -131,6 +144,7 @@ func (b *box) clone() *box {
 type boxHeap struct {
 	items []*box
 	keys  []constraints.RankKey
+	bytes int64 // what its boxes hold (box.bytes, when pushed)
 }
 
 // first returns a box's bound on the first rank key.
@@ -141,9 +155,11 @@ func (h *boxHeap) first(b *box) float64 {
 	return b.err
 }
 
-func (h *boxHeap) Len() int { return len(h.items) }
-func (h *boxHeap) Less(i, j int) bool {
-	a, b := h.items[i], h.items[j]
+func (h *boxHeap) Len() int           { return len(h.items) }
+func (h *boxHeap) Less(i, j int) bool { return h.before(h.items[i], h.items[j]) }
+
+// before reports whether box a is to be taken before box b.
+func (h *boxHeap) before(a, b *box) bool {
 	if ka, kb := h.first(a), h.first(b); ka != kb {
 		return ka < kb
 	}
@@ -163,12 +179,18 @@ func (h *boxHeap) Less(i, j int) bool {
 	return a.seq < b.seq
 }
 func (h *boxHeap) Swap(i, j int) { h.items[i], h.items[j] = h.items[j], h.items[i] }
-func (h *boxHeap) Push(x any)    { h.items = append(h.items, x.(*box)) }
+func (h *boxHeap) Push(x any) {
+	b := x.(*box)
+	b.held = b.bytes()
+	h.bytes += b.held
+	h.items = append(h.items, b)
+}
 func (h *boxHeap) Pop() any {
 	n := len(h.items)
 	b := h.items[n-1]
 	h.items[n-1] = nil
 	h.items = h.items[:n-1]
+	h.bytes -= b.held
 	return b
 }
 
@@ -186,10 +208,13 @@ type bbShared struct {
 	errorFirst bool
 	single     [][]int32 // per position: prefix counts of single-part options
 
-	mu      sync.Mutex
-	cond    *sync.Cond
-	open    boxHeap
-	busy    int
+	mu   sync.Mutex
+	cond *sync.Cond
+	open boxHeap
+	// budget is Settings.OpenBytes: past it, a worker keeps the halves of
+	// its box to itself (bbWorker.dive) instead of adding them to open.
+	budget  int64
+	busy    int // workers holding a box (or a dive) out of open
 	stopped bool
 	seq     int64
 	bar     *topList // best distinct candidates seen anywhere: the bar to beat
@@ -248,6 +273,13 @@ func (m BranchBound) run(ctx context.Context, p *Problem, set *Settings, st *run
 		for _, b := range sh.open.items {
 			st.open = math.Min(st.open, b.err)
 		}
+		if testHookStopped != nil {
+			left := 0.0
+			for _, b := range sh.open.items {
+				left += b.sizeOf()
+			}
+			testHookStopped(left)
+		}
 	}
 	return nil
 }
@@ -262,7 +294,7 @@ func newBBShared(p *Problem, set *Settings, st *runState, leaf float64) *bbShare
 		}
 	}
 	sh := &bbShared{p: p, r: st.r, keys: p.Spec.Template.Rank, j: j, outer: outer,
-		leaf: leaf, front: set.FrontErrorCap}
+		leaf: leaf, front: set.FrontErrorCap, budget: set.OpenBytes}
 	sh.errorFirst = len(sh.keys) > 0 && sh.keys[0] == constraints.ByError && sh.front == 0
 	sh.cond = sync.NewCond(&sh.mu)
 	sh.open.keys = sh.keys

@@ -65,8 +65,11 @@ type bbWorker struct {
 	rsg         []int8
 	vary, pvary []int             // varying positions of the box and its parent
 	pool        map[int][]records // released record space, by corner count
-	tmpRecs     []float64
-	tmpSgns     []int8
+	// dive holds the open halves this worker keeps to itself while open
+	// is over its budget (put), last taken first.
+	dive    []*box
+	tmpRecs []float64
+	tmpSgns []int8
 }
 
 func newBBWorker(sh *bbShared, set *Settings, st *runState) *bbWorker {
@@ -177,26 +180,8 @@ func (w *bbWorker) stats() Stats {
 func (w *bbWorker) loop(ctx context.Context, set *Settings) {
 	sh := w.sh
 	for {
-		sh.mu.Lock()
-		for sh.open.Len() == 0 && sh.busy > 0 && !sh.stopped {
-			sh.cond.Wait()
-		}
-		if sh.open.Len() == 0 || sh.stopped {
-			sh.mu.Unlock()
-			sh.cond.Broadcast()
-			return
-		}
-		b := heap.Pop(&sh.open).(*box)
-		sh.busy++
-		worst := sh.worstLocked()
-		sh.mu.Unlock()
-		if ctx.Err() != nil {
-			sh.mu.Lock()
-			heap.Push(&sh.open, b) // still open: it counts in the bound
-			sh.stopped = true
-			sh.busy--
-			sh.mu.Unlock()
-			sh.cond.Broadcast()
+		b, worst, ok := w.next(ctx)
+		if !ok {
 			return
 		}
 		var kids []*box
@@ -228,16 +213,88 @@ func (w *bbWorker) loop(ctx context.Context, set *Settings) {
 				kids = append(kids, k)
 			}
 		}
-		sh.mu.Lock()
-		for _, k := range kids {
-			k.seq = sh.seq
-			sh.seq++
-			heap.Push(&sh.open, k)
+		w.put(kids)
+	}
+}
+
+// next returns the worker's next box and the bar to beat: the last of its
+// dive if it has one, else the first open box, waiting while other
+// workers may still add some. It reports false when the search is over:
+// nothing is left, or it stopped, in which case every box the worker held
+// is back in open, where the bound counts it.
+func (w *bbWorker) next(ctx context.Context) (*box, *candidate, bool) {
+	sh := w.sh
+	sh.mu.Lock()
+	if n := len(w.dive); n > 0 {
+		if ctx.Err() != nil || sh.stopped {
+			for _, b := range w.dive {
+				heap.Push(&sh.open, b)
+			}
+			w.dive = w.dive[:0]
+			sh.stopped = true
+			sh.busy--
+			sh.mu.Unlock()
+			sh.cond.Broadcast()
+			return nil, nil, false
 		}
+		b := w.dive[n-1]
+		w.dive = w.dive[:n-1]
+		worst := sh.worstLocked()
+		sh.mu.Unlock()
+		return b, worst, true
+	}
+	for sh.open.Len() == 0 && sh.busy > 0 && !sh.stopped {
+		sh.cond.Wait()
+	}
+	if sh.open.Len() == 0 || sh.stopped {
+		sh.mu.Unlock()
+		sh.cond.Broadcast()
+		return nil, nil, false
+	}
+	b := heap.Pop(&sh.open).(*box)
+	sh.busy++
+	worst := sh.worstLocked()
+	if ctx.Err() != nil {
+		heap.Push(&sh.open, b) // still open: it counts in the bound
+		sh.stopped = true
 		sh.busy--
 		sh.mu.Unlock()
 		sh.cond.Broadcast()
+		return nil, nil, false
 	}
+	sh.mu.Unlock()
+	return b, worst, true
+}
+
+// put hands on the halves of a box that are still open: to open, or, while
+// open holds more than its budget (Settings.OpenBytes), to the worker's own
+// dive, the better half last so that it is taken next. A dive holds at
+// most one box per level of the split tree beside the one in hand, so
+// memory stops growing however wide the tree is; other workers go on
+// taking the best of open meanwhile. The worker stays busy until its dive
+// is done.
+func (w *bbWorker) put(kids []*box) {
+	sh := w.sh
+	sh.mu.Lock()
+	for _, k := range kids {
+		k.seq = sh.seq
+		sh.seq++
+	}
+	if sh.open.bytes > sh.budget {
+		if len(kids) == 2 && sh.open.before(kids[0], kids[1]) {
+			kids[0], kids[1] = kids[1], kids[0]
+		}
+		w.dive = append(w.dive, kids...)
+	} else {
+		for _, k := range kids {
+			heap.Push(&sh.open, k)
+		}
+	}
+	if len(w.dive) == 0 {
+		sh.busy--
+	}
+	sh.mu.Unlock()
+	sh.cond.Broadcast()
 }
 
 // splitBox halves a box (bbShared.split), first choosing its split

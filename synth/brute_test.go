@@ -406,7 +406,15 @@ func compareMethodWithBrute(t *testing.T, p *synth.Problem, top, workers int, m 
 // compareWantWithMethod checks a method's list against an enumeration's.
 func compareWantWithMethod(t *testing.T, p *synth.Problem, want []bruteCand, top, workers int, m synth.Method) {
 	t.Helper()
-	res, err := synth.Search(context.Background(), p, &synth.Settings{Top: top, Workers: workers}, m)
+	compareWantWithSettings(t, p, want, &synth.Settings{Top: top, Workers: workers}, m)
+}
+
+// compareWantWithSettings is compareWantWithMethod with any settings; set.Top
+// must be given.
+func compareWantWithSettings(t *testing.T, p *synth.Problem, want []bruteCand, set *synth.Settings, m synth.Method) {
+	t.Helper()
+	top := set.Top
+	res, err := synth.Search(context.Background(), p, set, m)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -23,6 +23,7 @@ type searchOptions struct {
 	Series    string // overrides every position's series when set
 	TimeLimit time.Duration
 	Workers   int
+	Memory    int64  // bytes branch and bound's open boxes may hold (synth.Settings.OpenBytes)
 	Method    string // auto, exhaustive, bound or heuristic
 	Shard     string // "K/N": search the K-th of N parts of the space; "" for all
 	Quiet     bool
@@ -43,6 +44,7 @@ func bindSearchFlags(cmd *cobra.Command, o *searchOptions) {
 	f.StringVar(&o.Series, "series", "", "use this `SERIES` (E3 … E192) for every position, overriding the template")
 	timeLimitVar(f, &o.TimeLimit)
 	countVar(f, &o.Workers, "workers", 0, 0, maxWorkers, "goroutines to search with (`N`; 0: one per core); the answer does not depend on it")
+	sizeVar(f, &o.Memory, "memory", synth.DefaultOpenBytes, "about the most memory branch and bound keeps for the boxes it has yet to search (`SIZE`, e.g. 4GiB); past it the search goes depth first, which finds the same answer but may take longer to a bound (the whole process takes up to about 2.5 times this)")
 	f.StringVar(&o.Method, "method", "auto", "`METHOD`: bound (branch and bound over value boxes, proven best), exhaustive (every row, proven best), heuristic (a relaxation, then the standard values around it; not proven), or auto (branch and bound where its bounds apply, else exhaustive when the space allows)")
 	f.BoolVarP(&o.Quiet, "quiet", "q", false, "no progress bar")
 	f.StringVarP(&o.Output, "output", "o", "", "write the result to `FILE` instead of standard output (atomically, through a symbolic link to its target; never over an input file)")
@@ -179,7 +181,7 @@ func runSearch(o *searchOptions, t *constraints.Template) error {
 	if err != nil {
 		return templateError(t, err)
 	}
-	set := &synth.Settings{Top: o.Top, Workers: o.Workers, TimeLimit: o.TimeLimit, Progress: &synth.Progress{}}
+	set := &synth.Settings{Top: o.Top, Workers: o.Workers, OpenBytes: o.Memory, TimeLimit: o.TimeLimit, Progress: &synth.Progress{}}
 	o.real.adjust(set)
 	if o.Tradeoffs != "" {
 		v, err := parseErrorCap(o.Tradeoffs)

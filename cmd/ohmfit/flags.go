@@ -3,6 +3,7 @@ package main
 import (
 	"errors"
 	"fmt"
+	"github.com/dustin/go-humanize"
 	"math"
 	"strconv"
 	"strings"
@@ -97,6 +98,43 @@ func (d *durationValue) Set(s string) error {
 
 func (d *durationValue) accepts() string {
 	return "a duration with its unit, like 500ms, 30s, 2m or 1h30m (0 for no limit)"
+}
+
+// sizeValue is an amount of memory in bytes, such as 512MiB or 4GB.
+type sizeValue struct{ p *int64 }
+
+// minMemory is the least --memory accepted: below a few boxes' worth the
+// search would be depth first from its root, which is allowed (the answer
+// is the same) but never what anyone wants from a memory figure.
+const minMemory = 1 << 20
+
+// sizeVar binds a memory-size option to p, with its default.
+func sizeVar(f *pflag.FlagSet, p *int64, name string, value int64, usage string) {
+	*p = value
+	f.Var(&sizeValue{p: p}, name, usage)
+}
+
+// String writes the size in binary units, as the help shows the default.
+func (v *sizeValue) String() string {
+	return strings.ReplaceAll(humanize.IBytes(uint64(*v.p)), " ", "")
+}
+
+// Type is the word the help shows for the value.
+func (v *sizeValue) Type() string { return "SIZE" }
+
+// Set reads a size with its unit (go-humanize's ParseBytes: 512MiB, 4GiB,
+// 2GB, 800M; MiB and GiB are powers of 1024, MB and GB of 1000).
+func (v *sizeValue) Set(s string) error {
+	n, err := humanize.ParseBytes(strings.TrimSpace(s))
+	if err != nil || n < minMemory || n > math.MaxInt64 {
+		return &flagValueError{want: v.accepts()}
+	}
+	*v.p = int64(n)
+	return nil
+}
+
+func (v *sizeValue) accepts() string {
+	return "an amount of memory with its unit, like 512MiB, 4GiB or 2GB (at least 1MiB)"
 }
 
 // flagValueError is what a typed option's Set returns: what it accepts.
