@@ -87,11 +87,6 @@ func (BranchBound) Applies(p *Problem) bool {
 	return true
 }
 
-// testHookStopped, when not nil, is given the candidates in open boxes
-// when a search stops: with the candidates counted done, they must make
-// up the space (export_test.go).
-var testHookStopped func(left float64)
-
 // dimFromRecords marks a box whose split position is chosen from its kept
 // corner records when it is split (bbWorker.splitBox): most boxes are ruled
 // out or finished as leaves and never need one.
@@ -259,9 +254,6 @@ func (m BranchBound) run(ctx context.Context, p *Problem, set *Settings, st *run
 		wg.Go(func() { w.loop(ctx, set) })
 	}
 	wg.Wait()
-	for _, w := range ws {
-		st.merge(w.rw.top, w.rw.front, w.rw.viol, w.stats())
-	}
 	st.status = Proven
 	st.open = math.Inf(1)
 	if sh.stopped {
@@ -269,16 +261,29 @@ func (m BranchBound) run(ctx context.Context, p *Problem, set *Settings, st *run
 		if ctx.Err() == context.DeadlineExceeded {
 			st.status = TimeLimit
 		}
-		// What was not ruled out: every box still open.
+		// What is not ruled out: the open boxes the final bar does not
+		// rule out (best first, a box the bar has passed may wait in open
+		// unexamined; it is done, not left).
+		st.left = 0
+		worst := sh.worst()
 		for _, b := range sh.open.items {
-			st.open = math.Min(st.open, b.err)
-		}
-		if testHookStopped != nil {
-			left := 0.0
-			for _, b := range sh.open.items {
-				left += b.sizeOf()
+			if sh.ruledOut(b, worst) {
+				ws[0].count(b)
+				ws[0].progress(set, b)
+				continue
 			}
-			testHookStopped(left)
+			st.open = math.Min(st.open, b.err)
+			st.left += b.sizeOf()
+		}
+	}
+	for _, w := range ws {
+		st.merge(w.rw.top, w.rw.front, w.rw.viol, w.stats())
+	}
+	if sh.stopped {
+		// The best found so far includes the scored corners, which only
+		// the bar holds until a leaf scores them again.
+		for _, c := range sh.bar.items {
+			st.top.offerUnique(c)
 		}
 	}
 	return nil

@@ -67,8 +67,3 @@ func SetUpdatedHook(f func(UpdateCheck)) {
 		f(chk)
 	}
 }
-
-// SetStoppedHook sets a check on every branch-and-bound search that stops
-// before it is proven: f is given the candidates in the boxes still open;
-// nil removes it.
-func SetStoppedHook(f func(left float64)) { testHookStopped = f }

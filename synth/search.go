@@ -288,6 +288,12 @@ type Result struct {
 	// when nothing was proven about the rest of the space. +Inf when there
 	// is no answer and nothing is left open.
 	Bound float64
+	// Left is how many candidates the search neither ruled out nor scored:
+	// 0 when it covered its whole space, the candidates in branch and
+	// bound's open boxes when it stopped early, NaN when the method does
+	// not count them (the rows method or the heuristic, stopped early).
+	// Bound covers them.
+	Left float64
 	// Shard and Shards repeat Settings.Shard and Settings.Shards (both 0
 	// for a whole run); Top repeats Settings.Top.
 	Shard, Shards, Top int
@@ -351,6 +357,10 @@ func Search(ctx context.Context, p *Problem, s *Settings, m Method) (*Result, er
 		return nil, err
 	}
 	res.Bound = st.open
+	res.Left = st.left
+	if math.IsInf(st.open, 1) {
+		res.Left = 0 // everything examined or ruled out
+	}
 	res.Shard, res.Shards, res.Top = set.Shard, set.Shards, set.Top
 	for _, s := range res.Solutions {
 		res.Bound = math.Min(res.Bound, s.Score.Error)
@@ -393,6 +403,9 @@ type runState struct {
 	// left unexamined: +Inf when it examined or ruled out everything, 0
 	// (the default) when it cannot say.
 	open float64
+	// left counts the candidates the method neither ruled out nor scored,
+	// NaN when it does not count them (see Result.Left).
+	left float64
 }
 
 func newRunState(p *Problem, s *Settings) *runState {
@@ -402,6 +415,7 @@ func newRunState(p *Problem, s *Settings) *runState {
 		front = &frontList{r: r}
 	}
 	return &runState{
+		left:     math.NaN(),
 		r:        r,
 		want:     s.Top,
 		front:    front,

@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"strings"
 	"testing"
@@ -245,6 +246,10 @@ func TestTimeLimit(t *testing.T) {
 	}
 	if res.Status.Exhaustive() {
 		t.Error("a stopped search must not claim to be exhaustive")
+	}
+	// The rows method does not count what it left; it must not claim 0.
+	if !math.IsNaN(res.Left) {
+		t.Errorf("rows stopped early: Left %g, want NaN (not counted)", res.Left)
 	}
 }
 

@@ -9,7 +9,9 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
 	"slices"
+	"strconv"
 	"strings"
 	"syscall"
 	"testing"
@@ -284,5 +286,25 @@ func TestNothingSeen(t *testing.T) {
 				t.Errorf("nothingSeen: %v, want a refusal %v", err, c.want)
 			}
 		})
+	}
+}
+
+// A branch-and-bound run stopped by its time limit says how much of the
+// space it has not yet covered: the candidates of its open boxes, a count
+// between 1 and the space, and their share of it.
+func TestTimeLimitSaysWhatIsLeft(t *testing.T) {
+	stdout, stderr, code := runCLI(t, "fit", "../../synth/testdata/wide8-e96.yaml", "--time-limit", "300ms", "--top", "1", "-q")
+	if code != 0 {
+		t.Fatalf("exit %d; stderr %s", code, stderr)
+	}
+	m := regexp.MustCompile(`time-limit: not proven; ([0-9.e+,]+) candidates \(([0-9.e+-]+) of the space\) neither ruled out nor scored`).FindStringSubmatch(stdout)
+	if m == nil {
+		t.Fatalf("no count of what is left in:\n%s", stdout)
+	}
+	left, err1 := strconv.ParseFloat(strings.ReplaceAll(m[1], ",", ""), 64)
+	share, err2 := strconv.ParseFloat(m[2], 64)
+	space := math.Pow(289, 8) // eight positions of E96 over 1k … 1M (IEC 60063: 96 per decade, 3 decades + 1)
+	if err1 != nil || err2 != nil || !(left >= 1 && left <= space) || math.Abs(share-left/space) > 0.01*share+1e-12 {
+		t.Errorf("left %q (%g), share %q (%g), space %g", m[1], left, m[2], share, space)
 	}
 }
