@@ -161,3 +161,44 @@ func TestStopInDiveKeepsEveryCandidate(t *testing.T) {
 		}
 	}
 }
+
+// A stopped search's trade-off front covers what its list shows: every
+// listed answer within the cap is on the front or beaten there (the front
+// is "every answer scored that nothing beats"), the scored corners
+// included.
+func TestStoppedFrontCoversList(t *testing.T) {
+	text, err := os.ReadFile("testdata/scale/skew4-e96.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := problemFromYAML(t, string(text), "")
+	const limit = 0.05
+	for k := 1.0; k < 5000; k *= 2 {
+		ctx := &stopAfter{Context: context.Background()}
+		ctx.left.Store(int64(k))
+		res, err := synth.Search(ctx, p, &synth.Settings{Top: 5, Workers: 1, FrontErrorCap: limit}, bb)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if res.Status == synth.Proven {
+			break
+		}
+		for _, s := range res.Solutions {
+			if s.Score.Error > limit {
+				continue
+			}
+			key := synth.ScoreKey{Error: s.Score.Error, Power: s.Score.Power, Parts: s.Parts}
+			covered := false
+			for _, f := range res.Front {
+				fk := synth.ScoreKey{Error: f.Score.Error, Power: f.Score.Power, Parts: f.Parts}
+				if synth.DominatesScore(fk, key) || (fk.Error == key.Error && fk.Power == key.Power && fk.Parts == key.Parts) {
+					covered = true
+				}
+			}
+			if !covered {
+				t.Fatalf("stopped at call %d: rank %d %v (error %g, power %g) is neither on the front of %d nor beaten there",
+					int64(k), s.Rank, s.Values(), s.Score.Error, s.Score.Power, len(res.Front))
+			}
+		}
+	}
+}

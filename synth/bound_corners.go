@@ -3,6 +3,7 @@ package synth
 import (
 	"math"
 
+	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/solver"
 )
 
@@ -206,17 +207,24 @@ func (w *bbWorker) offerCorner(corner []int32) {
 	copy(w.cand.Opt, corner)
 	w.cand.Parts = partCount(p.Domains, corner)
 	w.cand.atLeast(w.sc.Error, w.sc.Power)
-	if w.inc.full() && !w.inc.r.less(&w.cand, w.inc.worst()) {
+	rw := w.rw
+	// The trade-off front takes corners too, so that a stopped search's
+	// front holds every answer it scored, as its list does.
+	front := rw.front != nil && w.cand.Error <= rw.frontCap+rescoreSlack && rw.front.mayTake(&w.cand)
+	if !front && w.inc.full() && !w.inc.r.less(&w.cand, w.inc.worst()) {
 		return
 	}
 	w.solves += int64(w.nc)
 	// An error cap is a hard limit: a corner over it is no answer, and
 	// in the bar it would rule out boxes holding answers.
-	if err := p.Spec.Evaluate(w.rw.fine, w.free, w.sc); err != nil || !w.sc.Feasible || !withinCap(w.sc.Error, w.rw.errCap) {
+	if err := p.Spec.Evaluate(rw.fine, w.free, w.sc); err != nil || !w.sc.Feasible || !withinCap(w.sc.Error, rw.errCap) {
 		return
 	}
 	w.cand.Error, w.cand.Power = w.sc.Error, w.sc.Power
 	w.inc.offerUnique(&w.cand)
+	if rw.front != nil && (w.cand.Error <= rw.frontCap || constraints.Same(w.cand.Error, rw.frontCap)) {
+		rw.front.offer(&w.cand)
+	}
 }
 
 // afterCond records, for the corner being scored, what its solution in
