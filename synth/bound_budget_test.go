@@ -3,7 +3,6 @@ package synth_test
 import (
 	"context"
 	"fmt"
-	"math/rand/v2"
 	"os"
 	"strings"
 	"sync/atomic"
@@ -11,34 +10,6 @@ import (
 
 	"github.com/ohmfit/ohmfit/synth"
 )
-
-// With an open-set budget of one byte every worker searches depth first
-// from its first box (Settings.OpenBytes): the order changes, the list must
-// not. Random networks of every target kind against the plain enumeration
-// (synth/brute_test.go), for 1, 2 and 8 workers.
-func TestOpenBudgetMatchesBruteForce(t *testing.T) {
-	rng := rand.New(rand.NewPCG(29, 31))
-	trials := 30
-	if testing.Short() {
-		trials = 8
-	}
-	for trial := range trials {
-		text := randomBoundTemplate(rng)
-		t.Run(fmt.Sprint(trial), func(t *testing.T) {
-			p := problemFromYAML(t, text, "")
-			if p.Space() > 30_000 || (testing.Short() && p.Space() > 12_000) {
-				t.Skipf("space %g", p.Space())
-			}
-			want := bruteForce(t, p)
-			for _, w := range []int{1, 2, 8} {
-				compareWantWithSettings(t, p, want, &synth.Settings{Top: 6, Workers: w, OpenBytes: 1}, bb)
-			}
-			if t.Failed() {
-				t.Log(text)
-			}
-		})
-	}
-}
 
 // The scale cases, depth first throughout, give the list of the default
 // budget, for 1, 2 and 8 workers; diff4-e96's exact ties (ranked by power)

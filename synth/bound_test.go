@@ -40,7 +40,10 @@ func TestBranchBoundExamplesMatchBruteForce(t *testing.T) {
 // Random networks with every target kind as a goal or a limit, an op-amp
 // stage, pairs (combine: any), several conditions, stock lists and the
 // power-first ranking: branch and bound against the plain enumeration, and
-// its bound equal to the best error when it proves the list.
+// its bound equal to the best error when it proves the list. Also with an
+// open-set budget of one byte, so that every worker searches depth first
+// from its first box (Settings.OpenBytes): the order changes, the list
+// must not, for 1, 2 and 8 workers.
 func TestBranchBoundRandomMatchesBruteForce(t *testing.T) {
 	rng := rand.New(rand.NewPCG(13, 17))
 	trials := 60
@@ -57,6 +60,9 @@ func TestBranchBoundRandomMatchesBruteForce(t *testing.T) {
 			want := bruteForce(t, p)
 			compareWantWithMethod(t, p, want, 6, 1+trial%3, bb)
 			compareWantWithMethod(t, p, want, 6, 2, synth.BranchBound{LeafRows: 1})
+			for _, w := range []int{1, 2, 8} {
+				compareWantWithSettings(t, p, want, &synth.Settings{Top: 6, Workers: w, OpenBytes: 1}, bb)
+			}
 			res, err := synth.Search(context.Background(), p, &synth.Settings{Top: 6, Workers: 2}, bb)
 			if err != nil {
 				t.Fatal(err)
