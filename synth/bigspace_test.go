@@ -12,7 +12,8 @@ import (
 	"github.com/ohmfit/ohmfit/synth"
 )
 
-// An eight-tap E96 ladder: 289^8 = 4.87e19 candidates, past int64's 9.2e18.
+// An eight-tap E96 ladder: 289^8 = 4.87e19 candidates (289 = E96 over
+// three decades, 1k to 1M, both ends in: IEC 60063), past int64's 9.2e18.
 // Branch and bound proves it, and its counts of candidates stay right past
 // int64: the progress total is the space, and every candidate is counted
 // done exactly once when the search is proven.
@@ -58,7 +59,8 @@ func TestBeyondInt64Space(t *testing.T) {
 }
 
 // The rows method refuses a space whose rows pass int64, rather than let
-// the row count wrap: ten E96 positions of 121 values (1k to 17.8k) have
+// the row count wrap: ten E96 positions of 121 values (1k to 17.8k: 96 per
+// decade plus the 25 from 10k to 17.8k, IEC 60063's E96 table) have
 // 121^9 = 5.6e18 rows, past int64/2, in a space of 6.7e20 that any
 // method accepts (under MaxSpace).
 func TestRowsRefuseRowsPastInt64(t *testing.T) {

@@ -109,13 +109,13 @@ type box struct {
 
 	recs     []float64 // its corners' records (bound_corners.go), or nil
 	sgns     []int8
-	parent   *box  // the box it was split from, until it is bounded
-	splitPos int   // the position that split made it on
-	held     int64 // bytes counted against the open set's budget while in it
+	parent   *box // the box it was split from, until it is bounded
+	splitPos int  // the position that split made it on
 }
 
 // bytes returns the memory a box holds: the struct, its ranges and its
-// kept corner records. It is what Settings.OpenBytes counts.
+// kept corner records. It is what Settings.OpenBytes counts; a box in
+// the open set is not changed, so it holds the same on leaving it.
 func (b *box) bytes() int64 {
 	return int64(unsafe.Sizeof(*b)) + 4*int64(cap(b.lo)+cap(b.hi)) + 8*int64(cap(b.recs)) + int64(cap(b.sgns))
 }
@@ -139,7 +139,7 @@ func (b *box) clone() *box {
 type boxHeap struct {
 	items []*box
 	keys  []constraints.RankKey
-	bytes int64 // what its boxes hold (box.bytes, when pushed)
+	bytes int64 // what its boxes hold (box.bytes)
 }
 
 // first returns a box's bound on the first rank key.
@@ -176,8 +176,7 @@ func (h *boxHeap) before(a, b *box) bool {
 func (h *boxHeap) Swap(i, j int) { h.items[i], h.items[j] = h.items[j], h.items[i] }
 func (h *boxHeap) Push(x any) {
 	b := x.(*box)
-	b.held = b.bytes()
-	h.bytes += b.held
+	h.bytes += b.bytes()
 	h.items = append(h.items, b)
 }
 func (h *boxHeap) Pop() any {
@@ -185,7 +184,7 @@ func (h *boxHeap) Pop() any {
 	b := h.items[n-1]
 	h.items[n-1] = nil
 	h.items = h.items[:n-1]
-	h.bytes -= b.held
+	h.bytes -= b.bytes()
 	return b
 }
 

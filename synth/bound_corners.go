@@ -3,7 +3,6 @@ package synth
 import (
 	"math"
 
-	"github.com/ohmfit/ohmfit/constraints"
 	"github.com/ohmfit/ohmfit/solver"
 )
 
@@ -210,8 +209,7 @@ func (w *bbWorker) offerCorner(corner []int32) {
 	rw := w.rw
 	// The trade-off front takes corners too, so that a stopped search's
 	// front holds every answer it scored, as its list does.
-	front := rw.front != nil && w.cand.Error <= rw.frontCap+rescoreSlack && rw.front.mayTake(&w.cand)
-	if !front && w.inc.full() && !w.inc.r.less(&w.cand, w.inc.worst()) {
+	if !rw.mayFront(&w.cand, w.sc.Error) && w.inc.full() && !w.inc.r.less(&w.cand, w.inc.worst()) {
 		return
 	}
 	w.solves += int64(w.nc)
@@ -222,9 +220,7 @@ func (w *bbWorker) offerCorner(corner []int32) {
 	}
 	w.cand.Error, w.cand.Power = w.sc.Error, w.sc.Power
 	w.inc.offerUnique(&w.cand)
-	if rw.front != nil && (w.cand.Error <= rw.frontCap || constraints.Same(w.cand.Error, rw.frontCap)) {
-		rw.front.offer(&w.cand)
-	}
+	rw.offerFront(&w.cand)
 }
 
 // afterCond records, for the corner being scored, what its solution in

@@ -747,7 +747,7 @@ func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
 	w.cand.Parts = partCount(w.p.Domains, w.cand.Opt)
 	w.cand.atLeast(errMax, powMax)
 	top := !w.top.full() || w.top.r.less(&w.cand, w.top.worst())
-	front := w.front != nil && errMax <= w.frontCap+rescoreSlack && w.front.mayTake(&w.cand)
+	front := w.mayFront(&w.cand, errMax)
 	if !top && !front {
 		return
 	}
@@ -768,8 +768,21 @@ func (w *rowWorker) offer(i int, errMax, powMax float64, exact bool) {
 	}
 	w.cand.Error, w.cand.Power = errMax, powMax
 	w.top.offer(&w.cand)
-	if w.front != nil && (errMax <= w.frontCap || constraints.Same(errMax, w.frontCap)) {
-		w.front.offer(&w.cand)
+	w.offerFront(&w.cand)
+}
+
+// mayFront reports whether c, whose plainly computed error is e, could
+// enter the trade-off front once scored again by refined solves; false
+// when no front is kept.
+func (w *rowWorker) mayFront(c *candidate, e float64) bool {
+	return w.front != nil && e <= w.frontCap+rescoreSlack && w.front.mayTake(c)
+}
+
+// offerFront offers c, scored by refined solves, to the trade-off front
+// when its error is within the front's cap.
+func (w *rowWorker) offerFront(c *candidate) {
+	if w.front != nil && withinCap(c.Error, w.frontCap) {
+		w.front.offer(c)
 	}
 }
 

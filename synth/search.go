@@ -288,9 +288,10 @@ type Result struct {
 	// when nothing was proven about the rest of the space. +Inf when there
 	// is no answer and nothing is left open.
 	Bound float64
-	// Left is how many candidates the search neither ruled out nor scored:
-	// 0 when it covered its whole space, the candidates in branch and
-	// bound's open boxes when it stopped early, NaN when the method does
+	// Left is how many candidates lie in parts of the space the search
+	// neither ruled out nor finished: 0 when it covered its whole space,
+	// the candidates of branch and bound's open boxes (whose corners may
+	// have been scored) when it stopped early, NaN when the method does
 	// not count them (the rows method or the heuristic, stopped early).
 	// Bound covers them.
 	Left float64
@@ -403,8 +404,8 @@ type runState struct {
 	// left unexamined: +Inf when it examined or ruled out everything, 0
 	// (the default) when it cannot say.
 	open float64
-	// left counts the candidates the method neither ruled out nor scored,
-	// NaN when it does not count them (see Result.Left).
+	// left counts the candidates in parts the method neither ruled out nor
+	// finished, NaN when it does not count them (see Result.Left).
 	left float64
 }
 

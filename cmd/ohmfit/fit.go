@@ -116,7 +116,7 @@ summary line uses the JSON's words: space, method, evaluated, solves and the
 status (proven, infeasible, heuristic, time-limit, interrupted or partial). A result stopped by
 --time-limit or Ctrl-C says how far from proven it is: "nothing better than
 X can exist" (JSON "bound"), and, from branch and bound, how many
-candidates it has neither ruled out nor scored. Ctrl-C stops a search and prints the best found
+candidates lie in boxes it has not yet searched or ruled out. Ctrl-C stops a search and prints the best found
 so far; once the search is over (--check, --robust) it ends the run at once.
 
 --shard K/N searches only the K-th of N disjoint parts of the space; the

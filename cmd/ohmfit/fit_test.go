@@ -297,7 +297,7 @@ func TestTimeLimitSaysWhatIsLeft(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d; stderr %s", code, stderr)
 	}
-	m := regexp.MustCompile(`time-limit: not proven; ([0-9.e+,]+) candidates \(([0-9.e+-]+) of the space\) neither ruled out nor scored`).FindStringSubmatch(stdout)
+	m := regexp.MustCompile(`time-limit: not proven; ([0-9.e+,]+) candidates \(([0-9.e+-]+) of the space\) in boxes not yet searched or ruled out`).FindStringSubmatch(stdout)
 	if m == nil {
 		t.Fatalf("no count of what is left in:\n%s", stdout)
 	}

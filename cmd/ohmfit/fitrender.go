@@ -88,7 +88,7 @@ func summaryLine(p *synth.Problem, res *synth.Result) string {
 		verdict = "not proven"
 		if res.Left > 0 {
 			// What a longer run or more shards would still have to search.
-			verdict += fmt.Sprintf("; %s candidates (%.2g of the space) neither ruled out nor scored", count(res.Left), res.Left/st.Space)
+			verdict += fmt.Sprintf("; %s candidates (%.2g of the space) in boxes not yet searched or ruled out", count(res.Left), res.Left/st.Space)
 		}
 	case synth.Partial:
 		verdict = "not proven (ranked among part of the space)"

@@ -3,12 +3,12 @@ package main
 import (
 	"errors"
 	"fmt"
-	"github.com/dustin/go-humanize"
 	"math"
 	"strconv"
 	"strings"
 	"time"
 
+	"github.com/dustin/go-humanize"
 	"github.com/ohmfit/ohmfit/eseries/units"
 	"github.com/spf13/cobra"
 	"github.com/spf13/pflag"
